@@ -1,0 +1,351 @@
+#include "models/analyzer.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+#include <string>
+
+#include "models/machine.hpp"
+#include "signal/envelope.hpp"
+#include "signal/impulses.hpp"
+#include "signal/spectral_kurtosis.hpp"
+#include "signal/spectrum.hpp"
+#include "signal/stats.hpp"
+
+namespace cavitas::models {
+
+std::size_t AnalysisSetup::segment_size() const {
+    return static_cast<std::size_t>(std::lround(fs_hz * segment_s));
+}
+
+AnalysisSetup choose_setup(double fs_hz, double sensor_max_hz, double segment_s) {
+    if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
+        throw std::invalid_argument("sample rate " + std::to_string(fs_hz) + " Hz is not a positive number");
+    if (!(segment_s >= 0.25 && segment_s <= 10.0))
+        throw std::invalid_argument("segment length " + std::to_string(segment_s) + " s is outside 0.25 .. 10 s");
+    AnalysisSetup s;
+    s.fs_hz = fs_hz;
+    s.segment_s = segment_s;
+    s.sensor_max_hz = sensor_max_hz > 0.0 ? sensor_max_hz : 0.0;
+    double top = kUsableFractionOfFs * fs_hz;
+    if (s.sensor_max_hz > 0.0) top = std::min(top, s.sensor_max_hz);
+    if (top < 1.5 * kHfFloorHz) {
+        throw std::invalid_argument(
+            "usable bandwidth tops out at " + std::to_string(static_cast<int>(top)) +
+            " Hz (0.4 x sample rate" + std::string(s.sensor_max_hz > 0.0 ? " or the sensor limit" : "") +
+            "); cavitation needs an HF band above 1 kHz: record at 6.4 kHz or more with a mount good to 1.5 kHz or more");
+    }
+    s.hf.high_hz = top;
+    s.hf.low_hz = std::max(kHfFloorHz, std::min(kHfStartCapHz, top / 4.0));
+    s.lf.low_hz = 10.0;
+    // Flow turbulence and recirculation live below about 1 kHz (common practice, no source).
+    s.lf.high_hz = std::min(kLfTopHz, s.hf.low_hz);
+    return s;
+}
+
+std::optional<double> mount_limit_hz(const std::string& mount) {
+    if (mount == "handheld") return 2000.0;
+    if (mount == "magnet") return 5000.0;
+    if (mount == "adhesive") return 6000.0;
+    if (mount == "stud") return 7000.0;
+    return std::nullopt;
+}
+
+double median(std::vector<double> v) {
+    if (v.empty()) return 0.0;
+    auto mid = v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2);
+    std::nth_element(v.begin(), mid, v.end());
+    double m = *mid;
+    if (v.size() % 2 == 0) m = 0.5 * (m + *std::max_element(v.begin(), mid));
+    return m;
+}
+
+double quantile(std::vector<double> v, double q) {
+    if (v.empty()) return 0.0;
+    std::sort(v.begin(), v.end());
+    const double pos = std::clamp(q, 0.0, 1.0) * static_cast<double>(v.size() - 1);
+    const auto lo = static_cast<std::size_t>(std::floor(pos));
+    const std::size_t hi = std::min(lo + 1, v.size() - 1);
+    return v[lo] + (v[hi] - v[lo]) * (pos - static_cast<double>(lo));
+}
+
+namespace {
+
+std::size_t pow2_floor(std::size_t n) {
+    std::size_t p = 1;
+    while (p * 2 <= n) p *= 2;
+    return p;
+}
+
+std::size_t pow2_round(double x) {
+    const double l = std::round(std::log2(std::max(x, 1.0)));
+    return static_cast<std::size_t>(std::exp2(l));
+}
+
+int kurtogram_levels_for(std::size_t n) {
+    const int max_levels = static_cast<int>(std::floor(std::log2(static_cast<double>(n)))) - 7;
+    return std::clamp(max_levels, 1, 7);
+}
+
+}  // namespace
+
+struct RecordingAnalyzer::Impl {
+    AnalysisSetup setup;
+    MachineContext machine;
+    std::size_t n;
+    std::vector<float> segment;
+    std::size_t fill = 0;
+    dsp::QualityMeter quality;
+    dsp::WelchPsd seg_psd;
+    std::vector<double> seg_psd_out;
+    dsp::WelchPsd fine_psd;
+    dsp::EnvelopeAnalyzer envelope;
+    dsp::ImpulseCounter impulses;
+    dsp::SpectralKurtosis sk;
+    std::vector<double> sk_out;
+    dsp::FastKurtogram kurtogram;
+    std::vector<double> ses_power_sum;
+    double mean_sq_env_sum = 0.0;
+    SegmentSeries series;
+    std::size_t samples = 0;
+
+    Impl(const AnalysisSetup& s, const MachineContext& m, double full_scale, std::size_t expected)
+        : setup(s),
+          machine(m),
+          n(s.segment_size()),
+          segment(n),
+          quality(dsp::QualityConfig{full_scale, 0.999}),
+          seg_psd(dsp::WelchConfig{std::max<std::size_t>(64, std::min(pow2_round(s.fs_hz / 8.0), n / 2))}, s.fs_hz),
+          seg_psd_out(seg_psd.bins()),
+          fine_psd(dsp::WelchConfig{fine_size(s.fs_hz, expected)}, s.fs_hz),
+          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz}, s.fs_hz, n),
+          impulses(dsp::ImpulseConfig{}, s.fs_hz, n),
+          sk(dsp::SpectralKurtosisConfig{std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096)}, s.fs_hz),
+          sk_out(sk.bins()),
+          kurtogram(dsp::KurtogramConfig{kurtogram_levels_for(n), s.hf.low_hz}, s.fs_hz, n),
+          ses_power_sum(n / 2 + 1, 0.0) {
+        for (auto& v : series.values) v.reserve(1024);
+    }
+
+    static std::size_t fine_size(double fs_hz, std::size_t expected) {
+        // ~0.4 Hz resolution (2.5 s frames) for the speed search, but at least
+        // two frames in the record when its length is known.
+        std::size_t want = pow2_floor(static_cast<std::size_t>(fs_hz * 4.0));
+        if (expected > 0) want = std::min(want, pow2_floor(std::max<std::size_t>(expected / 2, 64)));
+        return std::max<std::size_t>(want, 64);
+    }
+
+    void analyse_segment() {
+        using SI = SegmentIndicator;
+        const std::span<const float> x(segment.data(), n);
+        const dsp::Moments raw = dsp::moments(x);
+        series[SI::overall_rms].push_back(raw.rms);
+        series[SI::overall_peak].push_back(raw.peak);
+        series[SI::overall_crest].push_back(raw.crest);
+        series[SI::overall_kurtosis].push_back(raw.kurtosis);
+
+        seg_psd.reset();
+        seg_psd.push(x);
+        seg_psd.psd(seg_psd_out);
+        const double bin = seg_psd.bin_hz();
+        series[SI::hf_level_db].push_back(
+            dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));
+        series[SI::lf_level_db].push_back(
+            dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.lf.low_hz, setup.lf.high_hz)));
+
+        envelope.process(x);
+        const dsp::Moments band = dsp::moments(envelope.band_signal());
+        series[SI::hf_kurtosis].push_back(band.kurtosis);
+        series[SI::hf_crest].push_back(band.crest);
+        const std::size_t events = impulses.count(envelope.squared_envelope());
+        series[SI::impulse_rate].push_back(static_cast<double>(events) / setup.segment_s);
+        const auto ses = envelope.envelope_spectrum();
+        for (std::size_t k = 0; k < ses.size(); ++k) ses_power_sum[k] += ses[k] * ses[k];
+        mean_sq_env_sum += envelope.mean_squared_envelope();
+
+        sk.compute(x, sk_out);
+        double sk_sum = 0.0;
+        std::size_t sk_count = 0;
+        for (std::size_t k = 0; k < sk_out.size(); ++k) {
+            const double f = static_cast<double>(k) * sk.bin_hz();
+            if (f >= setup.hf.low_hz && f <= setup.hf.high_hz) {
+                sk_sum += sk_out[k];
+                ++sk_count;
+            }
+        }
+        series[SI::hf_spectral_kurtosis].push_back(sk_count ? sk_sum / static_cast<double>(sk_count) : 0.0);
+
+        kurtogram.process(x);
+    }
+};
+
+RecordingAnalyzer::RecordingAnalyzer(const AnalysisSetup& setup, const MachineContext& machine, double full_scale,
+                                     std::size_t expected_samples)
+    : impl_(std::make_unique<Impl>(setup, machine, full_scale, expected_samples)) {
+    if (setup.segment_size() < 256)
+        throw std::invalid_argument("analysis segment of " + std::to_string(setup.segment_size()) +
+                                    " samples is too short (need 256 or more)");
+}
+
+RecordingAnalyzer::~RecordingAnalyzer() = default;
+
+void RecordingAnalyzer::push(std::span<float> block) {
+    Impl& m = *impl_;
+    m.quality.process(block);
+    m.fine_psd.push(std::span<const float>(block.data(), block.size()));
+    m.samples += block.size();
+    std::size_t i = 0;
+    while (i < block.size()) {
+        const std::size_t take = std::min(m.n - m.fill, block.size() - i);
+        std::copy_n(block.begin() + static_cast<std::ptrdiff_t>(i), take,
+                    m.segment.begin() + static_cast<std::ptrdiff_t>(m.fill));
+        m.fill += take;
+        i += take;
+        if (m.fill == m.n) {
+            m.analyse_segment();
+            m.fill = 0;
+        }
+    }
+}
+
+std::size_t RecordingAnalyzer::segments() const { return impl_->series.segments(); }
+
+namespace {
+
+// Local-median prominence (dB, amplitude spectrum) of bin k.
+double amplitude_prominence_db(std::span<const double> spec, long k, long half, std::vector<double>& tmp) {
+    const long last = static_cast<long>(spec.size()) - 1;
+    tmp.clear();
+    for (long j = std::max(1L, k - half); j <= std::min(last, k + half); ++j)
+        if (std::abs(j - k) > 2) tmp.push_back(spec[static_cast<std::size_t>(j)]);
+    if (tmp.empty()) return 0.0;
+    auto mid = tmp.begin() + static_cast<std::ptrdiff_t>(tmp.size() / 2);
+    std::nth_element(tmp.begin(), mid, tmp.end());
+    const double a = spec[static_cast<std::size_t>(k)];
+    if (!(*mid > 0.0) || !(a > 0.0)) return 0.0;
+    return 20.0 * std::log10(a / *mid);
+}
+
+}  // namespace
+
+RecordingAnalysis RecordingAnalyzer::finish() {
+    Impl& m = *impl_;
+    RecordingAnalysis r;
+    r.setup = m.setup;
+    r.quality = m.quality.counts();
+    r.samples = m.samples;
+    r.duration_s = static_cast<double>(m.samples) / m.setup.fs_hz;
+    r.vanes = m.machine.vanes;
+    const std::size_t segs = m.series.segments();
+    if (segs == 0)
+        throw std::runtime_error("record of " + std::to_string(r.duration_s) + " s is shorter than one " +
+                                 std::to_string(m.setup.segment_s) + " s analysis segment");
+    r.series = m.series;
+
+    // Speed: given, or searched in the fine PSD near the hint.
+    const std::vector<double> fine = m.fine_psd.psd();
+    if (m.machine.rpm && *m.machine.rpm > 0.0) {
+        r.rpm = *m.machine.rpm;
+    } else {
+        double lo = 300.0, hi = 6000.0;
+        if (m.machine.rpm_hint > 0.0) {
+            lo = 0.9 * m.machine.rpm_hint;
+            hi = 1.1 * m.machine.rpm_hint;
+        }
+        if (m.fine_psd.frames() > 0) {
+            if (auto est = estimate_speed(fine, m.fine_psd.bin_hz(), lo, hi, m.machine.vanes)) {
+                r.rpm = est->rpm;
+                r.rpm_estimated = true;
+                r.rpm_resolution = est->resolution_rpm;
+                r.speed_score_db = est->score;
+            }
+        }
+    }
+
+    // Averaged squared-envelope spectrum (power average of the segments' SES).
+    std::vector<double> ses(m.ses_power_sum.size());
+    for (std::size_t k = 0; k < ses.size(); ++k) ses[k] = std::sqrt(m.ses_power_sum[k] / static_cast<double>(segs));
+    const double mean_sq = m.mean_sq_env_sum / static_cast<double>(segs);
+    const double ses_bin = m.envelope.bin_hz();
+
+    using RI = RecordingIndicator;
+    auto set = [&](RI i, double v) { r.recording[static_cast<std::size_t>(i)] = v; };
+    if (r.rpm > 0.0) {
+        const double fr = shaft_hz(r.rpm);
+        // Search window: +-0.5 % (+-1 % when estimated), at least one bin.
+        const double rel = r.rpm_estimated ? 0.01 : 0.005;
+        auto line = [&](double f) {
+            return dsp::measure_line(ses, ses_bin, f, std::max(ses_bin, rel * f), std::max(10.0 * ses_bin, 0.1 * f));
+        };
+        const auto l1 = line(fr);
+        set(RI::ses_1x_prominence_db, l1.prominence_db);
+        set(RI::modulation_1x, mean_sq > 0.0 ? l1.amplitude / mean_sq : 0.0);
+        if (m.machine.vanes > 0) {
+            const double bpf = blade_pass_hz(r.rpm, m.machine.vanes);
+            const auto lb = line(bpf);
+            const auto l2 = line(2.0 * bpf);
+            set(RI::ses_bpf_prominence_db, lb.prominence_db);
+            set(RI::ses_2bpf_prominence_db, l2.prominence_db);
+            set(RI::modulation_bpf, mean_sq > 0.0 ? lb.amplitude / mean_sq : 0.0);
+        }
+        // Strongest SES peaks between 0.3x and 12x (bearing-like search).
+        const long k_lo = std::max(3L, static_cast<long>(std::floor(0.3 * fr / ses_bin)));
+        const long k_hi = std::min(static_cast<long>(ses.size()) - 3, static_cast<long>(std::ceil(12.0 * fr / ses_bin)));
+        std::vector<double> tmp;
+        for (long k = k_lo; k <= k_hi; ++k) {
+            const double a = ses[static_cast<std::size_t>(k)];
+            bool is_max = true;
+            for (long j = k - 2; j <= k + 2 && is_max; ++j)
+                if (j != k && ses[static_cast<std::size_t>(j)] > a) is_max = false;
+            if (!is_max) continue;
+            const long half = std::max(10L, static_cast<long>(std::lround(0.05 * static_cast<double>(k))));
+            const double p = amplitude_prominence_db(ses, k, half, tmp);
+            if (p < 6.0) continue;
+            const double hz = static_cast<double>(k) * ses_bin;
+            r.envelope_peaks.push_back({hz, hz / fr, p});
+        }
+        std::sort(r.envelope_peaks.begin(), r.envelope_peaks.end(),
+                  [](const EnvelopePeak& a, const EnvelopePeak& b) { return a.prominence_db > b.prominence_db; });
+        if (r.envelope_peaks.size() > 16) r.envelope_peaks.resize(16);
+    }
+
+    // Mains hum: lines at 50/60 Hz and harmonics standing far over the floor,
+    // not at a shaft harmonic.
+    if (m.fine_psd.frames() > 0) {
+        const double bin = m.fine_psd.bin_hz();
+        const double fr = r.rpm > 0.0 ? shaft_hz(r.rpm) : 0.0;
+        std::vector<double> tmp;
+        for (double mains : {50.0, 60.0}) {
+            int lines = 0;
+            bool fundamental = false;
+            for (int h = 1; h <= 4; ++h) {
+                const double f = mains * h;
+                if (fr > 0.0) {
+                    const double order = f / fr;
+                    if (std::abs(order - std::round(order)) * fr < std::max(2.0 * bin, 0.01 * f)) continue;
+                }
+                const long k = static_cast<long>(std::lround(f / bin));
+                if (k + 20 >= static_cast<long>(fine.size())) break;
+                long best = k;
+                for (long j = k - 1; j <= k + 1; ++j)
+                    if (fine[static_cast<std::size_t>(j)] > fine[static_cast<std::size_t>(best)]) best = j;
+                // PSD is a power spectrum: the amplitude-based helper gives 2x the dB, so halve it.
+                const double p = 0.5 * amplitude_prominence_db(fine, best, std::max(12L, k / 10), tmp);
+                if (p >= 15.0) {
+                    ++lines;
+                    if (h == 1) fundamental = true;
+                }
+            }
+            if (fundamental && lines >= 2 && lines > r.mains_lines) {
+                r.mains_hz = mains;
+                r.mains_lines = lines;
+            }
+        }
+    }
+
+    r.kurtogram_band = m.kurtogram.best_mean();
+    set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
+    return r;
+}
+
+}  // namespace cavitas::models

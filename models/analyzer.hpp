@@ -1,0 +1,122 @@
+// One recording, segment by segment: every DSP block of signal/ run on each
+// analysis segment, plus the recording-wide spectra (averaged squared-envelope
+// spectrum, a fine PSD for the speed) that need the whole record's average.
+//
+// Memory is fixed by the segment and spectrum sizes, never by the record length:
+// samples are pushed in blocks of any size and analysed as segments fill.
+#pragma once
+
+#include <array>
+#include <cstddef>
+#include <memory>
+#include <optional>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "models/indicators.hpp"
+#include "signal/kurtogram.hpp"
+#include "signal/quality.hpp"
+
+namespace cavitas::models {
+
+struct Band {
+    double low_hz = 0.0;
+    double high_hz = 0.0;
+};
+
+/// Where to look, fixed per machine and measurement point (stored in the baseline
+/// so that a later recording is analysed in exactly the same bands).
+struct AnalysisSetup {
+    double fs_hz = 0.0;
+    double segment_s = 1.0;       ///< analysis segment length
+    Band hf;                      ///< broadband band of bubble-collapse energy
+    Band lf;                      ///< low band (flow turbulence, unbalance) below the HF band
+    double sensor_max_hz = 0.0;   ///< stated usable top of the sensor and mount (0 = not stated)
+    std::size_t segment_size() const;
+};
+
+/// Anti-alias margin: collectors' anti-alias filters start to cut near 0.4 fs,
+/// so nothing above it is trusted (common practice, no source).
+constexpr double kUsableFractionOfFs = 0.4;
+/// Lowest HF band edge: below ~1 kHz a rise is flow turbulence, unbalance or
+/// misalignment, not bubble collapse (common practice, no source).
+constexpr double kHfFloorHz = 1000.0;
+/// The HF band starts no higher than 5 kHz: published cavitation bands start at
+/// 1-5 kHz (methods review: Kotb & Abdulaziz 2015 1-10 kHz; NUAA 2011 > 5 kHz).
+constexpr double kHfStartCapHz = 5000.0;
+
+/// Top of the low band: a rise confined below ~1 kHz is flow turbulence, not bubble collapse.
+constexpr double kLfTopHz = 1000.0;
+
+/// Choose the bands from the sample rate and the sensor limit:
+///   top = min(0.4 fs, sensor limit), HF = [max(1 kHz, min(5 kHz, top/4)), top],
+///   LF = [10 Hz, min(1 kHz, HF low)]. Throws std::invalid_argument when the top is below
+///   1.5 kHz (no HF band left to judge cavitation on).
+AnalysisSetup choose_setup(double fs_hz, double sensor_max_hz, double segment_s = 1.0);
+
+/// Sensor mounting limits (Hz) from trade practice: hand-held 2 kHz, magnet 5 kHz,
+/// adhesive 6 kHz, stud 7 kHz (power-mi.com "Sensor mounting techniques", Table 3.2).
+std::optional<double> mount_limit_hz(const std::string& mount);
+
+struct MachineContext {
+    std::optional<double> rpm;  ///< speed given by the user for this recording
+    int vanes = 0;              ///< impeller vanes / runner blades (0 = unknown)
+    double rpm_hint = 0.0;      ///< speed to search near when rpm is not given (e.g. the baseline's)
+};
+
+/// A peak of the averaged squared-envelope spectrum.
+struct EnvelopePeak {
+    double hz = 0.0;
+    double order = 0.0;          ///< hz / shaft rate
+    double prominence_db = 0.0;  ///< over the local median
+};
+
+struct RecordingAnalysis {
+    AnalysisSetup setup;
+    SegmentSeries series;
+    std::array<double, kRecordingIndicatorCount> recording{};
+    double rpm = 0.0;             ///< speed used for orders (0 = unknown)
+    bool rpm_estimated = false;
+    double rpm_resolution = 0.0;  ///< +- rpm of the estimate
+    double speed_score_db = 0.0;
+    int vanes = 0;
+    std::vector<EnvelopePeak> envelope_peaks;  ///< strongest first
+    double mains_hz = 0.0;                     ///< 50 or 60 when hum lines were found
+    int mains_lines = 0;
+    dsp::KurtogramBand kurtogram_band;
+    dsp::QualityCounts quality;
+    std::size_t samples = 0;
+    double duration_s = 0.0;
+    double level_reference = 1.0;  ///< dB reference (1 signal unit)
+};
+
+class RecordingAnalyzer {
+public:
+    /// expected_samples sizes the fine speed spectrum (0 = unknown);
+    /// full_scale is |x| of a full-scale sample in signal units (0 = unknown).
+    RecordingAnalyzer(const AnalysisSetup& setup, const MachineContext& machine, double full_scale,
+                      std::size_t expected_samples);
+    ~RecordingAnalyzer();
+    RecordingAnalyzer(const RecordingAnalyzer&) = delete;
+    RecordingAnalyzer& operator=(const RecordingAnalyzer&) = delete;
+
+    /// Feed the next block (any length). Non-finite samples are counted and zeroed in place.
+    void push(std::span<float> block);
+    /// Complete segments so far.
+    std::size_t segments() const;
+    /// Finish: the tail shorter than one segment is left out of the segment
+    /// indicators. Throws std::runtime_error when not one segment was complete.
+    RecordingAnalysis finish();
+
+private:
+    struct Impl;
+    std::unique_ptr<Impl> impl_;
+};
+
+/// Median of a series (copy-free for callers; sorts a copy).
+double median(std::vector<double> v);
+/// Quantile q in [0,1] by linear interpolation between order statistics.
+double quantile(std::vector<double> v, double q);
+
+}  // namespace cavitas::models

@@ -1,0 +1,85 @@
+// The verdict: a recording's indicators read against the same machine's baseline.
+//
+// The rules follow the physics of bubble collapse (see DEVELOPERS.md, "How the
+// verdict is reached"): cavitation is broadband HF energy over the baseline that
+// is either impulsive (sparse collapses: incipient) or dense and modulated at an
+// integer order of shaft speed (blade passage); severity is not read off one
+// ladder, because HF level, kurtosis and impulse counts rise, peak and fall again
+// as cavitation develops. Look-alikes - bearing impacts at non-integer orders,
+// a rise confined to the low band (flow turbulence), mains hum, a small speed
+// change - are reported under other findings and do not make a cavitation verdict.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "models/analyzer.hpp"
+#include "models/baseline.hpp"
+
+namespace cavitas::models {
+
+enum class Verdict { normal, incipient, developed, indeterminate };
+const char* to_string(Verdict v);
+
+/// Thresholds, each with its reason (DEVELOPERS.md repeats them).
+struct ClassifierConfig {
+    /// HF rise that counts at all: +3 dB = twice the baseline band power, and
+    /// at least 3 baseline spreads (statistical alert practice: mean + 3 sigma,
+    /// cbmconnect "Statistical Alarms"). Our choice, checked on the evaluation set.
+    double hf_alert_db = 3.0;
+    double z_alert = 3.0;
+    /// HF rise read as developed cavitation when backed by modulation or
+    /// impulsiveness: +9 dB (about 8x the power). Our choice between the
+    /// incipient (3-8 dB) and developed (10-25 dB) ranges seen on the evaluation set.
+    double hf_developed_db = 9.0;
+    /// Kurtosis rise of the HF band that counts as impulsive.
+    double kurtosis_rise = 1.0;
+    /// Envelope line at an integer order that counts as modulation: 6 dB over
+    /// the local floor (twice the floor amplitude) and 3 dB over the baseline's line.
+    double line_prominence_db = 6.0;
+    double line_rise_db = 3.0;
+    /// LF rise that is reported as flow turbulence when HF has not risen.
+    double lf_alert_db = 3.0;
+    /// Speed change beyond which comparisons are not like-for-like.
+    double max_speed_change = 0.10;
+    /// Share of samples at full scale that makes a record unusable.
+    double max_clipped_share = 0.001;
+};
+
+/// One indicator set beside the baseline.
+struct Comparison {
+    std::string key;        ///< JSON name with its unit suffix
+    std::string label;      ///< words for a person
+    double value = 0.0;     ///< median over the segments (or the recording value)
+    double p10 = 0.0, p90 = 0.0;
+    double baseline_median = 0.0;
+    double baseline_sigma = 0.0;
+    double change = 0.0;    ///< value - baseline median (dB indicators: dB)
+    double z = 0.0;         ///< change / max(sigma, floor)
+};
+
+struct Finding {
+    Verdict verdict = Verdict::indeterminate;
+    double confidence = 0.0;
+    std::vector<std::string> evidence;
+    std::vector<std::string> other_findings;
+    std::vector<std::string> warnings;       ///< things that lowered the confidence
+    std::vector<std::string> reasons;        ///< why indeterminate (what to do)
+    std::vector<Comparison> comparisons;
+    double hf_rise_db = 0.0;
+    double lf_rise_db = 0.0;
+    bool bearing_like = false;
+    double bearing_order = 0.0;
+};
+
+/// signal_unit is the recording's unit token ("g", "m/s2", "Pa", "FS") for the key names.
+Finding classify(const RecordingAnalysis& analysis, const Baseline& baseline, const std::string& signal_unit,
+                 const ClassifierConfig& config = {});
+
+/// The cautions shown with every incipient or developed verdict.
+const std::vector<std::string>& cavitation_cautions();
+
+/// JSON-key form of a unit token: "m/s2" -> "m_s2", "Pa" -> "pa", "FS" -> "fs".
+std::string unit_key(const std::string& unit);
+
+}  // namespace cavitas::models

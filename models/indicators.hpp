@@ -1,0 +1,60 @@
+// The indicators cavitas computes, their names and units.
+//
+// Segment indicators are computed on every analysis segment (1 s by default),
+// so one recording gives a distribution; recording indicators come from the
+// averaged squared-envelope spectrum and the mean kurtogram of the whole record.
+#pragma once
+
+#include <array>
+#include <cstddef>
+#include <string_view>
+#include <vector>
+
+namespace cavitas::models {
+
+enum class SegmentIndicator : std::size_t {
+    overall_rms,          ///< AC rms of the raw signal, signal units
+    overall_peak,         ///< max |x - mean|, signal units
+    overall_crest,        ///< peak / rms
+    overall_kurtosis,     ///< m4 / m2^2 of the raw signal
+    hf_level_db,          ///< HF band power, dB re 1 (signal unit)^2
+    hf_kurtosis,          ///< kurtosis of the HF band-passed signal
+    hf_crest,             ///< crest factor of the HF band-passed signal
+    lf_level_db,          ///< LF band power (below the HF band), dB re 1 (signal unit)^2
+    impulse_rate,         ///< bursts per second above the adaptive threshold in the HF envelope
+    hf_spectral_kurtosis, ///< mean spectral kurtosis over the HF band bins
+    count
+};
+constexpr std::size_t kSegmentIndicatorCount = static_cast<std::size_t>(SegmentIndicator::count);
+
+enum class RecordingIndicator : std::size_t {
+    ses_1x_prominence_db,   ///< squared-envelope line at 1x over its local floor
+    ses_bpf_prominence_db,  ///< ... at BPF
+    ses_2bpf_prominence_db, ///< ... at 2 x BPF
+    modulation_1x,          ///< SES line at 1x / mean squared envelope (gain free)
+    modulation_bpf,         ///< SES line at BPF / mean squared envelope
+    kurtogram_max,          ///< largest mean kurtogram value (band above the blade-pass harmonics)
+    count
+};
+constexpr std::size_t kRecordingIndicatorCount = static_cast<std::size_t>(RecordingIndicator::count);
+
+/// How an indicator's unit is written: "signal" means the recording's own unit
+/// (g, m/s2, Pa or FS), filled in at output time.
+struct IndicatorInfo {
+    std::string_view name;
+    std::string_view unit;   ///< suffix used in JSON keys ("db", "per_s", "ratio", or "signal")
+    std::string_view label;  ///< words for a person
+};
+
+const IndicatorInfo& info(SegmentIndicator i);
+const IndicatorInfo& info(RecordingIndicator i);
+
+/// Per-segment values of every segment indicator.
+struct SegmentSeries {
+    std::array<std::vector<double>, kSegmentIndicatorCount> values;
+    std::size_t segments() const { return values[0].size(); }
+    const std::vector<double>& operator[](SegmentIndicator i) const { return values[static_cast<std::size_t>(i)]; }
+    std::vector<double>& operator[](SegmentIndicator i) { return values[static_cast<std::size_t>(i)]; }
+};
+
+}  // namespace cavitas::models

@@ -1,0 +1,103 @@
+#include "models/machine.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <stdexcept>
+#include <vector>
+
+namespace cavitas::models {
+
+BearingOrders bearing_orders(const BearingGeometry& g) {
+    if (g.elements <= 0 || !(g.ball_diameter_m > 0.0) || !(g.pitch_diameter_m > g.ball_diameter_m))
+        throw std::invalid_argument("BearingGeometry needs elements > 0 and 0 < ball diameter < pitch diameter");
+    const double r = g.ball_diameter_m / g.pitch_diameter_m * std::cos(g.contact_angle_rad);
+    const double n = static_cast<double>(g.elements);
+    BearingOrders o;
+    o.bpfo = n / 2.0 * (1.0 - r);
+    o.bpfi = n / 2.0 * (1.0 + r);
+    o.ftf = 0.5 * (1.0 - r);
+    o.bsf = g.pitch_diameter_m / (2.0 * g.ball_diameter_m) * (1.0 - r * r);
+    return o;
+}
+
+namespace {
+
+// Level of a line in dB over the median of its neighbourhood (a log-spectrum
+// prominence, so that the search does not chase the largest absolute peak).
+class Prominence {
+public:
+    Prominence(std::span<const double> psd, double bin_hz) : psd_(psd), bin_hz_(bin_hz) {}
+    double at(double f_hz) {
+        const auto last = static_cast<long>(psd_.size()) - 1;
+        const double pos = f_hz / bin_hz_;
+        const long c = static_cast<long>(std::lround(pos));
+        if (c < 2 || c + 2 > last) return 0.0;
+        // Peak of the two bins nearest the frequency (Hann leakage spreads a line over 2 bins).
+        const double peak = std::max({psd_[static_cast<std::size_t>(c)], psd_[static_cast<std::size_t>(c - 1)],
+                                      psd_[static_cast<std::size_t>(c + 1)]});
+        const long w = std::max(8L, static_cast<long>(std::lround(0.08 * pos)));
+        tmp_.clear();
+        for (long k = std::max(1L, c - w); k <= std::min(last, c + w); ++k)
+            if (std::abs(k - c) > 2) tmp_.push_back(psd_[static_cast<std::size_t>(k)]);
+        if (tmp_.empty()) return 0.0;
+        auto mid = tmp_.begin() + static_cast<std::ptrdiff_t>(tmp_.size() / 2);
+        std::nth_element(tmp_.begin(), mid, tmp_.end());
+        if (!(*mid > 0.0) || !(peak > 0.0)) return 0.0;
+        return 10.0 * std::log10(peak / *mid);
+    }
+
+private:
+    std::span<const double> psd_;
+    double bin_hz_;
+    std::vector<double> tmp_;
+};
+
+}  // namespace
+
+std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double bin_hz, double rpm_low,
+                                            double rpm_high, int vanes) {
+    if (psd.size() < 16 || !(bin_hz > 0.0) || !(rpm_low > 0.0) || !(rpm_high > rpm_low)) return std::nullopt;
+    Prominence prom(psd, bin_hz);
+    const double nyq = bin_hz * static_cast<double>(psd.size() - 1);
+    // Step so that the 5th harmonic moves by a quarter bin per step.
+    const double step_hz = bin_hz / 20.0;
+    SpeedEstimate best;
+    bool found = false;
+    for (double f = rpm_low / 60.0; f <= rpm_high / 60.0; f += step_hz) {
+        double sum = 0.0;
+        int used = 0;
+        for (int h = 1; h <= 5; ++h) {
+            const double fh = f * h;
+            if (fh >= nyq * 0.9) break;
+            // Only positive prominences count: a missing harmonic should not punish a speed.
+            sum += std::max(0.0, prom.at(fh));
+            ++used;
+        }
+        if (vanes > 0 && f * vanes < nyq * 0.9) {
+            sum += std::max(0.0, prom.at(f * vanes));
+            ++used;
+        }
+        if (used == 0) continue;
+        const double score = sum / used;
+        if (!found || score > best.score) {
+            best.score = score;
+            best.rpm = f * 60.0;
+            best.harmonics_used = used;
+            found = true;
+        }
+    }
+    if (!found || best.score < 3.0) return std::nullopt;
+    // Refine: the highest harmonic with a clear line pins the speed most finely
+    // (resolution bin/(2k) at harmonic k).
+    int top = 1;
+    const double f0 = best.rpm / 60.0;
+    for (int h = 5; h >= 1; --h)
+        if (f0 * h < nyq * 0.9 && prom.at(f0 * h) > 6.0) {
+            top = h;
+            break;
+        }
+    best.resolution_rpm = 60.0 * bin_hz / (2.0 * top);
+    return best;
+}
+
+}  // namespace cavitas::models

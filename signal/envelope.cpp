@@ -1,0 +1,114 @@
+#include "signal/envelope.hpp"
+
+#include <algorithm>
+#include <cassert>
+#include <cmath>
+#include <stdexcept>
+#include <string>
+
+#include "signal/window.hpp"
+
+namespace cavitas::dsp {
+
+EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, std::size_t segment_size)
+    : config_(config),
+      fs_hz_(fs_hz),
+      n_(segment_size),
+      k_low_(0),
+      k_high_(0),
+      real_(std::max<std::size_t>(segment_size, 2)),
+      analytic_(std::max<std::size_t>(segment_size, 2)),
+      ses_fft_(std::max<std::size_t>(segment_size, 2)) {
+    if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
+        throw std::invalid_argument("EnvelopeAnalyzer sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
+    if (segment_size < 16)
+        throw std::invalid_argument("EnvelopeAnalyzer segment size = " + std::to_string(segment_size) +
+                                    " is below the minimum of 16");
+    const double nyquist = fs_hz / 2.0;
+    if (!(config.band_low_hz >= 0.0))
+        throw std::invalid_argument("EnvelopeConfig.band_low_hz = " + std::to_string(config.band_low_hz) +
+                                    " must be >= 0");
+    if (!(config.band_high_hz > config.band_low_hz))
+        throw std::invalid_argument("EnvelopeConfig.band_high_hz = " + std::to_string(config.band_high_hz) +
+                                    " must exceed band_low_hz = " + std::to_string(config.band_low_hz));
+    if (config.band_high_hz > nyquist)
+        throw std::invalid_argument("EnvelopeConfig.band_high_hz = " + std::to_string(config.band_high_hz) +
+                                    " exceeds Nyquist (" + std::to_string(nyquist) + ")");
+    const double bin = fs_hz / static_cast<double>(n_);
+    k_low_ = static_cast<std::size_t>(std::ceil(config.band_low_hz / bin));
+    k_high_ = std::min(static_cast<std::size_t>(std::floor(config.band_high_hz / bin)), (n_ - 1) / 2);
+    k_low_ = std::max<std::size_t>(k_low_, 1);
+    if (k_high_ < k_low_)
+        throw std::invalid_argument("EnvelopeConfig band " + std::to_string(config.band_low_hz) + "-" +
+                                    std::to_string(config.band_high_hz) + " Hz holds no frequency bin at " +
+                                    std::to_string(bin) + " Hz resolution");
+    window_ = hann_periodic(n_);
+    ses_scale_ = 2.0 / window_sum(window_);
+    band_.assign(n_, 0.0);
+    sq_env_.assign(n_, 0.0);
+    ses_.assign(n_ / 2 + 1, 0.0);
+}
+
+void EnvelopeAnalyzer::process(std::span<const float> x) {
+    assert(x.size() == n_);
+    auto t = real_.time();
+    for (std::size_t i = 0; i < n_; ++i) t[i] = static_cast<double>(x[i]);
+    real_.forward();
+    const auto X = real_.spectrum();
+    auto z = analytic_.data();
+    std::fill(z.begin(), z.end(), std::complex<double>{});
+    for (std::size_t k = k_low_; k <= k_high_; ++k) z[k] = 2.0 * X[k];
+    analytic_.inverse();
+    const double inv_n = 1.0 / static_cast<double>(n_);
+    double sum = 0.0;
+    for (std::size_t i = 0; i < n_; ++i) {
+        const std::complex<double> zi = z[i] * inv_n;
+        band_[i] = zi.real();
+        sq_env_[i] = std::norm(zi);
+        sum += sq_env_[i];
+    }
+    mean_sq_env_ = sum * inv_n;
+    auto s = ses_fft_.time();
+    for (std::size_t i = 0; i < n_; ++i) s[i] = (sq_env_[i] - mean_sq_env_) * window_[i];
+    ses_fft_.forward();
+    const auto S = ses_fft_.spectrum();
+    for (std::size_t k = 0; k < ses_.size(); ++k) ses_[k] = std::abs(S[k]) * ses_scale_;
+    ses_[0] = 0.0;
+}
+
+LineMeasure measure_line(std::span<const double> spectrum, double bin_hz, double target_hz, double search_hz,
+                         double floor_hz, std::span<double> scratch) {
+    LineMeasure m;
+    m.target_hz = target_hz;
+    if (spectrum.empty() || !(bin_hz > 0.0) || !(target_hz > 0.0)) return m;
+    const auto last = static_cast<long>(spectrum.size()) - 1;
+    auto to_bin = [&](double f) { return std::clamp(static_cast<long>(std::lround(f / bin_hz)), 0L, last); };
+    const long c = to_bin(target_hz);
+    const long half = std::max(1L, static_cast<long>(std::lround(search_hz / bin_hz)));
+    long best = c;
+    for (long k = std::max(1L, c - half); k <= std::min(last, c + half); ++k)
+        if (spectrum[static_cast<std::size_t>(k)] > spectrum[static_cast<std::size_t>(best)]) best = k;
+    m.found_hz = static_cast<double>(best) * bin_hz;
+    m.amplitude = spectrum[static_cast<std::size_t>(best)];
+    const long fw = std::max(half + 4, static_cast<long>(std::lround(floor_hz / bin_hz)));
+    const long guard = half + 2;
+    std::size_t cnt = 0;
+    for (long k = std::max(1L, c - fw); k <= std::min(last, c + fw); ++k) {
+        if (std::abs(k - c) <= guard) continue;
+        if (cnt < scratch.size()) scratch[cnt++] = spectrum[static_cast<std::size_t>(k)];
+    }
+    if (cnt == 0) return m;
+    auto mid = scratch.begin() + static_cast<std::ptrdiff_t>(cnt / 2);
+    std::nth_element(scratch.begin(), mid, scratch.begin() + static_cast<std::ptrdiff_t>(cnt));
+    m.floor = *mid;
+    if (m.floor > 0.0 && m.amplitude > 0.0) m.prominence_db = 20.0 * std::log10(m.amplitude / m.floor);
+    return m;
+}
+
+LineMeasure measure_line(std::span<const double> spectrum, double bin_hz, double target_hz, double search_hz,
+                         double floor_hz) {
+    std::vector<double> scratch(static_cast<std::size_t>(2.0 * (floor_hz + search_hz) / bin_hz) + 16);
+    return measure_line(spectrum, bin_hz, target_hz, search_hz, floor_hz, scratch);
+}
+
+}  // namespace cavitas::dsp

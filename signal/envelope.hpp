@@ -1,0 +1,87 @@
+// Envelope analysis: ideal band-pass, analytic signal, squared-envelope spectrum.
+//
+// One segment of n samples is transformed once; the bins inside
+// [band_low_hz, band_high_hz] are kept and doubled, everything else (negative
+// frequencies included) is zeroed, and the inverse complex FFT gives the
+// analytic signal z of the band (the "Hilbert via FFT" demodulation of
+// R.B. Randall, "Modern envelope analysis for bearing diagnostics", 2015:
+// an ideal band-pass that can exclude strong discrete components next to the
+// band). Re z is the band-passed signal; |z|^2 is the squared envelope, which
+// Randall recommends over the envelope itself.
+//
+// The squared-envelope spectrum (SES) is the one-sided amplitude spectrum of
+// (|z|^2 - mean) with a periodic Hann window, scaled so that a cosine of
+// amplitude A in |z|^2 gives a line of height A at an exact bin
+// (2 |S_k| / sum w). For x = (1 + m cos 2 pi fm t) cos 2 pi fc t the squared
+// envelope is (1 + m cos)^2: SES lines 2m at fm and m^2/2 at 2 fm, mean 1 + m^2/2.
+#pragma once
+
+#include <complex>
+#include <cstddef>
+#include <span>
+#include <vector>
+
+#include "signal/fft.hpp"
+
+namespace cavitas::dsp {
+
+struct EnvelopeConfig {
+    double band_low_hz = 2000.0;
+    double band_high_hz = 10000.0;
+};
+
+class EnvelopeAnalyzer {
+public:
+    /// Validates the band against the sample rate and plans the transforms.
+    EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, std::size_t segment_size);
+
+    /// Analyse one segment (x.size() == segment_size). Allocates nothing.
+    void process(std::span<const float> x);
+
+    /// Band-passed signal (Re z), segment_size values.
+    std::span<const double> band_signal() const { return band_; }
+    /// Squared envelope |z|^2, segment_size values.
+    std::span<const double> squared_envelope() const { return sq_env_; }
+    /// SES amplitude, segment_size/2 + 1 values, bin k at k * bin_hz(); DC set to 0.
+    std::span<const double> envelope_spectrum() const { return ses_; }
+    /// Mean of the squared envelope (= mean power of the analytic band signal,
+    /// twice the band-passed signal's mean square).
+    double mean_squared_envelope() const { return mean_sq_env_; }
+    double bin_hz() const { return fs_hz_ / static_cast<double>(n_); }
+    std::size_t segment_size() const { return n_; }
+    const EnvelopeConfig& config() const { return config_; }
+
+private:
+    EnvelopeConfig config_;
+    double fs_hz_;
+    std::size_t n_;
+    std::size_t k_low_, k_high_;
+    RealFft real_;
+    ComplexFft analytic_;
+    RealFft ses_fft_;
+    std::vector<double> window_;
+    double ses_scale_;
+    std::vector<double> band_, sq_env_, ses_;
+    double mean_sq_env_ = 0.0;
+};
+
+/// A spectral line measured against its local floor.
+struct LineMeasure {
+    double target_hz = 0.0;       ///< where the line was looked for
+    double found_hz = 0.0;        ///< bin of the maximum within the search window
+    double amplitude = 0.0;       ///< spectrum value at found_hz
+    double floor = 0.0;           ///< median of the spectrum around the line, line excluded
+    double prominence_db = 0.0;   ///< 20 log10(amplitude / floor); 0 when the floor is 0
+};
+
+/// Look for a line near target_hz (maximum within +-search_hz) in a one-sided
+/// amplitude spectrum and compare it with the median of the bins within
+/// +-floor_hz, leaving out +-(search_hz + 2 bins) around the line. `scratch`
+/// must hold at least the number of bins in the floor window (2 floor_hz / bin_hz + 1).
+LineMeasure measure_line(std::span<const double> spectrum, double bin_hz, double target_hz, double search_hz,
+                         double floor_hz, std::span<double> scratch);
+/// Convenience overload that allocates its own scratch (not for the hot path).
+LineMeasure measure_line(std::span<const double> spectrum, double bin_hz, double target_hz, double search_hz,
+                         double floor_hz);
+
+}  // namespace cavitas::dsp

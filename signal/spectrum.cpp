@@ -1,0 +1,111 @@
+#include "signal/spectrum.hpp"
+
+#include <algorithm>
+#include <cassert>
+#include <cmath>
+#include <stdexcept>
+#include <string>
+
+#include "signal/window.hpp"
+
+namespace cavitas::dsp {
+
+WelchPsd::WelchPsd(const WelchConfig& config, double fs_hz)
+    : n_(config.segment_size), hop_(config.segment_size / 2), fs_hz_(fs_hz), fft_(std::max<std::size_t>(config.segment_size, 2)) {
+    if (config.segment_size < 8)
+        throw std::invalid_argument("WelchConfig.segment_size = " + std::to_string(config.segment_size) +
+                                    " is below the minimum of 8");
+    if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
+        throw std::invalid_argument("WelchPsd sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
+    window_ = hann_periodic(n_);
+    scale_ = 1.0 / (fs_hz_ * window_power_sum(window_));
+    buffer_.assign(n_, 0.0);
+    acc_.assign(n_ / 2 + 1, 0.0);
+}
+
+template <typename T>
+void WelchPsd::push_impl(std::span<const T> x) {
+    std::size_t i = 0;
+    while (i < x.size()) {
+        const std::size_t take = std::min(n_ - fill_, x.size() - i);
+        for (std::size_t k = 0; k < take; ++k) buffer_[fill_ + k] = static_cast<double>(x[i + k]);
+        fill_ += take;
+        i += take;
+        if (fill_ == n_) {
+            frame();
+            std::copy(buffer_.begin() + static_cast<std::ptrdiff_t>(hop_), buffer_.end(), buffer_.begin());
+            fill_ = n_ - hop_;
+        }
+    }
+}
+
+void WelchPsd::push(std::span<const float> x) { push_impl(x); }
+void WelchPsd::push(std::span<const double> x) { push_impl(x); }
+
+void WelchPsd::frame() {
+    double mean = 0.0;
+    for (double v : buffer_) mean += v;
+    mean /= static_cast<double>(n_);
+    auto t = fft_.time();
+    for (std::size_t k = 0; k < n_; ++k) t[k] = (buffer_[k] - mean) * window_[k];
+    fft_.forward();
+    auto s = fft_.spectrum();
+    for (std::size_t k = 0; k < acc_.size(); ++k) acc_[k] += std::norm(s[k]);
+    ++frames_;
+}
+
+void WelchPsd::psd(std::span<double> out) const {
+    assert(out.size() == bins());
+    if (frames_ == 0) {
+        std::fill(out.begin(), out.end(), 0.0);
+        return;
+    }
+    const double f = scale_ / static_cast<double>(frames_);
+    const std::size_t last = n_ / 2;
+    for (std::size_t k = 0; k <= last; ++k) {
+        // Double everything but DC and (for even n) Nyquist: one-sided density.
+        const bool single = (k == 0) || (n_ % 2 == 0 && k == last);
+        out[k] = acc_[k] * f * (single ? 1.0 : 2.0);
+    }
+}
+
+std::vector<double> WelchPsd::psd() const {
+    std::vector<double> out(bins());
+    psd(out);
+    return out;
+}
+
+void WelchPsd::reset() {
+    std::fill(acc_.begin(), acc_.end(), 0.0);
+    frames_ = 0;
+    fill_ = 0;
+}
+
+double band_power(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {
+    if (!(bin_hz > 0.0)) throw std::invalid_argument("band_power: bin width must be > 0 Hz");
+    if (high_hz < low_hz) throw std::invalid_argument("band_power: band high edge is below its low edge");
+    double p = 0.0;
+    const auto k0 = static_cast<std::size_t>(std::max(0.0, std::ceil(low_hz / bin_hz)));
+    for (std::size_t k = k0; k < psd.size(); ++k) {
+        const double f = static_cast<double>(k) * bin_hz;
+        if (f > high_hz) break;
+        p += psd[k];
+    }
+    return p * bin_hz;
+}
+
+double band_rms(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {
+    return std::sqrt(band_power(psd, bin_hz, low_hz, high_hz));
+}
+
+double power_db(double power, double reference) {
+    const double r = power / (reference * reference);
+    return r > 1e-30 ? 10.0 * std::log10(r) : -300.0;
+}
+
+double amplitude_db(double amplitude, double reference) {
+    const double r = amplitude / reference;
+    return r > 1e-15 ? 20.0 * std::log10(r) : -300.0;
+}
+
+}  // namespace cavitas::dsp

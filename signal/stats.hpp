@@ -1,0 +1,50 @@
+// Time statistics of a signal: RMS, peak, crest factor, kurtosis.
+//
+// Conventions (the ones vibration analysts use for "overall" values):
+//  - rms is the AC rms, about the mean: sqrt(mean((x - mean)^2)); the DC part is
+//    reported separately (mean).
+//  - peak is max |x - mean|; crest factor = peak / rms.
+//  - kurtosis is the non-excess, population (biased) moment ratio
+//    m4 / m2^2 about the mean: 1.5 for a sine, 3 for Gaussian noise. The same as
+//    scipy.stats.kurtosis(x, fisher=False, bias=True).
+// Empty input throws; an all-constant input gives rms = peak = 0, crest = 0,
+// kurtosis = 0 (never NaN).
+#pragma once
+
+#include <cstddef>
+#include <span>
+
+namespace cavitas::dsp {
+
+struct Moments {
+    std::size_t count = 0;
+    double mean = 0.0;
+    double rms = 0.0;
+    double peak = 0.0;
+    double crest = 0.0;
+    double kurtosis = 0.0;
+};
+
+Moments moments(std::span<const float> x);
+Moments moments(std::span<const double> x);
+
+/// Streaming moments over many blocks (sums are kept in double with a shift by
+/// the first sample so that a large DC offset does not cost precision).
+class MomentAccumulator {
+public:
+    void add(std::span<const float> x);
+    void add(std::span<const double> x);
+    Moments result() const;
+    void reset();
+
+private:
+    template <typename T>
+    void add_impl(std::span<const T> x);
+    bool have_shift_ = false;
+    double shift_ = 0.0;
+    std::size_t n_ = 0;
+    double s1_ = 0, s2_ = 0, s3_ = 0, s4_ = 0;
+    double max_ = 0, min_ = 0;
+};
+
+}  // namespace cavitas::dsp

@@ -1,0 +1,151 @@
+#include "src/baseline_io.hpp"
+
+#include <cmath>
+#include <fstream>
+#include <sstream>
+
+#include "src/errors.hpp"
+
+namespace cavitas::app {
+
+using nlohmann::json;
+using namespace cavitas::models;
+
+namespace {
+
+json stat_json(const RobustStat& s) {
+    return {{"median", s.median}, {"sigma", s.sigma}, {"p10", s.p10}, {"p90", s.p90}, {"count", s.count}};
+}
+
+double num(const json& j, const char* key, const std::string& where) {
+    if (!j.contains(key) || !j.at(key).is_number())
+        throw InputError(where + ": missing or non-numeric field '" + key + "'");
+    const double v = j.at(key).get<double>();
+    if (!std::isfinite(v)) throw InputError(where + ": field '" + std::string(key) + "' is not finite");
+    return v;
+}
+
+RobustStat stat_from(const json& j, const std::string& where) {
+    if (!j.is_object()) throw InputError(where + ": expected an object of statistics");
+    RobustStat s;
+    s.median = num(j, "median", where);
+    s.sigma = num(j, "sigma", where);
+    s.p10 = num(j, "p10", where);
+    s.p90 = num(j, "p90", where);
+    const double c = num(j, "count", where);
+    if (c < 0) throw InputError(where + ": negative count");
+    s.count = static_cast<std::size_t>(c);
+    return s;
+}
+
+}  // namespace
+
+json baseline_to_json(const Baseline& b) {
+    json seg = json::object();
+    for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i)
+        seg[std::string(info(static_cast<SegmentIndicator>(i)).name)] = stat_json(b.segment[i]);
+    json rec = json::object();
+    for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i)
+        rec[std::string(info(static_cast<RecordingIndicator>(i)).name)] = stat_json(b.recording[i]);
+    json sources = json::array();
+    for (const auto& s : b.sources)
+        sources.push_back({{"file", s.file}, {"sha256", s.sha256}, {"duration_s", s.duration_s}, {"rpm", s.rpm}});
+    return {
+        {"schema", b.schema},
+        {"cavitas_version", b.cavitas_version},
+        {"created_utc", b.created_utc},
+        {"context",
+         {{"sample_rate_hz", b.setup.fs_hz},
+          {"channel", b.channel},
+          {"rpm", b.rpm},
+          {"rpm_estimated", b.rpm_estimated},
+          {"vanes", b.vanes},
+          {"unit", b.unit},
+          {"full_scale", b.full_scale}}},
+        {"setup",
+         {{"segment_s", b.setup.segment_s},
+          {"hf_low_hz", b.setup.hf.low_hz},
+          {"hf_high_hz", b.setup.hf.high_hz},
+          {"lf_low_hz", b.setup.lf.low_hz},
+          {"lf_high_hz", b.setup.lf.high_hz},
+          {"sensor_max_hz", b.setup.sensor_max_hz}}},
+        {"segments", b.segments},
+        {"sources", sources},
+        {"segment_indicators", seg},
+        {"recording_indicators", rec},
+    };
+}
+
+Baseline baseline_from_json(const json& j, const std::string& origin) {
+    if (!j.is_object()) throw InputError(origin + ": not a cavitas baseline (expected a JSON object)");
+    if (!j.contains("schema") || !j.at("schema").is_string())
+        throw InputError(origin + ": not a cavitas baseline (no \"schema\" field)");
+    const std::string schema = j.at("schema").get<std::string>();
+    if (schema != Baseline::kSchema) {
+        if (schema.rfind("cavitas.baseline/", 0) == 0)
+            throw InputError(origin + ": baseline schema '" + schema + "' is not supported by this cavitas (reads '" +
+                             Baseline::kSchema + "'); relearn the baseline or update cavitas");
+        throw InputError(origin + ": not a cavitas baseline (schema '" + schema + "')");
+    }
+    Baseline b;
+    b.schema = schema;
+    if (j.contains("cavitas_version") && j["cavitas_version"].is_string()) b.cavitas_version = j["cavitas_version"];
+    if (j.contains("created_utc") && j["created_utc"].is_string()) b.created_utc = j["created_utc"];
+    if (!j.contains("context") || !j["context"].is_object()) throw InputError(origin + ": missing 'context'");
+    if (!j.contains("setup") || !j["setup"].is_object()) throw InputError(origin + ": missing 'setup'");
+    const json& c = j["context"];
+    const json& s = j["setup"];
+    const std::string wc = origin + " (context)", ws = origin + " (setup)";
+    b.setup.fs_hz = num(c, "sample_rate_hz", wc);
+    b.channel = static_cast<int>(num(c, "channel", wc));
+    b.rpm = num(c, "rpm", wc);
+    b.rpm_estimated = c.value("rpm_estimated", false);
+    b.vanes = static_cast<int>(num(c, "vanes", wc));
+    if (!c.contains("unit") || !c["unit"].is_string()) throw InputError(wc + ": missing 'unit'");
+    b.unit = c["unit"];
+    b.full_scale = num(c, "full_scale", wc);
+    b.setup.segment_s = num(s, "segment_s", ws);
+    b.setup.hf.low_hz = num(s, "hf_low_hz", ws);
+    b.setup.hf.high_hz = num(s, "hf_high_hz", ws);
+    b.setup.lf.low_hz = num(s, "lf_low_hz", ws);
+    b.setup.lf.high_hz = num(s, "lf_high_hz", ws);
+    b.setup.sensor_max_hz = num(s, "sensor_max_hz", ws);
+    if (!(b.setup.fs_hz > 0.0) || !(b.setup.segment_s > 0.0) || !(b.setup.hf.high_hz > b.setup.hf.low_hz) ||
+        b.setup.hf.high_hz > b.setup.fs_hz / 2.0 || b.vanes < 0 || b.rpm < 0.0 || !(b.full_scale > 0.0))
+        throw InputError(origin + ": baseline context or bands are out of range");
+    b.segments = static_cast<std::size_t>(num(j, "segments", origin));
+    if (j.contains("sources") && j["sources"].is_array())
+        for (const auto& e : j["sources"]) {
+            BaselineSource src;
+            if (e.contains("file") && e["file"].is_string()) src.file = e["file"];
+            if (e.contains("sha256") && e["sha256"].is_string()) src.sha256 = e["sha256"];
+            if (e.contains("duration_s") && e["duration_s"].is_number()) src.duration_s = e["duration_s"];
+            if (e.contains("rpm") && e["rpm"].is_number()) src.rpm = e["rpm"];
+            b.sources.push_back(src);
+        }
+    for (const char* part : {"segment_indicators", "recording_indicators"})
+        if (!j.contains(part) || !j[part].is_object()) throw InputError(origin + ": missing '" + part + "'");
+    for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) {
+        const std::string name(info(static_cast<SegmentIndicator>(i)).name);
+        if (!j["segment_indicators"].contains(name)) throw InputError(origin + ": indicator '" + name + "' missing");
+        b.segment[i] = stat_from(j["segment_indicators"][name], origin + " (" + name + ")");
+    }
+    for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i) {
+        const std::string name(info(static_cast<RecordingIndicator>(i)).name);
+        if (!j["recording_indicators"].contains(name)) throw InputError(origin + ": indicator '" + name + "' missing");
+        b.recording[i] = stat_from(j["recording_indicators"][name], origin + " (" + name + ")");
+    }
+    return b;
+}
+
+Baseline read_baseline_file(const std::string& path) {
+    std::ifstream in(path, std::ios::binary);
+    if (!in) throw InputError(path + ": cannot open baseline");
+    std::stringstream ss;
+    ss << in.rdbuf();
+    json j = json::parse(ss.str(), nullptr, false);
+    if (j.is_discarded()) throw InputError(path + ": baseline is not valid JSON (corrupt or truncated)");
+    return baseline_from_json(j, path);
+}
+
+}  // namespace cavitas::app

@@ -1,0 +1,200 @@
+#include "src/commands.hpp"
+
+#include <unistd.h>
+
+#include <algorithm>
+#include <cmath>
+#include <ctime>
+#include <filesystem>
+#include <iostream>
+#include <sstream>
+
+#include "models/machine.hpp"
+#include "src/atomic_file.hpp"
+#include "src/baseline_io.hpp"
+#include "src/report.hpp"
+
+#ifndef CAVITAS_VERSION
+#define CAVITAS_VERSION "0.0.0"
+#endif
+
+namespace cavitas::app {
+
+const char* const kVersion = CAVITAS_VERSION;
+
+std::string utc_now() {
+    std::time_t t = std::time(nullptr);
+    std::tm tm{};
+    gmtime_r(&t, &tm);
+    char buf[32];
+    std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", &tm);
+    return buf;
+}
+
+models::RecordingAnalysis analyze_source(AudioSource& source, const models::AnalysisSetup& setup,
+                                         const models::MachineContext& machine, const Progress& progress) {
+    const RecordingInfo& info = source.info();
+    models::RecordingAnalyzer analyzer(setup, machine, info.full_scale_value(), info.frames);
+    std::vector<float> block(1u << 15);
+    std::size_t done = 0;
+    const double total_s = info.duration_s();
+    double next_report_s = 0.0;
+    for (;;) {
+        const std::size_t got = source.read(block);
+        if (got == 0) break;
+        analyzer.push(std::span<float>(block.data(), got));
+        done += got;
+        if (progress) {
+            const double done_s = static_cast<double>(done) / info.fs_hz;
+            if (done_s >= next_report_s) {
+                progress(done_s, total_s);
+                next_report_s = done_s + std::max(1.0, total_s / 20.0);
+            }
+        }
+    }
+    try {
+        return analyzer.finish();
+    } catch (const std::runtime_error& e) {
+        throw InputError(info.path + ": " + e.what());
+    }
+}
+
+AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
+                               const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
+                               const models::MachineContext& machine, const Progress& progress) {
+    AnalyzedRecording r;
+    SndfileSource source(path, channel, calibration);
+    r.info = source.info();
+    models::AnalysisSetup use;
+    try {
+        if (setup && setup->fs_hz == r.info.fs_hz) {
+            use = *setup;
+        } else {
+            // A different rate than the baseline's: analyse in this file's own
+            // bands so the mismatch can be reported (the verdict is indeterminate).
+            use = models::choose_setup(r.info.fs_hz, setup ? setup->sensor_max_hz : sensor_max_hz,
+                                       setup ? setup->segment_s : 1.0);
+        }
+    } catch (const std::invalid_argument& e) {
+        throw InputError(path + ": " + e.what());
+    }
+    if (r.info.duration_s() < use.segment_s)
+        throw InputError(path + ": record of " + std::to_string(r.info.duration_s()) + " s is shorter than one " +
+                         std::to_string(use.segment_s) + " s analysis segment");
+    r.sha256 = sha256_file(path);
+    r.analysis = analyze_source(source, use, machine, progress);
+    return r;
+}
+
+namespace {
+
+Calibration calibration_of(const std::optional<std::string>& text) {
+    return text ? parse_full_scale(*text) : Calibration{};
+}
+
+Progress stderr_progress(const std::string& path, std::ostream& err) {
+    if (!isatty(STDERR_FILENO)) return {};
+    return [&err, path](double done_s, double total_s) {
+        if (total_s < 30.0) return;
+        err << "\r" << path << ": " << static_cast<int>(done_s) << " / " << static_cast<int>(total_s) << " s analysed"
+            << (done_s >= total_s - 0.5 ? "\n" : "") << std::flush;
+    };
+}
+
+void refuse_overwriting_input(const std::string& out, const std::vector<std::string>& inputs) {
+    namespace fs = std::filesystem;
+    std::error_code ec;
+    for (const auto& in : inputs)
+        if (fs::exists(out, ec) && fs::equivalent(out, in, ec))
+            throw InputError(out + ": is one of the input files; refusing to overwrite it (choose another output path)");
+}
+
+}  // namespace
+
+void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err) {
+    if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
+    if (o.output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
+    refuse_overwriting_input(o.output, o.recordings);
+    double sensor_max = o.sensor_max_hz;
+    if (!o.mount.empty()) {
+        const auto lim = models::mount_limit_hz(o.mount);
+        if (!lim) throw UsageError("--mount '" + o.mount + "': use handheld, magnet, adhesive or stud");
+        sensor_max = sensor_max > 0.0 ? std::min(sensor_max, *lim) : *lim;
+    }
+    const Calibration cal = calibration_of(o.full_scale);
+    models::MachineContext machine;
+    machine.rpm = o.rpm;
+    machine.vanes = o.vanes;
+    std::vector<models::RecordingAnalysis> analyses;
+    std::vector<models::BaselineSource> sources;
+    std::optional<models::AnalysisSetup> setup;
+    for (const auto& path : o.recordings) {
+        AnalyzedRecording r = analyze_file(path, o.channel, cal, setup, sensor_max, machine, stderr_progress(path, err));
+        if (setup && r.info.fs_hz != setup->fs_hz)
+            throw InputError(path + ": sample rate " + std::to_string(static_cast<int>(r.info.fs_hz)) +
+                             " Hz differs from the first recording's " + std::to_string(static_cast<int>(setup->fs_hz)) +
+                             " Hz; a baseline needs recordings made the same way");
+        if (!setup) setup = r.analysis.setup;
+        if (r.analysis.quality.non_finite > 0)
+            throw InputError(path + ": " + std::to_string(r.analysis.quality.non_finite) +
+                             " samples are NaN or Inf; a baseline must be learned from clean recordings");
+        if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
+        sources.push_back({path, r.sha256, r.analysis.duration_s, r.analysis.rpm});
+        analyses.push_back(std::move(r.analysis));
+    }
+    models::Baseline b = models::learn_baseline(analyses);
+    b.cavitas_version = kVersion;
+    b.created_utc = utc_now();
+    b.channel = o.channel;
+    b.unit = cal.unit;
+    b.full_scale = cal.full_scale;
+    b.sources = sources;
+    write_file_atomically(o.output, baseline_to_json(b).dump(2) + "\n");
+    out << "baseline written to " << o.output << "\n"
+        << "  " << b.sources.size() << " recording(s), " << b.segments << " segments of " << b.setup.segment_s << " s at "
+        << b.setup.fs_hz << " Hz, channel " << b.channel << ", unit " << b.unit << "\n"
+        << "  HF band " << b.setup.hf.low_hz << "-" << b.setup.hf.high_hz << " Hz, LF band " << b.setup.lf.low_hz << "-"
+        << b.setup.lf.high_hz << " Hz\n";
+    if (b.rpm > 0.0)
+        out << "  shaft speed " << b.rpm << " rpm" << (b.rpm_estimated ? " (estimated from the spectrum)" : "") << "\n";
+    else
+        out << "  shaft speed unknown: give --rpm so that envelope lines can be checked\n";
+    if (b.vanes > 0) out << "  " << b.vanes << " vanes, BPF " << models::blade_pass_hz(b.rpm, b.vanes) << " Hz\n";
+}
+
+AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
+    AnalyzeResult r;
+    r.baseline = read_baseline_file(o.baseline);
+    Calibration cal;
+    if (o.full_scale) {
+        cal = parse_full_scale(*o.full_scale);
+    } else {
+        cal.full_scale = r.baseline.full_scale;
+        cal.unit = r.baseline.unit;
+    }
+    models::MachineContext machine;
+    machine.rpm = o.rpm;
+    machine.vanes = o.vanes ? *o.vanes : r.baseline.vanes;
+    machine.rpm_hint = r.baseline.rpm;
+    r.recording = analyze_file(o.recording, o.channel, cal, r.baseline.setup, 0.0, machine, progress);
+    r.finding = models::classify(r.recording.analysis, r.baseline, cal.unit);
+    if (cal.unit != r.baseline.unit) {
+        r.finding.verdict = models::Verdict::indeterminate;
+        r.finding.confidence = 0.0;
+        r.finding.reasons.push_back("recording calibrated in " + cal.unit + " but the baseline is in " + r.baseline.unit +
+                                    ": use the baseline's --full-scale calibration");
+    }
+    if (o.channel != r.baseline.channel)
+        r.finding.warnings.push_back("channel " + std::to_string(o.channel) + " analysed, baseline learned on channel " +
+                                     std::to_string(r.baseline.channel));
+    return r;
+}
+
+void run_analyze(const AnalyzeOptions& o, std::ostream& out, std::ostream& err) {
+    if (o.json_output) refuse_overwriting_input(*o.json_output, {o.recording, o.baseline});
+    const AnalyzeResult r = analyze(o, stderr_progress(o.recording, err));
+    if (o.json_output) write_file_atomically(*o.json_output, finding_to_json(r, o.baseline).dump(2) + "\n");
+    write_summary(out, r, o.baseline);
+}
+
+}  // namespace cavitas::app

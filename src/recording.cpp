@@ -1,0 +1,161 @@
+#include "src/recording.hpp"
+
+#include <openssl/evp.h>
+#include <sndfile.h>
+
+#include <algorithm>
+#include <cerrno>
+#include <cstdio>
+#include <cstring>
+#include <filesystem>
+#include <fstream>
+#include <memory>
+
+#include "src/errors.hpp"
+
+namespace cavitas::app {
+namespace {
+
+constexpr std::size_t kBlockFrames = 8192;
+
+std::string describe_format(int format) {
+    std::string major;
+    switch (format & SF_FORMAT_TYPEMASK) {
+        case SF_FORMAT_WAV: major = "WAV"; break;
+        case SF_FORMAT_WAVEX: major = "WAVE_EXTENSIBLE"; break;
+        case SF_FORMAT_AIFF: major = "AIFF"; break;
+        case SF_FORMAT_FLAC: major = "FLAC"; break;
+        case SF_FORMAT_OGG: major = "OGG"; break;
+        case SF_FORMAT_W64: major = "W64"; break;
+        case SF_FORMAT_RF64: major = "RF64"; break;
+        case SF_FORMAT_CAF: major = "CAF"; break;
+        case SF_FORMAT_AU: major = "AU"; break;
+        default: major = "audio"; break;
+    }
+    std::string sub;
+    switch (format & SF_FORMAT_SUBMASK) {
+        case SF_FORMAT_PCM_S8: sub = "PCM 8-bit"; break;
+        case SF_FORMAT_PCM_U8: sub = "PCM 8-bit unsigned"; break;
+        case SF_FORMAT_PCM_16: sub = "PCM 16-bit"; break;
+        case SF_FORMAT_PCM_24: sub = "PCM 24-bit"; break;
+        case SF_FORMAT_PCM_32: sub = "PCM 32-bit"; break;
+        case SF_FORMAT_FLOAT: sub = "float 32-bit"; break;
+        case SF_FORMAT_DOUBLE: sub = "float 64-bit"; break;
+        case SF_FORMAT_VORBIS: sub = "Vorbis"; break;
+        default: sub = "other encoding"; break;
+    }
+    return major + " " + sub;
+}
+
+}  // namespace
+
+SndfileSource::SndfileSource(const std::string& path, int channel, const Calibration& calibration) {
+    info_.path = path;
+    info_.calibration = calibration;
+    std::error_code ec;
+    const auto st = std::filesystem::status(path, ec);
+    if (ec || !std::filesystem::exists(st)) throw InputError(path + ": no such file");
+    if (std::filesystem::is_directory(st)) throw InputError(path + ": is a directory, not a recording");
+    {
+        std::FILE* probe = std::fopen(path.c_str(), "rb");
+        if (!probe) throw InputError(path + ": cannot open: " + std::strerror(errno));
+        std::fclose(probe);
+    }
+    SF_INFO sfi{};
+    SNDFILE* f = sf_open(path.c_str(), SFM_READ, &sfi);
+    if (!f) throw InputError(path + ": not a readable recording (" + sf_strerror(nullptr) + ")");
+    file_ = f;
+    auto fail = [&](const std::string& why) {
+        sf_close(f);
+        file_ = nullptr;
+        throw InputError(path + ": " + why);
+    };
+    if (sfi.samplerate <= 0) fail("sample rate " + std::to_string(sfi.samplerate) + " Hz in the header is not valid");
+    if (sfi.channels <= 0 || sfi.channels > 1024)
+        fail(std::to_string(sfi.channels) + " channels in the header is not valid (1..1024 accepted)");
+    if (sfi.frames <= 0) fail("holds no samples");
+    if (channel < 0 || channel >= sfi.channels)
+        fail("channel " + std::to_string(channel) + " requested, but the file has " + std::to_string(sfi.channels) +
+             " channel(s) numbered 0.." + std::to_string(sfi.channels - 1));
+    info_.fs_hz = static_cast<double>(sfi.samplerate);
+    info_.channels = sfi.channels;
+    info_.channel = channel;
+    info_.frames = static_cast<std::size_t>(sfi.frames);
+    info_.format = describe_format(sfi.format);
+    const int sub = sfi.format & SF_FORMAT_SUBMASK;
+    info_.is_float = sub == SF_FORMAT_FLOAT || sub == SF_FORMAT_DOUBLE;
+    interleaved_.resize(kBlockFrames * static_cast<std::size_t>(sfi.channels));
+}
+
+SndfileSource::~SndfileSource() {
+    if (file_) sf_close(static_cast<SNDFILE*>(file_));
+}
+
+std::size_t SndfileSource::read(std::span<float> out) {
+    auto* f = static_cast<SNDFILE*>(file_);
+    const auto ch = static_cast<std::size_t>(info_.channels);
+    std::size_t written = 0;
+    const float gain = static_cast<float>(info_.calibration.full_scale);
+    while (written < out.size()) {
+        const std::size_t want = std::min(kBlockFrames, out.size() - written);
+        const sf_count_t got = sf_readf_float(f, interleaved_.data(), static_cast<sf_count_t>(want));
+        if (got < 0) throw InputError(info_.path + ": read error: " + sf_strerror(f));
+        if (got == 0) {
+            const int err = sf_error(f);
+            if (err != SF_ERR_NO_ERROR) throw InputError(info_.path + ": read error: " + sf_strerror(f));
+            break;
+        }
+        for (sf_count_t i = 0; i < got; ++i)
+            out[written + static_cast<std::size_t>(i)] =
+                interleaved_[static_cast<std::size_t>(i) * ch + static_cast<std::size_t>(info_.channel)] * gain;
+        written += static_cast<std::size_t>(got);
+        read_frames_ += static_cast<std::size_t>(got);
+        if (static_cast<std::size_t>(got) < want) break;
+    }
+    return written;
+}
+
+MemorySource::MemorySource(std::vector<float> samples, double fs_hz, const Calibration& calibration)
+    : samples_(std::move(samples)) {
+    info_.path = "(memory)";
+    info_.fs_hz = fs_hz;
+    info_.channels = 1;
+    info_.frames = samples_.size();
+    info_.format = "memory float";
+    info_.is_float = true;
+    info_.calibration = calibration;
+}
+
+std::size_t MemorySource::read(std::span<float> out) {
+    const std::size_t n = std::min(out.size(), samples_.size() - pos_);
+    std::copy_n(samples_.begin() + static_cast<std::ptrdiff_t>(pos_), n, out.begin());
+    pos_ += n;
+    return n;
+}
+
+std::string sha256_file(const std::string& path) {
+    std::ifstream in(path, std::ios::binary);
+    if (!in) throw InputError(path + ": cannot open for hashing: " + std::strerror(errno));
+    std::unique_ptr<EVP_MD_CTX, decltype(&EVP_MD_CTX_free)> ctx(EVP_MD_CTX_new(), &EVP_MD_CTX_free);
+    if (!ctx || EVP_DigestInit_ex(ctx.get(), EVP_sha256(), nullptr) != 1)
+        throw InputError(path + ": SHA-256 unavailable");
+    std::vector<char> buf(1 << 16);
+    while (in) {
+        in.read(buf.data(), static_cast<std::streamsize>(buf.size()));
+        const auto got = in.gcount();
+        if (got > 0) EVP_DigestUpdate(ctx.get(), buf.data(), static_cast<std::size_t>(got));
+    }
+    if (in.bad()) throw InputError(path + ": read error while hashing");
+    unsigned char md[EVP_MAX_MD_SIZE];
+    unsigned int len = 0;
+    EVP_DigestFinal_ex(ctx.get(), md, &len);
+    static const char* hex = "0123456789abcdef";
+    std::string s;
+    for (unsigned int i = 0; i < len; ++i) {
+        s += hex[md[i] >> 4];
+        s += hex[md[i] & 15];
+    }
+    return s;
+}
+
+}  // namespace cavitas::app

@@ -1,0 +1,73 @@
+// Reading recordings block by block through libsndfile.
+//
+// AudioSource is the seam between the analysis and the file system: the
+// analysis asks for blocks, SndfileSource reads them from any format
+// libsndfile knows (WAV PCM 16/24/32, float, FLAC, ...), MemorySource serves
+// samples from memory for tests.
+#pragma once
+
+#include <cstddef>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "src/units.hpp"
+
+namespace cavitas::app {
+
+struct RecordingInfo {
+    std::string path;
+    double fs_hz = 0.0;
+    int channels = 0;
+    int channel = 0;
+    std::size_t frames = 0;       ///< as stated in the header
+    std::string format;           ///< e.g. "WAV PCM 16-bit"
+    bool is_float = false;        ///< float/double file: no fixed full scale
+    Calibration calibration;
+    double duration_s() const { return fs_hz > 0.0 ? static_cast<double>(frames) / fs_hz : 0.0; }
+    /// |x| of a full-scale sample in engineering units (0 for float files).
+    double full_scale_value() const { return is_float ? 0.0 : calibration.full_scale; }
+};
+
+class AudioSource {
+public:
+    virtual ~AudioSource() = default;
+    virtual const RecordingInfo& info() const = 0;
+    /// Fill up to out.size() samples of the chosen channel, in engineering units.
+    /// Returns the number written; 0 at the end.
+    virtual std::size_t read(std::span<float> out) = 0;
+};
+
+class SndfileSource final : public AudioSource {
+public:
+    /// Opens and validates; throws InputError naming the file and the problem.
+    SndfileSource(const std::string& path, int channel, const Calibration& calibration);
+    ~SndfileSource() override;
+    SndfileSource(const SndfileSource&) = delete;
+    SndfileSource& operator=(const SndfileSource&) = delete;
+    const RecordingInfo& info() const override { return info_; }
+    std::size_t read(std::span<float> out) override;
+
+private:
+    void* file_ = nullptr;  // SNDFILE*
+    RecordingInfo info_;
+    std::vector<float> interleaved_;
+    std::size_t read_frames_ = 0;
+};
+
+class MemorySource final : public AudioSource {
+public:
+    MemorySource(std::vector<float> samples, double fs_hz, const Calibration& calibration = {});
+    const RecordingInfo& info() const override { return info_; }
+    std::size_t read(std::span<float> out) override;
+
+private:
+    std::vector<float> samples_;
+    std::size_t pos_ = 0;
+    RecordingInfo info_;
+};
+
+/// SHA-256 of a file's bytes as 64 lowercase hex digits; throws InputError.
+std::string sha256_file(const std::string& path);
+
+}  // namespace cavitas::app

@@ -1,0 +1,176 @@
+// The decision rules on hand-made indicator sets: each case sets only what the
+// rule under test reads, the rest stays at the baseline's values.
+#include <catch2/catch.hpp>
+
+#include <algorithm>
+
+#include "models/classifier.hpp"
+
+using namespace cavitas::models;
+using SI = SegmentIndicator;
+using RI = RecordingIndicator;
+
+namespace {
+
+// Healthy values of each segment indicator, with a small spread.
+double healthy(SI i) {
+    switch (i) {
+        case SI::hf_level_db: return -40.0;
+        case SI::lf_level_db: return -20.0;
+        case SI::hf_kurtosis: return 3.0;
+        case SI::overall_kurtosis: return 3.0;
+        case SI::impulse_rate: return 0.0;
+        default: return 1.0;
+    }
+}
+
+RecordingAnalysis make(std::size_t segments = 10) {
+    RecordingAnalysis a;
+    a.setup.fs_hz = 25600;
+    a.setup.segment_s = 1.0;
+    a.setup.hf = {6400, 10240};
+    a.setup.lf = {10, 6400};
+    a.rpm = 1485;
+    a.vanes = 7;
+    a.quality.samples = 25600 * segments;
+    for (std::size_t k = 0; k < segments; ++k)
+        for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) {
+            const double jitter = 0.2 * (static_cast<double>(k % 5) - 2.0) / 2.0;  // +-0.2 spread
+            a.series.values[i].push_back(healthy(static_cast<SI>(i)) + jitter);
+        }
+    a.recording[static_cast<std::size_t>(RI::ses_bpf_prominence_db)] = 1.0;
+    a.recording[static_cast<std::size_t>(RI::ses_1x_prominence_db)] = 1.0;
+    return a;
+}
+
+Baseline base() {
+    Baseline b = learn_baseline({make(), make(), make()});
+    b.sources.resize(3);
+    return b;
+}
+
+void shift(RecordingAnalysis& a, SI i, double by) {
+    for (double& v : a.series[i]) v += by;
+}
+void set(RecordingAnalysis& a, RI i, double v) { a.recording[static_cast<std::size_t>(i)] = v; }
+
+bool mentions(const std::vector<std::string>& lines, const std::string& word) {
+    return std::any_of(lines.begin(), lines.end(), [&](const std::string& s) { return s.find(word) != std::string::npos; });
+}
+
+}  // namespace
+
+TEST_CASE("A recording like its baseline is normal", "[models]") {
+    const Finding f = classify(make(), base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(f.confidence > 0.7);
+    CHECK(f.other_findings.empty());
+}
+
+TEST_CASE("A large HF rise modulated at blade pass is developed cavitation", "[models]") {
+    auto a = make();
+    shift(a, SI::hf_level_db, 14.0);
+    set(a, RI::ses_bpf_prominence_db, 12.0);
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::developed);
+    CHECK(mentions(f.evidence, "+14.0 dB over baseline"));
+    CHECK(mentions(f.evidence, "BPF 173.2 Hz"));
+}
+
+TEST_CASE("Dense developed cavitation with Gaussian kurtosis is still developed", "[models]") {
+    // Kurtosis stays at the baseline's ~3: a kurtosis-only rule would miss this.
+    auto a = make();
+    shift(a, SI::hf_level_db, 18.0);
+    shift(a, SI::lf_level_db, 2.5);
+    set(a, RI::ses_bpf_prominence_db, 9.0);
+    CHECK(classify(a, base(), "g").verdict == Verdict::developed);
+}
+
+TEST_CASE("A moderate HF rise with impulsive kurtosis is incipient cavitation", "[models]") {
+    auto a = make();
+    shift(a, SI::hf_level_db, 5.0);
+    shift(a, SI::hf_kurtosis, 4.0);
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::incipient);
+    CHECK(mentions(f.evidence, "impulsive"));
+}
+
+TEST_CASE("A bearing-like envelope family is not cavitation even with an HF rise", "[models]") {
+    auto a = make();
+    shift(a, SI::hf_level_db, 12.0);
+    shift(a, SI::hf_kurtosis, 6.0);
+    const double fr = 1485.0 / 60.0;
+    a.envelope_peaks = {{3.58 * fr, 3.58, 18.0}, {7.16 * fr, 7.16, 11.0}};
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(f.bearing_like);
+    CHECK(mentions(f.other_findings, "bearing-like"));
+}
+
+TEST_CASE("Envelope lines at integer orders are not read as a bearing", "[models]") {
+    auto a = make();
+    const double fr = 1485.0 / 60.0;
+    a.envelope_peaks = {{7.0 * fr, 7.0, 18.0}, {14.0 * fr, 14.0, 11.0}};
+    CHECK_FALSE(classify(a, base(), "g").bearing_like);
+}
+
+TEST_CASE("A rise confined to the low band is flow turbulence, not cavitation", "[models]") {
+    auto a = make();
+    shift(a, SI::lf_level_db, 8.0);
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(mentions(f.other_findings, "turbulence"));
+}
+
+TEST_CASE("Overloaded, NaN-bearing or rate-mismatched recordings are indeterminate with a reason", "[models]") {
+    auto a = make();
+    a.quality.at_full_scale = a.quality.samples / 10;
+    Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::indeterminate);
+    CHECK(mentions(f.reasons, "reduce the input range"));
+
+    auto b = make();
+    b.quality.non_finite = 3;
+    CHECK(classify(b, base(), "g").verdict == Verdict::indeterminate);
+
+    auto c = make();
+    c.setup.fs_hz = 51200;
+    f = classify(c, base(), "g");
+    CHECK(f.verdict == Verdict::indeterminate);
+    CHECK(mentions(f.reasons, "sample rate"));
+}
+
+TEST_CASE("A small speed change is reported and does not make cavitation", "[models]") {
+    auto a = make();
+    a.rpm = 1485.0 * 1.03;
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(mentions(f.other_findings, "speed change"));
+}
+
+TEST_CASE("Mains hum is reported and does not make cavitation", "[models]") {
+    auto a = make();
+    a.mains_hz = 50;
+    a.mains_lines = 3;
+    shift(a, SI::lf_level_db, 6.0);
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(mentions(f.other_findings, "mains hum at 50 Hz"));
+    CHECK_FALSE(mentions(f.other_findings, "turbulence"));
+}
+
+TEST_CASE("Indicator keys carry their units", "[models]") {
+    const Finding f = classify(make(), base(), "m/s2");
+    std::vector<std::string> keys;
+    for (const auto& c : f.comparisons) keys.push_back(c.key);
+    CHECK(mentions(keys, "hf_band_level_db"));
+    CHECK(mentions(keys, "overall_rms_m_s2"));
+    CHECK(mentions(keys, "impulse_rate_per_s"));
+}
+
+TEST_CASE("Every cavitation caution names lock-out and deference to codes", "[models]") {
+    const auto& c = cavitation_cautions();
+    CHECK(mentions(c, "lock out"));
+    CHECK(mentions(c, "weaken"));
+    CHECK(mentions(c, "local codes"));
+}

@@ -1,0 +1,169 @@
+// Real recordings made by others (../shared/data beside the repository, or
+// CAVITAS_SHARED_DATA). The files are read where they are and never copied into
+// the repository. Every test skips (exit 77) when the folder is absent.
+//
+// What the labels rest on is written beside each test; see each folder's SOURCE.md.
+#define CATCH_CONFIG_RUNNER
+#include <catch2/catch.hpp>
+
+#include <cstdio>
+#include <cstdlib>
+#include <filesystem>
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "models/classifier.hpp"
+#include "src/commands.hpp"
+
+namespace fs = std::filesystem;
+using namespace cavitas;
+
+namespace {
+
+fs::path data_root() {
+    if (const char* env = std::getenv("CAVITAS_SHARED_DATA")) return env;
+    return CAVITAS_DEFAULT_SHARED_DATA;
+}
+
+struct Judged {
+    models::Finding finding;
+    models::RecordingAnalysis analysis;
+};
+
+models::Baseline learn(const std::vector<fs::path>& files, double rpm, int vanes, const app::Calibration& cal) {
+    std::vector<models::RecordingAnalysis> an;
+    std::optional<models::AnalysisSetup> setup;
+    models::MachineContext m;
+    m.rpm = rpm;
+    m.vanes = vanes;
+    for (const auto& f : files) {
+        auto r = app::analyze_file(f.string(), 0, cal, setup, 0.0, m);
+        if (!setup) setup = r.analysis.setup;
+        an.push_back(std::move(r.analysis));
+    }
+    models::Baseline b = models::learn_baseline(an);
+    b.unit = cal.unit;
+    b.full_scale = cal.full_scale;
+    b.sources.resize(files.size());
+    return b;
+}
+
+Judged judge(const fs::path& f, const models::Baseline& b, double rpm, const app::Calibration& cal) {
+    models::MachineContext m;
+    m.rpm = rpm;
+    m.vanes = b.vanes;
+    m.rpm_hint = b.rpm;
+    auto r = app::analyze_file(f.string(), 0, cal, b.setup, 0.0, m);
+    Judged j{models::classify(r.analysis, b, cal.unit), r.analysis};
+    return j;
+}
+
+void print(const std::string& name, const Judged& j) {
+    std::cout << "  " << name << ": " << models::to_string(j.finding.verdict) << " (confidence "
+              << j.finding.confidence << ", HF " << j.finding.hf_rise_db << " dB, LF " << j.finding.lf_rise_db << " dB)";
+    if (j.finding.bearing_like) std::cout << " bearing-like at " << j.finding.bearing_order << "x";
+    std::cout << "\n";
+}
+
+bool cavitating(models::Verdict v) { return v == models::Verdict::incipient || v == models::Verdict::developed; }
+
+const fs::path pump() { return data_root() / "centrifugal-pump-cavitation" / "wav"; }
+const fs::path cwru() { return data_root() / "cwru-bearing" / "wav"; }
+
+// Lab pump: 6.4 kHz float WAVs in m/s^2 (SOURCE.md: "read" from the repository's plots).
+const app::Calibration kPumpCal{1.0, "m/s2"};
+// CWRU: float WAVs, usually read as g (SOURCE.md: "the files do not state them").
+const app::Calibration kCwruCal{1.0, "g"};
+// Vane count 6 is inferred in SOURCE.md from a strong 6x line at every speed.
+constexpr int kPumpVanes = 6;
+
+}  // namespace
+
+// Labels: file names only. "healthy" = suction valve open (not verified free of
+// cavitation); cavNN = suction throttled, flow falling to zero at 100 (SOURCE.md,
+// inferred from the rig logs). Speeds: median of the logged RT01 (SOURCE.md table).
+TEST_CASE("Lab pump at 1000 rpm: healthy run 2 is normal against healthy run 1", "[realdata]") {
+    const auto b = learn({pump() / "1000rpm_healthy_r1_ch0_acc.wav"}, 1011, kPumpVanes, kPumpCal);
+    const Judged j = judge(pump() / "1000rpm_healthy_r2_ch0_acc.wav", b, 1011, kPumpCal);
+    print("1000rpm healthy r2", j);
+    CHECK(j.finding.verdict == models::Verdict::normal);
+}
+
+TEST_CASE("Lab pump at 1000 rpm: every throttled-suction run is called cavitation", "[realdata]") {
+    // SOURCE.md: at 1000 rpm the 1-3.2 kHz energy jumps at cavitation25 (x3 in rms) and
+    // suction pressure falls to -0.46..-0.68 bar(g); cavitation100 is impulsive.
+    const auto b = learn({pump() / "1000rpm_healthy_r1_ch0_acc.wav", pump() / "1000rpm_healthy_r2_ch0_acc.wav"}, 1011,
+                         kPumpVanes, kPumpCal);
+    const std::vector<std::pair<std::string, double>> runs = {
+        {"cav025", 1014}, {"cav050", 1018}, {"cav075", 1023}, {"cav100", 1026}};
+    for (const auto& [cond, rpm] : runs)
+        for (int run = 1; run <= 2; ++run) {
+            const std::string name = "1000rpm_" + cond + "_r" + std::to_string(run) + "_ch0_acc.wav";
+            const Judged j = judge(pump() / name, b, rpm, kPumpCal);
+            print(name, j);
+            CHECK(cavitating(j.finding.verdict));
+        }
+}
+
+TEST_CASE("Lab pump at 700 rpm: healthy is normal and no throttled run is worse than it is labelled", "[realdata]") {
+    const auto b = learn({pump() / "700rpm_healthy_r1_ch0_acc.wav"}, 714, kPumpVanes, kPumpCal);
+    const Judged h = judge(pump() / "700rpm_healthy_r2_ch0_acc.wav", b, 714, kPumpCal);
+    print("700rpm healthy r2", h);
+    CHECK(h.finding.verdict == models::Verdict::normal);
+    // At 700 rpm the HF (1-3.2 kHz) rms rises only 0.33 -> 0.42 m/s^2 (about +2 dB) by cav075
+    // (SOURCE.md table): too little for a verdict; we only require that nothing is called
+    // indeterminate and print the verdicts for the record.
+    for (const char* cond : {"cav025", "cav050", "cav075", "cav100"}) {
+        const std::string name = std::string("700rpm_") + cond + "_r1_ch0_acc.wav";
+        const Judged j = judge(pump() / name, b, 714, kPumpCal);
+        print(name, j);
+        CHECK(j.finding.verdict != models::Verdict::indeterminate);
+    }
+}
+
+// CWRU labels: the CWRU file numbering and folder names; verified in SOURCE.md with a
+// 2-5 kHz envelope spectrum (IR peaks at BPFI, OR peaks at BPFO). Published defect
+// multiples for the drive-end 6205-2RS JEM: BPFI 5.4152, BPFO 3.5848 (CWRU table).
+TEST_CASE("CWRU bearing faults are not cavitation and their lines sit at the published orders", "[realdata]") {
+    struct Case {
+        const char* file;
+        double rpm;
+        double order;  // expected defect order, 0 = not diagnosable (ball faults)
+        const char* baseline;
+    };
+    const std::vector<Case> cases = {
+        {"IR007_0hp_1797rpm_12k_105_DE.wav", 1797, 5.4152, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"IR021_0hp_1797rpm_12k_209_DE.wav", 1797, 5.4152, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"IR007_3hp_1721rpm_12k_108_DE.wav", 1721, 5.4152, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"OR007at6_0hp_1796rpm_12k_130_DE.wav", 1796, 3.5848, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"OR021at6_0hp_1796rpm_12k_234_DE.wav", 1796, 3.5848, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"OR007at6_3hp_1725rpm_12k_133_DE.wav", 1725, 3.5848, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"IR007_0hp_1796rpm_48k_109_DE.wav", 1796, 5.4152, "normal_0hp_1796rpm_48k_097_DE.wav"},
+        {"B007_0hp_1796rpm_12k_118_DE.wav", 1796, 0.0, "normal_0hp_1796rpm_097_DE_decim12k.wav"},
+        {"B007_0hp_1796rpm_48k_122_DE.wav", 1796, 0.0, "normal_0hp_1796rpm_48k_097_DE.wav"},
+    };
+    for (const auto& c : cases) {
+        const auto b = learn({cwru() / c.baseline}, 1796, 0, kCwruCal);
+        const Judged j = judge(cwru() / c.file, b, c.rpm, kCwruCal);
+        print(c.file, j);
+        INFO(c.file);
+        CHECK_FALSE(cavitating(j.finding.verdict));
+        if (c.order > 0.0) {
+            CHECK(j.finding.bearing_like);
+            // Slip makes real lines 1-2 % off the kinematic ones (Randall & Antoni 2011).
+            CHECK(std::abs(j.finding.bearing_order / c.order - 1.0) < 0.02);
+        }
+    }
+}
+
+int main(int argc, char** argv) {
+    bool listing = false;
+    for (int i = 1; i < argc; ++i) listing = listing || std::string(argv[i]).rfind("--list", 0) == 0;
+    if (!listing && !fs::is_directory(data_root())) {
+        std::cout << "skipped: real-data folder " << data_root().string()
+                  << " is absent (set CAVITAS_SHARED_DATA to run these tests)\n";
+        return 77;
+    }
+    return Catch::Session().run(argc, argv);
+}

@@ -1,0 +1,310 @@
+// Tests of the synthetic-recording generator (tools/synth). Everything is
+// measured here with independent, deliberately simple methods:
+//  * tone amplitude: Hann-windowed single-bin DFT at the exact generated frequency;
+//  * HF band (0.2..0.45 fs): 4th-order Butterworth high-pass at 0.2 fs and
+//    4th-order low-pass at 0.45 fs (bilinear biquads written here), then rms and
+//    kurtosis of the result. The edges are not brick-wall, so the rises are
+//    checked against the documented ranges with a little slack.
+#include <catch2/catch.hpp>
+
+#include <sndfile.h>
+#include <unistd.h>
+
+#include <cmath>
+#include <filesystem>
+#include <numbers>
+#include <set>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+#include "tools/synth/synth.hpp"
+
+namespace synth = cavitas::synth;
+
+namespace {
+
+constexpr double kPi = std::numbers::pi;
+
+struct Section {
+    double b0, b1, b2, a1, a2;
+};
+
+Section butter_section(bool high, double f_hz, double fs_hz, double q) {
+    const double w = 2 * kPi * f_hz / fs_hz, c = std::cos(w), alpha = std::sin(w) / (2 * q), a0 = 1 + alpha;
+    if (high) return {(1 + c) / 2 / a0, -(1 + c) / a0, (1 + c) / 2 / a0, -2 * c / a0, (1 - alpha) / a0};
+    return {(1 - c) / 2 / a0, (1 - c) / a0, (1 - c) / 2 / a0, -2 * c / a0, (1 - alpha) / a0};
+}
+
+/// x through 4th-order Butterworth high-pass at lo and low-pass at hi.
+std::vector<double> band_pass(const std::vector<float>& x, double fs_hz, double lo_hz, double hi_hz) {
+    std::vector<double> y(x.begin(), x.end());
+    const double q1 = 0.5411961, q2 = 1.3065630;  // 4th-order Butterworth pole pairs
+    for (const Section& s : {butter_section(true, lo_hz, fs_hz, q1), butter_section(true, lo_hz, fs_hz, q2),
+                             butter_section(false, hi_hz, fs_hz, q1), butter_section(false, hi_hz, fs_hz, q2)}) {
+        double z1 = 0, z2 = 0;
+        for (double& v : y) {
+            const double in = v, out = s.b0 * in + z1;
+            z1 = s.b1 * in - s.a1 * out + z2;
+            z2 = s.b2 * in - s.a2 * out;
+            v = out;
+        }
+    }
+    // Drop the first 50 ms, where the filters settle.
+    y.erase(y.begin(), y.begin() + static_cast<std::ptrdiff_t>(0.05 * fs_hz));
+    return y;
+}
+
+struct BandStats {
+    double rms;
+    double kurtosis;
+};
+
+BandStats hf_stats(const std::vector<float>& x, double fs_hz) {
+    const auto y = band_pass(x, fs_hz, 0.2 * fs_hz, 0.45 * fs_hz);
+    double m2 = 0, m4 = 0;
+    for (double v : y) {
+        m2 += v * v;
+        m4 += v * v * v * v;
+    }
+    m2 /= static_cast<double>(y.size());
+    m4 /= static_cast<double>(y.size());
+    return {std::sqrt(m2), m4 / (m2 * m2)};
+}
+
+double lf_rms(const std::vector<float>& x, double fs_hz) {
+    const auto y = band_pass(x, fs_hz, 5.0, 1000.0);
+    double m2 = 0;
+    for (double v : y) m2 += v * v;
+    return std::sqrt(m2 / static_cast<double>(y.size()));
+}
+
+/// Amplitude of the sinusoid at exactly f_hz (Hann window, coherent gain undone).
+double tone_amplitude(const std::vector<float>& x, double fs_hz, double f_hz) {
+    double re = 0, im = 0, wsum = 0;
+    const auto n = x.size();
+    for (std::size_t i = 0; i < n; ++i) {
+        const double w = 0.5 - 0.5 * std::cos(2 * kPi * static_cast<double>(i) / static_cast<double>(n - 1));
+        const double ph = 2 * kPi * f_hz * static_cast<double>(i) / fs_hz;
+        re += w * x[i] * std::cos(ph);
+        im += w * x[i] * std::sin(ph);
+        wsum += w;
+    }
+    return 2.0 * std::hypot(re, im) / wsum;
+}
+
+double db(double ratio) { return 20.0 * std::log10(ratio); }
+
+synth::CaseSpec p101(synth::Kind kind, std::uint64_t seed, double seconds = 3.0) {
+    synth::CaseSpec s;
+    s.machine = synth::machine_by_tag("OW-P101");
+    s.kind = kind;
+    s.duration_s = seconds;
+    s.seed = seed;
+    s.severity = 0.5;
+    return s;
+}
+
+std::filesystem::path scratch_dir() {
+    const auto dir = std::filesystem::temp_directory_path() / ("cavitas-synth-test-" + std::to_string(::getpid()));
+    std::filesystem::create_directories(dir);
+    return dir;
+}
+
+std::vector<float> read_back(const std::string& path, SF_INFO& info) {
+    info = SF_INFO{};
+    SNDFILE* f = sf_open(path.c_str(), SFM_READ, &info);
+    REQUIRE(f != nullptr);
+    std::vector<float> v(static_cast<std::size_t>(info.frames));
+    REQUIRE(sf_readf_float(f, v.data(), info.frames) == info.frames);
+    sf_close(f);
+    return v;
+}
+
+}  // namespace
+
+TEST_CASE("The same seed gives identical samples and another seed gives different ones", "[tools]") {
+    const auto a = synth::synthesize(p101(synth::Kind::developed, 5, 2.0));
+    const auto b = synth::synthesize(p101(synth::Kind::developed, 5, 2.0));
+    const auto c = synth::synthesize(p101(synth::Kind::developed, 6, 2.0));
+    REQUIRE(a.size() == 51200);
+    CHECK(a == b);
+    CHECK(a != c);
+}
+
+TEST_CASE("A healthy recording carries the shaft and blade-pass tones at their generated amplitudes", "[tools]") {
+    const auto spec = p101(synth::Kind::healthy, 21);
+    const auto rec = synth::synthesize_recording(spec);
+    const double fs = spec.machine.fs_hz;
+    const double f1 = spec.machine.rpm / 60.0;  // 24.75 Hz
+    const double bpf = spec.machine.vanes * f1;  // 173.25 Hz
+    CHECK(rec.rpm == spec.machine.rpm);
+    // Nominal 0.05 g (1x) and 0.08 g (BPF), +-10 % per recording, plus a little noise.
+    CHECK(tone_amplitude(rec.g, fs, f1) == Approx(0.05).margin(0.0065));
+    CHECK(tone_amplitude(rec.g, fs, bpf) == Approx(0.08).margin(0.0095));
+    CHECK(tone_amplitude(rec.g, fs, 2 * bpf) == Approx(0.03).margin(0.0045));
+    // Between the tones there is only background.
+    CHECK(tone_amplitude(rec.g, fs, 1.5 * bpf) < 0.004);
+    // Overall background plus tones stays around 0.1 g rms.
+    double m2 = 0;
+    for (float v : rec.g) m2 += static_cast<double>(v) * v;
+    CHECK(std::sqrt(m2 / static_cast<double>(rec.g.size())) == Approx(0.095).margin(0.02));
+}
+
+TEST_CASE("Cavitation raises the HF band over the healthy twin by the documented ranges", "[tools]") {
+    // Same seed: identical background and tones, so the difference is the cavitation.
+    const auto spec_h = p101(synth::Kind::healthy, 33);
+    const double fs = spec_h.machine.fs_hz;
+    const BandStats healthy = hf_stats(synth::synthesize(spec_h), fs);
+    const auto inc = synth::synthesize_recording(p101(synth::Kind::incipient, 33));
+    const auto dev = synth::synthesize_recording(p101(synth::Kind::developed, 33));
+    const BandStats si = hf_stats(inc.g, fs), sd = hf_stats(dev.g, fs);
+    const double rise_i = db(si.rms / healthy.rms), rise_d = db(sd.rms / healthy.rms);
+
+    // Documented: incipient 3.5..7.5 dB, developed 11..24 dB; severity 0.5 aims at 5.5 and 17.5.
+    CHECK(rise_i > 3.0);
+    CHECK(rise_i < 8.0);
+    CHECK(rise_i == Approx(inc.params.cavitation.hf_rise_db).margin(1.5));
+    CHECK(rise_d > 10.0);
+    CHECK(rise_d < 25.0);
+    CHECK(rise_d == Approx(dev.params.cavitation.hf_rise_db).margin(1.5));
+
+    // Healthy HF is Gaussian; sparse collapses are impulsive; dense ones nearly Gaussian again.
+    CHECK(healthy.kurtosis == Approx(3.0).margin(0.3));
+    CHECK(si.kurtosis > 10.0);
+    CHECK(sd.kurtosis < si.kurtosis / 3.0);
+    CHECK(sd.kurtosis < 6.5);
+
+    // Developed cavitation also lifts the flow-noise band by about 2..4 dB.
+    const double lf_rise = db(lf_rms(dev.g, fs) / lf_rms(synth::synthesize(spec_h), fs));
+    CHECK(lf_rise > 1.5);
+    CHECK(lf_rise < 4.5);
+}
+
+TEST_CASE("Every severity parameter can be set directly", "[tools]") {
+    auto spec = p101(synth::Kind::incipient, 44, 2.0);
+    synth::FaultParams p = synth::draw_params(synth::Kind::incipient, 0.5, 44);
+    p.cavitation.collapse_rate_per_s = 40.0;
+    p.cavitation.hf_rise_db = 6.0;
+    spec.params = p;
+    const auto rec = synth::synthesize_recording(spec);
+    CHECK(rec.params.cavitation.collapse_rate_per_s == 40.0);
+    const double rise = db(hf_stats(rec.g, spec.machine.fs_hz).rms /
+                           hf_stats(synth::synthesize(p101(synth::Kind::healthy, 44, 2.0)), spec.machine.fs_hz).rms);
+    CHECK(rise == Approx(6.0).margin(1.5));
+}
+
+TEST_CASE("Bearing defect orders are at least 0.15 away from any integer", "[tools]") {
+    for (std::uint64_t seed = 1; seed <= 300; ++seed) {
+        const double order = synth::draw_params(synth::Kind::bearing, 0.5, seed).bearing.order;
+        INFO("seed " << seed << " order " << order);
+        CHECK(order >= 3.0);
+        CHECK(order <= 5.6);
+        CHECK(std::abs(order - std::round(order)) >= 0.15);
+    }
+    // The impacts lift the HF band (6..15 dB documented) and make it impulsive.
+    const auto spec_h = p101(synth::Kind::healthy, 55);
+    const auto bear = synth::synthesize(p101(synth::Kind::bearing, 55));
+    const BandStats h = hf_stats(synth::synthesize(spec_h), spec_h.machine.fs_hz);
+    const BandStats b = hf_stats(bear, spec_h.machine.fs_hz);
+    CHECK(db(b.rms / h.rms) > 6.0);
+    CHECK(db(b.rms / h.rms) < 15.0);
+    CHECK(b.kurtosis > 4.5);
+}
+
+TEST_CASE("The look-alikes change only what they are meant to change", "[tools]") {
+    const auto spec_h = p101(synth::Kind::healthy, 66, 2.0);
+    const double fs = spec_h.machine.fs_hz;
+    const auto healthy = synth::synthesize(spec_h);
+    const double hf_h = hf_stats(healthy, fs).rms, lf_h = lf_rms(healthy, fs);
+
+    const auto turb = synth::synthesize(p101(synth::Kind::turbulence, 66, 2.0));
+    CHECK(db(lf_rms(turb, fs) / lf_h) > 5.0);
+    CHECK(db(lf_rms(turb, fs) / lf_h) < 13.0);
+    CHECK(std::abs(db(hf_stats(turb, fs).rms / hf_h)) < 0.3);
+
+    const auto mains = synth::synthesize_recording(p101(synth::Kind::mains, 66, 2.0));
+    CHECK(tone_amplitude(mains.g, fs, mains.params.mains.mains_hz) ==
+          Approx(mains.params.mains.amplitude_g).margin(0.02));
+    CHECK(std::abs(db(hf_stats(mains.g, fs).rms / hf_h)) < 0.3);
+
+    const auto speed = synth::synthesize_recording(p101(synth::Kind::speed, 66, 2.0));
+    const double off = std::abs(speed.rpm / spec_h.machine.rpm - 1.0);
+    CHECK(off >= 0.02);
+    CHECK(off <= 0.04);
+    const double bpf = spec_h.machine.vanes * speed.rpm / 60.0;
+    CHECK(tone_amplitude(speed.g, fs, bpf) == Approx(0.08).margin(0.0095));
+
+    for (auto k : {synth::Kind::bearing, synth::Kind::turbulence, synth::Kind::mains, synth::Kind::speed})
+        CHECK(synth::label_of(k) == "normal");
+}
+
+TEST_CASE("write_wav then reading back reproduces the values within the quantisation step", "[tools]") {
+    const auto dir = scratch_dir();
+    const auto rec = synth::synthesize_recording(p101(synth::Kind::developed, 77, 0.5));
+    struct Case {
+        synth::Encoding enc;
+        double tolerance_g;
+    };
+    const double step16 = synth::kFullScaleG / 32768.0;
+    for (const Case& c : {Case{synth::Encoding::pcm16, step16}, Case{synth::Encoding::flac16, step16},
+                          Case{synth::Encoding::pcm24, synth::kFullScaleG / 8388608.0 * 2},
+                          Case{synth::Encoding::float32, 1e-6}}) {
+        std::string name = "x";
+        name += synth::extension_of(c.enc);  // (operator+ on a literal trips a GCC 12 -Wrestrict false positive)
+        const std::string path = (dir / name).string();
+        INFO(synth::name_of(c.enc));
+        CHECK(synth::write_wav(path, rec.g, rec.fs_hz, synth::kFullScaleG, synth::sf_format_of(c.enc)) == 0);
+        CHECK_FALSE(std::filesystem::exists(path + ".tmp"));
+        SF_INFO info;
+        const auto back = read_back(path, info);
+        CHECK(info.samplerate == 25600);
+        CHECK(info.channels == 1);
+        REQUIRE(back.size() == rec.g.size());
+        double worst = 0;
+        for (std::size_t i = 0; i < back.size(); ++i)
+            worst = std::max(worst, std::abs(static_cast<double>(back[i]) * synth::kFullScaleG - rec.g[i]));
+        CHECK(worst <= c.tolerance_g);
+    }
+    std::filesystem::remove_all(dir);
+}
+
+TEST_CASE("write_wav names the file when its folder cannot be written", "[tools]") {
+    const std::vector<float> g(100, 0.0f);
+    const std::string path = (std::filesystem::temp_directory_path() / "cavitas-no-such-folder" / "sub" / "a.wav").string();
+    try {
+        synth::write_wav(path, g, 25600, synth::kFullScaleG, synth::sf_format_of(synth::Encoding::pcm16));
+        FAIL("write_wav did not throw");
+    } catch (const std::runtime_error& e) {
+        CHECK(std::string(e.what()).find(path) != std::string::npos);
+    }
+}
+
+TEST_CASE("The demo and evaluation plans have the promised content", "[tools]") {
+    const auto demo = synth::demo_plan();
+    std::set<std::string> names;
+    std::uintmax_t bytes = 0;
+    for (const auto& r : demo) {
+        names.insert(r.file);
+        bytes += 44 + 2 * static_cast<std::uintmax_t>(std::llround(r.spec.duration_s * r.spec.machine.fs_hz));
+    }
+    CHECK(names.count("OW-P101_baseline_1.wav") == 1);
+    CHECK(names.count("OW-P101_incipient.wav") == 1);
+    CHECK(names.count("OW-P102_turbulence.wav") == 1);
+    CHECK(bytes <= 6000000);
+
+    const auto eval = synth::eval_plan(2, 9);
+    CHECK(eval.size() == 3 * (3 + 7 * 2));
+    std::set<std::uint64_t> seeds;
+    int baselines = 0, developed = 0;
+    for (const auto& r : eval) {
+        seeds.insert(r.spec.seed);
+        baselines += r.role == "baseline";
+        developed += r.spec.kind == synth::Kind::developed;
+        CHECK(r.spec.severity >= 0.0);
+        CHECK(r.spec.severity <= 1.0);
+    }
+    CHECK(seeds.size() == eval.size());
+    CHECK(baselines == 9);
+    CHECK(developed == 6);
+}

@@ -1,0 +1,172 @@
+// cavitas-synth: writes synthetic, labelled accelerometer recordings of the
+// invented Orrin Weir pumps, for the demo set, the evaluation set and benchmarks.
+#include <CLI/CLI.hpp>
+
+#include <unistd.h>
+
+#include <cstdint>
+#include <cstdio>
+#include <exception>
+#include <filesystem>
+#include <iostream>
+#include <string>
+#include <vector>
+
+#include "tools/synth/synth.hpp"
+
+namespace synth = cavitas::synth;
+
+namespace {
+
+std::string machine_list() {
+    std::string s;
+    for (const auto& m : synth::scenario_machines()) {
+        char line[160];
+        std::snprintf(line, sizeof line, "\n  %s  %-22s %5.0f rpm, %d vanes, recorded at %.0f Hz", m.tag.c_str(),
+                      m.duty.c_str(), m.rpm, m.vanes, m.fs_hz);
+        s += line;
+    }
+    return s;
+}
+
+void print_summary(const char* what, const std::filesystem::path& dir, const synth::SetSummary& s) {
+    std::cerr << what << ": wrote " << s.files << " recordings (" << (static_cast<double>(s.bytes) / 1.0e6)
+              << " MB) and manifest.csv, truth.csv to " << dir.string() << '\n';
+    if (s.clipped_files > 0) std::cerr << what << ": warning: " << s.clipped_files << " files were clipped\n";
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+    CLI::App app{"cavitas-synth: synthetic, labelled pump accelerometer recordings (values in g).\n\n"
+                 "Every recording is made of shaft tones (1x, 2x, 3x), blade-pass tones (BPF = vanes x rpm / 60,\n"
+                 "and 2x BPF), a coloured broadband background and three structural resonances of the machine,\n"
+                 "plus one 'kind' of condition:\n"
+                 "  healthy     nothing else (label normal)\n"
+                 "  incipient   sparse bubble-collapse impulses, rate modulated by blade passage: the band\n"
+                 "              0.2..0.45 fs rises 3.5..7.5 dB and turns impulsive (label incipient)\n"
+                 "  developed   dense, overlapping collapses: that band rises 11..24 dB, nearly Gaussian but\n"
+                 "              still BPF-modulated, and 0..1 kHz rises 2..4 dB (label developed)\n"
+                 "  bearing     outer-race defect impacts at a non-integer shaft order (label normal)\n"
+                 "  turbulence  extra flow noise in 20..800 Hz, +6..12 dB below 1 kHz (label normal)\n"
+                 "  mains       50 Hz electrical pickup and its harmonics (label normal)\n"
+                 "  speed       shaft speed 2..4 % off nominal, otherwise healthy (label normal)\n\n"
+                 "Scenario (invented): Lowmere Water Trust, Orrin Weir pumping station. Machines:" +
+                 machine_list() +
+                 "\n\nFiles are 16-bit PCM WAV unless told otherwise, full scale 50 g (sample = g / 50).\n"
+                 "The same seed always gives bit-identical files."};
+    app.require_subcommand(1);
+
+    // demo
+    std::string demo_dir;
+    std::uint64_t demo_seed = 20240611;
+    auto* demo = app.add_subcommand(
+        "demo",
+        "Write the small demo set (about 5.7 MB): OW-P101 with 2 baselines and healthy, incipient, developed and "
+        "bearing tests; OW-P102 with 2 baselines and turbulence and developed tests. 8 s each, 16-bit PCM, named "
+        "like OW-P101_baseline_1.wav and OW-P101_incipient.wav, plus manifest.csv and truth.csv.");
+    demo->add_option("OUTDIR", demo_dir, "Folder to write into (created if missing)")->required();
+    demo->add_option("--seed", demo_seed, "Master seed of the set")->capture_default_str();
+
+    // eval
+    std::string eval_dir;
+    int per_kind = 6;
+    std::uint64_t eval_seed = 1;
+    auto* eval = app.add_subcommand(
+        "eval",
+        "Write the labelled evaluation set: for each of the three machines 3 baseline recordings (healthy) and N "
+        "tests of every kind, 10 s each, severities spread evenly over each kind's range. Tests have blind names "
+        "(OW-P101_test_017.wav) in shuffled order; the truth is in manifest.csv (label, kind) and truth.csv "
+        "(fault parameters). Encodings cycle through 16-bit PCM, 24-bit PCM, 32-bit float WAV and 16-bit FLAC.");
+    const std::string set_footer =
+        "manifest.csv columns: file (relative to the folder), machine, role (baseline or test), label (normal, "
+        "incipient or developed: the truth a detector must give), kind (which signal was made), rpm (true shaft "
+        "speed), vanes, fs_hz, duration_s, full_scale_g (g at sample value 1.0), seed. truth.csv holds each "
+        "recording's severity and fault parameters; `cavitas-synth one --machine M --kind K --seconds D --seed S "
+        "--severity X` reproduces a recording's samples.";
+    demo->footer(set_footer);
+    eval->footer(set_footer);
+    eval->add_option("OUTDIR", eval_dir, "Folder to write into (created if missing)")->required();
+    eval->add_option("--per-kind", per_kind, "Test recordings of each kind per machine")
+        ->check(CLI::Range(1, 1000))
+        ->capture_default_str();
+    eval->add_option("--seed", eval_seed, "Master seed of the set")->capture_default_str();
+
+    // one
+    std::string tag = "OW-P101", kind_name = "healthy", out_file, encoding_name;
+    double seconds = 10.0, fs_hz = 0.0, severity = 0.5, rpm = 0.0;
+    std::uint64_t seed = 1;
+    auto* one = app.add_subcommand(
+        "one",
+        "Write one recording, e.g. for benchmarks: cavitas-synth one --machine OW-P101 --kind developed "
+        "--seconds 60 --fs 96000 --seed 7 -o FILE.wav");
+    std::vector<std::string> tags, kinds;
+    for (const auto& m : synth::scenario_machines()) tags.push_back(m.tag);
+    for (auto k : synth::kAllKinds) kinds.push_back(synth::name_of(k));
+    one->add_option("--machine", tag, "Machine tag")->check(CLI::IsMember(tags))->capture_default_str();
+    one->add_option("--kind", kind_name, "Condition to synthesize (see cavitas-synth --help)")
+        ->check(CLI::IsMember(kinds))
+        ->capture_default_str();
+    one->add_option("--seconds", seconds, "Duration in seconds")->check(CLI::Range(0.01, 7200.0))->capture_default_str();
+    one->add_option("--fs", fs_hz,
+                    "Sample rate in Hz (default: the machine's). The structural resonances keep the same fraction "
+                    "of the sample rate, so band statistics compare across rates; tones stay at their true Hz")
+        ->check(CLI::Range(8000.0, 1.0e6));
+    one->add_option("--seed", seed, "Random seed (same seed, same file)")->capture_default_str();
+    one->add_option("--severity", severity, "0..1 across the kind's range (see the library's draw_params)")
+        ->check(CLI::Range(0.0, 1.0))
+        ->capture_default_str();
+    one->add_option("--rpm", rpm, "True shaft speed in rpm (default: nominal, or nominal +-2..4 % for kind speed)")
+        ->check(CLI::Range(60.0, 60000.0));
+    one->add_option("--encoding", encoding_name,
+                    "pcm16, pcm24, float (32-bit float WAV) or flac16 (default: flac16 for a .flac name, else pcm16)")
+        ->check(CLI::IsMember({"pcm16", "pcm24", "float", "flac16"}));
+    one->add_option("-o,--output", out_file, "File to write")->required();
+
+    CLI11_PARSE(app, argc, argv);
+
+    try {
+        if (*demo) {
+            const auto plan = synth::demo_plan(demo_seed);
+            const auto summary = synth::write_set(demo_dir, plan, nullptr, std::cerr);
+            print_summary("demo", demo_dir, summary);
+        } else if (*eval) {
+            const auto plan = synth::eval_plan(per_kind, eval_seed);
+            const bool tty = isatty(STDERR_FILENO) != 0;
+            const auto summary = synth::write_set(
+                eval_dir, plan,
+                [tty](std::size_t done, std::size_t total) {
+                    std::cerr << "eval: " << done << '/' << total << " recordings" << (tty && done < total ? "\r" : "\n")
+                              << std::flush;
+                },
+                std::cerr);
+            print_summary("eval", eval_dir, summary);
+        } else if (*one) {
+            synth::CaseSpec spec;
+            spec.machine = synth::machine_by_tag(tag);
+            if (fs_hz > 0) spec.machine.fs_hz = fs_hz;
+            spec.kind = synth::kind_from_name(kind_name);
+            spec.duration_s = seconds;
+            spec.seed = seed;
+            spec.severity = severity;
+            spec.rpm_override = rpm;
+            const bool flac = std::filesystem::path(out_file).extension() == ".flac";
+            const synth::Encoding enc = encoding_name.empty()
+                                            ? (flac ? synth::Encoding::flac16 : synth::Encoding::pcm16)
+                                            : synth::encoding_from_name(encoding_name);
+            const auto rec = synth::synthesize_recording(spec);
+            const auto clipped =
+                synth::write_wav(out_file, rec.g, rec.fs_hz, synth::kFullScaleG, synth::sf_format_of(enc));
+            if (clipped > 0)
+                std::cerr << "warning: " << out_file << ": " << clipped << " samples exceeded the +-"
+                          << synth::kFullScaleG << " g full scale and were clipped\n";
+            std::cerr << "one: wrote " << out_file << " (" << spec.machine.tag << ", " << kind_name << ", label "
+                      << synth::label_of(spec.kind) << ", " << seconds << " s at " << rec.fs_hz << " Hz, "
+                      << rec.rpm << " rpm, " << synth::name_of(enc) << ")\n";
+        }
+    } catch (const std::exception& e) {
+        std::cerr << "cavitas-synth: error: " << e.what() << '\n';
+        return 1;
+    }
+    return 0;
+}

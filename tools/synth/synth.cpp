@@ -1,0 +1,875 @@
+// Signal model of the synthetic recordings; see synth.hpp for the overview.
+//
+// All filtering is plain time-domain IIR (biquads, direct form II transposed, in
+// double). Fault strengths are calibrated from the *exact* frequency responses of
+// those same filters: the expected power of white noise (or of a Poisson train of
+// pulses, by Campbell's theorem) through a filter bank in a band is an integral
+// of |H|^2 that we evaluate numerically, so no trial runs are needed and the
+// result does not depend on the recording's random draw.
+#include "tools/synth/synth.hpp"
+
+#include <sndfile.h>
+
+#include <algorithm>
+#include <cmath>
+#include <complex>
+#include <cstdio>
+#include <fstream>
+#include <memory>
+#include <numbers>
+#include <ostream>
+#include <random>
+#include <sstream>
+#include <stdexcept>
+#include <system_error>
+#include <utility>
+
+namespace cavitas::synth {
+namespace {
+
+constexpr double kTwoPi = 2.0 * std::numbers::pi;
+
+// ---------------------------------------------------------------------------
+// Randomness: mt19937_64 is fully specified by the standard; the distributions
+// are not, so the uniform and the Gaussian are ours.
+class Rng {
+public:
+    explicit Rng(std::uint64_t seed) : engine_(seed) {}
+
+    /// [0, 1) from the top 53 bits of one draw.
+    double uniform() { return static_cast<double>(engine_() >> 11) * 0x1.0p-53; }
+    double uniform(double lo, double hi) { return lo + (hi - lo) * uniform(); }
+
+    /// Standard normal by Box-Muller (both outputs used).
+    double gaussian() {
+        if (has_spare_) {
+            has_spare_ = false;
+            return spare_;
+        }
+        const double u1 = 1.0 - uniform();  // (0, 1]: log is finite
+        const double u2 = uniform();
+        const double r = std::sqrt(-2.0 * std::log(u1));
+        spare_ = r * std::sin(kTwoPi * u2);
+        has_spare_ = true;
+        return r * std::cos(kTwoPi * u2);
+    }
+
+    /// Waiting time of a Poisson process of `rate_per_s`.
+    double exponential_s(double rate_per_s) { return -std::log(1.0 - uniform()) / rate_per_s; }
+
+private:
+    std::mt19937_64 engine_;
+    double spare_ = 0.0;
+    bool has_spare_ = false;
+};
+
+// Independent random streams of one recording: the fault-free part is drawn from
+// the same streams whatever the kind, so a recording and its healthy twin (same
+// seed) differ only by the fault.
+enum Stream : std::uint64_t {
+    kStreamTones = 1,
+    kStreamFloor = 2,
+    kStreamPink = 3,
+    kStreamParams = 4,
+    kStreamEvents = 5,
+    kStreamFaultNoise = 6,
+    kStreamMains = 7,
+};
+
+// ---------------------------------------------------------------------------
+// Filters.
+struct Biquad {
+    double b0 = 1, b1 = 0, b2 = 0, a1 = 0, a2 = 0;
+
+    /// H at nu = f / fs.
+    std::complex<double> response(double nu) const {
+        const std::complex<double> z1 = std::polar(1.0, -kTwoPi * nu);
+        const std::complex<double> z2 = z1 * z1;
+        return (b0 + b1 * z1 + b2 * z2) / (1.0 + a1 * z1 + a2 * z2);
+    }
+};
+
+Biquad normalised(double b0, double b1, double b2, double a0, double a1, double a2) {
+    return {b0 / a0, b1 / a0, b2 / a0, a1 / a0, a2 / a0};
+}
+
+// Second-order sections from the bilinear transform with the corner pre-warped.
+Biquad lowpass2(double f_hz, double fs_hz, double q) {
+    const double w = kTwoPi * f_hz / fs_hz, c = std::cos(w), alpha = std::sin(w) / (2 * q);
+    return normalised((1 - c) / 2, 1 - c, (1 - c) / 2, 1 + alpha, -2 * c, 1 - alpha);
+}
+Biquad highpass2(double f_hz, double fs_hz, double q) {
+    const double w = kTwoPi * f_hz / fs_hz, c = std::cos(w), alpha = std::sin(w) / (2 * q);
+    return normalised((1 + c) / 2, -(1 + c), (1 + c) / 2, 1 + alpha, -2 * c, 1 - alpha);
+}
+/// Resonator with unit gain at f0 and -3 dB bandwidth f0 / q.
+Biquad bandpass2(double f0_hz, double fs_hz, double q) {
+    const double w = kTwoPi * f0_hz / fs_hz, c = std::cos(w), alpha = std::sin(w) / (2 * q);
+    return normalised(alpha, 0, -alpha, 1 + alpha, -2 * c, 1 - alpha);
+}
+/// First-order pole/zero pair (unity at DC): -20 dB/decade between pole and zero.
+Biquad shelf1(double pole_hz, double zero_hz, double fs_hz) {
+    const double k = 2 * fs_hz;
+    const double wp = k * std::tan(std::numbers::pi * pole_hz / fs_hz);
+    const double wz = k * std::tan(std::numbers::pi * zero_hz / fs_hz);
+    const double c = wp / wz;
+    return normalised(c * (k + wz), c * (wz - k), 0, k + wp, wp - k, 0);
+}
+
+/// Butterworth of even `order` as second-order sections.
+std::vector<Biquad> butterworth(bool high, int order, double f_hz, double fs_hz) {
+    std::vector<Biquad> s;
+    for (int k = 1; k <= order / 2; ++k) {
+        const double q = 1.0 / (2.0 * std::cos((2.0 * k - 1.0) * std::numbers::pi / (2.0 * order)));
+        s.push_back(high ? highpass2(f_hz, fs_hz, q) : lowpass2(f_hz, fs_hz, q));
+    }
+    return s;
+}
+
+struct Chain {
+    double gain = 1.0;
+    std::vector<Biquad> sections;
+};
+
+/// Parallel sum of cascades: y = sum_i gain_i * (sections_i applied to x).
+struct Path {
+    std::vector<Chain> branches;
+
+    std::complex<double> response(double nu) const {
+        std::complex<double> h = 0;
+        for (const auto& b : branches) {
+            std::complex<double> hb = b.gain;
+            for (const auto& s : b.sections) hb *= s.response(nu);
+            h += hb;
+        }
+        return h;
+    }
+
+    /// Adds the filtered `x` to `out` (same length).
+    void apply_add(const std::vector<double>& x, std::vector<double>& out) const {
+        std::vector<double> y;
+        for (const auto& b : branches) {
+            y = x;
+            for (const auto& s : b.sections) {
+                double z1 = 0, z2 = 0;
+                for (double& v : y) {
+                    const double in = v;
+                    const double o = s.b0 * in + z1;
+                    z1 = s.b1 * in - s.a1 * o + z2;
+                    z2 = s.b2 * in - s.a2 * o;
+                    v = o;
+                }
+            }
+            for (std::size_t n = 0; n < out.size(); ++n) out[n] += b.gain * y[n];
+        }
+    }
+};
+
+// ---------------------------------------------------------------------------
+// The collapse/impact pulse: a Gaussian of sigma = half a sample period,
+// averaged over each sample interval (what an anti-aliased recorder sees), so
+// its samples always sum to the amplitude wherever it falls between samples.
+// It spans 1..3 samples in practice.
+constexpr double kPulseSigmaSamples = 0.5;
+constexpr int kPulseFirstTap = -2;
+constexpr int kPulseLastTap = 3;
+
+double normal_cdf(double x) { return 0.5 * std::erfc(-x / std::numbers::sqrt2); }
+
+double pulse_tap(int i, double frac) {
+    return normal_cdf((i + 1 - frac) / kPulseSigmaSamples) - normal_cdf((i - frac) / kPulseSigmaSamples);
+}
+
+void add_pulse(std::vector<double>& e, double position_samples, double amplitude) {
+    const double whole = std::floor(position_samples);
+    const double frac = position_samples - whole;
+    const auto n0 = static_cast<std::ptrdiff_t>(whole);
+    const auto size = static_cast<std::ptrdiff_t>(e.size());
+    for (int i = kPulseFirstTap; i <= kPulseLastTap; ++i) {
+        const std::ptrdiff_t n = n0 + i;
+        if (n >= 0 && n < size) e[static_cast<std::size_t>(n)] += amplitude * pulse_tap(i, frac);
+    }
+}
+
+/// Power spectrum of one unit pulse, averaged over its position between samples:
+/// S(nu) = r0 + 2 sum_d r_d cos(2 pi nu d) from the mean autocorrelation r_d.
+double pulse_spectrum(double nu) {
+    static const std::vector<double> r = [] {
+        constexpr int kOffsets = 64;
+        constexpr int kTaps = kPulseLastTap - kPulseFirstTap + 1;
+        std::vector<double> acc(kTaps, 0.0);
+        for (int j = 0; j < kOffsets; ++j) {
+            const double frac = (j + 0.5) / kOffsets;
+            std::array<double, kTaps> t{};
+            for (int i = 0; i < kTaps; ++i) t[static_cast<std::size_t>(i)] = pulse_tap(i + kPulseFirstTap, frac);
+            for (int d = 0; d < kTaps; ++d)
+                for (int i = 0; i + d < kTaps; ++i)
+                    acc[static_cast<std::size_t>(d)] += t[static_cast<std::size_t>(i)] * t[static_cast<std::size_t>(i + d)] / kOffsets;
+        }
+        return acc;
+    }();
+    double s = r[0];
+    for (std::size_t d = 1; d < r.size(); ++d) s += 2.0 * r[d] * std::cos(kTwoPi * nu * static_cast<double>(d));
+    return s;
+}
+
+/// One-sided integral over `band` of weight(nu) |H(nu)|^2, as the power that a
+/// unit-variance white input (weight 1) produces in the band. Midpoint rule on
+/// a logarithmic grid (0.05 % steps) so that both the 5 Hz corners and the
+/// narrow resonances are resolved at any sample rate.
+template <class Weight>
+double band_power(const Path& path, Band band, double fs_hz, Weight weight) {
+    const double hi = std::min(band.high_hz, 0.5 * fs_hz);
+    constexpr double kFloorHz = 0.05;  // below: negligible (every path here is flat or falling there)
+    const double lo = std::max(band.low_hz, kFloorHz);
+    if (hi <= lo) return 0.0;
+    const double span = std::log(hi / lo);
+    const int points = std::max(2000, static_cast<int>(std::ceil(span / 5e-4)));
+    const double step = span / points;
+    auto g = [&](double f_hz) {
+        const double nu = f_hz / fs_hz;
+        return weight(nu) * std::norm(path.response(nu));
+    };
+    double sum = 0.0;
+    for (int i = 0; i < points; ++i) {
+        const double f = lo * std::exp((i + 0.5) * step);
+        sum += g(f) * f * step;
+    }
+    if (band.low_hz < kFloorHz) sum += g(kFloorHz) * (kFloorHz - std::max(band.low_hz, 0.0));
+    return 2.0 * sum / fs_hz;
+}
+
+double noise_band_power(const Path& p, Band b, double fs_hz) {
+    return band_power(p, b, fs_hz, [](double) { return 1.0; });
+}
+/// Expected band power of a train of unit pulses at one pulse per sample.
+double pulse_band_power(const Path& p, Band b, double fs_hz) {
+    return band_power(p, b, fs_hz, [](double nu) { return pulse_spectrum(nu); });
+}
+
+void add_white_through(const Path& path, double sigma, Rng& rng, std::vector<double>& out) {
+    if (!(sigma > 0)) return;
+    std::vector<double> w(out.size());
+    for (double& v : w) v = sigma * rng.gaussian();
+    path.apply_add(w, out);
+}
+
+double db_to_power_ratio(double db) { return std::pow(10.0, db / 10.0); }
+
+// ---------------------------------------------------------------------------
+// The fault-free background (rms in g): a flat floor that also drives the
+// resonances, and a pink-ish part below 1 kHz. Together about 0.06 g rms.
+constexpr double kFloorRmsG = 0.03;
+constexpr double kPinkRmsG = 0.05;
+
+struct Tone {
+    double f_hz;
+    double amplitude_g;
+    double phase_rad;
+};
+
+struct Structure {
+    Path bank;        // the three resonances
+    Path floor_path;  // flat floor: direct + bank
+    Path pink_path;   // -10 dB/decade from 10 Hz, rolling off above 1 kHz
+    Path pulse_path;  // collapse pulses: direct above the first mode + bank
+};
+
+Structure make_structure(const Machine& m) {
+    const double fs = m.fs_hz;
+    Structure s;
+    for (const auto& mode : m.modes)
+        s.bank.branches.push_back({mode.gain, {bandpass2(mode.fraction_of_fs * fs, fs, 1.0 / (2.0 * mode.damping_ratio))}});
+    s.floor_path.branches.push_back({1.0, {}});
+    for (const auto& b : s.bank.branches) s.floor_path.branches.push_back(b);
+    // Poles every 2/3 decade with zeros half-way give -10 dB/decade on average.
+    s.pink_path.branches.push_back({1.0,
+                                    {highpass2(5.0, fs, std::numbers::sqrt2 / 2), shelf1(10.0, 21.5, fs),
+                                     shelf1(46.4, 100.0, fs), shelf1(215.0, 464.0, fs),
+                                     lowpass2(1000.0, fs, std::numbers::sqrt2 / 2)}});
+    // A casing is stiff below its first mode: a collapse reaches the sensor
+    // directly only above about half that frequency (4th order, so that the
+    // collapses add almost nothing below 1 kHz even at 12.8 kHz sampling).
+    const double direct_hp_hz = 0.5 * m.modes[0].fraction_of_fs * fs;
+    s.pulse_path.branches.push_back({1.0, butterworth(true, 4, direct_hp_hz, fs)});
+    for (const auto& b : s.bank.branches) s.pulse_path.branches.push_back(b);
+    return s;
+}
+
+void validate(const CaseSpec& spec) {
+    const Machine& m = spec.machine;
+    auto fail = [&](const std::string& what) {
+        throw std::invalid_argument("synthesize " + (m.tag.empty() ? std::string("(untagged)") : m.tag) + ": " + what);
+    };
+    if (!(m.fs_hz >= 8000.0 && m.fs_hz <= 1.0e6)) fail("fs_hz must be within 8 000..1 000 000 Hz");
+    if (!(spec.duration_s > 0.0 && spec.duration_s <= 7200.0)) fail("duration_s must be within (0, 7200] s");
+    if (!(m.rpm >= 60.0 && m.rpm <= 60000.0)) fail("rpm must be within 60..60 000");
+    if (m.vanes < 1 || m.vanes > 40) fail("vanes must be within 1..40");
+    if (!(spec.rpm_override >= 0.0 && spec.rpm_override <= 60000.0)) fail("rpm_override must be 0 or up to 60 000");
+    if (!(spec.severity >= 0.0 && spec.severity <= 1.0)) fail("severity must be within 0..1");
+    for (const auto& mode : m.modes) {
+        if (!(mode.fraction_of_fs > 0.0 && mode.fraction_of_fs < 0.4)) fail("each mode must lie below 0.4 fs");
+        if (!(mode.damping_ratio > 0.0 && mode.damping_ratio < 0.5)) fail("mode damping ratio must be within (0, 0.5)");
+        if (!(mode.gain >= 0.0)) fail("mode gain must be >= 0");
+    }
+}
+
+void check_params(const FaultParams& p, Kind kind) {
+    auto fail = [](const std::string& what) { throw std::invalid_argument("fault parameters: " + what); };
+    const auto& c = p.cavitation;
+    if (kind == Kind::incipient || kind == Kind::developed) {
+        if (!(c.collapse_rate_per_s > 0.0 && c.collapse_rate_per_s <= 1.0e6)) fail("collapse_rate_per_s must be within (0, 1e6]");
+        if (!(c.bpf_depth >= 0.0 && c.bpf_depth <= 1.0) || !(c.shaft_depth >= 0.0 && c.shaft_depth <= 1.0))
+            fail("modulation depths must be within 0..1");
+        if (!(c.amplitude_sigma_ln >= 0.0 && c.amplitude_sigma_ln <= 3.0)) fail("amplitude_sigma_ln must be within 0..3");
+        if (!(c.hf_rise_db > 0.0 && c.hf_rise_db <= 60.0)) fail("hf_rise_db must be within (0, 60]");
+        if (!(c.lf_rise_db >= 0.0 && c.lf_rise_db <= 30.0)) fail("lf_rise_db must be within 0..30");
+    }
+    if (kind == Kind::bearing) {
+        const auto& b = p.bearing;
+        if (!(b.order >= 0.5 && b.order <= 50.0)) fail("bearing order must be within 0.5..50");
+        if (!(b.slip_frac >= 0.0 && b.slip_frac <= 0.2)) fail("bearing slip_frac must be within 0..0.2");
+        if (b.mode_index < 0 || b.mode_index > 2) fail("bearing mode_index must be 0, 1 or 2");
+        if (!(b.hf_rise_db > 0.0 && b.hf_rise_db <= 60.0)) fail("bearing hf_rise_db must be within (0, 60]");
+        if (!(b.amplitude_spread >= 0.0 && b.amplitude_spread <= 1.0)) fail("bearing amplitude_spread must be within 0..1");
+    }
+    if (kind == Kind::turbulence) {
+        const auto& t = p.turbulence;
+        if (!(t.lf_rise_db > 0.0 && t.lf_rise_db <= 40.0)) fail("turbulence lf_rise_db must be within (0, 40]");
+        if (!(t.low_hz > 0.0 && t.high_hz > t.low_hz && t.high_hz <= 1000.0)) fail("turbulence band must lie within (0, 1000] Hz");
+    }
+    if (kind == Kind::mains) {
+        if (!(p.mains.mains_hz >= 40.0 && p.mains.mains_hz <= 70.0)) fail("mains_hz must be within 40..70");
+        if (!(p.mains.amplitude_g >= 0.0 && p.mains.amplitude_g <= 10.0)) fail("mains amplitude_g must be within 0..10");
+    }
+    if (kind == Kind::speed && !(std::abs(p.speed.offset_frac) <= 0.5)) fail("speed offset_frac must be within -0.5..0.5");
+}
+
+}  // namespace
+
+// ---------------------------------------------------------------------------
+std::string label_of(Kind kind) {
+    switch (kind) {
+        case Kind::incipient: return "incipient";
+        case Kind::developed: return "developed";
+        default: return "normal";
+    }
+}
+
+std::string name_of(Kind kind) {
+    switch (kind) {
+        case Kind::healthy: return "healthy";
+        case Kind::incipient: return "incipient";
+        case Kind::developed: return "developed";
+        case Kind::bearing: return "bearing";
+        case Kind::turbulence: return "turbulence";
+        case Kind::mains: return "mains";
+        case Kind::speed: return "speed";
+    }
+    return "healthy";
+}
+
+Kind kind_from_name(std::string_view name) {
+    for (Kind k : kAllKinds)
+        if (name_of(k) == name) return k;
+    throw std::invalid_argument("unknown kind '" + std::string(name) +
+                                "' (healthy, incipient, developed, bearing, turbulence, mains, speed)");
+}
+
+const std::vector<Machine>& scenario_machines() {
+    static const std::vector<Machine> machines{
+        {"OW-P101", 1485.0, 7, 25600.0, "raw-water lift pump", {{{0.112, 0.030, 5.0}, {0.226, 0.025, 6.0}, {0.358, 0.040, 5.0}}}},
+        {"OW-P102", 2960.0, 5, 51200.0, "treated-water booster", {{{0.105, 0.030, 4.5}, {0.214, 0.022, 6.5}, {0.371, 0.028, 4.0}}}},
+        {"OW-P103", 985.0, 6, 12800.0, "backwash pump", {{{0.118, 0.025, 5.5}, {0.232, 0.030, 5.0}, {0.347, 0.050, 4.5}}}},
+    };
+    return machines;
+}
+
+const Machine& machine_by_tag(std::string_view tag) {
+    for (const auto& m : scenario_machines())
+        if (m.tag == tag) return m;
+    throw std::invalid_argument("unknown machine '" + std::string(tag) + "' (OW-P101, OW-P102, OW-P103)");
+}
+
+Band hf_band(double fs_hz) { return {0.2 * fs_hz, 0.45 * fs_hz}; }
+Band lf_band() { return {0.0, 1000.0}; }
+
+std::uint64_t derive_seed(std::uint64_t master, std::uint64_t index) {
+    // splitmix64 of a mix of both, so nearby (master, index) pairs are unrelated.
+    std::uint64_t z = master ^ (index * 0x9E3779B97F4A7C15ULL + 0xD1B54A32D192ED03ULL);
+    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
+    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
+    z += 0x9E3779B97F4A7C15ULL;
+    z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
+    z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
+    return z ^ (z >> 31);
+}
+
+FaultParams draw_params(Kind kind, double severity, std::uint64_t seed) {
+    if (!(severity >= 0.0 && severity <= 1.0)) throw std::invalid_argument("severity must be within 0..1");
+    const double s = severity;
+    Rng rng(derive_seed(seed, kStreamParams));
+    FaultParams p;
+    // Drawn in a fixed order whatever the kind, so a kind's draws never shift another's.
+    // Blade-pass modulation depth: 0.4..0.9 for sparse collapses; developed
+    // cavities persist through the whole blade passage, so 0.4..0.7 there.
+    const double depth_u = rng.uniform();
+    p.cavitation.bpf_depth = kind == Kind::developed ? 0.4 + 0.3 * depth_u : 0.4 + 0.5 * depth_u;
+    p.cavitation.shaft_depth = rng.uniform(0.1, 0.3);
+    {
+        // Outer-race order in 3..5.6, at least 0.15 from any integer:
+        // [3.15, 3.85] u [4.15, 4.85] u [5.15, 5.6] (total length 1.85).
+        double u = rng.uniform(0.0, 1.85);
+        p.bearing.order = u < 0.7 ? 3.15 + u : (u < 1.4 ? 4.15 + (u - 0.7) : 5.15 + (u - 1.4));
+    }
+    p.bearing.slip_frac = rng.uniform(0.01, 0.02);
+    // One of the two modes inside the HF band; mostly the higher, more damped
+    // one, whose short ring-down makes the impacts stand out most.
+    p.bearing.mode_index = rng.uniform() < 1.0 / 3.0 ? 1 : 2;
+    p.mains.mains_hz = 50.0 + rng.uniform(-0.05, 0.05);
+    const double speed_sign = rng.uniform() < 0.5 ? -1.0 : 1.0;
+
+    if (kind == Kind::developed) {
+        p.cavitation.collapse_rate_per_s = 2000.0 * std::pow(10.0, s);
+        p.cavitation.hf_rise_db = 11.0 + 13.0 * s;
+        p.cavitation.lf_rise_db = 2.0 + 2.0 * s;
+    } else {
+        p.cavitation.collapse_rate_per_s = 20.0 * std::pow(7.5, s);
+        p.cavitation.hf_rise_db = 3.5 + 4.0 * s;
+        p.cavitation.lf_rise_db = 0.0;
+    }
+    p.bearing.hf_rise_db = 6.0 + 9.0 * s;
+    p.turbulence.lf_rise_db = 6.0 + 6.0 * s;
+    p.mains.amplitude_g = 0.1 + 0.3 * s;
+    p.speed.offset_frac = speed_sign * (0.02 + 0.02 * s);
+    return p;
+}
+
+Recording synthesize_recording(const CaseSpec& spec) {
+    validate(spec);
+    const Machine& m = spec.machine;
+    const double fs = m.fs_hz;
+    Recording rec;
+    rec.fs_hz = fs;
+    rec.params = spec.params ? *spec.params : draw_params(spec.kind, spec.severity, spec.seed);
+    check_params(rec.params, spec.kind);
+    const FaultParams& fp = rec.params;
+
+    rec.rpm = spec.rpm_override > 0.0 ? spec.rpm_override
+              : spec.kind == Kind::speed ? m.rpm * (1.0 + fp.speed.offset_frac)
+                                         : m.rpm;
+    const double f1_hz = rec.rpm / 60.0;
+    const double bpf_hz = m.vanes * f1_hz;
+
+    // Half a second of pre-roll lets every filter (5 Hz corners) settle; it is
+    // dropped, so the first sample is already stationary.
+    const auto n_out = static_cast<std::size_t>(std::llround(spec.duration_s * fs));
+    const auto n_pre = static_cast<std::size_t>(std::llround(0.5 * fs));
+    const std::size_t n_all = n_out + n_pre;
+    const double t_start_s = -static_cast<double>(n_pre) / fs;
+    const double t_end_s = static_cast<double>(n_out) / fs;
+
+    const Structure st = make_structure(m);
+    const Band hf = hf_band(fs), lf = lf_band();
+
+    // Tones: shaft 1x..3x and blade pass 1x, 2x, amplitude +-10 % per recording.
+    std::vector<Tone> tones;
+    {
+        Rng rng(derive_seed(spec.seed, kStreamTones));
+        const std::array<std::pair<double, double>, 5> nominal{
+            {{f1_hz, 0.05}, {2 * f1_hz, 0.02}, {3 * f1_hz, 0.01}, {bpf_hz, 0.08}, {2 * bpf_hz, 0.03}}};
+        for (const auto& [f, a] : nominal) {
+            const double amp = a * rng.uniform(0.9, 1.1);
+            const double phase = rng.uniform(0.0, kTwoPi);
+            if (f < 0.45 * fs) tones.push_back({f, amp, phase});
+        }
+    }
+    const std::size_t machine_tones = tones.size();
+    if (spec.kind == Kind::mains) {
+        // Pickup at the grid frequency; odd harmonics (magnetic) stronger than even.
+        Rng rng(derive_seed(spec.seed, kStreamMains));
+        for (int h = 1; h * fp.mains.mains_hz <= 1000.0; ++h) {
+            const double rel = h == 1 ? 1.0 : (h % 2 == 1 ? 0.9 / h : 0.25 / h);
+            const double phase = rng.uniform(0.0, kTwoPi);
+            if (h * fp.mains.mains_hz < 0.45 * fs) tones.push_back({h * fp.mains.mains_hz, fp.mains.amplitude_g * rel, phase});
+        }
+    }
+
+    // Background levels and the fault-free band powers (expected, g^2).
+    const double sigma_floor = kFloorRmsG / std::sqrt(noise_band_power(st.floor_path, {0.0, 0.5 * fs}, fs));
+    const double sigma_pink = kPinkRmsG / std::sqrt(noise_band_power(st.pink_path, {0.0, 0.5 * fs}, fs));
+    double tone_lf = 0.0;  // only the shaft/vane tones: the mains "fault" is not part of the reference
+    for (std::size_t i = 0; i < machine_tones; ++i)
+        if (tones[i].f_hz <= lf.high_hz) tone_lf += 0.5 * tones[i].amplitude_g * tones[i].amplitude_g;
+    const double bg_hf = sigma_floor * sigma_floor * noise_band_power(st.floor_path, hf, fs) +
+                         sigma_pink * sigma_pink * noise_band_power(st.pink_path, hf, fs);
+    const double bg_lf = sigma_floor * sigma_floor * noise_band_power(st.floor_path, lf, fs) +
+                         sigma_pink * sigma_pink * noise_band_power(st.pink_path, lf, fs) + tone_lf;
+    rec.healthy_hf_rms_g = std::sqrt(bg_hf);
+    rec.healthy_lf_rms_g = std::sqrt(bg_lf);
+
+    std::vector<double> x(n_all, 0.0);
+    {
+        Rng rng(derive_seed(spec.seed, kStreamFloor));
+        add_white_through(st.floor_path, sigma_floor, rng, x);
+    }
+    {
+        Rng rng(derive_seed(spec.seed, kStreamPink));
+        add_white_through(st.pink_path, sigma_pink, rng, x);
+    }
+
+    if (spec.kind == Kind::incipient || spec.kind == Kind::developed) {
+        const CavitationParams& c = fp.cavitation;
+        const double per_sample = c.collapse_rate_per_s / fs;
+        const double mean_sq = std::exp(2.0 * c.amplitude_sigma_ln * c.amplitude_sigma_ln);  // E[A^2] at median 1
+        const double cav_hf1 = per_sample * mean_sq * pulse_band_power(st.pulse_path, hf, fs);
+        const double cav_lf1 = per_sample * mean_sq * pulse_band_power(st.pulse_path, lf, fs);
+        const double want_hf = bg_hf * (db_to_power_ratio(c.hf_rise_db) - 1.0);
+        const double want_lf = bg_lf * (db_to_power_ratio(c.lf_rise_db) - 1.0);
+        // Flow unsteadiness: broadband below 1 kHz.
+        Path unsteady;
+        unsteady.branches.push_back({1.0, {highpass2(5.0, fs, std::numbers::sqrt2 / 2)}});
+        for (const auto& s : butterworth(false, 4, 1000.0, fs)) unsteady.branches[0].sections.push_back(s);
+        double amp_sq = want_hf / cav_hf1, unsteady_var = 0.0;
+        if (c.lf_rise_db > 0.0) {
+            // Both bands at once: the collapses leak a little into < 1 kHz and
+            // the unsteadiness a little into the HF band.
+            const double u_hf1 = noise_band_power(unsteady, hf, fs), u_lf1 = noise_band_power(unsteady, lf, fs);
+            const double det = cav_hf1 * u_lf1 - u_hf1 * cav_lf1;
+            unsteady_var = (cav_hf1 * want_lf - cav_lf1 * want_hf) / det;
+            amp_sq = (want_hf * u_lf1 - u_hf1 * want_lf) / det;
+            if (unsteady_var < 0.0) {  // collapses alone already exceed the LF target
+                unsteady_var = 0.0;
+                amp_sq = want_hf / cav_hf1;
+            }
+        }
+        const double median_g = std::sqrt(std::max(amp_sq, 0.0));
+        rec.pulse_amplitude_g = median_g;
+
+        // Poisson collapses with rate lambda0 (1 + m cos(BPF)) (1 + m1 cos(1x)),
+        // by thinning a homogeneous process at the peak rate. Both factors have
+        // zero-mean cosines at different harmonics, so the mean rate is lambda0.
+        Rng rng(derive_seed(spec.seed, kStreamEvents));
+        const double phi_bpf = rng.uniform(0.0, kTwoPi), phi_1x = rng.uniform(0.0, kTwoPi);
+        const double peak_rate = c.collapse_rate_per_s * (1.0 + c.bpf_depth) * (1.0 + c.shaft_depth);
+        std::vector<double> e(n_all, 0.0);
+        for (double t = t_start_s + rng.exponential_s(peak_rate); t < t_end_s; t += rng.exponential_s(peak_rate)) {
+            const double rate = c.collapse_rate_per_s * (1.0 + c.bpf_depth * std::cos(kTwoPi * bpf_hz * t + phi_bpf)) *
+                                (1.0 + c.shaft_depth * std::cos(kTwoPi * f1_hz * t + phi_1x));
+            if (rng.uniform() * peak_rate >= rate) continue;
+            const double a = median_g * std::exp(c.amplitude_sigma_ln * rng.gaussian());
+            add_pulse(e, (t - t_start_s) * fs, a);
+        }
+        st.pulse_path.apply_add(e, x);
+        Rng noise(derive_seed(spec.seed, kStreamFaultNoise));
+        add_white_through(unsteady, std::sqrt(unsteady_var), noise, x);
+    } else if (spec.kind == Kind::bearing) {
+        const BearingParams& b = fp.bearing;
+        const Mode& mode = m.modes[static_cast<std::size_t>(b.mode_index)];
+        Path path;  // the impact rings one resonance; a little reaches the sensor directly
+        path.branches.push_back({mode.gain, {bandpass2(mode.fraction_of_fs * fs, fs, 1.0 / (2.0 * mode.damping_ratio))}});
+        path.branches.push_back({0.15, st.pulse_path.branches[0].sections});
+        const double rate_per_s = b.order * f1_hz;
+        const double mean_sq = 1.0 + b.amplitude_spread * b.amplitude_spread;
+        const double per_impact = (rate_per_s / fs) * mean_sq * pulse_band_power(path, hf, fs);
+        const double amp_g = std::sqrt(bg_hf * (db_to_power_ratio(b.hf_rise_db) - 1.0) / per_impact);
+        rec.pulse_amplitude_g = amp_g;
+        Rng rng(derive_seed(spec.seed, kStreamEvents));
+        const double interval_s = 1.0 / rate_per_s;
+        std::vector<double> e(n_all, 0.0);
+        for (double t = t_start_s + rng.uniform() * interval_s; t < t_end_s;
+             t += interval_s * std::max(0.5, 1.0 + b.slip_frac * rng.gaussian())) {
+            const double a = amp_g * std::max(0.2, 1.0 + b.amplitude_spread * rng.gaussian());
+            add_pulse(e, (t - t_start_s) * fs, a);
+        }
+        path.apply_add(e, x);
+    } else if (spec.kind == Kind::turbulence) {
+        const TurbulenceParams& tp = fp.turbulence;
+        Path path;
+        path.branches.push_back({1.0, butterworth(true, 4, tp.low_hz, fs)});
+        // 10th order: 19 dB down at 1 kHz, 35 dB at 1.2 kHz, so nothing above ~1 kHz.
+        for (const auto& s : butterworth(false, 10, tp.high_hz, fs)) path.branches[0].sections.push_back(s);
+        const double var = bg_lf * (db_to_power_ratio(tp.lf_rise_db) - 1.0) / noise_band_power(path, lf, fs);
+        Rng rng(derive_seed(spec.seed, kStreamFaultNoise));
+        add_white_through(path, std::sqrt(var), rng, x);
+    }
+
+    rec.g.resize(n_out);
+    for (std::size_t n = 0; n < n_out; ++n) {
+        const double t = static_cast<double>(n) / fs;
+        double v = x[n + n_pre];
+        for (const auto& tone : tones) v += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
+        rec.g[n] = static_cast<float>(v);
+    }
+    return rec;
+}
+
+std::vector<float> synthesize(const CaseSpec& spec) { return synthesize_recording(spec).g; }
+
+// ---------------------------------------------------------------------------
+// Files.
+std::string name_of(Encoding encoding) {
+    switch (encoding) {
+        case Encoding::pcm16: return "pcm16";
+        case Encoding::pcm24: return "pcm24";
+        case Encoding::float32: return "float";
+        case Encoding::flac16: return "flac16";
+    }
+    return "pcm16";
+}
+
+Encoding encoding_from_name(std::string_view name) {
+    for (Encoding e : {Encoding::pcm16, Encoding::pcm24, Encoding::float32, Encoding::flac16})
+        if (name_of(e) == name) return e;
+    throw std::invalid_argument("unknown encoding '" + std::string(name) + "' (pcm16, pcm24, float, flac16)");
+}
+
+int sf_format_of(Encoding encoding) {
+    switch (encoding) {
+        case Encoding::pcm16: return SF_FORMAT_WAV | SF_FORMAT_PCM_16;
+        case Encoding::pcm24: return SF_FORMAT_WAV | SF_FORMAT_PCM_24;
+        case Encoding::float32: return SF_FORMAT_WAV | SF_FORMAT_FLOAT;
+        case Encoding::flac16: return SF_FORMAT_FLAC | SF_FORMAT_PCM_16;
+    }
+    return SF_FORMAT_WAV | SF_FORMAT_PCM_16;
+}
+
+std::string extension_of(Encoding encoding) { return encoding == Encoding::flac16 ? ".flac" : ".wav"; }
+
+namespace {
+
+struct SndfileCloser {
+    void operator()(SNDFILE* f) const { sf_close(f); }
+};
+
+void rename_into_place(const std::string& tmp, const std::string& path) {
+    std::error_code ec;
+    std::filesystem::rename(tmp, path, ec);
+    if (ec) {
+        std::filesystem::remove(tmp, ec);
+        throw std::runtime_error("cannot write '" + path + "': rename from temporary file failed");
+    }
+}
+
+std::string fmt_number(double v, int max_decimals) {
+    char buf[64];
+    std::snprintf(buf, sizeof buf, "%.*f", max_decimals, v);
+    std::string s(buf);
+    if (s.find('.') != std::string::npos) {
+        while (!s.empty() && s.back() == '0') s.pop_back();
+        if (!s.empty() && s.back() == '.') s.pop_back();
+    }
+    return s == "-0" ? "0" : s;
+}
+
+void write_text_atomically(const std::filesystem::path& path, const std::string& text) {
+    const std::string tmp = path.string() + ".tmp";
+    {
+        std::ofstream out(tmp, std::ios::binary | std::ios::trunc);
+        if (!out) throw std::runtime_error("cannot write '" + path.string() + "': cannot create file");
+        out << text;
+        out.flush();
+        if (!out) throw std::runtime_error("cannot write '" + path.string() + "': write failed");
+    }
+    rename_into_place(tmp, path.string());
+}
+
+}  // namespace
+
+std::size_t write_wav(const std::string& path, std::span<const float> g, double fs_hz, double full_scale_g,
+                      int sf_format) {
+    if (!(full_scale_g > 0.0)) throw std::invalid_argument("write_wav '" + path + "': full_scale_g must be > 0");
+    const double rate = std::round(fs_hz);
+    if (!(rate >= 1.0 && rate <= 2.0e6) || std::abs(rate - fs_hz) > 1e-6)
+        throw std::invalid_argument("write_wav '" + path + "': sample rate must be a whole number of Hz");
+    SF_INFO info{};
+    info.samplerate = static_cast<int>(rate);
+    info.channels = 1;
+    info.format = sf_format;
+    if (!sf_format_check(&info)) throw std::invalid_argument("write_wav '" + path + "': unsupported sound file format");
+
+    const std::string tmp = path + ".tmp";
+    std::unique_ptr<SNDFILE, SndfileCloser> file(sf_open(tmp.c_str(), SFM_WRITE, &info));
+    if (!file) throw std::runtime_error("cannot write '" + path + "': " + sf_strerror(nullptr));
+    // The PEAK chunk carries a time stamp, which would make float files differ run to run.
+    sf_command(file.get(), SFC_SET_ADD_PEAK_CHUNK, nullptr, SF_FALSE);
+
+    std::size_t clipped = 0;
+    constexpr std::size_t kBlock = 1 << 15;
+    std::vector<float> buf(kBlock);
+    const double scale = 1.0 / full_scale_g;
+    for (std::size_t i = 0; i < g.size(); i += kBlock) {
+        const std::size_t n = std::min(kBlock, g.size() - i);
+        for (std::size_t k = 0; k < n; ++k) {
+            double v = static_cast<double>(g[i + k]) * scale;
+            if (v > 1.0 || v < -1.0) {
+                ++clipped;
+                v = std::clamp(v, -1.0, 1.0);
+            }
+            buf[k] = static_cast<float>(v);
+        }
+        if (sf_writef_float(file.get(), buf.data(), static_cast<sf_count_t>(n)) != static_cast<sf_count_t>(n)) {
+            const std::string why = sf_strerror(file.get());
+            file.reset();
+            std::error_code ec;
+            std::filesystem::remove(tmp, ec);
+            throw std::runtime_error("cannot write '" + path + "': " + why);
+        }
+    }
+    if (sf_close(file.release()) != 0) {
+        std::error_code ec;
+        std::filesystem::remove(tmp, ec);
+        throw std::runtime_error("cannot write '" + path + "': closing the file failed");
+    }
+    rename_into_place(tmp, path);
+    return clipped;
+}
+
+// ---------------------------------------------------------------------------
+// Sets.
+std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
+    struct Item {
+        const char* tag;
+        const char* suffix;
+        const char* role;
+        Kind kind;
+    };
+    const std::array<Item, 10> items{{
+        {"OW-P101", "baseline_1", "baseline", Kind::healthy},
+        {"OW-P101", "baseline_2", "baseline", Kind::healthy},
+        {"OW-P101", "healthy", "test", Kind::healthy},
+        {"OW-P101", "incipient", "test", Kind::incipient},
+        {"OW-P101", "developed", "test", Kind::developed},
+        {"OW-P101", "bearing", "test", Kind::bearing},
+        {"OW-P102", "baseline_1", "baseline", Kind::healthy},
+        {"OW-P102", "baseline_2", "baseline", Kind::healthy},
+        {"OW-P102", "turbulence", "test", Kind::turbulence},
+        {"OW-P102", "developed", "test", Kind::developed},
+    }};
+    std::vector<PlannedRecording> plan;
+    for (std::size_t i = 0; i < items.size(); ++i) {
+        PlannedRecording r;
+        r.file = std::string(items[i].tag) + "_" + items[i].suffix + ".wav";
+        r.role = items[i].role;
+        r.spec.machine = machine_by_tag(items[i].tag);
+        r.spec.kind = items[i].kind;
+        r.spec.duration_s = 8.0;
+        r.spec.seed = derive_seed(seed, i);
+        r.spec.severity = 0.5;
+        r.encoding = Encoding::pcm16;
+        plan.push_back(std::move(r));
+    }
+    return plan;
+}
+
+std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed) {
+    if (per_kind < 1 || per_kind > 1000) throw std::invalid_argument("per-kind must be within 1..1000");
+    constexpr int kBaselines = 3;
+    // Mostly the default 16-bit PCM, with every other encoding in each machine's share.
+    constexpr std::array<Encoding, 6> kCycle{Encoding::pcm16, Encoding::pcm24,   Encoding::pcm16,
+                                             Encoding::float32, Encoding::pcm16, Encoding::flac16};
+    const auto& machines = scenario_machines();
+    const std::size_t tests = kAllKinds.size() * static_cast<std::size_t>(per_kind);
+    const int width = tests >= 1000 ? 4 : 3;
+    std::vector<PlannedRecording> plan;
+    for (std::size_t mi = 0; mi < machines.size(); ++mi) {
+        struct Test {
+            Kind kind;
+            double severity;
+        };
+        std::vector<Test> list;
+        for (std::size_t ki = 0; ki < kAllKinds.size(); ++ki) {
+            // Stratified: one severity in each 1/N slice of 0..1, on a 0.001 grid so
+            // that truth.csv prints it exactly and `one --severity` reproduces the file.
+            Rng strat(derive_seed(seed, 1000000 + mi * 16 + ki));
+            for (int i = 0; i < per_kind; ++i) {
+                const double s = std::round(1000.0 * (i + strat.uniform()) / per_kind) / 1000.0;
+                list.push_back({kAllKinds[ki], std::clamp(s, 0.0, 1.0)});
+            }
+        }
+        // Fisher-Yates with our uniform (std::shuffle's draws are not portable),
+        // so the blind file names do not reveal the kind by position.
+        Rng shuffle(derive_seed(seed, 2000000 + mi));
+        for (std::size_t i = list.size(); i-- > 1;) {
+            const auto j = std::min(i, static_cast<std::size_t>(shuffle.uniform() * static_cast<double>(i + 1)));
+            std::swap(list[i], list[j]);
+        }
+        const Machine& machine = machines[mi];
+        const std::size_t total = kBaselines + list.size();
+        for (std::size_t j = 0; j < total; ++j) {
+            PlannedRecording r;
+            r.encoding = kCycle[j % kCycle.size()];
+            r.spec.machine = machine;
+            r.spec.duration_s = 10.0;
+            r.spec.seed = derive_seed(seed, mi * 100000 + j);
+            if (j < kBaselines) {
+                r.role = "baseline";
+                r.spec.kind = Kind::healthy;
+                r.spec.severity = 0.0;
+                r.file = machine.tag + "_baseline_" + std::to_string(j + 1);
+            } else {
+                const Test& t = list[j - kBaselines];
+                r.role = "test";
+                r.spec.kind = t.kind;
+                r.spec.severity = t.severity;
+                char num[32];
+                std::snprintf(num, sizeof num, "%0*zu", width, j - kBaselines + 1);
+                r.file = machine.tag + "_test_" + num;
+            }
+            r.file += extension_of(r.encoding);
+            plan.push_back(std::move(r));
+        }
+    }
+    return plan;
+}
+
+SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
+                     const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn) {
+    std::error_code ec;
+    std::filesystem::create_directories(folder, ec);
+    if (ec || !std::filesystem::is_directory(folder))
+        throw std::runtime_error("cannot create output folder '" + folder.string() + "': " +
+                                 (ec ? ec.message() : std::string("not a folder")));
+    std::ostringstream manifest, truth;
+    manifest << "file,machine,role,label,kind,rpm,vanes,fs_hz,duration_s,full_scale_g,seed\n";
+    truth << "file,kind,severity,collapse_rate_per_s,bpf_depth,shaft_depth,hf_rise_db,lf_rise_db,"
+             "bearing_order,bearing_slip,turbulence_lf_rise_db,mains_hz,mains_g,speed_offset_pct,pulse_amplitude_g\n";
+    SetSummary summary;
+    for (std::size_t i = 0; i < plan.size(); ++i) {
+        const PlannedRecording& r = plan[i];
+        const Recording rec = synthesize_recording(r.spec);
+        const std::filesystem::path path = folder / r.file;
+        const std::size_t clipped = write_wav(path.string(), rec.g, rec.fs_hz, kFullScaleG, sf_format_of(r.encoding));
+        if (clipped > 0) {
+            ++summary.clipped_files;
+            warn << "warning: " << path.string() << ": " << clipped << " samples exceeded the +-" << kFullScaleG
+                 << " g full scale and were clipped\n";
+        }
+        ++summary.files;
+        const auto size = std::filesystem::file_size(path, ec);
+        if (!ec) summary.bytes += size;
+        const Kind k = r.spec.kind;
+        manifest << r.file << ',' << r.spec.machine.tag << ',' << r.role << ',' << label_of(k) << ',' << name_of(k) << ','
+                 << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ',' << fmt_number(rec.fs_hz, 3) << ','
+                 << fmt_number(r.spec.duration_s, 6) << ',' << fmt_number(kFullScaleG, 3) << ',' << r.spec.seed << '\n';
+        const FaultParams& p = rec.params;
+        const bool cav = k == Kind::incipient || k == Kind::developed;
+        auto col = [](bool on, double v, int dec) { return on ? fmt_number(v, dec) : std::string(); };
+        truth << r.file << ',' << name_of(k) << ',' << col(k != Kind::healthy, r.spec.severity, 3) << ','
+              << col(cav, p.cavitation.collapse_rate_per_s, 2) << ',' << col(cav, p.cavitation.bpf_depth, 4) << ','
+              << col(cav, p.cavitation.shaft_depth, 4) << ','
+              << (cav ? fmt_number(p.cavitation.hf_rise_db, 3) : k == Kind::bearing ? fmt_number(p.bearing.hf_rise_db, 3) : "")
+              << ',' << col(k == Kind::developed, p.cavitation.lf_rise_db, 3) << ','
+              << col(k == Kind::bearing, p.bearing.order, 4) << ',' << col(k == Kind::bearing, p.bearing.slip_frac, 4) << ','
+              << col(k == Kind::turbulence, p.turbulence.lf_rise_db, 3) << ',' << col(k == Kind::mains, p.mains.mains_hz, 3)
+              << ',' << col(k == Kind::mains, p.mains.amplitude_g, 4) << ','
+              << col(k == Kind::speed, 100.0 * p.speed.offset_frac, 3) << ','
+              << col(cav || k == Kind::bearing, rec.pulse_amplitude_g, 6) << '\n';
+        if (progress) progress(i + 1, plan.size());
+    }
+    write_text_atomically(folder / "manifest.csv", manifest.str());
+    write_text_atomically(folder / "truth.csv", truth.str());
+    return summary;
+}
+
+}  // namespace cavitas::synth

@@ -1,0 +1,221 @@
+// Synthetic, labelled accelerometer recordings of centrifugal pumps, for the
+// demo set in samples/, the labelled evaluation set and the benchmarks.
+//
+// The scenario is invented: utility "Lowmere Water Trust", site "Orrin Weir
+// pumping station", three pumps OW-P101..OW-P103. A recording is a sum of
+//   * shaft tones 1x, 2x, 3x and blade-pass tones BPF, 2xBPF (random phases,
+//     +-10 % amplitude per recording),
+//   * a coloured broadband background: a pink-ish (-10 dB/decade) part below
+//     about 1 kHz and a flat floor that also drives the machine's three lightly
+//     damped structural resonances,
+//   * the fault of the recording's Kind (cavitation, or a look-alike that is
+//     labelled normal).
+// Every amplitude is in g. A fault's strength is set by the band-power rise it
+// causes over the same recording without the fault (computed exactly from the
+// filter responses, so "incipient raises the HF band by 5 dB" holds in
+// expectation for any machine and sample rate).
+//
+// Same CaseSpec -> bit-identical samples on a given build: all randomness comes
+// from std::mt19937_64 through our own 53-bit uniform and Box-Muller, never the
+// standard distributions (their output differs between standard libraries).
+#pragma once
+
+#include <array>
+#include <cstddef>
+#include <cstdint>
+#include <filesystem>
+#include <functional>
+#include <iosfwd>
+#include <optional>
+#include <span>
+#include <string>
+#include <string_view>
+#include <vector>
+
+namespace cavitas::synth {
+
+inline constexpr std::string_view kUtility = "Lowmere Water Trust";
+inline constexpr std::string_view kSite = "Orrin Weir pumping station";
+/// Full scale of the written files: sample value 1.0 == 50 g.
+inline constexpr double kFullScaleG = 50.0;
+
+enum class Kind { healthy, incipient, developed, bearing, turbulence, mains, speed };
+inline constexpr std::array<Kind, 7> kAllKinds{Kind::healthy,    Kind::incipient, Kind::developed,
+                                               Kind::bearing,    Kind::turbulence, Kind::mains,
+                                               Kind::speed};
+
+/// "normal", "incipient" or "developed": the truth a detector must report.
+std::string label_of(Kind kind);
+/// "healthy", "incipient", ... : which signal was generated.
+std::string name_of(Kind kind);
+/// Inverse of name_of; throws std::invalid_argument naming the valid kinds.
+Kind kind_from_name(std::string_view name);
+
+/// One structural resonance of the casing/bearing housing as seen by the sensor.
+/// Its frequency is a fraction of the sample rate, so a recording made at another
+/// rate (cavitas-synth one --fs) keeps the same band statistics; every tone and
+/// the < 1 kHz bands stay at their true Hz.
+struct Mode {
+    double fraction_of_fs = 0.2;  ///< centre frequency / fs, below 0.4
+    double damping_ratio = 0.03;  ///< zeta, 0.02..0.05 (Q = 1 / (2 zeta))
+    double gain = 5.0;            ///< peak amplification over the direct path
+};
+
+struct Machine {
+    std::string tag;   ///< e.g. "OW-P101"
+    double rpm = 0;    ///< nominal shaft speed
+    int vanes = 0;     ///< impeller vanes; BPF = vanes * rpm / 60
+    double fs_hz = 0;  ///< sample rate of its recorder
+    std::string duty{};
+    std::array<Mode, 3> modes{{{0.11, 0.03, 5.0}, {0.22, 0.03, 6.0}, {0.36, 0.04, 5.0}}};
+};
+
+/// The three Orrin Weir pumps (P101 raw-water lift, P102 treated-water booster,
+/// P103 backwash).
+const std::vector<Machine>& scenario_machines();
+/// Throws std::invalid_argument naming the known tags.
+const Machine& machine_by_tag(std::string_view tag);
+
+/// A frequency band in Hz.
+struct Band {
+    double low_hz = 0;
+    double high_hz = 0;
+};
+/// The band in which cavitation is judged here: 0.2..0.45 fs.
+Band hf_band(double fs_hz);
+/// Flow-noise band: 0..1000 Hz (tones included).
+Band lf_band();
+
+/// Collapse process of incipient/developed cavitation.
+struct CavitationParams {
+    double collapse_rate_per_s = 0;   ///< lambda0, mean collapses per second
+    double bpf_depth = 0.6;           ///< m: rate(t) = lambda0 (1 + m cos(2 pi BPF t + phi)) ...
+    double shaft_depth = 0.2;         ///< ... (1 + m1 cos(2 pi f1 t + phi1)): one vane differs
+    double amplitude_sigma_ln = 0.5;  ///< collapse amplitudes are log-normal with this sigma
+    double hf_rise_db = 0;            ///< rise of the HF band power over the fault-free signal
+    double lf_rise_db = 0;            ///< rise of the 0..1 kHz band from flow unsteadiness (developed)
+};
+
+/// Outer-race defect impacts (a look-alike: impulsive but at a non-integer order).
+struct BearingParams {
+    double order = 4.4;          ///< impacts per shaft revolution, >= 0.15 from any integer
+    double slip_frac = 0.015;    ///< standard deviation of each interval / mean interval
+    int mode_index = 1;          ///< which structural resonance the impacts ring
+    double hf_rise_db = 10;      ///< rise of the HF band power
+    double amplitude_spread = 0.15;  ///< relative standard deviation of impact amplitude
+};
+
+/// Hydraulic turbulence/recirculation noise in 20..800 Hz (a look-alike).
+struct TurbulenceParams {
+    double lf_rise_db = 9;  ///< rise of the 0..1 kHz band power
+    double low_hz = 20;
+    double high_hz = 800;
+};
+
+/// Electrical pickup at mains frequency and harmonics up to 1 kHz (a look-alike).
+struct MainsParams {
+    double mains_hz = 50;
+    double amplitude_g = 0.2;  ///< of the fundamental; harmonics fall off as 1/h
+};
+
+/// Shaft speed away from nominal (a look-alike: every tone moves).
+struct SpeedParams {
+    double offset_frac = 0.03;  ///< true rpm = nominal * (1 + offset_frac); |offset| 2..4 %
+};
+
+/// The parameters of every kind; only the one matching CaseSpec::kind is used.
+struct FaultParams {
+    CavitationParams cavitation;
+    BearingParams bearing;
+    TurbulenceParams turbulence;
+    MainsParams mains;
+    SpeedParams speed;
+};
+
+/// Parameters of `kind` at `severity` (0..1 across the kind's documented range):
+///   incipient  lambda0 = 20 * 7.5^s /s (20..150), HF rise 3.5 + 4 s dB
+///   developed  lambda0 = 2000 * 10^s /s (2 000..20 000), HF rise 11 + 13 s dB,
+///              0..1 kHz rise 2 + 2 s dB
+///   bearing    HF rise 6 + 9 s dB (order, slip and ringing mode from the seed)
+///   turbulence 0..1 kHz rise 6 + 6 s dB
+///   mains      0.1 + 0.3 s g at 50 Hz (+-0.05 Hz)
+///   speed      |offset| 2 + 2 s %, sign from the seed
+/// Drawn from the seed: blade-pass depth m in [0.4, 0.9] (developed: [0.4, 0.7],
+/// as attached cavities persist through the passage), 1x depth m1 in [0.1, 0.3],
+/// bearing order, slip 1..2 % and ringing mode, mains 50 +- 0.05 Hz, speed sign.
+FaultParams draw_params(Kind kind, double severity, std::uint64_t seed);
+
+struct CaseSpec {
+    Machine machine;
+    Kind kind = Kind::healthy;
+    double duration_s = 10;
+    std::uint64_t seed = 1;
+    double severity = 0.5;    ///< 0..1 across the kind's range (see draw_params)
+    double rpm_override = 0;  ///< > 0: the true shaft speed (else nominal, or nominal +- offset for speed)
+    std::optional<FaultParams> params{};  ///< set: used as given instead of draw_params
+};
+
+struct Recording {
+    std::vector<float> g;  ///< acceleration in g, duration_s * fs_hz samples
+    double fs_hz = 0;
+    double rpm = 0;  ///< true shaft speed of this recording
+    FaultParams params;
+    /// Median collapse amplitude (cavitation) or mean impact amplitude (bearing),
+    /// in g summed over the few samples of one pulse; 0 for other kinds.
+    double pulse_amplitude_g = 0;
+    /// Expected rms of the fault-free signal in hf_band() and lf_band().
+    double healthy_hf_rms_g = 0;
+    double healthy_lf_rms_g = 0;
+};
+
+Recording synthesize_recording(const CaseSpec& spec);
+/// The samples of synthesize_recording(spec), in g.
+std::vector<float> synthesize(const CaseSpec& spec);
+
+/// A seed for item `index` of a set made from `master` (splitmix64 mixing).
+std::uint64_t derive_seed(std::uint64_t master, std::uint64_t index);
+
+/// File encodings the sets use.
+enum class Encoding { pcm16, pcm24, float32, flac16 };
+std::string name_of(Encoding encoding);                  ///< "pcm16", "pcm24", "float", "flac16"
+Encoding encoding_from_name(std::string_view name);      ///< throws std::invalid_argument
+int sf_format_of(Encoding encoding);                     ///< libsndfile SF_FORMAT_* value
+std::string extension_of(Encoding encoding);             ///< ".wav" or ".flac"
+
+/// Writes g / full_scale_g as one channel with libsndfile (`sf_format` decides
+/// WAV or FLAC and the sample type) to path + ".tmp", then renames it to path.
+/// Samples beyond +-full scale are clipped; returns how many were. Throws
+/// std::runtime_error naming the file if it cannot be written.
+std::size_t write_wav(const std::string& path, std::span<const float> g, double fs_hz,
+                      double full_scale_g, int sf_format);
+
+/// One file of a set.
+struct PlannedRecording {
+    std::string file;  ///< relative to the set's folder
+    std::string role;  ///< "baseline" or "test"
+    CaseSpec spec;
+    Encoding encoding = Encoding::pcm16;
+};
+
+/// The demo set: OW-P101 (2 baselines, healthy, incipient, developed, bearing)
+/// and OW-P102 (2 baselines, turbulence, developed), 8 s each, 16-bit PCM.
+std::vector<PlannedRecording> demo_plan(std::uint64_t seed = 20240611);
+/// The evaluation set: per machine 3 baselines and `per_kind` tests of every kind,
+/// 10 s each, severities stratified over 0..1, tests in shuffled order under blind
+/// names (OW-P101_test_017.wav), encodings cycling pcm16/pcm24/float/flac16.
+std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed);
+
+struct SetSummary {
+    std::size_t files = 0;
+    std::uintmax_t bytes = 0;  ///< recordings only
+    std::size_t clipped_files = 0;
+};
+
+/// Synthesizes and writes every planned recording into `folder` (created if
+/// missing), then manifest.csv (header: file,machine,role,label,kind,rpm,vanes,
+/// fs_hz,duration_s,full_scale_g,seed) and truth.csv (the fault parameters).
+/// `progress(done, total)` is called after each file; clipping warnings go to `warn`.
+SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
+                     const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn);
+
+}  // namespace cavitas::synth
