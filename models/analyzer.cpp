@@ -343,7 +343,24 @@ RecordingAnalysis RecordingAnalyzer::finish() {
         }
     }
 
-    r.kurtogram_band = m.kurtogram.best_mean();
+    // Most impulsive band among those centred inside the usable HF band (the
+    // kurtogram's own search runs to Nyquist, above the anti-alias margin).
+    {
+        dsp::KurtogramBand best;
+        const auto& k = m.kurtogram;
+        for (std::size_t row = 0; row < k.rows(); ++row)
+            for (std::size_t band = 0; band < k.row_bands(row); ++band) {
+                const double fc = k.center_hz(row, band);
+                if (fc < m.setup.hf.low_hz || fc > m.setup.hf.high_hz) continue;
+                if (k.mean(row, band) > best.kurtosis || best.bandwidth_hz == 0.0) {
+                    best.kurtosis = k.mean(row, band);
+                    best.level = k.row_level(row);
+                    best.center_hz = fc;
+                    best.bandwidth_hz = k.row_bandwidth_hz(row);
+                }
+            }
+        r.kurtogram_band = best;
+    }
     set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
     return r;
 }

@@ -256,7 +256,21 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
             }
         };
         if (a.vanes > 0) {
-            check(rec(RI::ses_bpf_prominence_db), "BPF", blade_pass_hz(a.rpm, a.vanes));
+            const double bpf = blade_pass_hz(a.rpm, a.vanes);
+            check(rec(RI::ses_bpf_prominence_db), "BPF", bpf);
+            // Sparse collapses make a noisy envelope spectrum whose floor hides the
+            // line; the depth of modulation (line / mean squared envelope) still
+            // shows it. Count it when the depth is well over the baseline's and the
+            // line still stands a little over its floor.
+            const Comparison& depth = rec(RI::modulation_bpf);
+            const Comparison& prom = rec(RI::ses_bpf_prominence_db);
+            if (!modulated && depth.z >= c.z_alert && depth.value >= 2.0 * depth.baseline_median &&
+                prom.value >= c.weak_line_prominence_db && !explained_by_bearing(bpf)) {
+                modulated = true;
+                modulation_text = fmt("HF modulation depth at BPF %.1f Hz %.2f vs baseline %.2f (z = %.1f; envelope line "
+                                      "%.1f dB over its floor)",
+                                      bpf, depth.value, depth.baseline_median, depth.z, prom.value);
+            }
             check(rec(RI::ses_2bpf_prominence_db), "2xBPF", 2.0 * blade_pass_hz(a.rpm, a.vanes));
         }
         check(rec(RI::ses_1x_prominence_db), "1x", fr);
@@ -282,6 +296,12 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
     if (impulsive_rate)
         f.evidence.push_back(fmt("HF impulse rate %.0f /s vs baseline %.0f /s", rate.value, rate.baseline_median));
     if (modulated) f.evidence.push_back(modulation_text);
+    if (impulsive && a.kurtogram_band.bandwidth_hz > 0.0) {
+        const Comparison& k = rec(RI::kurtogram_max);
+        f.evidence.push_back(fmt("most impulsive band (fast kurtogram) %s-%s kHz, kurtosis %.1f vs baseline %.1f",
+                                 khz(a.kurtogram_band.low_hz()).c_str(), khz(a.kurtogram_band.high_hz()).c_str(), k.value,
+                                 k.baseline_median));
+    }
 
     const bool mains = a.mains_hz > 0.0;
     if (mains)

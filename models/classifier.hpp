@@ -38,6 +38,9 @@ struct ClassifierConfig {
     /// the local floor (twice the floor amplitude) and 3 dB over the baseline's line.
     double line_prominence_db = 6.0;
     double line_rise_db = 3.0;
+    /// A weaker line (3 dB over its floor) counts when the modulation depth at
+    /// BPF is at least twice the baseline's and z >= 3.
+    double weak_line_prominence_db = 3.0;
     /// LF rise that is reported as flow turbulence when HF has not risen.
     double lf_alert_db = 3.0;
     /// Speed change beyond which comparisons are not like-for-like.

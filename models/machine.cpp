@@ -32,9 +32,13 @@ public:
         const double pos = f_hz / bin_hz_;
         const long c = static_cast<long>(std::lround(pos));
         if (c < 2 || c + 2 > last) return 0.0;
-        // Peak of the two bins nearest the frequency (Hann leakage spreads a line over 2 bins).
-        const double peak = std::max({psd_[static_cast<std::size_t>(c)], psd_[static_cast<std::size_t>(c - 1)],
-                                      psd_[static_cast<std::size_t>(c + 1)]});
+        // Level at the exact frequency, interpolated between its two bins: a
+        // candidate speed whose harmonics fall between lines scores lower than
+        // one whose harmonics sit on them (a max over neighbouring bins would
+        // not tell a 2 % speed error from none at the fundamental).
+        const auto k0 = static_cast<std::size_t>(std::floor(pos));
+        const double frac = pos - static_cast<double>(k0);
+        const double peak = psd_[k0] * (1.0 - frac) + psd_[k0 + 1] * frac;
         const long w = std::max(8L, static_cast<long>(std::lround(0.08 * pos)));
         tmp_.clear();
         for (long k = std::max(1L, c - w); k <= std::min(last, c + w); ++k)
@@ -59,14 +63,14 @@ std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double 
     if (psd.size() < 16 || !(bin_hz > 0.0) || !(rpm_low > 0.0) || !(rpm_high > rpm_low)) return std::nullopt;
     Prominence prom(psd, bin_hz);
     const double nyq = bin_hz * static_cast<double>(psd.size() - 1);
-    // Step so that the 5th harmonic moves by a quarter bin per step.
+    // Step so that the 8th harmonic moves by less than half a bin per step.
     const double step_hz = bin_hz / 20.0;
     SpeedEstimate best;
     bool found = false;
     for (double f = rpm_low / 60.0; f <= rpm_high / 60.0; f += step_hz) {
         double sum = 0.0;
         int used = 0;
-        for (int h = 1; h <= 5; ++h) {
+        for (int h = 1; h <= 8; ++h) {
             const double fh = f * h;
             if (fh >= nyq * 0.9) break;
             // Only positive prominences count: a missing harmonic should not punish a speed.
@@ -91,7 +95,7 @@ std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double 
     // (resolution bin/(2k) at harmonic k).
     int top = 1;
     const double f0 = best.rpm / 60.0;
-    for (int h = 5; h >= 1; --h)
+    for (int h = 8; h >= 1; --h)
         if (f0 * h < nyq * 0.9 && prom.at(f0 * h) > 6.0) {
             top = h;
             break;

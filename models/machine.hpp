@@ -45,7 +45,7 @@ struct SpeedEstimate {
 };
 
 /// Estimate the shaft speed from a one-sided PSD: the speed in
-/// [rpm_low, rpm_high] whose harmonics 1x..5x (and the blade pass when vanes > 0)
+/// [rpm_low, rpm_high] whose harmonics 1x..8x (and the blade pass when vanes > 0)
 /// stand highest above the local spectral floor (a harmonic-sum search in the
 /// spirit of the spectral methods compared by Gardonyi & Samu, J. Vibroengineering
 /// 21(3) (2019) 538-555). Returns nullopt when no harmonic stands out (score < 3 dB).

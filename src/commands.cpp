@@ -156,7 +156,11 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
         << "  HF band " << b.setup.hf.low_hz << "-" << b.setup.hf.high_hz << " Hz, LF band " << b.setup.lf.low_hz << "-"
         << b.setup.lf.high_hz << " Hz\n";
     if (b.rpm > 0.0)
-        out << "  shaft speed " << b.rpm << " rpm" << (b.rpm_estimated ? " (estimated from the spectrum)" : "") << "\n";
+        out << "  shaft speed " << b.rpm << " rpm"
+            << (b.rpm_estimated ? " (estimated from the spectrum without a reference: a harmonic-series search can lock "
+                                  "on twice or half the speed; give --rpm from a tachometer or the nameplate to be sure)"
+                                : "")
+            << "\n";
     else
         out << "  shaft speed unknown: give --rpm so that envelope lines can be checked\n";
     if (b.vanes > 0) out << "  " << b.vanes << " vanes, BPF " << models::blade_pass_hz(b.rpm, b.vanes) << " Hz\n";
