@@ -1,0 +1,92 @@
+#include <catch2/catch.hpp>
+
+#include <sndfile.h>
+#include <unistd.h>
+
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <vector>
+
+#include "src/errors.hpp"
+#include "src/recording.hpp"
+
+namespace fs = std::filesystem;
+using namespace cavitas::app;
+
+namespace {
+
+fs::path tmp(const std::string& name) {
+    const fs::path d = fs::temp_directory_path() / ("cavitas-rec-test-" + std::to_string(::getpid()));
+    fs::create_directories(d);
+    return d / name;
+}
+
+// Channel c of frame i holds (c + 1) * 0.1 * sin(i / 10).
+fs::path write(const std::string& name, int format, int channels, std::size_t frames) {
+    const fs::path p = tmp(name);
+    SF_INFO info{};
+    info.samplerate = 12800;
+    info.channels = channels;
+    info.format = format;
+    SNDFILE* f = sf_open(p.string().c_str(), SFM_WRITE, &info);
+    REQUIRE(f != nullptr);
+    std::vector<float> x(frames * static_cast<std::size_t>(channels));
+    for (std::size_t i = 0; i < frames; ++i)
+        for (int c = 0; c < channels; ++c)
+            x[i * static_cast<std::size_t>(channels) + static_cast<std::size_t>(c)] =
+                static_cast<float>((c + 1) * 0.1 * std::sin(static_cast<double>(i) / 10.0));
+    REQUIRE(sf_writef_float(f, x.data(), static_cast<sf_count_t>(frames)) == static_cast<sf_count_t>(frames));
+    sf_close(f);
+    return p;
+}
+
+std::vector<float> read_all(AudioSource& s) {
+    std::vector<float> all, block(777);
+    for (std::size_t n; (n = s.read(block)) > 0;) all.insert(all.end(), block.begin(), block.begin() + static_cast<long>(n));
+    return all;
+}
+
+}  // namespace
+
+TEST_CASE("The chosen channel of a multichannel file is read in calibrated units", "[src]") {
+    const auto p = write("three.wav", SF_FORMAT_WAV | SF_FORMAT_PCM_24, 3, 20000);
+    SndfileSource s(p.string(), 2, Calibration{50.0, "g"});
+    CHECK(s.info().channels == 3);
+    CHECK(s.info().fs_hz == 12800.0);
+    CHECK(s.info().frames == 20000);
+    CHECK(s.info().format == "WAV PCM 24-bit");
+    const auto x = read_all(s);
+    REQUIRE(x.size() == 20000);
+    // 24-bit step is 2^-23 of full scale; times 50 g.
+    for (std::size_t i = 0; i < x.size(); i += 997)
+        CHECK_THAT(x[i], Catch::Matchers::WithinAbs(50.0 * 0.3 * std::sin(static_cast<double>(i) / 10.0), 50.0 * 2e-7));
+}
+
+TEST_CASE("FLAC and float WAV files are read like PCM WAV", "[src]") {
+    for (int fmt : {SF_FORMAT_FLAC | SF_FORMAT_PCM_16, SF_FORMAT_WAV | SF_FORMAT_FLOAT}) {
+        const auto p = write(fmt == (SF_FORMAT_WAV | SF_FORMAT_FLOAT) ? "f.wav" : "f.flac", fmt, 1, 5000);
+        SndfileSource s(p.string(), 0, Calibration{});
+        const auto x = read_all(s);
+        REQUIRE(x.size() == 5000);
+        CHECK_THAT(x[123], Catch::Matchers::WithinAbs(0.1 * std::sin(12.3), 1.0 / 32768.0));
+        CHECK(s.info().is_float == (fmt == (SF_FORMAT_WAV | SF_FORMAT_FLOAT)));
+    }
+}
+
+TEST_CASE("Unreadable inputs raise an input error that names the file", "[src]") {
+    CHECK_THROWS_WITH(SndfileSource(tmp("nope.wav").string(), 0, {}), Catch::Contains("nope.wav: no such file"));
+    CHECK_THROWS_WITH(SndfileSource(tmp("").string(), 0, {}), Catch::Contains("is a directory"));
+    const auto junk = tmp("junk.wav");
+    std::ofstream(junk) << "RIFF\x10\0\0\0WAVEjunkjunkjunk";
+    CHECK_THROWS_AS(SndfileSource(junk.string(), 0, {}), InputError);
+    const auto p = write("two.wav", SF_FORMAT_WAV | SF_FORMAT_PCM_16, 2, 100);
+    CHECK_THROWS_WITH(SndfileSource(p.string(), 5, {}), Catch::Contains("numbered 0..1"));
+}
+
+TEST_CASE("SHA-256 of a file matches the published test vector", "[src]") {
+    // FIPS 180-2, appendix B.1: SHA-256("abc").
+    const auto p = tmp("abc.txt");
+    std::ofstream(p, std::ios::binary) << "abc";
+    CHECK(sha256_file(p.string()) == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+}
