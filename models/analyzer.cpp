@@ -238,8 +238,8 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     r.vanes = m.machine.vanes;
     const std::size_t segs = m.series.segments();
     if (segs == 0)
-        throw std::runtime_error("record of " + std::to_string(r.duration_s) + " s is shorter than one " +
-                                 std::to_string(m.setup.segment_s) + " s analysis segment");
+        throw std::runtime_error("record of " + std::to_string(r.duration_s).substr(0, 5) + " s is shorter than one " +
+                                 std::to_string(m.setup.segment_s).substr(0, 4) + " s analysis segment");
     r.series = m.series;
 
     // Speed: given, or searched in the fine PSD near the hint.

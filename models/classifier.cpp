@@ -173,6 +173,9 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
                                 "record again", 100.0 * clipped));
     if (seg(SI::overall_rms).value <= 0.0)
         f.reasons.push_back("the signal is flat (zero rms): check the sensor, cable and input channel and record again");
+    if (signal_unit != b.unit)
+        f.reasons.push_back("recording calibrated in " + signal_unit + " but the baseline is in " + b.unit +
+                            ": use the baseline's --full-scale calibration");
     if (a.setup.fs_hz != b.setup.fs_hz)
         f.reasons.push_back(fmt("sample rate %.0f Hz differs from the baseline's %.0f Hz: record again at the baseline's rate",
                                 a.setup.fs_hz, b.setup.fs_hz));

@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 #include <ctime>
 #include <filesystem>
 #include <iostream>
@@ -59,6 +60,14 @@ models::RecordingAnalysis analyze_source(AudioSource& source, const models::Anal
     }
 }
 
+namespace {
+std::string seconds_text(double s) {
+    char b[32];
+    std::snprintf(b, sizeof b, "%.3g s", s);
+    return b;
+}
+}  // namespace
+
 AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
                                const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
                                const models::MachineContext& machine, const Progress& progress) {
@@ -79,8 +88,8 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
         throw InputError(path + ": " + e.what());
     }
     if (r.info.duration_s() < use.segment_s)
-        throw InputError(path + ": record of " + std::to_string(r.info.duration_s()) + " s is shorter than one " +
-                         std::to_string(use.segment_s) + " s analysis segment");
+        throw InputError(path + ": record of " + seconds_text(r.info.duration_s()) + " is shorter than one " +
+                         seconds_text(use.segment_s) + " analysis segment");
     r.sha256 = sha256_file(path);
     r.analysis = analyze_source(source, use, machine, progress);
     return r;
@@ -182,12 +191,6 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     machine.rpm_hint = r.baseline.rpm;
     r.recording = analyze_file(o.recording, o.channel, cal, r.baseline.setup, 0.0, machine, progress);
     r.finding = models::classify(r.recording.analysis, r.baseline, cal.unit);
-    if (cal.unit != r.baseline.unit) {
-        r.finding.verdict = models::Verdict::indeterminate;
-        r.finding.confidence = 0.0;
-        r.finding.reasons.push_back("recording calibrated in " + cal.unit + " but the baseline is in " + r.baseline.unit +
-                                    ": use the baseline's --full-scale calibration");
-    }
     if (o.channel != r.baseline.channel)
         r.finding.warnings.push_back("channel " + std::to_string(o.channel) + " analysed, baseline learned on channel " +
                                      std::to_string(r.baseline.channel));

@@ -46,6 +46,7 @@ RecordingAnalysis make(std::size_t segments = 10) {
 Baseline base() {
     Baseline b = learn_baseline({make(), make(), make()});
     b.sources.resize(3);
+    b.unit = "g";
     return b;
 }
 
@@ -122,7 +123,7 @@ TEST_CASE("A rise confined to the low band is flow turbulence, not cavitation", 
     CHECK(mentions(f.other_findings, "turbulence"));
 }
 
-TEST_CASE("Overloaded, NaN-bearing or rate-mismatched recordings are indeterminate with a reason", "[models]") {
+TEST_CASE("Overloaded, NaN-bearing, unit- or rate-mismatched recordings are indeterminate with a reason", "[models]") {
     auto a = make();
     a.quality.at_full_scale = a.quality.samples / 10;
     Finding f = classify(a, base(), "g");
@@ -132,6 +133,10 @@ TEST_CASE("Overloaded, NaN-bearing or rate-mismatched recordings are indetermina
     auto b = make();
     b.quality.non_finite = 3;
     CHECK(classify(b, base(), "g").verdict == Verdict::indeterminate);
+
+    f = classify(make(), base(), "m/s2");
+    CHECK(f.verdict == Verdict::indeterminate);
+    CHECK(mentions(f.reasons, "calibrated in m/s2"));
 
     auto c = make();
     c.setup.fs_hz = 51200;
