@@ -239,7 +239,8 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
     // on an integer order explains that line: it is not blade-pass modulation.
     auto explained_by_bearing = [&](double hz) {
         if (!f.bearing_like) return false;
-        const double tol = std::max(3.0 / a.setup.segment_s, 0.015 * hz);
+        // Slip smears bearing lines by 1-2 % (Randall & Antoni 2011), more at harmonics.
+        const double tol = std::max(3.0 / a.setup.segment_s, 0.03 * hz);
         for (int k = 1; k <= 6; ++k)
             if (std::abs(k * b_hz - hz) <= tol) return true;
         return false;

@@ -101,7 +101,11 @@ LineMeasure measure_line(std::span<const double> spectrum, double bin_hz, double
     auto mid = scratch.begin() + static_cast<std::ptrdiff_t>(cnt / 2);
     std::nth_element(scratch.begin(), mid, scratch.begin() + static_cast<std::ptrdiff_t>(cnt));
     m.floor = *mid;
-    if (m.floor > 0.0 && m.amplitude > 0.0) m.prominence_db = 20.0 * std::log10(m.amplitude / m.floor);
+    // A maximum at the edge of the search window that keeps rising outside it
+    // is the flank of a stronger line nearby, not a line here.
+    const bool flank = (best > 1 && spectrum[static_cast<std::size_t>(best - 1)] > m.amplitude) ||
+                       (best < last && spectrum[static_cast<std::size_t>(best + 1)] > m.amplitude);
+    if (m.floor > 0.0 && m.amplitude > 0.0 && !flank) m.prominence_db = 20.0 * std::log10(m.amplitude / m.floor);
     return m;
 }
 

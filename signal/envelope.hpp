@@ -71,7 +71,8 @@ struct LineMeasure {
     double found_hz = 0.0;        ///< bin of the maximum within the search window
     double amplitude = 0.0;       ///< spectrum value at found_hz
     double floor = 0.0;           ///< median of the spectrum around the line, line excluded
-    double prominence_db = 0.0;   ///< 20 log10(amplitude / floor); 0 when the floor is 0
+    double prominence_db = 0.0;   ///< 20 log10(amplitude / floor); 0 when the floor is 0 or the
+                                  ///< maximum is the flank of a stronger line just outside the window
 };
 
 /// Look for a line near target_hz (maximum within +-search_hz) in a one-sided

@@ -7,7 +7,9 @@
 // The data are synthetic (tools/synth): they test the rules against the physics
 // we modelled, not against a real machine; the real-data tests do that.
 //
-//   cavitas_eval EVALSET_DIR     (made by: cavitas-synth eval EVALSET_DIR)
+//   cavitas_eval EVALSET_DIR [--estimate-speed]   (made by: cavitas-synth eval EVALSET_DIR)
+// With --estimate-speed the test recordings are judged without their speed, as
+// `analyze` without --rpm does: the speed is searched near the baseline's.
 #include <array>
 #include <cstdio>
 #include <fstream>
@@ -68,8 +70,9 @@ int index_of(const std::string& label) {
 }  // namespace
 
 int main(int argc, char** argv) {
-    if (argc != 2) {
-        std::cerr << "usage: cavitas_eval EVALSET_DIR\n";
+    const bool estimate_speed = argc == 3 && std::string(argv[2]) == "--estimate-speed";
+    if (argc != 2 && !estimate_speed) {
+        std::cerr << "usage: cavitas_eval EVALSET_DIR [--estimate-speed]\n";
         return 2;
     }
     const std::string dir = argv[1];
@@ -107,7 +110,7 @@ int main(int argc, char** argv) {
             if (it == baselines.end()) throw std::runtime_error("no baseline recordings for " + r.machine);
             const models::Baseline& b = it->second;
             models::MachineContext m;
-            m.rpm = r.rpm;
+            if (!estimate_speed) m.rpm = r.rpm;
             m.vanes = b.vanes;
             m.rpm_hint = b.rpm;
             app::Calibration cal{b.full_scale, "g"};

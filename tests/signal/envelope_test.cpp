@@ -175,3 +175,17 @@ TEST_CASE("A line off target but within the search window is found where it is",
     // (tolerance as in the previous test).
     CHECK_THAT(m.prominence_db, WithinAbs(40.0, 1e-9));
 }
+
+TEST_CASE("measure_line does not take the flank of a stronger line outside its window for a line", "[signal]") {
+    // Flat floor 0.01 with a smeared line centred at bin 104 (values fall off to
+    // both sides); searching bin 100 +-2 finds only the rising flank at 102.
+    std::vector<double> spec(400, 0.01);
+    const double shape[] = {0.05, 0.2, 0.6, 1.0, 0.6, 0.2, 0.05};
+    for (int i = 0; i < 7; ++i) spec[static_cast<std::size_t>(101 + i)] = shape[i];
+    const auto m = cavitas::dsp::measure_line(spec, 1.0, 100.0, 2.0, 30.0);
+    CHECK(m.found_hz == 102.0);  // computed from the definition: max of bins 98..102
+    CHECK(m.prominence_db == 0.0);
+    const auto on = cavitas::dsp::measure_line(spec, 1.0, 104.0, 2.0, 30.0);
+    CHECK(on.found_hz == 104.0);
+    CHECK_THAT(on.prominence_db, Catch::Matchers::WithinAbs(40.0, 1e-9));  // 20 log10(1 / 0.01)
+}
