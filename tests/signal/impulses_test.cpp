@@ -8,6 +8,8 @@
 // the Rayleigh law).
 #include <catch2/catch.hpp>
 
+#include "tests/support/noise.hpp"
+
 #include <cmath>
 #include <cstddef>
 #include <cstdint>
@@ -28,26 +30,13 @@ using Catch::Matchers::WithinRel;
 
 namespace {
 
+using cavitas::testing::gaussian_noise;
+using cavitas::testing::to_float;
+
 constexpr double kTwoPi = 2.0 * std::numbers::pi;
 constexpr double kFs = 25600.0;
 constexpr std::size_t kN = 25600;
 const EnvelopeConfig kBand{4000.0, 10000.0};
-
-// Standard normal values by the Box-Muller transform on a fixed-seed mt19937_64.
-std::vector<double> gaussian_noise(std::size_t n, std::uint64_t seed, double sigma) {
-    std::mt19937_64 gen(seed);
-    auto uniform = [&gen] { return (static_cast<double>(gen() >> 11) + 0.5) * 0x1.0p-53; };  // in (0, 1)
-    std::vector<double> v(n);
-    for (std::size_t i = 0; i < n; i += 2) {
-        const double r = sigma * std::sqrt(-2.0 * std::log(uniform()));
-        const double a = kTwoPi * uniform();
-        v[i] = r * std::cos(a);
-        if (i + 1 < n) v[i + 1] = r * std::sin(a);
-    }
-    return v;
-}
-
-std::vector<float> to_float(const std::vector<double>& v) { return {v.begin(), v.end()}; }
 
 double rms(std::span<const double> v) {
     double s = 0.0;

@@ -6,6 +6,8 @@
 // independent frames of Gaussian noise.
 #include <catch2/catch.hpp>
 
+#include "tests/support/noise.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstddef>
@@ -25,28 +27,11 @@ using Catch::Matchers::WithinRel;
 
 namespace {
 
+using cavitas::testing::gaussian_noise;
+using cavitas::testing::to_float;
+inline std::vector<double> gaussian(std::size_t n, std::uint64_t seed) { return gaussian_noise(n, seed); }
+
 constexpr double kTwoPi = 2.0 * std::numbers::pi;
-
-// Standard normal values by Box-Muller on a fixed-seed mt19937_64 (the standard
-// normal_distribution's algorithm is implementation-defined).
-std::vector<double> gaussian(std::size_t n, std::uint64_t seed) {
-    std::mt19937_64 gen(seed);
-    auto uniform = [&gen] { return (static_cast<double>(gen() >> 11) + 0.5) * 0x1.0p-53; };  // in (0, 1)
-    std::vector<double> v(n);
-    for (std::size_t i = 0; i < n; i += 2) {
-        const double r = std::sqrt(-2.0 * std::log(uniform()));
-        const double a = kTwoPi * uniform();
-        v[i] = r * std::cos(a);
-        if (i + 1 < n) v[i + 1] = r * std::sin(a);
-    }
-    return v;
-}
-
-std::vector<float> to_float(const std::vector<double>& x) {
-    std::vector<float> f(x.size());
-    for (std::size_t i = 0; i < x.size(); ++i) f[i] = static_cast<float>(x[i]);
-    return f;
-}
 
 // Samples for exactly `frames` frames of window w with hop w/4.
 std::size_t samples_for(std::size_t window, std::size_t frames) { return window + (frames - 1) * (window / 4); }

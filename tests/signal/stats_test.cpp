@@ -4,6 +4,8 @@
 // crest = peak / rms, kurtosis = m4 / m2^2 with population (1/N) moments.
 #include <catch2/catch.hpp>
 
+#include "tests/support/noise.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <cstddef>
@@ -25,23 +27,10 @@ using Catch::Matchers::WithinRel;
 
 namespace {
 
-constexpr double kTwoPi = 2.0 * std::numbers::pi;
+using cavitas::testing::gaussian_noise;
+using cavitas::testing::to_float;
 
-// Standard normal values by the Box-Muller transform on a fixed-seed
-// mt19937_64 (independent of the standard library's normal_distribution,
-// whose algorithm is implementation-defined).
-std::vector<double> gaussian_noise(std::size_t n, std::uint64_t seed) {
-    std::mt19937_64 gen(seed);
-    auto uniform = [&gen] { return (static_cast<double>(gen() >> 11) + 0.5) * 0x1.0p-53; };  // in (0, 1)
-    std::vector<double> v(n);
-    for (std::size_t i = 0; i < n; i += 2) {
-        const double r = std::sqrt(-2.0 * std::log(uniform()));
-        const double a = kTwoPi * uniform();
-        v[i] = r * std::cos(a);
-        if (i + 1 < n) v[i + 1] = r * std::sin(a);
-    }
-    return v;
-}
+constexpr double kTwoPi = 2.0 * std::numbers::pi;
 
 // A sin(2 pi t / period) over a whole number of periods.
 std::vector<double> sine(std::size_t periods, std::size_t period, double amplitude) {
