@@ -70,7 +70,11 @@ SndfileSource::SndfileSource(const std::string& path, int channel, const Calibra
         file_ = nullptr;
         throw InputError(path + ": " + why);
     };
-    if (sfi.samplerate <= 0) fail("sample rate " + std::to_string(sfi.samplerate) + " Hz in the header is not valid");
+    // 100 Hz .. 5 MHz covers every vibration, hydrophone and acoustic-emission
+    // collector we know of; outside it the header is damaged (and a 1 s segment
+    // at 10^9 Hz would need gigabytes).
+    if (sfi.samplerate < 100 || sfi.samplerate > 5000000)
+        fail("sample rate " + std::to_string(sfi.samplerate) + " Hz in the header is outside 100 Hz .. 5 MHz");
     if (sfi.channels <= 0 || sfi.channels > 1024)
         fail(std::to_string(sfi.channels) + " channels in the header is not valid (1..1024 accepted)");
     if (sfi.frames <= 0) fail("holds no samples");
