@@ -1,6 +1,7 @@
 #include "src/baseline_io.hpp"
 
 #include <cmath>
+#include <filesystem>
 #include <fstream>
 #include <sstream>
 
@@ -139,6 +140,9 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
 }
 
 Baseline read_baseline_file(const std::string& path) {
+    std::error_code ec;
+    if (!std::filesystem::exists(path, ec)) throw InputError(path + ": no such baseline file");
+    if (std::filesystem::is_directory(path, ec)) throw InputError(path + ": is a directory, not a baseline file");
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError(path + ": cannot open baseline");
     std::stringstream ss;

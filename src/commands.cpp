@@ -113,6 +113,11 @@ Progress stderr_progress(const std::string& path, std::ostream& err) {
 void refuse_overwriting_input(const std::string& out, const std::vector<std::string>& inputs) {
     namespace fs = std::filesystem;
     std::error_code ec;
+    // Fail before the analysis, not after it, when the output cannot be written.
+    fs::path dir = fs::path(out).parent_path();
+    if (dir.empty()) dir = ".";
+    if (!fs::is_directory(dir, ec)) throw InputError(out + ": cannot write: folder " + dir.string() + " does not exist");
+    if (fs::is_directory(out, ec)) throw InputError(out + ": cannot write: it is a directory");
     for (const auto& in : inputs)
         if (fs::exists(out, ec) && fs::equivalent(out, in, ec))
             throw InputError(out + ": is one of the input files; refusing to overwrite it (choose another output path)");

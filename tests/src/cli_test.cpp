@@ -200,3 +200,14 @@ TEST_CASE("A missing channel is an input error naming the channels there are", "
     CHECK(r.status == 1);
     CHECK(r.err.find("1 channel") != std::string::npos);
 }
+
+TEST_CASE("A directory as baseline or an unwritable output folder fails before any analysis", "[cli]") {
+    const fs::path rec = make_wav("dir-case.wav", 51);
+    Run r = run("analyze --baseline " + q(workdir()) + " " + q(rec));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("is a directory") != std::string::npos);
+    r = run("baseline -o " + q(workdir() / "no-such-folder" / "b.json") + " " + q(rec));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("does not exist") != std::string::npos);
+    CHECK_FALSE(fs::exists(workdir() / "no-such-folder"));
+}
