@@ -49,6 +49,39 @@ std::string describe_format(int format) {
 
 }  // namespace
 
+struct SndfileSource::Memory {
+    std::span<const std::byte> bytes;
+    sf_count_t pos = 0;
+};
+
+namespace {
+
+sf_count_t mem_length(void* user) {
+    return static_cast<sf_count_t>(static_cast<SndfileSource::Memory*>(user)->bytes.size());
+}
+sf_count_t mem_seek(sf_count_t offset, int whence, void* user) {
+    auto* m = static_cast<SndfileSource::Memory*>(user);
+    const auto size = static_cast<sf_count_t>(m->bytes.size());
+    sf_count_t to = offset;
+    if (whence == SEEK_CUR) to = m->pos + offset;
+    if (whence == SEEK_END) to = size + offset;
+    if (to < 0 || to > size) return -1;
+    m->pos = to;
+    return m->pos;
+}
+sf_count_t mem_read(void* ptr, sf_count_t count, void* user) {
+    auto* m = static_cast<SndfileSource::Memory*>(user);
+    const auto size = static_cast<sf_count_t>(m->bytes.size());
+    const sf_count_t n = std::max<sf_count_t>(0, std::min(count, size - m->pos));
+    if (n > 0) std::memcpy(ptr, m->bytes.data() + m->pos, static_cast<std::size_t>(n));
+    m->pos += n;
+    return n;
+}
+sf_count_t mem_write(const void*, sf_count_t, void*) { return 0; }
+sf_count_t mem_tell(void* user) { return static_cast<SndfileSource::Memory*>(user)->pos; }
+
+}  // namespace
+
 SndfileSource::SndfileSource(const std::string& path, int channel, const Calibration& calibration) {
     info_.path = path;
     info_.calibration = calibration;
@@ -56,6 +89,8 @@ SndfileSource::SndfileSource(const std::string& path, int channel, const Calibra
     const auto st = std::filesystem::status(path, ec);
     if (ec || !std::filesystem::exists(st)) throw InputError(path + ": no such file");
     if (std::filesystem::is_directory(st)) throw InputError(path + ": is a directory, not a recording");
+    // A FIFO, socket or device would block or never end: only regular files are recordings.
+    if (!std::filesystem::is_regular_file(st)) throw InputError(path + ": is not a regular file");
     {
         std::FILE* probe = std::fopen(path.c_str(), "rb");
         if (!probe) throw InputError(path + ": cannot open: " + std::strerror(errno));
@@ -64,7 +99,26 @@ SndfileSource::SndfileSource(const std::string& path, int channel, const Calibra
     SF_INFO sfi{};
     SNDFILE* f = sf_open(path.c_str(), SFM_READ, &sfi);
     if (!f) throw InputError(path + ": not a readable recording (" + sf_strerror(nullptr) + ")");
+    adopt(f, sfi, channel);
+}
+
+SndfileSource::SndfileSource(std::span<const std::byte> bytes, const std::string& name, int channel,
+                             const Calibration& calibration)
+    : memory_(std::make_unique<Memory>()) {
+    info_.path = name;
+    info_.calibration = calibration;
+    memory_->bytes = bytes;
+    static SF_VIRTUAL_IO io{mem_length, mem_seek, mem_read, mem_write, mem_tell};
+    SF_INFO sfi{};
+    SNDFILE* f = sf_open_virtual(&io, SFM_READ, &sfi, memory_.get());
+    if (!f) throw InputError(name + ": not a readable recording (" + sf_strerror(nullptr) + ")");
+    adopt(f, sfi, channel);
+}
+
+void SndfileSource::adopt(void* handle, const SF_INFO& sfi, int channel) {
+    auto* f = static_cast<SNDFILE*>(handle);
     file_ = f;
+    const std::string& path = info_.path;
     auto fail = [&](const std::string& why) {
         sf_close(f);
         file_ = nullptr;

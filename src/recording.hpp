@@ -7,11 +7,14 @@
 #pragma once
 
 #include <cstddef>
+#include <memory>
 #include <span>
 #include <string>
 #include <vector>
 
 #include "src/units.hpp"
+
+struct SF_INFO;  // libsndfile's, kept out of this header
 
 namespace cavitas::app {
 
@@ -42,14 +45,22 @@ class SndfileSource final : public AudioSource {
 public:
     /// Opens and validates; throws InputError naming the file and the problem.
     SndfileSource(const std::string& path, int channel, const Calibration& calibration);
+    /// The same from bytes in memory (for fuzzing and tests); `name` stands for
+    /// the file in messages. The bytes must outlive the source.
+    SndfileSource(std::span<const std::byte> bytes, const std::string& name, int channel,
+                  const Calibration& calibration);
     ~SndfileSource() override;
     SndfileSource(const SndfileSource&) = delete;
     SndfileSource& operator=(const SndfileSource&) = delete;
     const RecordingInfo& info() const override { return info_; }
     std::size_t read(std::span<float> out) override;
 
+    struct Memory;
+
 private:
+    void adopt(void* handle, const ::SF_INFO& info, int channel);
     void* file_ = nullptr;  // SNDFILE*
+    std::unique_ptr<Memory> memory_;
     RecordingInfo info_;
     std::vector<float> interleaved_;
     std::size_t read_frames_ = 0;
