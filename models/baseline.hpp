@@ -38,6 +38,7 @@ struct Baseline {
     std::string cavitas_version;
     std::string created_utc;
     AnalysisSetup setup;
+    std::string machine;  ///< machine and point tag given by the user (empty = not stated)
     int channel = 0;
     double rpm = 0.0;     ///< median speed of the recordings (0 = unknown)
     bool rpm_estimated = false;

@@ -56,7 +56,8 @@ json baseline_to_json(const Baseline& b) {
         {"cavitas_version", b.cavitas_version},
         {"created_utc", b.created_utc},
         {"context",
-         {{"sample_rate_hz", b.setup.fs_hz},
+         {{"machine", b.machine},
+          {"sample_rate_hz", b.setup.fs_hz},
           {"channel", b.channel},
           {"rpm", b.rpm},
           {"rpm_estimated", b.rpm_estimated},
@@ -97,6 +98,10 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
     const json& c = j["context"];
     const json& s = j["setup"];
     const std::string wc = origin + " (context)", ws = origin + " (setup)";
+    if (c.contains("machine")) {
+        if (!c["machine"].is_string()) throw InputError(wc + ": 'machine' is not a string");
+        b.machine = c["machine"];
+    }
     b.setup.fs_hz = num(c, "sample_rate_hz", wc);
     b.channel = static_cast<int>(num(c, "channel", wc));
     b.rpm = num(c, "rpm", wc);

@@ -159,6 +159,7 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     models::Baseline b = models::learn_baseline(analyses);
     b.cavitas_version = kVersion;
     b.created_utc = utc_now();
+    b.machine = o.machine;
     b.channel = o.channel;
     b.unit = cal.unit;
     b.full_scale = cal.full_scale;
@@ -183,6 +184,9 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
 AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     AnalyzeResult r;
     r.baseline = read_baseline_file(o.baseline);
+    if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
+        throw InputError(o.baseline + ": baseline is for machine '" + r.baseline.machine + "', not '" + o.machine +
+                         "'; use that machine's baseline");
     Calibration cal;
     if (o.full_scale) {
         cal = parse_full_scale(*o.full_scale);

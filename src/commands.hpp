@@ -38,6 +38,7 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
                                const models::MachineContext& machine, const Progress& progress = {});
 
 struct BaselineOptions {
+    std::string machine;
     std::vector<std::string> recordings;
     std::string output;
     int channel = 0;
@@ -50,6 +51,7 @@ struct BaselineOptions {
 };
 
 struct AnalyzeOptions {
+    std::string machine;
     std::string baseline;
     std::string recording;
     std::optional<std::string> json_output;

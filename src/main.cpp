@@ -44,6 +44,8 @@ int main(int argc, char** argv) {
     base->add_option("recordings", bo.recordings, "Known-good recordings (WAV, FLAC, ... any libsndfile format)")
         ->required();
     base->add_option("-o,--output", bo.output, "Baseline file to write (JSON); written atomically")->required();
+    base->add_option("--machine", bo.machine,
+                     "Tag of the machine and measurement point (e.g. OW-P101-NDE-H), stored in the baseline");
     base->add_option("--rpm", bo.rpm, "Shaft speed during the recordings, rpm; without it the speed is estimated "
                                       "from the spectrum")
         ->check(CLI::Range(1.0, 100000.0));
@@ -69,6 +71,8 @@ int main(int argc, char** argv) {
         "every indicator beside its baseline, quality and the input's SHA-256) for a work order.");
     an->add_option("recording", ao.recording, "The recording to judge")->required();
     an->add_option("--baseline", ao.baseline, "Baseline file made by 'cavitas baseline'")->required();
+    an->add_option("--machine", ao.machine,
+                   "Tag of the machine and point recorded; refused when the baseline names another");
     an->add_option("--rpm", ao.rpm,
                    "Shaft speed during this recording, rpm (may differ from the baseline's by a few percent: "
                    "lines are compared in orders); without it the speed is estimated near the baseline's")

@@ -142,6 +142,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
          {{"path", baseline_path},
           {"schema", b.schema},
           {"created_utc", b.created_utc},
+          {"machine", b.machine},
           {"recordings", b.sources.size()},
           {"rpm", b.rpm}}},
     };
