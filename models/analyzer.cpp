@@ -108,13 +108,15 @@ struct RecordingAnalyzer::Impl {
     double mean_sq_env_sum = 0.0;
     SegmentSeries series;
     std::size_t samples = 0;
+    double full_scale;
 
-    Impl(const AnalysisSetup& s, const MachineContext& m, double full_scale, std::size_t expected)
+    Impl(const AnalysisSetup& s, const MachineContext& m, double fs_value, std::size_t expected)
         : setup(s),
           machine(m),
           n(s.segment_size()),
           segment(n),
-          quality(dsp::QualityConfig{full_scale, 0.999}),
+          quality(dsp::QualityConfig{fs_value, 0.999, 3,
+                                     std::max<std::size_t>(16, static_cast<std::size_t>(std::lround(kDropoutRunS * s.fs_hz)))}),
           seg_psd(dsp::WelchConfig{std::max<std::size_t>(64, std::min(pow2_round(s.fs_hz / 8.0), n / 2))}, s.fs_hz),
           seg_psd_out(seg_psd.bins()),
           fine_psd(dsp::WelchConfig{fine_size(s.fs_hz, expected)}, s.fs_hz),
@@ -123,7 +125,8 @@ struct RecordingAnalyzer::Impl {
           sk(dsp::SpectralKurtosisConfig{std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096)}, s.fs_hz),
           sk_out(sk.bins()),
           kurtogram(dsp::KurtogramConfig{kurtogram_levels_for(n), s.hf.low_hz}, s.fs_hz, n),
-          ses_power_sum(n / 2 + 1, 0.0) {
+          ses_power_sum(n / 2 + 1, 0.0),
+          full_scale(fs_value) {
         for (auto& v : series.values) v.reserve(1024);
     }
 
@@ -233,6 +236,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     RecordingAnalysis r;
     r.setup = m.setup;
     r.quality = m.quality.counts();
+    r.full_scale = m.full_scale;
     r.samples = m.samples;
     r.duration_s = static_cast<double>(m.samples) / m.setup.fs_hz;
     r.vanes = m.machine.vanes;
@@ -360,6 +364,32 @@ RecordingAnalysis RecordingAnalyzer::finish() {
                 }
             }
         r.kurtogram_band = best;
+    }
+
+    // Ski slope: a settling or faulty sensor or cable shows a steep rise at the
+    // very lowest frequencies (eng-tips thread 95214 on integrating accelerometer
+    // signals: overload and mounting problems also give a "ski slope"). Measured
+    // as the mean PSD in 1-4 Hz over the median PSD in 10-100 Hz (the median
+    // ignores shaft lines there). Needs bins finer than 1 Hz.
+    if (m.fine_psd.frames() > 0 && m.fine_psd.bin_hz() <= 1.0) {
+        const double bin = m.fine_psd.bin_hz();
+        double low = 0.0;
+        std::size_t nl = 0;
+        std::vector<double> ref;
+        for (std::size_t k = 1; k < fine.size(); ++k) {
+            const double f = static_cast<double>(k) * bin;
+            if (f >= 1.0 && f <= 4.0) {
+                low += fine[k];
+                ++nl;
+            } else if (f >= 10.0 && f <= 100.0) {
+                ref.push_back(fine[k]);
+            } else if (f > 100.0) {
+                break;
+            }
+        }
+        const double ref_med = median(ref);
+        if (nl > 0 && ref_med > 0.0 && low > 0.0)
+            set(RI::ski_slope_db, 10.0 * std::log10(low / static_cast<double>(nl) / ref_med));
     }
     set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
     return r;

@@ -46,6 +46,11 @@ constexpr double kHfFloorHz = 1000.0;
 /// 1-5 kHz (methods review: Kotb & Abdulaziz 2015 1-10 kHz; NUAA 2011 > 5 kHz).
 constexpr double kHfStartCapHz = 5000.0;
 
+/// A run of equal samples this long (5 ms) is a dropout: a live signal through
+/// a 16-bit or finer converter does not repeat a value for so long (common
+/// practice, no source).
+constexpr double kDropoutRunS = 0.005;
+
 /// Top of the low band: a rise confined below ~1 kHz is flow turbulence, not bubble collapse.
 constexpr double kLfTopHz = 1000.0;
 
@@ -89,6 +94,7 @@ struct RecordingAnalysis {
     std::size_t samples = 0;
     double duration_s = 0.0;
     double level_reference = 1.0;  ///< dB reference (1 signal unit)
+    double full_scale = 0.0;       ///< |x| of a full-scale sample in signal units (0 = unknown, float files)
 };
 
 class RecordingAnalyzer {

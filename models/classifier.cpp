@@ -152,8 +152,16 @@ bool find_bearing_like(const RecordingAnalysis& a, double& order_out, double& hz
 
 Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::string& signal_unit,
                  const ClassifierConfig& c) {
+    RecordingContext ctx;
+    ctx.unit = signal_unit;
+    ctx.channel = b.channel;
+    return classify(a, b, ctx, c);
+}
+
+Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingContext& context,
+                 const ClassifierConfig& c) {
     Finding f;
-    Ctx x{a, b, c, f, unit_key(signal_unit)};
+    Ctx x{a, b, c, f, unit_key(context.unit)};
     using SI = SegmentIndicator;
     using RI = RecordingIndicator;
     for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) f.comparisons.push_back(compare_segment(x, static_cast<SI>(i)));
@@ -163,37 +171,19 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
     auto rec = [&](RI i) -> const Comparison& { return f.comparisons[kSegmentIndicatorCount + static_cast<std::size_t>(i)]; };
 
     // --- Can the record be judged at all? ---
-    const auto& q = a.quality;
-    if (q.non_finite > 0)
-        f.reasons.push_back(fmt("%zu samples are not finite numbers (NaN or Inf): the file is damaged or was written by a faulty "
-                                "converter; export it again from the collector", q.non_finite));
-    const double clipped = q.samples ? static_cast<double>(q.at_full_scale) / static_cast<double>(q.samples) : 0.0;
-    if (clipped > c.max_clipped_share)
-        f.reasons.push_back(fmt("%.2f %% of samples are at full scale: the input was overloaded; reduce the input range and "
-                                "record again", 100.0 * clipped));
-    if (seg(SI::overall_rms).value <= 0.0)
-        f.reasons.push_back("the signal is flat (zero rms): check the sensor, cable and input channel and record again");
-    if (signal_unit != b.unit)
-        f.reasons.push_back("recording calibrated in " + signal_unit + " but the baseline is in " + b.unit +
-                            ": use the baseline's --full-scale calibration");
-    if (a.setup.fs_hz != b.setup.fs_hz)
-        f.reasons.push_back(fmt("sample rate %.0f Hz differs from the baseline's %.0f Hz: record again at the baseline's rate",
-                                a.setup.fs_hz, b.setup.fs_hz));
-    double speed_change = 0.0;
-    if (a.rpm > 0.0 && b.rpm > 0.0) {
-        speed_change = a.rpm / b.rpm - 1.0;
-        if (std::abs(speed_change) > c.max_speed_change)
-            f.reasons.push_back(fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm (limit %.0f %%): "
-                                    "levels are not comparable; use a baseline taken at this speed",
-                                    a.rpm, 100.0 * speed_change, b.rpm, 100.0 * c.max_speed_change));
-    }
+    f.quality = assess_quality(a, b, context, c.quality);
+    f.reasons = f.quality.reasons();
     if (!f.reasons.empty()) {
         f.verdict = Verdict::indeterminate;
         f.confidence = 0.0;
         return f;
     }
-
     double confidence_scale = 1.0;
+    for (const auto& w : f.quality.warnings()) {
+        f.warnings.push_back(w);
+        confidence_scale *= 0.85;
+    }
+    const double speed_change = a.rpm > 0.0 && b.rpm > 0.0 ? a.rpm / b.rpm - 1.0 : 0.0;
     if (a.rpm <= 0.0) {
         f.warnings.push_back("shaft speed unknown (not given and not found in the spectrum): envelope lines were not checked");
         confidence_scale *= 0.8;
@@ -202,20 +192,14 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
                                  a.rpm_resolution));
         confidence_scale *= 0.95;
     }
-    if (a.series.segments() < 5) {
-        f.warnings.push_back(fmt("only %zu analysis segments: the spread of the indicators is poorly known", a.series.segments()));
-        confidence_scale *= 0.85;
-    }
     if (b.sources.size() == 1) {
         f.warnings.push_back("baseline learned from a single recording: its spread may be understated");
         confidence_scale *= 0.9;
     }
-    if (std::abs(speed_change) >= 0.01) {
+    if (std::abs(speed_change) >= 0.01)
         f.other_findings.push_back(fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: a speed change, not "
                                        "cavitation; envelope lines compared in orders",
                                        a.rpm, 100.0 * speed_change, b.rpm));
-        if (std::abs(speed_change) > 0.05) confidence_scale *= 0.85;
-    }
 
     // --- The indicators ---
     const Comparison& hf = seg(SI::hf_level_db);

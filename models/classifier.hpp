@@ -15,6 +15,7 @@
 
 #include "models/analyzer.hpp"
 #include "models/baseline.hpp"
+#include "models/quality.hpp"
 
 namespace cavitas::models {
 
@@ -43,10 +44,8 @@ struct ClassifierConfig {
     double weak_line_prominence_db = 3.0;
     /// LF rise that is reported as flow turbulence when HF has not risen.
     double lf_alert_db = 3.0;
-    /// Speed change beyond which comparisons are not like-for-like.
-    double max_speed_change = 0.10;
-    /// Share of samples at full scale that makes a record unusable.
-    double max_clipped_share = 0.001;
+    /// Limits of the signal-quality gate.
+    QualityLimits quality;
 };
 
 /// One indicator set beside the baseline.
@@ -69,13 +68,18 @@ struct Finding {
     std::vector<std::string> warnings;       ///< things that lowered the confidence
     std::vector<std::string> reasons;        ///< why indeterminate (what to do)
     std::vector<Comparison> comparisons;
+    QualityReport quality;
     double hf_rise_db = 0.0;
     double lf_rise_db = 0.0;
     bool bearing_like = false;
     double bearing_order = 0.0;
 };
 
-/// signal_unit is the recording's unit token ("g", "m/s2", "Pa", "FS") for the key names.
+/// context: the recording's unit token ("g", "m/s2", "Pa", "FS"; also used in the
+/// key names), channel and stated sensor limit, checked by the quality gate.
+Finding classify(const RecordingAnalysis& analysis, const Baseline& baseline, const RecordingContext& context,
+                 const ClassifierConfig& config = {});
+/// Shorthand when only the unit is known: the baseline's channel, no sensor limit.
 Finding classify(const RecordingAnalysis& analysis, const Baseline& baseline, const std::string& signal_unit,
                  const ClassifierConfig& config = {});
 

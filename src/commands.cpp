@@ -110,6 +110,17 @@ Progress stderr_progress(const std::string& path, std::ostream& err) {
     };
 }
 
+// The lower of a stated limit and the mount's (0 = none stated).
+double sensor_limit(double sensor_max_hz, const std::string& mount) {
+    double limit = sensor_max_hz > 0.0 ? sensor_max_hz : 0.0;
+    if (!mount.empty()) {
+        const auto lim = models::mount_limit_hz(mount);
+        if (!lim) throw UsageError("--mount '" + mount + "': use handheld, magnet, adhesive or stud");
+        limit = limit > 0.0 ? std::min(limit, *lim) : *lim;
+    }
+    return limit;
+}
+
 void refuse_overwriting_input(const std::string& out, const std::vector<std::string>& inputs) {
     namespace fs = std::filesystem;
     std::error_code ec;
@@ -129,12 +140,7 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
     if (o.output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
     refuse_overwriting_input(o.output, o.recordings);
-    double sensor_max = o.sensor_max_hz;
-    if (!o.mount.empty()) {
-        const auto lim = models::mount_limit_hz(o.mount);
-        if (!lim) throw UsageError("--mount '" + o.mount + "': use handheld, magnet, adhesive or stud");
-        sensor_max = sensor_max > 0.0 ? std::min(sensor_max, *lim) : *lim;
-    }
+    const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
     const Calibration cal = calibration_of(o.full_scale);
     models::MachineContext machine;
     machine.rpm = o.rpm;
@@ -199,10 +205,11 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     machine.vanes = o.vanes ? *o.vanes : r.baseline.vanes;
     machine.rpm_hint = r.baseline.rpm;
     r.recording = analyze_file(o.recording, o.channel, cal, r.baseline.setup, 0.0, machine, progress);
-    r.finding = models::classify(r.recording.analysis, r.baseline, cal.unit);
-    if (o.channel != r.baseline.channel)
-        r.finding.warnings.push_back("channel " + std::to_string(o.channel) + " analysed, baseline learned on channel " +
-                                     std::to_string(r.baseline.channel));
+    models::RecordingContext ctx;
+    ctx.unit = cal.unit;
+    ctx.channel = o.channel;
+    ctx.sensor_max_hz = sensor_limit(o.sensor_max_hz, o.mount);
+    r.finding = models::classify(r.recording.analysis, r.baseline, ctx);
     return r;
 }
 

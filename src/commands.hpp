@@ -52,6 +52,8 @@ struct BaselineOptions {
 
 struct AnalyzeOptions {
     std::string machine;
+    double sensor_max_hz = 0.0;
+    std::string mount;
     std::string baseline;
     std::string recording;
     std::optional<std::string> json_output;

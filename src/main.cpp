@@ -82,6 +82,12 @@ int main(int argc, char** argv) {
     an->add_option("--full-scale", ao.full_scale, "Calibration of this file if it differs in form from the "
                                                   "baseline's (default: the baseline's)");
     an->add_option("--json", ao.json_output, "Write the finding as JSON to this file (atomically)");
+    an->add_option("--sensor-max-hz", ao.sensor_max_hz,
+                   "Usable top frequency of the sensor as mounted for this recording; the verdict is indeterminate "
+                   "when the baseline's HF band reaches above it")
+        ->check(CLI::Range(100.0, 1.0e6));
+    an->add_option("--mount", ao.mount, "Sensor mounting for this recording: handheld, magnet, adhesive or stud (see baseline --help)")
+        ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
 
     try {
         app.parse(argc, argv);

@@ -87,12 +87,24 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         peaks.push_back({{"frequency_hz", p.hz}, {"order", p.order}, {"prominence_db", p.prominence_db}});
     const auto& q = a.quality;
     const std::string ukey = models::unit_key(in.calibration.unit);
+    json checks = json::array();
+    for (const auto& c : f.quality.checks)
+        checks.push_back({{"check", c.name},
+                          {"status", models::to_string(c.status)},
+                          {"value", c.value},
+                          {"unit", c.unit},
+                          {"warn_at", c.warn_at},
+                          {"fail_at", c.fail_at},
+                          {"message", c.message}});
     json quality = {
+        {"checks", checks},
         {"samples", q.samples},
         {"segments", a.series.segments()},
         {"non_finite_samples", q.non_finite},
         {"at_full_scale_share", q.samples ? static_cast<double>(q.at_full_scale) / static_cast<double>(q.samples) : 0.0},
         {"longest_flat_run_samples", q.longest_flat_run},
+        {"dropout_share", q.samples ? static_cast<double>(q.dropout_samples) / static_cast<double>(q.samples) : 0.0},
+        {"flat_top_share", q.samples ? static_cast<double>(q.flat_top_samples()) / static_cast<double>(q.samples) : 0.0},
         {"dc_offset_" + ukey, q.mean()},
         {"usable", f.verdict != Verdict::indeterminate},
         {"reasons", f.reasons},

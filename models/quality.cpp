@@ -1,0 +1,201 @@
+#include "models/quality.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdarg>
+#include <cstdio>
+
+namespace cavitas::models {
+
+const char* to_string(CheckStatus s) {
+    switch (s) {
+        case CheckStatus::pass: return "pass";
+        case CheckStatus::warn: return "warn";
+        case CheckStatus::fail: return "fail";
+    }
+    return "fail";
+}
+
+bool QualityReport::usable() const {
+    return std::none_of(checks.begin(), checks.end(), [](const QualityCheck& c) { return c.status == CheckStatus::fail; });
+}
+
+std::vector<std::string> QualityReport::reasons() const {
+    std::vector<std::string> r;
+    for (const auto& c : checks)
+        if (c.status == CheckStatus::fail) r.push_back(c.message);
+    return r;
+}
+
+std::vector<std::string> QualityReport::warnings() const {
+    std::vector<std::string> r;
+    for (const auto& c : checks)
+        if (c.status == CheckStatus::warn) r.push_back(c.message);
+    return r;
+}
+
+std::size_t QualityReport::warning_count() const {
+    return static_cast<std::size_t>(
+        std::count_if(checks.begin(), checks.end(), [](const QualityCheck& c) { return c.status == CheckStatus::warn; }));
+}
+
+namespace {
+
+std::string fmt(const char* f, ...) __attribute__((format(printf, 1, 2)));
+std::string fmt(const char* f, ...) {
+    char buf[512];
+    va_list ap;
+    va_start(ap, f);
+    std::vsnprintf(buf, sizeof buf, f, ap);
+    va_end(ap);
+    return buf;
+}
+
+// A check where larger is worse: value >= fail_at fails, >= warn_at warns.
+QualityCheck graded(std::string name, std::string unit, double value, double warn_at, double fail_at,
+                    const std::string& warn_msg, const std::string& fail_msg) {
+    QualityCheck c{std::move(name), std::move(unit), value, warn_at, fail_at, CheckStatus::pass, {}};
+    if (value >= fail_at) {
+        c.status = CheckStatus::fail;
+        c.message = fail_msg;
+    } else if (value >= warn_at) {
+        c.status = CheckStatus::warn;
+        c.message = warn_msg;
+    }
+    return c;
+}
+
+QualityCheck yes_no(std::string name, bool failed, const std::string& msg) {
+    QualityCheck c{std::move(name), "flag", failed ? 1.0 : 0.0, 1.0, 1.0, CheckStatus::pass, {}};
+    if (failed) {
+        c.status = CheckStatus::fail;
+        c.message = msg;
+    }
+    return c;
+}
+
+}  // namespace
+
+QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, const RecordingContext& ctx,
+                             const QualityLimits& L) {
+    QualityReport r;
+    const auto& q = a.quality;
+    const double n = std::max<double>(1.0, static_cast<double>(q.samples));
+
+    r.checks.push_back(yes_no("non_finite", q.non_finite > 0,
+                              fmt("%zu samples are not finite numbers (NaN or Inf): the file is damaged or was written by "
+                                  "a faulty converter; export it again from the collector",
+                                  q.non_finite)));
+
+    const bool all_zero = q.samples > 0 && q.zero_samples == q.samples;
+    const bool flat = q.samples > 0 && !(q.ac_rms() > 0.0);
+    r.checks.push_back(yes_no("signal_present", all_zero || flat,
+                              all_zero ? std::string("all samples are zero: no signal reached the collector; check the sensor, "
+                                                     "cable, connector and the channel's power (IEPE supply)")
+                                       : std::string("the signal is flat (zero AC rms): the input is stuck; check the sensor, "
+                                                     "cable and input channel and record again")));
+
+    const double clipped = static_cast<double>(std::max(q.at_full_scale, q.flat_top_samples(0.99))) / n;
+    r.checks.push_back(graded(
+        "clipping", "share", clipped, L.clipped_warn, L.clipped_fail,
+        fmt("%.3f %% of samples are at full scale or flat-topped at the record's extremes: peaks may be clipped; "
+            "crest factor and kurtosis read low",
+            100.0 * clipped),
+        fmt("%.2f %% of samples are at full scale or flat-topped at the record's extremes: the input was overloaded; "
+            "reduce the input range (or the sensor's sensitivity) and record again",
+            100.0 * clipped)));
+
+    const double dropout = static_cast<double>(q.dropout_samples) / n;
+    r.checks.push_back(graded("dropouts", "share", dropout, L.dropout_warn, L.dropout_fail,
+                              fmt("%.2f %% of the record is stuck at one value (runs of 5 ms or more): brief dropouts; "
+                                  "check the cable and connector",
+                                  100.0 * dropout),
+                              fmt("%.1f %% of the record is stuck at one value (runs of 5 ms or more; longest %zu "
+                                  "samples): the signal dropped out; check the cable, connector and mount and record again",
+                                  100.0 * dropout, q.longest_flat_run)));
+
+    const double dc = q.mean();
+    const double full_scale = a.full_scale;
+    if (full_scale > 0.0) {
+        const double share = std::abs(dc) / full_scale;
+        r.checks.push_back(graded("dc_offset", "share_of_full_scale", share, L.dc_fs_warn, L.dc_fs_fail,
+                                  fmt("DC offset %.1f %% of full scale: an AC-coupled sensor should show none; check the "
+                                      "sensor bias and cable",
+                                      100.0 * share),
+                                  fmt("DC offset %.0f %% of full scale: a bias or cable fault, or a settling sensor; check "
+                                      "the sensor bias voltage and cable, let the sensor settle and record again",
+                                      100.0 * share)));
+    } else {
+        const double ratio = q.ac_rms() > 0.0 ? std::abs(dc) / q.ac_rms() : 0.0;
+        r.checks.push_back(graded("dc_offset", "ratio_to_ac_rms", ratio, L.dc_rms_warn, 1e300,
+                                  fmt("DC offset %.1f x the AC rms: right for a DC-coupled sensor that sees gravity, a bias "
+                                      "or cable fault for an AC-coupled one",
+                                      ratio),
+                                  ""));
+    }
+
+    const double ski = a.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope_db)];
+    const double ski_base = b[RecordingIndicator::ski_slope_db].median;
+    QualityCheck sk = graded("ski_slope", "db", ski, L.ski_warn_db, L.ski_fail_db,
+                             fmt("low-frequency rise of %.0f dB (1-4 Hz over 10-100 Hz): a settling sensor or a loose "
+                                 "mount or cable; let the sensor settle before recording",
+                                 ski),
+                             fmt("low-frequency rise of %.0f dB (1-4 Hz over 10-100 Hz, a 'ski slope'): the sensor is "
+                                 "settling, overloaded or faulty, or the cable is; let it settle, check the mount and "
+                                 "cable and record again",
+                                 ski));
+    if (sk.status == CheckStatus::pass && b[RecordingIndicator::ski_slope_db].count > 0 &&
+        ski >= ski_base + L.ski_over_baseline_db) {
+        sk.status = CheckStatus::warn;
+        sk.message = fmt("low-frequency rise %.0f dB over the baseline's (%.0f dB against %.0f dB): a settling sensor, "
+                         "a loose mount or a cable fault",
+                         ski - ski_base, ski, ski_base);
+    }
+    r.checks.push_back(sk);
+
+    const double segs = static_cast<double>(a.series.segments());
+    QualityCheck seg{"segments", "segments", segs, static_cast<double>(L.segments_warn),
+                     static_cast<double>(L.segments_fail), CheckStatus::pass, {}};
+    if (a.series.segments() < L.segments_fail) {
+        seg.status = CheckStatus::fail;
+        seg.message = fmt("only %zu analysis segment(s) of %.1f s: too short for the statistics; record at least %.0f s",
+                          a.series.segments(), a.setup.segment_s, static_cast<double>(L.segments_warn) * a.setup.segment_s);
+    } else if (a.series.segments() < L.segments_warn) {
+        seg.status = CheckStatus::warn;
+        seg.message = fmt("only %zu analysis segments: the spread of the indicators is poorly known; record %.0f s or more",
+                          a.series.segments(), static_cast<double>(L.segments_warn) * a.setup.segment_s);
+    }
+    r.checks.push_back(seg);
+
+    r.checks.push_back(yes_no("sample_rate", a.setup.fs_hz != b.setup.fs_hz,
+                              fmt("sample rate %.0f Hz differs from the baseline's %.0f Hz: the baseline's HF band "
+                                  "%.1f-%.1f kHz is not seen the same way; record again at the baseline's rate",
+                                  a.setup.fs_hz, b.setup.fs_hz, b.setup.hf.low_hz / 1000.0, b.setup.hf.high_hz / 1000.0)));
+    r.checks.push_back(yes_no("unit", ctx.unit != b.unit,
+                              "recording calibrated in " + ctx.unit + " but the baseline is in " + b.unit +
+                                  ": use the baseline's --full-scale calibration"));
+    r.checks.push_back(yes_no("channel", ctx.channel != b.channel,
+                              fmt("channel %d analysed, but the baseline was learned on channel %d: another sensor or "
+                                  "axis; analyse channel %d or learn a baseline for this channel",
+                                  ctx.channel, b.channel, b.channel)));
+    r.checks.push_back(yes_no(
+        "sensor_range", ctx.sensor_max_hz > 0.0 && b.setup.hf.high_hz > ctx.sensor_max_hz,
+        fmt("the baseline's HF band %.1f-%.1f kHz reaches above this sensor's stated %.1f kHz limit: the HF indicators "
+            "cannot be judged; mount the sensor as for the baseline or learn a baseline with this mount",
+            b.setup.hf.low_hz / 1000.0, b.setup.hf.high_hz / 1000.0, ctx.sensor_max_hz / 1000.0)));
+
+    if (a.rpm > 0.0 && b.rpm > 0.0) {
+        const double change = a.rpm / b.rpm - 1.0;
+        r.checks.push_back(graded(
+            "speed_change", "share", std::abs(change), L.speed_warn, L.speed_fail,
+            fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: levels shift with speed; compare with "
+                "care",
+                a.rpm, 100.0 * change, b.rpm),
+            fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm (limit %.0f %%): levels are not "
+                "comparable; use a baseline taken at this speed",
+                a.rpm, 100.0 * change, b.rpm, 100.0 * L.speed_fail)));
+    }
+    return r;
+}
+
+}  // namespace cavitas::models

@@ -1,0 +1,69 @@
+// libFuzzer target: arbitrary bytes as a baseline file.
+//
+// Bytes that parse as JSON go to baseline_from_json, whose only documented way
+// to refuse a document is InputError: a nlohmann::json exception escaping it
+// (a type error not turned into a message) is a bug, like any other exception
+// or a sanitizer report. An accepted baseline must survive a round trip:
+// baseline_to_json, then dump, parse and read again, giving the same document.
+#include <cstddef>
+#include <cstdint>
+#include <cstdio>
+#include <cstdlib>
+#include <exception>
+#include <string>
+#include <typeinfo>
+
+#include <nlohmann/json.hpp>
+
+#include "models/baseline.hpp"
+#include "src/baseline_io.hpp"
+#include "src/errors.hpp"
+
+namespace {
+
+using nlohmann::json;
+
+[[noreturn]] void bug(const char* what, const std::string& detail) {
+    std::fprintf(stderr, "\nfuzz_baseline: BUG: %s: %s\n", what, detail.c_str());
+    std::fflush(stderr);
+    std::abort();
+}
+
+void round_trip(const cavitas::models::Baseline& b) {
+    const json first = baseline_to_json(b);
+    const std::string text = first.dump(2);
+    const json parsed = json::parse(text, nullptr, false);
+    if (parsed.is_discarded()) bug("baseline_to_json wrote text that does not parse", text.substr(0, 200));
+    cavitas::models::Baseline again;
+    try {
+        again = cavitas::app::baseline_from_json(parsed, "fuzz-roundtrip");
+    } catch (const cavitas::app::InputError& e) {
+        bug("a baseline that was read is refused after writing it", e.what());
+    }
+    const json second = baseline_to_json(again);
+    if (second != first) bug("round trip changed the baseline", first.dump() + "\n  became\n" + second.dump());
+}
+
+}  // namespace
+
+extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
+    const json j = json::parse(data, data + size, nullptr, false);
+    if (j.is_discarded()) return 0;
+    cavitas::models::Baseline b;
+    try {
+        b = cavitas::app::baseline_from_json(j, "fuzz");
+    } catch (const cavitas::app::InputError&) {
+        return 0;  // refused with a message: expected
+    } catch (const json::exception& e) {
+        bug("nlohmann::json exception escaped baseline_from_json (should be an InputError)",
+            std::string(typeid(e).name()) + ": " + e.what());
+    } catch (const std::exception& e) {
+        bug("unexpected exception from baseline_from_json", std::string(typeid(e).name()) + ": " + e.what());
+    }
+    try {
+        round_trip(b);
+    } catch (const std::exception& e) {
+        bug("exception in the write/read round trip", std::string(typeid(e).name()) + ": " + e.what());
+    }
+    return 0;
+}
