@@ -369,7 +369,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     // Ski slope: a settling or faulty sensor or cable shows a steep rise at the
     // very lowest frequencies (eng-tips thread 95214 on integrating accelerometer
     // signals: overload and mounting problems also give a "ski slope"). Measured
-    // as the mean PSD in 1-4 Hz over the median PSD in 10-100 Hz (the median
+    // as the mean PSD in 0.5-4 Hz (from the second bin up) over the median PSD in 10-100 Hz (the median
     // ignores shaft lines there). Needs bins finer than 1 Hz.
     if (m.fine_psd.frames() > 0 && m.fine_psd.bin_hz() <= 1.0) {
         const double bin = m.fine_psd.bin_hz();
@@ -378,7 +378,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
         std::vector<double> ref;
         for (std::size_t k = 1; k < fine.size(); ++k) {
             const double f = static_cast<double>(k) * bin;
-            if (f >= 1.0 && f <= 4.0) {
+            if (f >= std::max(0.5, 2.0 * bin) && f <= 4.0) {
                 low += fine[k];
                 ++nl;
             } else if (f >= 10.0 && f <= 100.0) {

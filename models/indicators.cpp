@@ -23,7 +23,7 @@ constexpr std::array<IndicatorInfo, kRecordingIndicatorCount> kRecording{{
     {"modulation_1x", "ratio", "HF modulation depth at 1x"},
     {"modulation_bpf", "ratio", "HF modulation depth at BPF"},
     {"kurtogram_max", "ratio", "fast-kurtogram maximum"},
-    {"ski_slope", "db", "low-frequency rise (1-4 Hz over 10-100 Hz)"},
+    {"ski_slope", "db", "low-frequency rise (0.5-4 Hz over 10-100 Hz)"},
 }};
 
 }  // namespace

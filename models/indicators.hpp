@@ -34,7 +34,7 @@ enum class RecordingIndicator : std::size_t {
     modulation_1x,          ///< SES line at 1x / mean squared envelope (gain free)
     modulation_bpf,         ///< SES line at BPF / mean squared envelope
     kurtogram_max,          ///< largest mean kurtogram value (band above the blade-pass harmonics)
-    ski_slope_db,           ///< PSD level at 1-4 Hz over the median level at 10-100 Hz (sensor settling, cable faults)
+    ski_slope_db,           ///< PSD level at 0.5-4 Hz over the median level at 10-100 Hz (sensor settling, cable faults)
     count
 };
 constexpr std::size_t kRecordingIndicatorCount = static_cast<std::size_t>(RecordingIndicator::count);

@@ -64,7 +64,8 @@ std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double 
     Prominence prom(psd, bin_hz);
     const double nyq = bin_hz * static_cast<double>(psd.size() - 1);
     // Step so that the 8th harmonic moves by less than half a bin per step.
-    const double step_hz = bin_hz / 20.0;
+    // At most 20 000 steps, whatever the range (a damaged baseline can ask for any).
+    const double step_hz = std::max(bin_hz / 20.0, (rpm_high - rpm_low) / 60.0 / 20000.0);
     SpeedEstimate best;
     bool found = false;
     for (double f = rpm_low / 60.0; f <= rpm_high / 60.0; f += step_hz) {

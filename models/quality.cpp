@@ -137,15 +137,21 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
     const double ski = a.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope_db)];
     const double ski_base = b[RecordingIndicator::ski_slope_db].median;
     QualityCheck sk = graded("ski_slope", "db", ski, L.ski_warn_db, L.ski_fail_db,
-                             fmt("low-frequency rise of %.0f dB (1-4 Hz over 10-100 Hz): a settling sensor or a loose "
+                             fmt("low-frequency rise of %.0f dB (0.5-4 Hz over 10-100 Hz): a settling sensor or a loose "
                                  "mount or cable; let the sensor settle before recording",
                                  ski),
-                             fmt("low-frequency rise of %.0f dB (1-4 Hz over 10-100 Hz, a 'ski slope'): the sensor is "
+                             fmt("low-frequency rise of %.0f dB (0.5-4 Hz over 10-100 Hz, a 'ski slope'): the sensor is "
                                  "settling, overloaded or faulty, or the cable is; let it settle, check the mount and "
                                  "cable and record again",
                                  ski));
-    if (sk.status == CheckStatus::pass && b[RecordingIndicator::ski_slope_db].count > 0 &&
-        ski >= ski_base + L.ski_over_baseline_db) {
+    const bool has_base = b[RecordingIndicator::ski_slope_db].count > 0;
+    if (sk.status != CheckStatus::fail && has_base && ski >= ski_base + L.ski_over_baseline_fail_db) {
+        sk.status = CheckStatus::fail;
+        sk.message = fmt("low-frequency rise %.0f dB over the baseline's (%.0f dB against %.0f dB, a 'ski slope'): the "
+                         "sensor is settling, overloaded or faulty, or the mount or cable is; let it settle, check the "
+                         "mount and cable and record again",
+                         ski - ski_base, ski, ski_base);
+    } else if (sk.status == CheckStatus::pass && has_base && ski >= ski_base + L.ski_over_baseline_db) {
         sk.status = CheckStatus::warn;
         sk.message = fmt("low-frequency rise %.0f dB over the baseline's (%.0f dB against %.0f dB): a settling sensor, "
                          "a loose mount or a cable fault",

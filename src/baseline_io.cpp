@@ -34,7 +34,7 @@ RobustStat stat_from(const json& j, const std::string& where) {
     s.p10 = num(j, "p10", where);
     s.p90 = num(j, "p90", where);
     const double c = num(j, "count", where);
-    if (c < 0) throw InputError(where + ": negative count");
+    if (!(c >= 0 && c <= 1e12)) throw InputError(where + ": count is outside 0 .. 1e12");
     s.count = static_cast<std::size_t>(c);
     return s;
 }
@@ -78,7 +78,37 @@ json baseline_to_json(const Baseline& b) {
     };
 }
 
-Baseline baseline_from_json(const json& j, const std::string& origin) {
+namespace {
+
+// A number within [lo, hi], or an InputError naming the field, the value and the range.
+double in_range(double v, double lo, double hi, const char* field, const std::string& where) {
+    if (!(v >= lo && v <= hi)) {
+        std::ostringstream m;
+        m << where << ": '" << field << "' = " << v << " is outside " << lo << " .. " << hi;
+        throw InputError(m.str());
+    }
+    return v;
+}
+
+void check_ranges(const Baseline& b, const std::string& origin) {
+    const std::string wc = origin + " (context)", ws = origin + " (setup)";
+    in_range(b.setup.fs_hz, 100.0, 5.0e6, "sample_rate_hz", wc);
+    in_range(b.rpm, 0.0, 100000.0, "rpm", wc);
+    in_range(b.full_scale, 1e-12, 1e12, "full_scale", wc);
+    if (b.unit != "g" && b.unit != "m/s2" && b.unit != "Pa" && b.unit != "FS")
+        throw InputError(wc + ": 'unit' = '" + b.unit + "' is not one of g, m/s2, Pa, FS");
+    const double nyq = b.setup.fs_hz / 2.0;
+    in_range(b.setup.segment_s, 0.25, 10.0, "segment_s", ws);
+    in_range(b.setup.hf.low_hz, 0.0, nyq, "hf_low_hz", ws);
+    in_range(b.setup.hf.high_hz, b.setup.hf.low_hz + 1.0, nyq, "hf_high_hz", ws);
+    in_range(b.setup.lf.low_hz, 0.0, nyq, "lf_low_hz", ws);
+    in_range(b.setup.lf.high_hz, b.setup.lf.low_hz + 1.0, nyq, "lf_high_hz", ws);
+    in_range(b.setup.sensor_max_hz, 0.0, 1.0e6, "sensor_max_hz", ws);
+}
+
+}  // namespace
+
+Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) {
     if (!j.is_object()) throw InputError(origin + ": not a cavitas baseline (expected a JSON object)");
     if (!j.contains("schema") || !j.at("schema").is_string())
         throw InputError(origin + ": not a cavitas baseline (no \"schema\" field)");
@@ -103,10 +133,13 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
         b.machine = c["machine"];
     }
     b.setup.fs_hz = num(c, "sample_rate_hz", wc);
-    b.channel = static_cast<int>(num(c, "channel", wc));
+    b.channel = static_cast<int>(in_range(num(c, "channel", wc), 0, 1023, "channel", wc));
     b.rpm = num(c, "rpm", wc);
-    b.rpm_estimated = c.value("rpm_estimated", false);
-    b.vanes = static_cast<int>(num(c, "vanes", wc));
+    if (c.contains("rpm_estimated")) {
+        if (!c["rpm_estimated"].is_boolean()) throw InputError(wc + ": 'rpm_estimated' is not true or false");
+        b.rpm_estimated = c["rpm_estimated"].get<bool>();
+    }
+    b.vanes = static_cast<int>(in_range(num(c, "vanes", wc), 0, 200, "vanes", wc));
     if (!c.contains("unit") || !c["unit"].is_string()) throw InputError(wc + ": missing 'unit'");
     b.unit = c["unit"];
     b.full_scale = num(c, "full_scale", wc);
@@ -116,10 +149,8 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
     b.setup.lf.low_hz = num(s, "lf_low_hz", ws);
     b.setup.lf.high_hz = num(s, "lf_high_hz", ws);
     b.setup.sensor_max_hz = num(s, "sensor_max_hz", ws);
-    if (!(b.setup.fs_hz > 0.0) || !(b.setup.segment_s > 0.0) || !(b.setup.hf.high_hz > b.setup.hf.low_hz) ||
-        b.setup.hf.high_hz > b.setup.fs_hz / 2.0 || b.vanes < 0 || b.rpm < 0.0 || !(b.full_scale > 0.0))
-        throw InputError(origin + ": baseline context or bands are out of range");
-    b.segments = static_cast<std::size_t>(num(j, "segments", origin));
+    check_ranges(b, origin);
+    b.segments = static_cast<std::size_t>(in_range(num(j, "segments", origin), 0, 1e9, "segments", origin));
     if (j.contains("sources") && j["sources"].is_array())
         for (const auto& e : j["sources"]) {
             BaselineSource src;
@@ -144,10 +175,25 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
     return b;
 }
 
+Baseline baseline_from_json(const json& j, const std::string& origin) {
+    try {
+        Baseline b = baseline_from_json_unchecked(j, origin);
+        for (const auto& s : b.segment)
+            if (!(s.sigma >= 0.0)) throw InputError(origin + ": an indicator has a negative spread");
+        for (const auto& s : b.recording)
+            if (!(s.sigma >= 0.0)) throw InputError(origin + ": an indicator has a negative spread");
+        return b;
+    } catch (const json::exception& e) {
+        // Any type surprise the checks above did not foresee still names the file.
+        throw InputError(origin + ": baseline does not have the expected form (" + std::string(e.what()) + ")");
+    }
+}
+
 Baseline read_baseline_file(const std::string& path) {
     std::error_code ec;
     if (!std::filesystem::exists(path, ec)) throw InputError(path + ": no such baseline file");
     if (std::filesystem::is_directory(path, ec)) throw InputError(path + ": is a directory, not a baseline file");
+    if (!std::filesystem::is_regular_file(path, ec)) throw InputError(path + ": is not a regular file");
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError(path + ": cannot open baseline");
     std::stringstream ss;

@@ -11,6 +11,7 @@
 #include <sstream>
 
 #include "models/machine.hpp"
+#include "models/quality.hpp"
 #include "src/atomic_file.hpp"
 #include "src/baseline_io.hpp"
 #include "src/report.hpp"
@@ -91,7 +92,11 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
         throw InputError(path + ": record of " + seconds_text(r.info.duration_s()) + " is shorter than one " +
                          seconds_text(use.segment_s) + " analysis segment");
     r.sha256 = sha256_file(path);
-    r.analysis = analyze_source(source, use, machine, progress);
+    try {
+        r.analysis = analyze_source(source, use, machine, progress);
+    } catch (const std::invalid_argument& e) {
+        throw InputError(path + ": cannot be analysed in these bands: " + e.what());
+    }
     return r;
 }
 
@@ -155,9 +160,20 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
                              " Hz differs from the first recording's " + std::to_string(static_cast<int>(setup->fs_hz)) +
                              " Hz; a baseline needs recordings made the same way");
         if (!setup) setup = r.analysis.setup;
-        if (r.analysis.quality.non_finite > 0)
-            throw InputError(path + ": " + std::to_string(r.analysis.quality.non_finite) +
-                             " samples are NaN or Inf; a baseline must be learned from clean recordings");
+        // A baseline must be learned from clean recordings: the checks that need
+        // no reference (NaN, a dead or stuck signal, clipping, dropouts, DC,
+        // ski slope, length) are run against the recording's own statistics.
+        {
+            models::Baseline self = models::learn_baseline({r.analysis});
+            self.unit = cal.unit;
+            self.full_scale = cal.full_scale;
+            self.channel = o.channel;
+            models::RecordingContext ctx;
+            ctx.unit = cal.unit;
+            ctx.channel = o.channel;
+            const auto reasons = models::assess_quality(r.analysis, self, ctx).reasons();
+            if (!reasons.empty()) throw InputError(path + ": cannot serve as a baseline: " + reasons.front());
+        }
         if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
         sources.push_back({path, r.sha256, r.analysis.duration_s, r.analysis.rpm});
         analyses.push_back(std::move(r.analysis));

@@ -24,6 +24,18 @@ const char* kIntro =
     "Exit status: 0 a verdict was reached (indeterminate included), 1 unreadable or\n"
     "invalid input, 2 a usage error.";
 
+// Errors are one line: control characters (a newline in a file name) are shown escaped.
+std::string one_line(const std::string& s) {
+    std::string o;
+    for (char c : s) {
+        if (c == '\n') o += "\\n";
+        else if (c == '\r') o += "\\r";
+        else if (static_cast<unsigned char>(c) < 0x20) o += '?';
+        else o += c;
+    }
+    return o;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -100,13 +112,13 @@ int main(int argc, char** argv) {
         if (*an) run_analyze(ao, std::cout, std::cerr);
         return static_cast<int>(ExitCode::ok);
     } catch (const UsageError& e) {
-        std::cerr << "cavitas: usage: " << e.what() << "\n";
+        std::cerr << "cavitas: usage: " << one_line(e.what()) << "\n";
         return static_cast<int>(ExitCode::usage_error);
     } catch (const InputError& e) {
-        std::cerr << "cavitas: error: " << e.what() << "\n";
+        std::cerr << "cavitas: error: " << one_line(e.what()) << "\n";
         return static_cast<int>(ExitCode::input_error);
     } catch (const std::exception& e) {
-        std::cerr << "cavitas: error: " << e.what() << "\n";
+        std::cerr << "cavitas: error: " << one_line(e.what()) << "\n";
         return static_cast<int>(ExitCode::input_error);
     }
 }

@@ -30,7 +30,7 @@ using nlohmann::json;
 }
 
 void round_trip(const cavitas::models::Baseline& b) {
-    const json first = baseline_to_json(b);
+    const json first = cavitas::app::baseline_to_json(b);
     const std::string text = first.dump(2);
     const json parsed = json::parse(text, nullptr, false);
     if (parsed.is_discarded()) bug("baseline_to_json wrote text that does not parse", text.substr(0, 200));
@@ -40,7 +40,7 @@ void round_trip(const cavitas::models::Baseline& b) {
     } catch (const cavitas::app::InputError& e) {
         bug("a baseline that was read is refused after writing it", e.what());
     }
-    const json second = baseline_to_json(again);
+    const json second = cavitas::app::baseline_to_json(again);
     if (second != first) bug("round trip changed the baseline", first.dump() + "\n  became\n" + second.dump());
 }
 

@@ -48,9 +48,12 @@ for kind in recording baseline; do
     rm -f "$artifacts"/*
 
     echo "== $target: ${seconds} s on $seeds seeds (log: $log)"
+    dict=()
+    [[ -f "tests/fuzz/$kind.dict" ]] && dict=(-dict="tests/fuzz/$kind.dict")
     status=0
     "$build/tests/fuzz/$target" -max_total_time="$seconds" -timeout=10 -rss_limit_mb=2048 \
-        -print_final_stats=1 -artifact_prefix="$artifacts/" "${extra_args[@]}" "$corpus" > "$log" 2>&1 || status=$?
+        -print_final_stats=1 -artifact_prefix="$artifacts/" "${dict[@]}" "${extra_args[@]}" "$corpus" \
+        > "$log" 2>&1 || status=$?
 
     execs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log" | tail -n 1)
     rate=$(sed -n 's/^stat::average_exec_per_sec: *//p' "$log" | tail -n 1)

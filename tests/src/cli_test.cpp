@@ -11,6 +11,8 @@
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
+#include <functional>
+#include <limits>
 #include <numbers>
 #include <set>
 #include <sstream>
@@ -210,4 +212,90 @@ TEST_CASE("A directory as baseline or an unwritable output folder fails before a
     CHECK(r.status == 1);
     CHECK(r.err.find("does not exist") != std::string::npos);
     CHECK_FALSE(fs::exists(workdir() / "no-such-folder"));
+}
+
+namespace {
+
+// A 6 s, 25.6 kHz recording like make_wav's, passed through `spoil` first;
+// written as 16-bit PCM, or 32-bit float when float_file (NaN survives only there).
+fs::path make_spoiled(const std::string& name, unsigned seed, const std::function<void(std::vector<float>&)>& spoil,
+                      bool float_file = false) {
+    const fs::path p = workdir() / name;
+    SF_INFO info{};
+    info.samplerate = 25600;
+    info.channels = 1;
+    info.format = SF_FORMAT_WAV | (float_file ? SF_FORMAT_FLOAT : SF_FORMAT_PCM_16);
+    std::vector<float> x(25600 * 6);
+    std::uint64_t s = seed;
+    for (std::size_t i = 0; i < x.size(); ++i) {
+        s = s * 6364136223846793005ULL + 1442695040888963407ULL;
+        const double u = static_cast<double>(s >> 11) / 9007199254740992.0 - 0.5;
+        const double t = static_cast<double>(i) / 25600.0;
+        x[i] = static_cast<float>(0.01 * std::sin(2 * std::numbers::pi * 24.75 * t) +
+                                  0.02 * std::sin(2 * std::numbers::pi * 173.25 * t) + 0.02 * u);
+    }
+    spoil(x);
+    SNDFILE* f = sf_open(p.string().c_str(), SFM_WRITE, &info);
+    REQUIRE(f != nullptr);
+    if (!float_file) sf_command(f, SFC_SET_CLIPPING, nullptr, SF_TRUE);
+    sf_writef_float(f, x.data(), static_cast<sf_count_t>(x.size()));
+    sf_close(f);
+    return p;
+}
+
+}  // namespace
+
+TEST_CASE("Recordings that cannot support a verdict are indeterminate with a reason that says what to do", "[cli]") {
+    // Baseline from clean recordings of the same (synthetic) machine; units FS.
+    const fs::path b = workdir() / "gate.json";
+    REQUIRE(run("baseline --rpm 1485 --vanes 7 -o " + q(b) + " " + q(make_wav("gate1.wav", 61)) + " " +
+                q(make_wav("gate2.wav", 62)))
+                .status == 0);
+    struct Row {
+        const char* name;
+        std::function<void(std::vector<float>&)> spoil;
+        bool float_file;
+        const char* words;
+    };
+    const std::vector<Row> rows = {
+        // Overload: the signal driven 60x into full scale.
+        {"clipped", [](std::vector<float>& x) { for (auto& v : x) v *= 60.0f; }, false, "reduce the input range"},
+        // A cable that drops out for 0.5 s in every 2 s.
+        {"dropout", [](std::vector<float>& x) { for (std::size_t i = 0; i < x.size(); ++i) if (i % 51200 < 12800) x[i] = 0.0f; },
+         false, "dropped out"},
+        // A sensor still settling after power-on: a slow exponential decay of 0.5 FS.
+        {"settling", [](std::vector<float>& x) { for (std::size_t i = 0; i < x.size(); ++i) x[i] += static_cast<float>(0.5 * std::exp(-static_cast<double>(i) / 25600.0 / 1.5)); },
+         false, "ski slope"},
+        // A DC bias fault: 30 % of full scale.
+        {"dc", [](std::vector<float>& x) { for (auto& v : x) v += 0.3f; }, false, "DC offset"},
+        // Nothing arrives.
+        {"silent", [](std::vector<float>& x) { std::fill(x.begin(), x.end(), 0.0f); }, false, "all samples are zero"},
+        // A converter that wrote NaN into a float file.
+        {"nan", [](std::vector<float>& x) { x[1000] = std::numeric_limits<float>::quiet_NaN(); }, true, "not finite"},
+    };
+    for (const auto& row : rows) {
+        INFO(row.name);
+        const fs::path rec = make_spoiled(std::string("spoiled_") + row.name + ".wav", 63, row.spoil, row.float_file);
+        const fs::path j = workdir() / (std::string(row.name) + ".finding.json");
+        const Run r = run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j) + " " + q(rec));
+        CHECK(r.status == 0);
+        CHECK(r.out.find("INDETERMINATE") != std::string::npos);
+        CHECK(r.out.find(row.words) != std::string::npos);
+        const auto f = nlohmann::json::parse(slurp(j));
+        CHECK(f["verdict"] == "indeterminate");
+        CHECK(f["quality"]["usable"] == false);
+        CHECK(f["cautions"].empty());
+    }
+}
+
+TEST_CASE("A clean recording passes the quality gate with no warning", "[cli]") {
+    const fs::path b = workdir() / "gate-clean.json";
+    REQUIRE(run("baseline --rpm 1485 --vanes 7 -o " + q(b) + " " + q(make_wav("c1.wav", 71)) + " " + q(make_wav("c2.wav", 72)))
+                .status == 0);
+    const fs::path j = workdir() / "clean.finding.json";
+    REQUIRE(run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j) + " " + q(make_wav("c3.wav", 73))).status == 0);
+    const auto f = nlohmann::json::parse(slurp(j));
+    CHECK(f["quality"]["usable"] == true);
+    CHECK(f["quality"]["warnings"].empty());
+    for (const auto& c : f["quality"]["checks"]) CHECK(c["status"] == "pass");
 }

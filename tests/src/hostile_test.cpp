@@ -35,6 +35,9 @@ namespace {
 constexpr int kRate = 12800;     // Hz: above cavitas' 100 Hz floor, quick to analyse
 constexpr int kSeconds = 4;      // four 1 s segments
 constexpr int kTimeoutS = 10;    // a call that takes longer than this is a hang
+// Rows whose input must be refused before a single sample is analysed use a
+// shorter limit, so that a hang costs the suite little.
+constexpr int kQuickS = 3;
 
 // Removes the corpus when the test process ends.
 struct RemoveOnExit {
@@ -76,16 +79,18 @@ void spit(const fs::path& p, const std::string& bytes) {
 struct Run {
     bool exited = false;  // false: the shell itself was killed by a signal
     int status = -1;
+    int timeout_s = 0;
     std::string out, err;
 };
 
 // Runs cavitas under `timeout`, stdin closed, stdout and stderr to files.
-Run run(const std::string& args) {
+Run run(const std::string& args, int timeout_s = kTimeoutS) {
     const fs::path o = at("stdout.txt"), e = at("stderr.txt");
-    const std::string cmd = "timeout " + std::to_string(kTimeoutS) + " '" + std::string(CAVITAS_BIN) + "' " + args +
+    const std::string cmd = "timeout " + std::to_string(timeout_s) + " '" + std::string(CAVITAS_BIN) + "' " + args +
                             " </dev/null >" + q(o) + " 2>" + q(e);
     const int rc = std::system(cmd.c_str());
     Run r;
+    r.timeout_s = timeout_s;
     r.exited = WIFEXITED(rc);
     r.status = r.exited ? WEXITSTATUS(rc) : -1;
     r.out = slurp(o);
@@ -98,7 +103,7 @@ bool crashed_or_hung(const Run& r) { return !r.exited || r.status == 124 || r.st
 
 std::string describe(const Run& r) {
     if (!r.exited) return "killed by a signal";
-    if (r.status == 124) return "timed out after " + std::to_string(kTimeoutS) + " s (hang)";
+    if (r.status == 124) return "timed out after " + std::to_string(r.timeout_s) + " s (hang)";
     if (r.status > 128) return "killed by signal " + std::to_string(r.status - 128) + " (crash)";
     return "exit " + std::to_string(r.status);
 }
@@ -211,6 +216,7 @@ struct Row {
     std::vector<std::string> words;  // expected in stderr
     std::string culprit;         // the file the error line must name ("" for usage errors)
     std::string output;          // the -o / --json target ("" when there is none)
+    int timeout_s = kTimeoutS;   // beyond this the call counts as a hang
 };
 
 std::size_t line_count(const std::string& s) { return static_cast<std::size_t>(std::count(s.begin(), s.end(), '\n')); }
@@ -281,13 +287,13 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         {"WAV header cut at 12 bytes", text_file("cut12.wav", wav_bytes().substr(0, 12)),
          base_o + Q("o-cut12.json") + " " + Q("cut12.wav"), 1, {"not a readable recording"}, "cut12.wav",
          "o-cut12.json"},
-        // The fmt chunk itself is cut in the middle (before the sample rate's end).
+        // Cut inside the fmt chunk (after the sample rate, in the middle of the byte rate).
         {"WAV header cut at 30 bytes", text_file("cut30.wav", wav_bytes().substr(0, 30)),
          base_o + Q("o-cut30.json") + " " + Q("cut30.wav"), 1, {"not a readable recording"}, "cut30.wav",
          "o-cut30.json"},
-        // A complete header and not one sample: must be "no samples", not a 0 s verdict.
+        // The canonical 44-byte header complete and not one sample: "no samples", not a 0 s verdict.
         {"WAV header cut at 44 bytes", text_file("cut44.wav", wav_bytes().substr(0, 44)),
-         base_o + Q("o-cut44.json") + " " + Q("cut44.wav"), 1, {}, "cut44.wav", "o-cut44.json"},
+         base_o + Q("o-cut44.json") + " " + Q("cut44.wav"), 1, {"holds no samples"}, "cut44.wav", "o-cut44.json"},
         // The data chunk promises 4 s but the file holds 0.5 s: libsndfile trusts the
         // file's length, and 0.5 s is less than one analysis segment.
         {"WAV data chunk cut to 0.5 s",
@@ -305,15 +311,18 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          "o-tag1234.json"},
 
         // --- absurd header fields ---------------------------------------------------------
-        // Sample rate 0: every duration and frequency would divide by zero.
+        // Sample rate 0: every duration and frequency would divide by zero. libsndfile
+        // itself refuses it (its wording, "SF_INFO struct incomplete", is adopted as is).
         {"WAV sample rate 0", patched_wav("rate0.wav", fmt_field(4, 0u, 4)),
-         base_o + Q("o-rate0.json") + " " + Q("rate0.wav"), 1, {}, "rate0.wav", "o-rate0.json"},
+         base_o + Q("o-rate0.json") + " " + Q("rate0.wav"), 1, {"not a readable recording"}, "rate0.wav",
+         "o-rate0.json"},
         // Sample rate 10^9: a 1 s segment would need gigabytes (cavitas caps at 5 MHz).
         {"WAV sample rate 1 000 000 000", patched_wav("rate1e9.wav", fmt_field(4, 1000000000u, 4)),
          base_o + Q("o-rate1e9.json") + " " + Q("rate1e9.wav"), 1, {"sample rate"}, "rate1e9.wav", "o-rate1e9.json"},
-        // Zero channels: interleaving and channel selection would divide by zero.
+        // Zero channels: interleaving and channel selection would divide by zero
+        // (libsndfile refuses it: "Channel count is zero").
         {"WAV channels 0", patched_wav("ch0.wav", fmt_field(2, 0u, 2)),
-         base_o + Q("o-ch0.json") + " " + Q("ch0.wav"), 1, {}, "ch0.wav", "o-ch0.json"},
+         base_o + Q("o-ch0.json") + " " + Q("ch0.wav"), 1, {"not a readable recording"}, "ch0.wav", "o-ch0.json"},
         // RIFF size 0xFFFFFFFF (overflows any "size + 8"): libsndfile trusts the file's
         // real length, so the recording is fine and a baseline is learned (exit 0).
         {"WAV RIFF size 0xFFFFFFFF", patched_wav("riff-ffff.wav", [](std::string& b) { put_le(b, 4, 0xFFFFFFFFu, 4); }),
@@ -324,7 +333,8 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          patched_wav("data-ffff.wav", [](std::string& b) { put_le(b, chunk_body(b, "data") - 4, 0xFFFFFFFFu, 4); }),
          base_o + Q("o-data-ffff.json") + " " + Q("data-ffff.wav"), 0, {}, "", "o-data-ffff.json"},
         // 100 000 channels in a Sun/NeXT AU header: one interleaved frame would be 200 kB
-        // and a block of frames gigabytes; must be refused from the header.
+        // and a block of frames gigabytes; must be refused from the header. libsndfile
+        // refuses it first ("Too many channels specified"), before cavitas' own 1..1024 check.
         {"AU header with 100 000 channels",
          [] {
              std::string b = ".snd";
@@ -336,7 +346,7 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
              b.append(65536, '\0');
              spit(at("wide.au"), b);
          },
-         base_o + Q("o-wide.json") + " " + Q("wide.au"), 1, {}, "wide.au", "o-wide.json"},
+         base_o + Q("o-wide.json") + " " + Q("wide.au"), 1, {"not a readable recording"}, "wide.au", "o-wide.json"},
 
         // --- paths that are not regular files ------------------------------------------
         // A folder, even one named like a recording.
@@ -353,10 +363,12 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
              fs::remove(at("pipe.wav"), ec);
              REQUIRE(::mkfifo(at("pipe.wav").c_str(), 0600) == 0);
          },
-         base_o + Q("o-pipe.json") + " " + Q("pipe.wav"), 1, {"not a regular file"}, "pipe.wav", "o-pipe.json"},
+         base_o + Q("o-pipe.json") + " " + Q("pipe.wav"), 1, {"not a regular file"}, "pipe.wav", "o-pipe.json",
+         kQuickS},
         // The FIFO judged by analyze.
-        {"a FIFO as recording, analyzed", nothing, judge + good + " --json " + Q("j-pipe.json") + " " + Q("pipe.wav"), 1,
-         {"not a regular file"}, "pipe.wav", "j-pipe.json"},
+        {"a FIFO as recording, analyzed", nothing,
+         judge + good + " --json " + Q("j-pipe.json") + " " + Q("pipe.wav"), 1, {"not a regular file"}, "pipe.wav",
+         "j-pipe.json", kQuickS},
         // A bad recording after a good one: the first one's work must not leak out as a
         // baseline, and a stale output from an earlier run must survive.
         {"a good then a damaged recording over a stale output", stale_output("o-stale.json"),
@@ -420,6 +432,49 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          "analyze --machine OW-P102 --rpm 1485 --baseline " + Q("p101.json") + " --json " + Q("j-p102.json") + " " +
              today,
          1, {"baseline is for machine"}, "p101.json", "j-p102.json"},
+        // A FIFO as baseline: reading it would block for ever, like a FIFO recording.
+        // Spec: unreadable input, exit 1, one line naming the file (wording not specified).
+        {"a FIFO as baseline",
+         [] {
+             std::error_code ec;
+             fs::remove(at("bpipe.json"), ec);
+             REQUIRE(::mkfifo(at("bpipe.json").c_str(), 0600) == 0);
+         },
+         judge + Q("bpipe.json") + " --json " + Q("j-bpipe.json") + " " + today, 1, {}, "bpipe.json", "j-bpipe.json",
+         kQuickS},
+        // "rpm_estimated" of the wrong type: a JSON type error must still be one line
+        // naming the baseline, like "rpm": "fast".
+        {"baseline with \"rpm_estimated\": \"yes\"",
+         edited_baseline("rpm-est-str.json", [](nlohmann::json& j) { j["context"]["rpm_estimated"] = "yes"; }),
+         judge + Q("rpm-est-str.json") + " --json " + Q("j-rpm-est-str.json") + " " + today, 1, {}, "rpm-est-str.json",
+         "j-rpm-est-str.json", kQuickS},
+        // A hand-edited segment length of 0.1 ms (1 sample): the analysis cannot be set up;
+        // the error must name the baseline whose numbers caused it.
+        {"baseline with segment_s 1e-4",
+         edited_baseline("seg-tiny.json", [](nlohmann::json& j) { j["setup"]["segment_s"] = 1e-4; }),
+         judge + Q("seg-tiny.json") + " --json " + Q("j-seg-tiny.json") + " " + today, 1, {}, "seg-tiny.json",
+         "j-seg-tiny.json"},
+        // A negative HF band edge: same, the error must name the baseline.
+        {"baseline with hf_low_hz -5000",
+         edited_baseline("hf-neg.json", [](nlohmann::json& j) { j["setup"]["hf_low_hz"] = -5000.0; }),
+         judge + Q("hf-neg.json") + " --json " + Q("j-hf-neg.json") + " " + today, 1, {}, "hf-neg.json",
+         "j-hf-neg.json"},
+        // An LF band upside down (low edge above high edge): same.
+        {"baseline with lf_low_hz above lf_high_hz",
+         edited_baseline("lf-inv.json",
+                         [](nlohmann::json& j) {
+                             j["setup"]["lf_low_hz"] = 5000.0;
+                             j["setup"]["lf_high_hz"] = 10.0;
+                         }),
+         judge + Q("lf-inv.json") + " --json " + Q("j-lf-inv.json") + " " + today, 1, {}, "lf-inv.json",
+         "j-lf-inv.json"},
+        // A shaft speed of 10^15 rpm (far outside the 1..100000 that --rpm accepts) is an
+        // invalid baseline: it must be refused, and above all must not hang the speed
+        // search that analyze without --rpm runs near the baseline's speed.
+        {"baseline with rpm 1e15, analyzed without --rpm",
+         edited_baseline("rpm-1e15.json", [](nlohmann::json& j) { j["context"]["rpm"] = 1e15; }),
+         "analyze --baseline " + Q("rpm-1e15.json") + " --json " + Q("j-rpm-1e15.json") + " " + today, 1, {},
+         "rpm-1e15.json", "j-rpm-1e15.json", kQuickS},
         // A bad baseline over a stale finding: the old finding must survive.
         {"corrupt baseline over a stale finding", stale_output("j-stale.json"),
          judge + Q("half.json") + " --json " + Q("j-stale.json") + " " + today, 1, {"not valid JSON"}, "half.json",
@@ -479,34 +534,35 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         std::error_code ec;
         if (!row.output.empty() && fs::is_regular_file(out, ec)) before = slurp(out);
 
-        const Run r = run(row.command);
+        const Run r = run(row.command, row.timeout_s);
         INFO("command: cavitas " << row.command);
         INFO("got: " << describe(r) << "; stderr: " << r.err);
-        CHECK_FALSE(crashed_or_hung(r));
+        // A crash or a hang fails the row; its stderr then says nothing worth checking.
+        const bool died = crashed_or_hung(r);
+        CHECK_FALSE(died);
         CHECK(r.status == row.status);
-        for (const auto& w : row.words) CHECK(contains(r.err, w));
-
-        if (row.status == 0) {
-            CHECK_FALSE(contains(r.err, "error"));
-            if (!out.empty()) CHECK(fs::is_regular_file(out, ec));
-            continue;
-        }
-        CHECK_FALSE(r.err.empty());
-        if (row.status == 1) {
-            CHECK(line_count(r.err) == 1);
-            CHECK(r.err.back() == '\n');
-            CHECK(r.err.rfind("cavitas: error: ", 0) == 0);
-            CHECK(contains(r.err, at(row.culprit).string()));
-        }
-        if (!out.empty()) {
-            if (before) {
-                CHECK(fs::is_regular_file(out, ec));
-                CHECK(slurp(out) == *before);
-            } else {
-                CHECK_FALSE(fs::exists(out, ec));
+        if (!died) {
+            for (const auto& w : row.words) CHECK(contains(r.err, w));
+            if (row.status == 0) CHECK_FALSE(contains(r.err, "error"));
+            if (row.status != 0) CHECK_FALSE(r.err.empty());
+            if (row.status == 1) {
+                // "cavitas: error: <file>: <problem>", one line.
+                CHECK(line_count(r.err) == 1);
+                CHECK((!r.err.empty() && r.err.back() == '\n'));
+                CHECK(r.err.rfind("cavitas: error: ", 0) == 0);
+                CHECK(contains(r.err, at(row.culprit).string()));
             }
-            CHECK_FALSE(temp_leftover(out));
         }
+        if (out.empty()) continue;
+        if (row.status == 0) {
+            CHECK(fs::is_regular_file(out, ec));  // a verdict or a baseline was written
+        } else if (before) {
+            CHECK(fs::is_regular_file(out, ec));  // the file that was there is still there ...
+            CHECK(slurp(out) == *before);         // ... byte for byte
+        } else {
+            CHECK_FALSE(fs::exists(out, ec));
+        }
+        if (row.status != 0) CHECK_FALSE(temp_leftover(out));
     }
     CHECK_FALSE(fs::exists(at("no-such-out")));
 }
