@@ -5,11 +5,18 @@
 // (a type error not turned into a message) is a bug, like any other exception
 // or a sanitizer report. An accepted baseline must survive a round trip:
 // baseline_to_json, then dump, parse and read again, giving the same document.
+//
+// With FUZZ_BASELINE_MUST_ACCEPT=FILE in the environment (run.sh sets it to the
+// committed valid seed) the target first checks that FILE is still accepted:
+// a seed refused after a schema change would keep the fuzzer out of everything
+// past the first refusal without anyone noticing.
 #include <cstddef>
 #include <cstdint>
 #include <cstdio>
 #include <cstdlib>
 #include <exception>
+#include <fstream>
+#include <iterator>
 #include <string>
 #include <typeinfo>
 
@@ -45,6 +52,25 @@ void round_trip(const cavitas::models::Baseline& b) {
 }
 
 }  // namespace
+
+extern "C" int LLVMFuzzerInitialize(int*, char***) {
+    const char* must_accept = std::getenv("FUZZ_BASELINE_MUST_ACCEPT");
+    if (!must_accept || !*must_accept) return 0;
+    std::ifstream in(must_accept, std::ios::binary);
+    const std::string text{std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
+    const json j = json::parse(text, nullptr, false);
+    try {
+        if (!in || j.is_discarded()) throw cavitas::app::InputError(std::string(must_accept) + ": unreadable or not JSON");
+        (void)cavitas::app::baseline_from_json(j, must_accept);
+    } catch (const std::exception& e) {
+        std::fprintf(stderr,
+                     "fuzz_baseline: the valid seed is refused, so fuzzing would stay shallow: %s\n"
+                     "  (the baseline format changed? regenerate the corpus with tests/fuzz/make_corpus.sh)\n",
+                     e.what());
+        std::exit(1);
+    }
+    return 0;
+}
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
     const json j = json::parse(data, data + size, nullptr, false);

@@ -20,20 +20,22 @@ fi
 
 root="$(cd "$(dirname "${BASH_SOURCE[0]}")/../.." && pwd)"
 cd "$root"
-build=build-fuzz
+build="build-fuzz"
 jobs="${FUZZ_JOBS:-$(nproc 2>/dev/null || echo 2)}"
 read -r -a extra_args <<< "${FUZZ_ARGS:-}"
 
+mkdir -p "$build"
 CC="${FUZZ_CC:-clang}" CXX="${FUZZ_CXX:-clang++}" cmake -S . -B "$build" \
     -DCAVITAS_FUZZ=ON -DCAVITAS_SANITIZE=ON -DCMAKE_BUILD_TYPE=RelWithDebInfo \
-    -DCAVITAS_BUILD_TESTS=OFF -DCAVITAS_BUILD_TOOLS=OFF > "$build.configure.log" 2>&1 ||
-    { cat "$build.configure.log" >&2; rm -f "$build.configure.log"; exit 1; }
-rm -f "$build.configure.log"
+    -DCAVITAS_BUILD_TESTS=OFF -DCAVITAS_BUILD_TOOLS=OFF > "$build/configure.log" 2>&1 ||
+    { cat "$build/configure.log" >&2; exit 1; }
 cmake --build "$build" --target fuzz_recording fuzz_baseline -j "$jobs"
 
 scratch="$(mktemp -d "${TMPDIR:-/tmp}/cavitas-fuzz.XXXXXX")"
 trap 'rm -rf "$scratch"' EXIT
 export UBSAN_OPTIONS="${UBSAN_OPTIONS:-print_stacktrace=1:halt_on_error=1}"
+# fuzz_baseline refuses to start when the committed valid seed no longer reads.
+export FUZZ_BASELINE_MUST_ACCEPT="tests/fuzz/corpus/baseline/valid.json"
 
 failed=0
 summaries=()
