@@ -132,6 +132,25 @@ void SndfileSource::adopt(void* handle, const SF_INFO& sfi, int channel) {
     if (sfi.channels <= 0 || sfi.channels > 1024)
         fail(std::to_string(sfi.channels) + " channels in the header is not valid (1..1024 accepted)");
     if (sfi.frames <= 0) fail("holds no samples");
+    // A sample chunk that promises more bytes than the file holds means the file
+    // was cut short (an interrupted copy or recording): libsndfile would quietly
+    // read what is there. The placeholders 0 and 0xFFFFFFFF of streamed files
+    // ("length unknown") are not a promise and pass. libsndfile's parse log says
+    // "data : CLAIMED (should be PRESENT)" (WAV) or "SSND : ..." (AIFF).
+    {
+        char log[8192] = {0};
+        sf_command(f, SFC_GET_LOG_INFO, log, sizeof log - 1);
+        for (const char* tag : {"data : ", "SSND : "}) {
+            const char* at = std::strstr(log, tag);
+            if (!at) continue;
+            unsigned long long claimed = 0, present = 0;
+            if (std::sscanf(at + std::strlen(tag), "%llu (should be %llu)", &claimed, &present) == 2 &&
+                present < claimed && claimed != 0xFFFFFFFFull && claimed != 0)
+                fail("the header promises " + std::to_string(claimed) + " bytes of samples but the file holds " +
+                     std::to_string(present) + ": the file was cut short (interrupted copy or recording); copy it "
+                     "again from the collector");
+        }
+    }
     if (channel < 0 || channel >= sfi.channels)
         fail("channel " + std::to_string(channel) + " requested, but the file has " + std::to_string(sfi.channels) +
              " channel(s) numbered 0.." + std::to_string(sfi.channels - 1));

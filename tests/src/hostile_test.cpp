@@ -294,15 +294,20 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         // The canonical 44-byte header complete and not one sample: "no samples", not a 0 s verdict.
         {"WAV header cut at 44 bytes", text_file("cut44.wav", wav_bytes().substr(0, 44)),
          base_o + Q("o-cut44.json") + " " + Q("cut44.wav"), 1, {"holds no samples"}, "cut44.wav", "o-cut44.json"},
-        // The data chunk promises 4 s but the file holds 0.5 s: libsndfile trusts the
-        // file's length, and 0.5 s is less than one analysis segment.
+        // The data chunk promises 4 s but the file holds 0.5 s: libsndfile would read
+        // what is there; cavitas refuses a file cut short.
         {"WAV data chunk cut to 0.5 s",
          text_file("cut-data.wav", wav_bytes().substr(0, chunk_body(wav_bytes(), "data") + kRate)),
-         base_o + Q("o-cut-data.json") + " " + Q("cut-data.wav"), 1, {"shorter than one"}, "cut-data.wav",
+         base_o + Q("o-cut-data.json") + " " + Q("cut-data.wav"), 1, {"cut short"}, "cut-data.wav",
          "o-cut-data.json"},
         // The same short file judged by analyze: the --json target must not appear.
         {"WAV data chunk cut to 0.5 s, analyzed", nothing, judge + good + " --json " + Q("j-cut-data.json") + " " +
-         Q("cut-data.wav"), 1, {"shorter than one"}, "cut-data.wav", "j-cut-data.json"},
+         Q("cut-data.wav"), 1, {"cut short"}, "cut-data.wav", "j-cut-data.json"},
+        // Cut to 3 of its 4 s: long enough to analyse, but not the recording that was made.
+        {"WAV data chunk cut to 3 s, analyzed",
+         text_file("cut3s.wav", wav_bytes().substr(0, chunk_body(wav_bytes(), "data") + 6 * kRate)),
+         judge + good + " --json " + Q("j-cut3s.json") + " " + Q("cut3s.wav"), 1, {"cut short"}, "cut3s.wav",
+         "j-cut3s.json"},
 
         // --- an encoding nobody supports -----------------------------------------------
         // An unknown fmt format tag: libsndfile must refuse, not guess PCM.
