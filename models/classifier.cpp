@@ -2,10 +2,10 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdarg>
 #include <cstdio>
 
 #include "models/machine.hpp"
+#include "models/text.hpp"
 
 namespace cavitas::models {
 
@@ -40,16 +40,6 @@ std::string unit_key(const std::string& unit) {
 }
 
 namespace {
-
-std::string fmt(const char* f, ...) __attribute__((format(printf, 1, 2)));
-std::string fmt(const char* f, ...) {
-    char buf[512];
-    va_list ap;
-    va_start(ap, f);
-    std::vsnprintf(buf, sizeof buf, f, ap);
-    va_end(ap);
-    return buf;
-}
 
 std::string khz(double hz) { return fmt("%.1f", hz / 1000.0); }
 

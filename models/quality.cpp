@@ -2,8 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
-#include <cstdarg>
-#include <cstdio>
+
+#include "models/text.hpp"
 
 namespace cavitas::models {
 
@@ -40,16 +40,6 @@ std::size_t QualityReport::warning_count() const {
 }
 
 namespace {
-
-std::string fmt(const char* f, ...) __attribute__((format(printf, 1, 2)));
-std::string fmt(const char* f, ...) {
-    char buf[512];
-    va_list ap;
-    va_start(ap, f);
-    std::vsnprintf(buf, sizeof buf, f, ap);
-    va_end(ap);
-    return buf;
-}
 
 // A check where larger is worse: value >= fail_at fails, >= warn_at warns.
 QualityCheck graded(std::string name, std::string unit, double value, double warn_at, double fail_at,

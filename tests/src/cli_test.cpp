@@ -56,15 +56,15 @@ Run run(const std::string& args) {
     return r;
 }
 
-// A 6 s, 25.6 kHz, 16-bit recording: 1x and BPF tones over noise.
-fs::path make_wav(const std::string& name, unsigned seed, double noise = 0.02) {
+// A 6 s, 25.6 kHz recording (1x and BPF tones over noise), passed through `spoil` first;
+// written as 16-bit PCM, or 32-bit float when float_file (NaN survives only there).
+fs::path make_spoiled(const std::string& name, unsigned seed, const std::function<void(std::vector<float>&)>& spoil,
+                      bool float_file = false, double noise = 0.02) {
     const fs::path p = workdir() / name;
     SF_INFO info{};
     info.samplerate = 25600;
     info.channels = 1;
-    info.format = SF_FORMAT_WAV | SF_FORMAT_PCM_16;
-    SNDFILE* f = sf_open(p.string().c_str(), SFM_WRITE, &info);
-    REQUIRE(f != nullptr);
+    info.format = SF_FORMAT_WAV | (float_file ? SF_FORMAT_FLOAT : SF_FORMAT_PCM_16);
     std::vector<float> x(25600 * 6);
     std::uint64_t s = seed;
     for (std::size_t i = 0; i < x.size(); ++i) {
@@ -74,9 +74,18 @@ fs::path make_wav(const std::string& name, unsigned seed, double noise = 0.02) {
         x[i] = static_cast<float>(0.01 * std::sin(2 * std::numbers::pi * 24.75 * t) +
                                   0.02 * std::sin(2 * std::numbers::pi * 173.25 * t) + noise * u);
     }
+    spoil(x);
+    SNDFILE* f = sf_open(p.string().c_str(), SFM_WRITE, &info);
+    REQUIRE(f != nullptr);
+    if (!float_file) sf_command(f, SFC_SET_CLIPPING, nullptr, SF_TRUE);
     sf_writef_float(f, x.data(), static_cast<sf_count_t>(x.size()));
     sf_close(f);
     return p;
+}
+
+// A clean 6 s, 25.6 kHz, 16-bit recording.
+fs::path make_wav(const std::string& name, unsigned seed, double noise = 0.02) {
+    return make_spoiled(name, seed, [](std::vector<float>&) {}, false, noise);
 }
 
 std::string q(const fs::path& p) { return "'" + p.string() + "'"; }
@@ -214,36 +223,6 @@ TEST_CASE("A directory as baseline or an unwritable output folder fails before a
     CHECK_FALSE(fs::exists(workdir() / "no-such-folder"));
 }
 
-namespace {
-
-// A 6 s, 25.6 kHz recording like make_wav's, passed through `spoil` first;
-// written as 16-bit PCM, or 32-bit float when float_file (NaN survives only there).
-fs::path make_spoiled(const std::string& name, unsigned seed, const std::function<void(std::vector<float>&)>& spoil,
-                      bool float_file = false) {
-    const fs::path p = workdir() / name;
-    SF_INFO info{};
-    info.samplerate = 25600;
-    info.channels = 1;
-    info.format = SF_FORMAT_WAV | (float_file ? SF_FORMAT_FLOAT : SF_FORMAT_PCM_16);
-    std::vector<float> x(25600 * 6);
-    std::uint64_t s = seed;
-    for (std::size_t i = 0; i < x.size(); ++i) {
-        s = s * 6364136223846793005ULL + 1442695040888963407ULL;
-        const double u = static_cast<double>(s >> 11) / 9007199254740992.0 - 0.5;
-        const double t = static_cast<double>(i) / 25600.0;
-        x[i] = static_cast<float>(0.01 * std::sin(2 * std::numbers::pi * 24.75 * t) +
-                                  0.02 * std::sin(2 * std::numbers::pi * 173.25 * t) + 0.02 * u);
-    }
-    spoil(x);
-    SNDFILE* f = sf_open(p.string().c_str(), SFM_WRITE, &info);
-    REQUIRE(f != nullptr);
-    if (!float_file) sf_command(f, SFC_SET_CLIPPING, nullptr, SF_TRUE);
-    sf_writef_float(f, x.data(), static_cast<sf_count_t>(x.size()));
-    sf_close(f);
-    return p;
-}
-
-}  // namespace
 
 TEST_CASE("Recordings that cannot support a verdict are indeterminate with a reason that says what to do", "[cli]") {
     // Baseline from clean recordings of the same (synthetic) machine; units FS.
