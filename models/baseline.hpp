@@ -10,6 +10,7 @@
 
 #include "models/analyzer.hpp"
 #include "models/indicators.hpp"
+#include "models/operating_point.hpp"
 
 namespace cavitas::models {
 
@@ -46,6 +47,7 @@ struct Baseline {
     std::string unit = "FS";
     double full_scale = 1.0;
     std::vector<BaselineSource> sources;
+    OperatingPointSummary operating_point;  ///< the duty it was learned at, as stated (may be empty)
     std::array<RobustStat, kSegmentIndicatorCount> segment{};      ///< pooled over all segments
     std::array<RobustStat, kRecordingIndicatorCount> recording{};  ///< over recordings
     std::size_t segments = 0;

@@ -6,6 +6,7 @@
 #include <sstream>
 
 #include "src/errors.hpp"
+#include "src/text_file.hpp"
 
 namespace cavitas::app {
 
@@ -37,6 +38,18 @@ RobustStat stat_from(const json& j, const std::string& where) {
     if (!(c >= 0 && c <= 1e12)) throw InputError(where + ": count is outside 0 .. 1e12");
     s.count = static_cast<std::size_t>(c);
     return s;
+}
+
+// The operating point a baseline was learned at: only what was stated.
+json operating_point_json(const OperatingPointSummary& s) {
+    json j = json::object();
+    if (s.rpm) j["rpm"] = *s.rpm;
+    if (s.flow_m3_s) j["flow_m3_s"] = *s.flow_m3_s;
+    if (s.temperature_k) j["temperature_k"] = *s.temperature_k;
+    if (s.absolute_suction_pa) j["absolute_suction_pa"] = *s.absolute_suction_pa;
+    if (s.npsha_m) j["npsha_m"] = *s.npsha_m;
+    if (s.margin_ratio) j["margin_ratio"] = *s.margin_ratio;
+    return j;
 }
 
 }  // namespace
@@ -75,6 +88,7 @@ json baseline_to_json(const Baseline& b) {
         {"sources", sources},
         {"segment_indicators", seg},
         {"recording_indicators", rec},
+        {"operating_point", operating_point_json(b.operating_point)},
     };
 }
 
@@ -160,6 +174,22 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
             if (e.contains("rpm") && e["rpm"].is_number()) src.rpm = e["rpm"];
             b.sources.push_back(src);
         }
+    // Optional (older baselines have none): the operating point it was learned at.
+    if (j.contains("operating_point")) {
+        const json& o = j["operating_point"];
+        const std::string wo = origin + " (operating_point)";
+        if (!o.is_object()) throw InputError(wo + ": expected an object");
+        auto opt = [&](const char* key, double lo, double hi) -> std::optional<double> {
+            if (!o.contains(key)) return std::nullopt;
+            return in_range(num(o, key, wo), lo, hi, key, wo);
+        };
+        b.operating_point.rpm = opt("rpm", 0.0, 100000.0);
+        b.operating_point.flow_m3_s = opt("flow_m3_s", 0.0, 1e4);
+        b.operating_point.temperature_k = opt("temperature_k", 0.0, 2000.0);
+        b.operating_point.absolute_suction_pa = opt("absolute_suction_pa", 0.0, 1e9);
+        b.operating_point.npsha_m = opt("npsha_m", -1e5, 1e5);
+        b.operating_point.margin_ratio = opt("margin_ratio", -1e5, 1e5);
+    }
     for (const char* part : {"segment_indicators", "recording_indicators"})
         if (!j.contains(part) || !j[part].is_object()) throw InputError(origin + ": missing '" + part + "'");
     for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) {
@@ -190,15 +220,8 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
 }
 
 Baseline read_baseline_file(const std::string& path) {
-    std::error_code ec;
-    if (!std::filesystem::exists(path, ec)) throw InputError(path + ": no such baseline file");
-    if (std::filesystem::is_directory(path, ec)) throw InputError(path + ": is a directory, not a baseline file");
-    if (!std::filesystem::is_regular_file(path, ec)) throw InputError(path + ": is not a regular file");
-    std::ifstream in(path, std::ios::binary);
-    if (!in) throw InputError(path + ": cannot open baseline");
-    std::stringstream ss;
-    ss << in.rdbuf();
-    json j = json::parse(ss.str(), nullptr, false);
+    const std::string text = read_text_file(path, "baseline file");
+    json j = json::parse(text, nullptr, false);
     if (j.is_discarded()) throw InputError(path + ": baseline is not valid JSON (corrupt or truncated)");
     return baseline_from_json(j, path);
 }

@@ -100,6 +100,48 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
     return r;
 }
 
+OperatingPointText OperatingPointFlags::text() const {
+    OperatingPointText t;
+    for (const auto& f : operating_point_fields()) {
+        const auto it = values.find(f.key);
+        if (it != values.end() && !it->second.empty()) t.emplace_back(f.key, it->second);
+    }
+    return t;
+}
+
+std::optional<ResolvedOperatingPoint> resolve_operating_point(const OperatingPointFlags& flags,
+                                                              const std::string& recording) {
+    ResolvedOperatingPoint r;
+    std::string file;
+    if (flags.file) {
+        file = *flags.file;
+    } else if (!recording.empty()) {
+        const std::string side = sidecar_path_for(recording);
+        std::error_code ec;
+        if (std::filesystem::exists(side, ec)) file = side;
+    }
+    if (!file.empty()) {
+        r.op = read_operating_point_file(file);
+        r.sources.push_back(file);
+    }
+    const OperatingPointText given = flags.text();
+    if (!given.empty()) {
+        TextOrigin origin;
+        origin.flags = true;
+        r.op.overlay(parse_operating_point(given, origin));
+        r.sources.push_back("command line");
+    }
+    if (r.op.empty()) return std::nullopt;
+    try {
+        r.hydraulics = models::evaluate_operating_point(r.op);
+    } catch (const std::invalid_argument& e) {
+        if (file.empty()) throw UsageError(std::string("operating point: ") + e.what());
+        throw InputError(file + ": operating point" + (given.empty() ? "" : " (with the command-line values)") + ": " +
+                         e.what());
+    }
+    return r;
+}
+
 namespace {
 
 Calibration calibration_of(const std::optional<std::string>& text) {
@@ -153,8 +195,15 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     std::vector<models::RecordingAnalysis> analyses;
     std::vector<models::BaselineSource> sources;
     std::optional<models::AnalysisSetup> setup;
+    std::vector<std::pair<models::OperatingPoint, models::Hydraulics>> duties;
     for (const auto& path : o.recordings) {
-        AnalyzedRecording r = analyze_file(path, o.channel, cal, setup, sensor_max, machine, stderr_progress(path, err));
+        // The operating point first: a mistyped reading fails before minutes of analysis.
+        const auto duty = resolve_operating_point(o.operating, path);
+        models::MachineContext this_machine = machine;
+        if (!this_machine.rpm && duty && duty->op.rpm) this_machine.rpm = duty->op.rpm;
+        AnalyzedRecording r =
+            analyze_file(path, o.channel, cal, setup, sensor_max, this_machine, stderr_progress(path, err));
+        if (duty) duties.emplace_back(duty->op, duty->hydraulics);
         if (setup && r.info.fs_hz != setup->fs_hz)
             throw InputError(path + ": sample rate " + std::to_string(static_cast<int>(r.info.fs_hz)) +
                              " Hz differs from the first recording's " + std::to_string(static_cast<int>(setup->fs_hz)) +
@@ -186,6 +235,7 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     b.unit = cal.unit;
     b.full_scale = cal.full_scale;
     b.sources = sources;
+    b.operating_point = models::summarize(duties);
     write_file_atomically(o.output, baseline_to_json(b).dump(2) + "\n");
     out << "baseline written to " << o.output << "\n"
         << "  " << b.sources.size() << " recording(s), " << b.segments << " segments of " << b.setup.segment_s << " s at "
@@ -201,6 +251,7 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     else
         out << "  shaft speed unknown: give --rpm so that envelope lines can be checked\n";
     if (b.vanes > 0) out << "  " << b.vanes << " vanes, BPF " << models::blade_pass_hz(b.rpm, b.vanes) << " Hz\n";
+    write_operating_point_summary(out, b.operating_point, duties.size(), b.sources.size());
 }
 
 AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
@@ -216,8 +267,11 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
         cal.full_scale = r.baseline.full_scale;
         cal.unit = r.baseline.unit;
     }
+    // The operating point first: a mistyped reading fails before the analysis.
+    std::optional<ResolvedOperatingPoint> duty = resolve_operating_point(o.operating, o.recording);
     models::MachineContext machine;
     machine.rpm = o.rpm;
+    if (!machine.rpm && duty && duty->op.rpm) machine.rpm = duty->op.rpm;
     machine.vanes = o.vanes ? *o.vanes : r.baseline.vanes;
     machine.rpm_hint = r.baseline.rpm;
     r.recording = analyze_file(o.recording, o.channel, cal, r.baseline.setup, 0.0, machine, progress);
@@ -226,14 +280,52 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     ctx.channel = o.channel;
     ctx.sensor_max_hz = sensor_limit(o.sensor_max_hz, o.mount);
     r.finding = models::classify(r.recording.analysis, r.baseline, ctx);
+    if (duty) {
+        OperatingPointFinding of;
+        of.resolved = std::move(*duty);
+        of.reading = models::read_margin(r.finding.verdict, of.resolved.hydraulics);
+        of.baseline_differences = models::compare_with_baseline(r.baseline.operating_point, of.resolved.op);
+        models::flag_operating_point_differences(r.finding, of.baseline_differences);
+        r.operating = std::move(of);
+    }
     return r;
 }
 
 void run_analyze(const AnalyzeOptions& o, std::ostream& out, std::ostream& err) {
-    if (o.json_output) refuse_overwriting_input(*o.json_output, {o.recording, o.baseline});
+    if (o.json_output) {
+        std::vector<std::string> inputs{o.recording, o.baseline};
+        if (o.operating.file) inputs.push_back(*o.operating.file);
+        refuse_overwriting_input(*o.json_output, inputs);
+    }
     const AnalyzeResult r = analyze(o, stderr_progress(o.recording, err));
     if (o.json_output) write_file_atomically(*o.json_output, finding_to_json(r, o.baseline).dump(2) + "\n");
     write_summary(out, r, o.baseline);
+}
+
+void run_npsh(const NpshOptions& o, std::ostream& out) {
+    const OperatingPointText given = o.operating.text();
+    if (!o.operating.file && given.empty())
+        throw UsageError("npsh: give the suction reading (--suction-pressure and --temperature) for a pump, or "
+                         "--runner-setting and --net-head for a turbine; see 'cavitas npsh --help'");
+    if (o.json_output) {
+        std::vector<std::string> inputs;
+        if (o.operating.file) inputs.push_back(*o.operating.file);
+        refuse_overwriting_input(*o.json_output, inputs);
+    }
+    const auto duty = resolve_operating_point(o.operating, "");
+    const models::Hydraulics& h = duty->hydraulics;
+    if (!h.npsh && !h.thoma_sigma)
+        throw UsageError("npsh: give --suction-pressure (a pump's NPSH available) or --runner-setting and --net-head "
+                         "(a turbine's Thoma number)");
+    // NPSH3 was asked for but cannot be read: say so as an error, not as a missing key.
+    if ((duty->op.npsh3_m || duty->op.npsh3_curve) && !h.margin && h.margin_unavailable)
+        throw InputError((duty->op.npsh3_curve_name.empty() ? std::string("npsh") : duty->op.npsh3_curve_name) + ": " +
+                         *h.margin_unavailable);
+    if (o.json_output) {
+        nlohmann::json j = npsh_to_json(*duty);
+        write_file_atomically(*o.json_output, j.dump(2) + "\n");
+    }
+    write_npsh_account(out, *duty);
 }
 
 }  // namespace cavitas::app

@@ -4,6 +4,7 @@
 
 #include <functional>
 #include <iosfwd>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -11,7 +12,10 @@
 #include "models/analyzer.hpp"
 #include "models/baseline.hpp"
 #include "models/classifier.hpp"
+#include "models/margin_reading.hpp"
+#include "models/operating_point.hpp"
 #include "src/errors.hpp"
+#include "src/operating_point_io.hpp"
 #include "src/recording.hpp"
 
 namespace cavitas::app {
@@ -37,6 +41,28 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
                                const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
                                const models::MachineContext& machine, const Progress& progress = {});
 
+/// The operating-point flags of a command, as typed (key -> text; empty = not
+/// given), and --operating-point FILE.
+struct OperatingPointFlags {
+    std::map<std::string, std::string> values;
+    std::optional<std::string> file;
+    OperatingPointText text() const;
+};
+
+/// An operating point put together from a sidecar file and flags, and what
+/// follows from it.
+struct ResolvedOperatingPoint {
+    models::OperatingPoint op;
+    std::vector<std::string> sources;  ///< files read, then "command line"
+    models::Hydraulics hydraulics;
+};
+
+/// The sidecar (--operating-point FILE, else NAME.op.toml beside `recording`
+/// when it exists) overlaid by the flags, evaluated. nullopt when nothing was
+/// stated. Errors: UsageError for bad flags, InputError naming the file.
+std::optional<ResolvedOperatingPoint> resolve_operating_point(const OperatingPointFlags& flags,
+                                                              const std::string& recording);
+
 struct BaselineOptions {
     std::string machine;
     std::vector<std::string> recordings;
@@ -48,6 +74,7 @@ struct BaselineOptions {
     double sensor_max_hz = 0.0;
     std::string mount;
     double segment_s = 1.0;
+    OperatingPointFlags operating;
 };
 
 struct AnalyzeOptions {
@@ -61,19 +88,36 @@ struct AnalyzeOptions {
     std::optional<double> rpm;
     std::optional<int> vanes;
     std::optional<std::string> full_scale;
+    OperatingPointFlags operating;
 };
 
 /// Learn and write a baseline; prints a summary to out.
 void run_baseline(const BaselineOptions& options, std::ostream& out, std::ostream& err);
 
+/// The operating point of an analysed recording beside its verdict.
+struct OperatingPointFinding {
+    ResolvedOperatingPoint resolved;
+    models::MarginReading reading;
+    std::vector<std::string> baseline_differences;  ///< also in the finding's warnings
+};
+
 struct AnalyzeResult {
     AnalyzedRecording recording;
     models::Baseline baseline;
     models::Finding finding;
+    std::optional<OperatingPointFinding> operating;
 };
 AnalyzeResult analyze(const AnalyzeOptions& options, const Progress& progress = {});
 /// analyze() + text summary to out + JSON file when asked.
 void run_analyze(const AnalyzeOptions& options, std::ostream& out, std::ostream& err);
+
+struct NpshOptions {
+    OperatingPointFlags operating;
+    std::optional<std::string> json_output;
+};
+/// NPSH available, margin and Thoma number from the flags (and --operating-point);
+/// a readable account to out, JSON when asked.
+void run_npsh(const NpshOptions& options, std::ostream& out);
 
 /// UTC now as 2026-12-01T22:07:23Z.
 std::string utc_now();

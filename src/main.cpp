@@ -16,10 +16,12 @@ const char* kIntro =
     "Learn a baseline from known-good recordings of one machine and measurement point,\n"
     "then judge a new recording from the same point against it: normal, incipient or\n"
     "developed cavitation (or indeterminate when the data cannot support a verdict),\n"
-    "with the evidence in numbers.\n"
+    "with the evidence in numbers, read beside the NPSH margin when the operating\n"
+    "point is given (flags, or NAME.op.toml beside the recording).\n"
     "\n"
     "  cavitas baseline --rpm 1485 --vanes 7 --full-scale 50g -o P101.json good1.wav good2.wav\n"
     "  cavitas analyze  --baseline P101.json --rpm 1490 --json finding.json today.wav\n"
+    "  cavitas npsh     --suction-pressure 35kPa --temperature 60C --flow 120m3/h --bore 150mm --npsh3 4.2m\n"
     "\n"
     "Exit status: 0 a verdict was reached (indeterminate included), 1 unreadable or\n"
     "invalid input, 2 a usage error.";
@@ -35,6 +37,51 @@ std::string one_line(const std::string& s) {
     }
     return o;
 }
+
+// The operating-point flags, the same on every command that takes them.
+// beside_recording: the command reads NAME.op.toml beside each recording by default.
+void add_operating_point_flags(CLI::App* cmd, OperatingPointFlags& f, bool beside_recording) {
+    for (const auto& field : operating_point_fields()) {
+        if (!field.flag) continue;
+        const std::string key = field.key;
+        auto* opt = cmd->add_option(field.flag, f.values[field.key], field.help)->group("Operating point");
+        if (key == "pressure_ref") opt->check(CLI::IsMember({"gauge", "absolute"}));
+        else if (key == "npsh3_curve") opt->type_name("FILE");
+        else if (key == "sigma_critical") opt->type_name("NUMBER");
+        else opt->type_name("VALUE+UNIT");
+    }
+    cmd->add_option("--operating-point", f.file,
+                    std::string("TOML file of the operating point (keys as the flags with _ for -: suction_pressure = "
+                                "\"35 kPa\", temperature = \"60 C\", flow = \"120 m3/h\", speed = \"1485 rpm\", "
+                                "note = \"...\"); flags override it") +
+                        (beside_recording ? ". Default: NAME.op.toml beside the recording NAME.wav, when there is one"
+                                          : ""))
+        ->group("Operating point")
+        ->type_name("FILE");
+}
+
+const char* kNpshHelp =
+    "NPSH available at the impeller-eye datum from a suction-gauge reading, its margin over the\n"
+    "pump's NPSH3, and for turbines the plant Thoma number. Every value carries its unit.\n"
+    "\n"
+    "  NPSHa = (p_abs - p_v) / (rho g) + v^2 / (2 g) + z\n"
+    "    p_abs  suction pressure, absolute (a gauge reading + the barometric pressure)\n"
+    "    p_v    vapour pressure of the liquid at its temperature (water: IAPWS-IF97)\n"
+    "    rho    liquid density (water: IAPWS-IF97 region 1); g = 9.80665 m/s2\n"
+    "    v      mean velocity in the suction pipe at the gauge (--flow / bore area)\n"
+    "    z      height of the gauge above the impeller-eye datum (--gauge-height)\n"
+    "  Margin: NPSHa - NPSH3 (m) and NPSHa / NPSH3. NPSH3 is where the pump's head has fallen by 3 %:\n"
+    "  cavitation is already well developed there, and starts well above it.\n"
+    "  Thoma (turbine): sigma = (H_atm - H_v - H_s) / H, heads in metres of liquid.\n"
+    "\n"
+    "  cavitas npsh --suction-pressure 35kPa --temperature 60C --elevation 350m --gauge-height 0.8m \\\n"
+    "               --flow 120m3/h --bore 150mm --npsh3 4.2m\n"
+    "  cavitas npsh --suction-pressure 5psig --temperature 140F --barometric 14.7psi --flow 500gpm --bore 6in\n"
+    "  cavitas npsh --temperature 12C --elevation 350m --runner-setting 3m --net-head 50m --sigma-critical 0.09\n"
+    "\n"
+    "Units: pressure Pa, hPa, kPa, MPa, bar, mbar, psi (psig/psia, barg/bara say gauge or absolute);\n"
+    "length m, cm, mm, ft, in; temperature C, F, K; flow m3/h, m3/s, L/s, L/min, gpm (US);\n"
+    "density kg/m3, g/cm3, lb/ft3. A number without a unit is refused.";
 
 }  // namespace
 
@@ -74,6 +121,7 @@ int main(int argc, char** argv) {
                      "Sensor mounting, caps the HF band: handheld (2 kHz), magnet (5 kHz), adhesive (6 kHz), stud (7 kHz)")
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
     base->add_option("--segment", bo.segment_s, "Analysis segment length, s (default 1)")->check(CLI::Range(0.25, 10.0));
+    add_operating_point_flags(base, bo.operating, true);
 
     AnalyzeOptions ao;
     auto* an = app.add_subcommand(
@@ -100,6 +148,12 @@ int main(int argc, char** argv) {
         ->check(CLI::Range(100.0, 1.0e6));
     an->add_option("--mount", ao.mount, "Sensor mounting for this recording: handheld, magnet, adhesive or stud (see baseline --help)")
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
+    add_operating_point_flags(an, ao.operating, true);
+
+    NpshOptions no;
+    auto* np = app.add_subcommand("npsh", kNpshHelp);
+    add_operating_point_flags(np, no.operating, false);
+    np->add_option("--json", no.json_output, "Write the result as JSON to this file (atomically)")->type_name("FILE");
 
     try {
         app.parse(argc, argv);
@@ -110,6 +164,7 @@ int main(int argc, char** argv) {
     try {
         if (*base) run_baseline(bo, std::cout, std::cerr);
         if (*an) run_analyze(ao, std::cout, std::cerr);
+        if (*np) run_npsh(no, std::cout);
         return static_cast<int>(ExitCode::ok);
     } catch (const UsageError& e) {
         std::cerr << "cavitas: usage: " << one_line(e.what()) << "\n";

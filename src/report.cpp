@@ -4,6 +4,7 @@
 #include <cstdio>
 #include <ostream>
 
+#include "models/hydraulics.hpp"
 #include "models/machine.hpp"
 
 namespace cavitas::app {
@@ -29,6 +30,43 @@ std::string num(double v, int decimals) {
     char b[64];
     std::snprintf(b, sizeof b, "%.*f", decimals, v);
     return b;
+}
+
+std::string signed_num(double v, int decimals) {
+    char b[64];
+    std::snprintf(b, sizeof b, "%+.*f", decimals, v);
+    return b;
+}
+
+constexpr double kM3sToM3h = 3600.0;
+
+std::string kpa(double pa) { return num(pa / 1000.0, 3) + " kPa"; }
+std::string celsius(double k) { return num(k - 273.15, 2) + " C"; }
+
+std::string reference_word(const models::OperatingPoint& op) {
+    return op.pressure_reference && *op.pressure_reference == models::PressureReference::absolute ? "absolute" : "gauge";
+}
+
+// The operating-point block of analyze's summary.
+void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
+    const auto& op = of.resolved.op;
+    const auto& h = of.resolved.hydraulics;
+    std::string from;
+    for (const auto& s : of.resolved.sources) from += (from.empty() ? "" : " + ") + s;
+    out << "  operating point (" << from << "):\n";
+    std::string duty;
+    auto add = [&duty](const std::string& s) { duty += (duty.empty() ? "" : ", ") + s; };
+    if (op.flow_m3_s) add(num(*op.flow_m3_s * kM3sToM3h, 1) + " m3/h");
+    if (op.rpm) add(num(*op.rpm, 0) + " rpm");
+    if (op.temperature_k) add(celsius(*op.temperature_k));
+    if (h.absolute_suction_pa) add("suction " + kpa(*h.absolute_suction_pa) + " absolute");
+    if (!duty.empty()) out << "    duty        " << duty << "\n";
+    if (!of.reading.summary.empty()) out << "    NPSH        " << of.reading.summary << "\n";
+    out << "    reading     " << models::to_string(of.reading.agreement) << "\n";
+    for (const auto& n : of.reading.notes) out << "    - " << n << "\n";
+    // Differences from the baseline's duty are listed under "lowered confidence" above.
+    for (const auto& n : h.notes) out << "    . " << n << "\n";
+    if (!op.note.empty()) out << "    note        " << op.note << "\n";
 }
 
 }  // namespace
@@ -58,6 +96,7 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
         out << "  lowered confidence:\n";
         for (const auto& s : f.warnings) out << "    - " << s << "\n";
     }
+    if (r.operating) write_operating_point(out, *r.operating);
     if (cavitating(f.verdict)) {
         out << "  caution:\n";
         for (const auto& s : models::cavitation_cautions()) out << "    ! " << s << "\n";
@@ -158,7 +197,174 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
           {"recordings", b.sources.size()},
           {"rpm", b.rpm}}},
     };
+    if (r.operating) {
+        json op = hydraulics_to_json(r.operating->resolved);
+        op["agreement"] = models::to_string(r.operating->reading.agreement);
+        op["summary"] = r.operating->reading.summary;
+        op["reading_notes"] = r.operating->reading.notes;
+        op["baseline_differences"] = r.operating->baseline_differences;
+        j["operating_point"] = op;
+    }
     return j;
+}
+
+json hydraulics_to_json(const ResolvedOperatingPoint& duty) {
+    const auto& op = duty.op;
+    const auto& h = duty.hydraulics;
+    json stated = json::object();
+    if (op.suction_pressure_pa) {
+        stated["suction_pressure_pa"] = *op.suction_pressure_pa;
+        stated["pressure_reference"] = reference_word(op);
+    }
+    if (op.barometric_pa) stated["barometric_pa"] = *op.barometric_pa;
+    if (op.elevation_m) stated["elevation_m"] = *op.elevation_m;
+    if (op.temperature_k) stated["temperature_k"] = *op.temperature_k;
+    if (op.gauge_height_m) stated["gauge_height_m"] = *op.gauge_height_m;
+    if (op.flow_m3_s) stated["flow_m3_s"] = *op.flow_m3_s;
+    if (op.bore_m) stated["bore_m"] = *op.bore_m;
+    if (op.npsh3_m) stated["npsh3_m"] = *op.npsh3_m;
+    if (op.npsh3_curve) {
+        json pts = json::array();
+        for (const auto& p : op.npsh3_curve->points()) pts.push_back({{"flow_m3_s", p.flow_m3_s}, {"npsh3_m", p.npsh3_m}});
+        stated["npsh3_curve"] = {{"file", op.npsh3_curve_name}, {"points", pts}};
+    }
+    if (op.vapour_pressure_pa) stated["vapour_pressure_pa"] = *op.vapour_pressure_pa;
+    if (op.density_kg_m3) stated["density_kg_m3"] = *op.density_kg_m3;
+    if (op.rpm) stated["rpm"] = *op.rpm;
+    if (op.runner_setting_m) stated["runner_setting_m"] = *op.runner_setting_m;
+    if (op.net_head_m) stated["net_head_m"] = *op.net_head_m;
+    if (op.sigma_critical) stated["sigma_critical"] = *op.sigma_critical;
+    if (!op.note.empty()) stated["note"] = op.note;
+
+    json j = json::object();
+    j["sources"] = duty.sources;
+    j["stated"] = stated;
+    if (h.barometric_pa) {
+        j["barometric_pa"] = *h.barometric_pa;
+        j["barometric_source"] = h.barometric_source;
+    }
+    if (h.liquid) {
+        j["vapour_pressure_pa"] = h.liquid->vapour_pressure_pa;
+        j["density_kg_m3"] = h.liquid->density_kg_m3;
+        j["liquid_source"] = h.liquid->source;
+    }
+    if (h.absolute_suction_pa) j["absolute_suction_pa"] = *h.absolute_suction_pa;
+    if (h.velocity_m_s) j["velocity_m_s"] = *h.velocity_m_s;
+    if (h.npsh) {
+        j["pressure_head_m"] = h.npsh->pressure_head_m;
+        j["velocity_head_m"] = h.npsh->velocity_head_m;
+        j["elevation_head_m"] = h.npsh->elevation_head_m;
+        j["npsha_m"] = h.npsh->npsha_m;
+    }
+    if (h.npsh3_m) {
+        j["npsh3_m"] = *h.npsh3_m;
+        j["npsh3_source"] = h.npsh3_source;
+    }
+    if (h.margin) {
+        j["margin_m"] = h.margin->margin_m;
+        j["margin_ratio"] = h.margin->ratio;
+        j["margin_class"] = models::to_string(h.margin->margin_class);
+        j["required_npsha_m"] = h.margin->required_m;
+        j["margin_guidance"] = models::margin_guidance_text();
+    }
+    if (h.margin_unavailable) j["margin_unavailable"] = *h.margin_unavailable;
+    if (h.thoma_sigma) j["thoma_sigma"] = *h.thoma_sigma;
+    if (h.thoma_ratio) j["thoma_ratio_to_critical"] = *h.thoma_ratio;
+    j["notes"] = h.notes;
+    return j;
+}
+
+json npsh_to_json(const ResolvedOperatingPoint& duty) {
+    json j = {{"schema", kNpshSchema}, {"cavitas_version", kVersion}, {"created_utc", utc_now()}};
+    j.update(hydraulics_to_json(duty));
+    return j;
+}
+
+namespace {
+
+constexpr double kFoot_m = 0.3048;
+
+// "13.05 m (42.82 ft)": heads in both, for readers of either kind of pump curve.
+std::string head(double m) { return num(m, 2) + " m (" + num(m / kFoot_m, 2) + " ft)"; }
+
+// One term of the NPSH sum, right-aligned: "      12.070 m   (p_abs - p_v) / (rho g)".
+std::string term(double m, bool with_sign = false) {
+    char b[64];
+    std::snprintf(b, sizeof b, with_sign ? "%+9.3f m" : "%9.3f m", m);
+    return b;
+}
+
+}  // namespace
+
+void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty) {
+    const auto& op = duty.op;
+    const auto& h = duty.hydraulics;
+    if (h.npsh) {
+        const auto& n = *h.npsh;
+        out << "NPSH available  " << head(n.npsha_m) << " of liquid at the impeller-eye datum\n";
+        out << "  suction pressure  " << kpa(*h.absolute_suction_pa) << " absolute";
+        if (reference_word(op) == "gauge")
+            out << " = " << kpa(*op.suction_pressure_pa) << " gauge + " << kpa(*h.barometric_pa) << " barometric ("
+                << h.barometric_source << ")";
+        out << "\n";
+        out << "  liquid            " << h.liquid->source;
+        if (op.temperature_k && h.liquid->source != "given") out << " at " << celsius(*op.temperature_k);
+        out << ": vapour pressure " << kpa(h.liquid->vapour_pressure_pa) << ", density "
+            << num(h.liquid->density_kg_m3, 2) << " kg/m3\n";
+        out << "  pressure head     " << term(n.pressure_head_m) << "   (p_abs - p_v) / (rho g)\n";
+        out << "  velocity head     " << term(n.velocity_head_m);
+        if (h.velocity_m_s)
+            out << "   v^2 / 2g, v = " << num(*h.velocity_m_s, 2) << " m/s (" << num(*op.flow_m3_s * kM3sToM3h, 1)
+                << " m3/h in a " << num(*op.bore_m * 1000.0, 1) << " mm bore)";
+        else
+            out << "   (not included)";
+        out << "\n";
+        out << "  gauge height      " << term(n.elevation_head_m, true) << "   above the datum\n";
+        out << "  NPSHa             " << term(n.npsha_m) << "\n";
+    }
+    if (h.npsh3_m) {
+        out << "NPSH3           " << head(*h.npsh3_m) << " (" << h.npsh3_source << ")\n";
+        if (h.margin) {
+            const auto& m = *h.margin;
+            out << "margin          " << signed_num(m.margin_m, 2) << " m (" << signed_num(m.margin_m / kFoot_m, 2)
+                << " ft), NPSHa/NPSH3 = " << num(m.ratio, 2) << ": " << models::to_string(m.margin_class)
+                << " (guidance minimum " << num(m.required_m, 2) << " m)\n";
+            out << "  " << models::margin_guidance_text() << "\n";
+        }
+    }
+    if (h.thoma_sigma) {
+        const double rho_g = h.liquid->density_kg_m3 * models::kStandardGravityM_s2;
+        out << "Thoma number (plant)  " << num(*h.thoma_sigma, 4) << " = (H_atm " << num(*h.barometric_pa / rho_g, 3)
+            << " m - H_v " << num(h.liquid->vapour_pressure_pa / rho_g, 3) << " m - H_s "
+            << num(*op.runner_setting_m, 3) << " m) / H " << num(*op.net_head_m, 3) << " m\n";
+        out << "  barometric " << kpa(*h.barometric_pa) << " (" << h.barometric_source << "), " << h.liquid->source;
+        if (op.temperature_k && h.liquid->source != "given") out << " at " << celsius(*op.temperature_k);
+        out << "\n";
+        if (h.thoma_ratio)
+            out << "  " << num(*h.thoma_ratio, 2) << " x the critical value " << num(*op.sigma_critical, 4)
+                << (*h.thoma_ratio < 1.0 ? ": below it, cavitation is expected at this setting" : "") << "\n";
+    }
+    if (!h.notes.empty()) {
+        out << "notes:\n";
+        for (const auto& n : h.notes) out << "  - " << n << "\n";
+    }
+}
+
+void write_operating_point_summary(std::ostream& out, const models::OperatingPointSummary& s, std::size_t stated,
+                                   std::size_t recordings) {
+    if (s.empty()) {
+        out << "  operating point not stated: give the flow, suction pressure and temperature (flags or NAME.op.toml "
+               "beside each recording) so that later findings can be read against the duty\n";
+        return;
+    }
+    std::string duty;
+    auto add = [&duty](const std::string& t) { duty += (duty.empty() ? "" : ", ") + t; };
+    if (s.flow_m3_s) add(num(*s.flow_m3_s * kM3sToM3h, 1) + " m3/h");
+    if (s.rpm) add(num(*s.rpm, 0) + " rpm");
+    if (s.temperature_k) add(celsius(*s.temperature_k));
+    if (s.npsha_m) add("NPSHa " + num(*s.npsha_m, 2) + " m");
+    if (s.margin_ratio) add("NPSHa/NPSH3 " + num(*s.margin_ratio, 2));
+    out << "  operating point (median of " << stated << " of " << recordings << " recording(s)): " << duty << "\n";
 }
 
 }  // namespace cavitas::app

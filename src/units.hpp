@@ -1,6 +1,11 @@
-// Full-scale calibration of a recording: what one full-scale sample means.
+// Numbers with units at the edge: full-scale calibrations of recordings, and
+// the operating-point quantities (pressure, length, temperature, flow,
+// density, speed) typed on the command line, in sidecar files and in route
+// manifests. Everything is converted to SI here; nothing past this file sees
+// a psi or a degree Fahrenheit.
 #pragma once
 
+#include <optional>
 #include <string>
 
 namespace cavitas::app {
@@ -15,5 +20,33 @@ struct Calibration {
 /// Parse "<number><unit>", unit one of g, m/s2 (also m/s^2, m/s²), Pa, kPa, FS.
 /// Throws UsageError naming the text and what is accepted.
 Calibration parse_full_scale(const std::string& text);
+
+/// Kinds of quantity and the SI unit each is returned in.
+enum class Quantity {
+    pressure,     ///< Pa
+    length,       ///< m
+    temperature,  ///< K
+    flow,         ///< m3/s
+    density,      ///< kg/m3
+    speed,        ///< rpm (the trade's unit of shaft speed)
+};
+
+/// The units accepted for a quantity, for help texts and errors.
+const char* accepted_units(Quantity q);
+
+/// "35kPa", "35 kPa", "-0.4 bar", "60C", "140 °F", "120m3/h", "6in" -> SI.
+/// Units are matched exactly first, then ignoring case (kpa, PSI); a space
+/// between number and unit is allowed. Throws std::invalid_argument whose
+/// message quotes the text and says what is wrong: no number, no unit (a bare
+/// number is refused: its unit would be a guess), an unknown unit (listing the
+/// accepted ones), a value that is not finite, a temperature below absolute zero.
+double parse_quantity(const std::string& text, Quantity q);
+
+/// A pressure may say whether it is gauge or absolute: psig, psia, barg, bara.
+struct ParsedPressure {
+    double pa = 0.0;
+    std::optional<bool> gauge;  ///< set when the unit said so
+};
+ParsedPressure parse_pressure(const std::string& text);
 
 }  // namespace cavitas::app

@@ -3,7 +3,9 @@
 # in samples/, then judge every other recording against it.
 #   tools/demo.sh [BUILD_DIR]        (default: build)
 # Reads samples/manifest.csv (file,machine,role,label,kind,rpm,vanes,fs_hz,duration_s,full_scale_g,seed);
-# writes baselines and JSON findings to BUILD_DIR/demo/.
+# each recording's operating point is in NAME.op.toml beside it (read by
+# cavitas itself), each pump's NPSH3 curve in TAG.npsh3.csv.
+# Writes baselines and JSON findings to BUILD_DIR/demo/.
 set -euo pipefail
 here=$(cd "$(dirname "$0")/.." && pwd)
 build=${1:-build}
@@ -34,4 +36,7 @@ for m in $machines; do
     echo
   done < <(tail -n +2 "$manifest")
 done
+echo "== NPSH of OW-P101 on the day of its developed finding (from the recording's sidecar)"
+"$cavitas" npsh --operating-point "$samples/OW-P101_developed.op.toml" --json "$out/OW-P101_developed.npsh.json"
+echo
 echo "findings written to $out/"

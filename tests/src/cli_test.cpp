@@ -278,3 +278,193 @@ TEST_CASE("A clean recording passes the quality gate with no warning", "[cli]") 
     CHECK(f["quality"]["warnings"].empty());
     for (const auto& c : f["quality"]["checks"]) CHECK(c["status"] == "pass");
 }
+
+// --- npsh and the operating point -------------------------------------------------------------
+
+namespace {
+
+nlohmann::json npsh_json(const std::string& args, const std::string& name) {
+    const fs::path j = workdir() / name;
+    fs::remove(j);
+    const Run r = run("npsh " + args + " --json " + q(j));
+    INFO(r.err);
+    REQUIRE(r.status == 0);
+    return nlohmann::json::parse(slurp(j));
+}
+
+}  // namespace
+
+TEST_CASE("npsh: the worked example in SI and in US units agrees with the hand calculation", "[cli][npsh]") {
+    // Hand calculations in tests/models/hydraulics_test.cpp: 13.0512 m (SI inputs) and 42.4298 ft =
+    // 12.9326 m (US inputs), to 0.01 m.
+    const auto si = npsh_json("--suction-pressure 35kPa --temperature 60C --barometric 101.325kPa --gauge-height 0.8m "
+                              "--flow 120m3/h --bore 150mm --npsh3 4.2m",
+                              "si.json");
+    CHECK_THAT(si["npsha_m"].get<double>(), Catch::Matchers::WithinAbs(13.0512, 0.01));
+    for (const char* key : {"npsha_m", "vapour_pressure_pa", "density_kg_m3", "velocity_head_m", "absolute_suction_pa",
+                            "margin_m", "margin_ratio"})
+        CHECK(si.contains(key));
+    CHECK(si["absolute_suction_pa"] == 136325.0);
+    CHECK_THAT(si["margin_m"].get<double>(), Catch::Matchers::WithinAbs(13.0512 - 4.2, 0.01));
+    CHECK_THAT(si["margin_ratio"].get<double>(), Catch::Matchers::WithinAbs(13.0512 / 4.2, 0.003));
+    CHECK(si["schema"] == "cavitas.npsh/1");
+    const auto us = npsh_json("--suction-pressure 5psig --temperature 140F --barometric 14.7psi --gauge-height 2.5ft "
+                              "--flow 500gpm --bore 6in",
+                              "us.json");
+    CHECK_THAT(us["npsha_m"].get<double>(), Catch::Matchers::WithinAbs(12.9326, 0.01));
+    CHECK_FALSE(us.contains("margin_m"));  // no NPSH3 given
+    CHECK_FALSE(us.contains("margin_ratio"));
+    // Same state, the gauge reading given as absolute: 5 psig + 14.7 psi = 19.7 psia.
+    const auto abs = npsh_json("--suction-pressure 19.7psia --temperature 140F --gauge-height 2.5ft --flow 500gpm --bore 6in",
+                               "abs.json");
+    CHECK_THAT(abs["npsha_m"].get<double>(), Catch::Matchers::WithinAbs(us["npsha_m"].get<double>(), 1e-9));
+    // The readable account names every term with its unit.
+    const Run r = run("npsh --suction-pressure 35kPa --temperature 60C --gauge-height 0.8m --flow 120m3/h --bore 150mm "
+                      "--npsh3 4.2m");
+    CHECK(r.status == 0);
+    for (const char* words : {"NPSH available", "pressure head", "velocity head", "gauge height", "IAPWS-IF97", "kPa",
+                              "ANSI/HI 9.6.1", "barometric pressure not given"})
+        CHECK(r.out.find(words) != std::string::npos);
+}
+
+TEST_CASE("npsh: water boils at 212 F under 14.7 psi, so NPSHa is zero there", "[cli][npsh]") {
+    // Common practice, no source: water boils at 100 C (212 F) under the standard atmosphere,
+    // 101.325 kPa (14.7 psi). At the boiling point the absolute pressure equals the vapour
+    // pressure and NPSHa (gauge level with the datum, no velocity) is zero.
+    const auto j = npsh_json("--suction-pressure 14.7psi --pressure-ref absolute --temperature 212F", "boil.json");
+    CHECK_THAT(j["vapour_pressure_pa"].get<double>(), Catch::Matchers::WithinRel(j["absolute_suction_pa"].get<double>(), 1e-3));
+    CHECK_THAT(j["npsha_m"].get<double>(), Catch::Matchers::WithinAbs(0.0, 0.01));
+}
+
+TEST_CASE("npsh: the plant Thoma number of a turbine", "[cli][npsh]") {
+    // sigma = (H_atm - H_v - H_s) / H; hand value 0.142238 for 20 C water under 101.325 kPa,
+    // H_s = 3 m, H = 50 m (tests/models/hydraulics_test.cpp).
+    const auto j = npsh_json("--temperature 20C --barometric 101.325kPa --runner-setting 3m --net-head 50m "
+                             "--sigma-critical 0.1",
+                             "thoma.json");
+    CHECK_THAT(j["thoma_sigma"].get<double>(), Catch::Matchers::WithinAbs(0.142238, 2e-6));
+    CHECK_THAT(j["thoma_ratio_to_critical"].get<double>(), Catch::Matchers::WithinAbs(1.42238, 2e-5));
+}
+
+TEST_CASE("npsh: bad values are usage errors naming the flag and the problem", "[cli][npsh]") {
+    struct Case {
+        std::string args;
+        std::string words;
+    };
+    const std::vector<Case> cases = {
+        {"--suction-pressure 35furlongs --temperature 20C", "unknown pressure unit 'furlongs'"},
+        {"--suction-pressure 35 --temperature 20C", "no unit"},
+        {"--suction-pressure kPa --temperature 20C", "expected a number"},
+        {"--suction-pressure 35kPa --temperature 20Q", "unknown temperature unit"},
+        {"--suction-pressure 35kPa --temperature 20C --flow 3furlongs/h --bore 150mm", "--flow"},
+        {"--suction-pressure -1.2bar --temperature 20C", "below -1 atm"},
+        {"--suction-pressure 35kPa --temperature 400C", "critical point"},
+        {"--suction-pressure 35kPa --temperature 360C", "350 C"},
+        {"--suction-pressure 35kPa", "temperature"},
+        {"--suction-pressure 35kPa --temperature 20C --bore 150mm", "flow"},
+        {"--suction-pressure 35kPa --temperature 20C --density 850kg/m3", "both"},
+        {"--suction-pressure 5psig --pressure-ref absolute --temperature 20C", "says gauge"},
+        {"--suction-pressure 35kPa --temperature 20C --pressure-ref sideways", "--pressure-ref"},
+        {"--temperature 20C", "--suction-pressure"},
+        {"", "--suction-pressure"},
+        {"--suction-pressure 35kPa --temperature 20C --suction-pressure", "--suction-pressure"},
+    };
+    for (const auto& c : cases) {
+        INFO("npsh " << c.args);
+        const Run r = run("npsh " + c.args);
+        CHECK(r.status == 2);
+        CHECK(r.err.find(c.words) != std::string::npos);
+        CHECK(r.out.empty());
+    }
+}
+
+namespace {
+
+// The demo's raw-water pump OW-P101 (samples/): two known-good recordings and three to judge,
+// copied into a folder of their own with sidecar files written by each test.
+fs::path pump_folder(const std::string& name) {
+    const fs::path d = workdir() / name;
+    fs::create_directories(d);
+    for (const char* f : {"OW-P101_baseline_1.wav", "OW-P101_baseline_2.wav", "OW-P101_healthy.wav",
+                          "OW-P101_developed.wav", "OW-P101_incipient.wav"})
+        fs::copy_file(fs::path(CAVITAS_SAMPLES) / f, d / f, fs::copy_options::overwrite_existing);
+    return d;
+}
+
+void write_text(const fs::path& p, const std::string& text) { std::ofstream(p) << text; }
+
+// Suction pressure (gauge), flow; 14 C water at 62 m elevation, NPSH3 3.2 m.
+std::string sidecar(const std::string& suction, const std::string& flow) {
+    return "suction_pressure = \"" + suction + "\"\ntemperature = \"14 C\"\nelevation = \"62 m\"\nflow = \"" + flow +
+           "\"\nbore = \"250 mm\"\nnpsh3 = \"3.2 m\"\nspeed = \"1485 rpm\"\n";
+}
+
+}  // namespace
+
+TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreement both ways", "[cli][npsh]") {
+    const fs::path d = pump_folder("duty");
+    // Baseline at 410 m3/h with a comfortable suction (+50 kPa gauge: NPSHa about 15 m, 4.7 x NPSH3).
+    write_text(d / "OW-P101_baseline_1.op.toml", sidecar("50 kPa", "410 m3/h"));
+    write_text(d / "OW-P101_baseline_2.op.toml", sidecar("52 kPa", "410 m3/h"));
+    const fs::path b = d / "b.json";
+    Run r = run("baseline --vanes 7 --full-scale 50g -o " + q(b) + " " + q(d / "OW-P101_baseline_1.wav") + " " +
+                q(d / "OW-P101_baseline_2.wav"));
+    INFO(r.err);
+    REQUIRE(r.status == 0);
+    const auto base = nlohmann::json::parse(slurp(b));
+    CHECK_THAT(base["operating_point"]["flow_m3_s"].get<double>(), Catch::Matchers::WithinRel(410.0 / 3600.0, 1e-12));
+    CHECK(base["context"]["rpm"] == 1485.0);  // the sidecar's speed was used
+    CHECK(r.out.find("operating point") != std::string::npos);
+
+    // Developed cavitation at a large margin: not explained by the suction pressure.
+    write_text(d / "OW-P101_developed.op.toml", sidecar("50 kPa", "410 m3/h"));
+    const fs::path j1 = d / "developed.json";
+    r = run("analyze --baseline " + q(b) + " --json " + q(j1) + " " + q(d / "OW-P101_developed.wav"));
+    REQUIRE(r.status == 0);
+    auto f = nlohmann::json::parse(slurp(j1));
+    CHECK(f["verdict"] == "developed");
+    CHECK(f["operating_point"]["agreement"] == "unexplained_by_margin");
+    CHECK(f["operating_point"]["margin_class"] == "large");
+    CHECK(f["operating_point"]["reading_notes"][0].get<std::string>().find("recirculation") != std::string::npos);
+    CHECK(r.out.find("unexplained_by_margin") != std::string::npos);
+
+    // A normal recording with the margin near NPSH3 (-66 kPa gauge: NPSHa about 3.6 m, 1.1 x): at risk.
+    write_text(d / "OW-P101_healthy.op.toml", sidecar("-66 kPa", "410 m3/h"));
+    const fs::path j2 = d / "healthy.json";
+    r = run("analyze --baseline " + q(b) + " --json " + q(j2) + " " + q(d / "OW-P101_healthy.wav"));
+    REQUIRE(r.status == 0);
+    f = nlohmann::json::parse(slurp(j2));
+    CHECK(f["verdict"] == "normal");
+    CHECK(f["operating_point"]["agreement"] == "at_risk");
+    CHECK(f["operating_point"]["margin_ratio"].get<double>() < 1.2);
+    const double confidence_same_flow = f["confidence"].get<double>();
+
+    // Flags override the sidecar: the same recording at a comfortable suction is consistent.
+    r = run("analyze --baseline " + q(b) + " --suction-pressure 50kPa --json " + q(j2) + " " +
+            q(d / "OW-P101_healthy.wav"));
+    REQUIRE(r.status == 0);
+    f = nlohmann::json::parse(slurp(j2));
+    CHECK(f["operating_point"]["agreement"] == "consistent");
+    CHECK(f["operating_point"]["sources"].size() == 2);
+
+    // The same recording at another flow: the baseline's duty differs, flagged and the confidence lowered.
+    r = run("analyze --baseline " + q(b) + " --flow 300m3/h --json " + q(j2) + " " + q(d / "OW-P101_healthy.wav"));
+    REQUIRE(r.status == 0);
+    f = nlohmann::json::parse(slurp(j2));
+    REQUIRE(f["operating_point"]["baseline_differences"].size() == 1);
+    CHECK(f["operating_point"]["baseline_differences"][0].get<std::string>().find("410 m3/h") != std::string::npos);
+    CHECK(f["confidence"].get<double>() < confidence_same_flow);
+    // Listed with the other things that lowered the confidence (as a speed change is).
+    bool warned = false;
+    for (const auto& w : f["quality"]["warnings"]) warned |= w.get<std::string>().find("300 m3/h") != std::string::npos;
+    CHECK(warned);
+    CHECK(r.out.find("lowered confidence") != std::string::npos);
+
+    // A bad sidecar stops the analysis with the file named; nothing is written.
+    write_text(d / "OW-P101_incipient.op.toml", "suction_pressure = \"-38 kPa\"\ntemperature = \"14 Q\"\n");
+    const fs::path j3 = d / "incipient.json";
+    r = run("analyze --baseline " + q(b) + " --json " + q(j3) + " " + q(d / "OW-P101_incipient.wav"));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("OW-P101_incipient.op.toml: temperature") != std::string::npos);
+    CHECK_FALSE(fs::exists(j3));
+}

@@ -380,6 +380,65 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          base_o + Q("o-stale.json") + " " + Q("good1.wav") + " " + Q("cut12.wav"), 1, {"not a readable recording"},
          "cut12.wav", "o-stale.json"},
 
+        // --- operating points (sidecar files, curves, flags) ------------------------------
+        // A sidecar that is a folder, beside a good recording.
+        {"a directory as sidecar",
+         all({copy_of("today.wav", "side-dir.wav"), [] { fs::create_directories(at("side-dir.op.toml")); }}),
+         judge + good + " --json " + Q("j-side-dir.json") + " " + Q("side-dir.wav"), 1, {"is a directory"},
+         "side-dir.op.toml", "j-side-dir.json", kQuickS},
+        // A FIFO sidecar would block for ever.
+        {"a FIFO as sidecar",
+         all({copy_of("today.wav", "side-fifo.wav"),
+              [] {
+                  std::error_code ec;
+                  fs::remove(at("side-fifo.op.toml"), ec);
+                  REQUIRE(::mkfifo(at("side-fifo.op.toml").c_str(), 0600) == 0);
+              }}),
+         judge + good + " --json " + Q("j-side-fifo.json") + " " + Q("side-fifo.wav"), 1, {"not a regular file"},
+         "side-fifo.op.toml", "j-side-fifo.json", kQuickS},
+        // A unit nobody knows in a sidecar: the reading would be silently mis-scaled.
+        {"sidecar flow in furlongs",
+         all({copy_of("today.wav", "side-unit.wav"), text_file("side-unit.op.toml", "flow = \"12 furlongs\"\n")}),
+         judge + good + " --json " + Q("j-side-unit.json") + " " + Q("side-unit.wav"), 1, {"flow", "furlongs"},
+         "side-unit.op.toml", "j-side-unit.json", kQuickS},
+        // JSON where TOML is expected.
+        {"sidecar that is not TOML",
+         all({copy_of("today.wav", "side-json.wav"), text_file("side-json.op.toml", "{\"flow\": \"12 m3/h\"}\n")}),
+         judge + good + " --json " + Q("j-side-json.json") + " " + Q("side-json.wav"), 1, {"not valid TOML"},
+         "side-json.op.toml", "j-side-json.json", kQuickS},
+        // A sidecar whose reading is below full vacuum: physics, not syntax, is wrong.
+        {"sidecar gauge reading below -1 atm",
+         all({copy_of("today.wav", "side-vac.wav"),
+              text_file("side-vac.op.toml", "suction_pressure = \"-150 kPa\"\ntemperature = \"14 C\"\n")}),
+         judge + good + " --json " + Q("j-side-vac.json") + " " + Q("side-vac.wav"), 1, {"below -1 atm"},
+         "side-vac.op.toml", "j-side-vac.json", kQuickS},
+        // --operating-point naming a file that is not there.
+        {"--operating-point at a missing file", nothing,
+         judge + good + " --operating-point " + Q("absent.op.toml") + " --json " + Q("j-op-absent.json") + " " + today,
+         1, {"no such operating-point file"}, "absent.op.toml", "j-op-absent.json", kQuickS},
+        // An NPSH3 curve whose flows run backwards.
+        {"NPSH3 curve with decreasing flows",
+         text_file("back.csv", "flow [m3/h], npsh3 [m]\n200, 3\n100, 2\n"),
+         "npsh --suction-pressure 10kPa --temperature 20C --flow 150m3/h --npsh3-curve " + Q("back.csv") +
+             " --json " + Q("n-back.json"),
+         1, {"increase"}, "back.csv", "n-back.json", kQuickS},
+        // A flow outside the curve: NPSH3 is not extrapolated.
+        {"flow outside the NPSH3 curve", text_file("short.csv", "flow [m3/h], npsh3 [m]\n100, 2\n200, 3\n"),
+         "npsh --suction-pressure 10kPa --temperature 20C --flow 250m3/h --npsh3-curve " + Q("short.csv") +
+             " --json " + Q("n-short.json"),
+         1, {"outside", "not extrapolated"}, "short.csv", "n-short.json", kQuickS},
+        // Physics refused on the command line: usage errors (exit 2) naming the problem.
+        {"npsh gauge reading below -1 atm", nothing,
+         "npsh --suction-pressure -15psig --temperature 20C --json " + Q("n-vac.json"), 2, {"below -1 atm"}, "",
+         "n-vac.json", kQuickS},
+        {"npsh temperature above the critical point", nothing,
+         "npsh --suction-pressure 10kPa --temperature 400C --json " + Q("n-crit.json"), 2, {"critical point"}, "",
+         "n-crit.json", kQuickS},
+        {"npsh value without a unit", nothing, "npsh --suction-pressure 35 --temperature 20C --json " + Q("n-bare.json"),
+         2, {"--suction-pressure", "no unit"}, "", "n-bare.json", kQuickS},
+        {"npsh flag without a value", nothing, "npsh --temperature 20C --suction-pressure", 2, {"--suction-pressure"},
+         "", "", kQuickS},
+
         // --- baselines ---------------------------------------------------------------------
         // Not there at all.
         {"missing baseline", nothing, judge + Q("absent.json") + " --json " + Q("j-absent.json") + " " + today, 1,

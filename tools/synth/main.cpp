@@ -128,7 +128,7 @@ int main(int argc, char** argv) {
     try {
         if (*demo) {
             const auto plan = synth::demo_plan(demo_seed);
-            const auto summary = synth::write_set(demo_dir, plan, nullptr, std::cerr);
+            const auto summary = synth::write_set(demo_dir, plan, nullptr, std::cerr, synth::demo_files());
             print_summary("demo", demo_dir, summary);
         } else if (*eval) {
             const auto plan = synth::eval_plan(per_kind, eval_seed);

@@ -733,18 +733,23 @@ std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
         const char* suffix;
         const char* role;
         Kind kind;
+        const char* suction;  // gauge
+        const char* flow;
+        const char* note;
     };
     const std::array<Item, 10> items{{
-        {"OW-P101", "baseline_1", "baseline", Kind::healthy},
-        {"OW-P101", "baseline_2", "baseline", Kind::healthy},
-        {"OW-P101", "healthy", "test", Kind::healthy},
-        {"OW-P101", "incipient", "test", Kind::incipient},
-        {"OW-P101", "developed", "test", Kind::developed},
-        {"OW-P101", "bearing", "test", Kind::bearing},
-        {"OW-P102", "baseline_1", "baseline", Kind::healthy},
-        {"OW-P102", "baseline_2", "baseline", Kind::healthy},
-        {"OW-P102", "turbulence", "test", Kind::turbulence},
-        {"OW-P102", "developed", "test", Kind::developed},
+        {"OW-P101", "baseline_1", "baseline", Kind::healthy, "-18 kPa", "405 m3/h", "sump at normal level"},
+        {"OW-P101", "baseline_2", "baseline", Kind::healthy, "-19 kPa", "410 m3/h", "sump at normal level"},
+        {"OW-P101", "healthy", "test", Kind::healthy, "-20 kPa", "410 m3/h", ""},
+        {"OW-P101", "incipient", "test", Kind::incipient, "-48 kPa", "415 m3/h", "sump drawn down 2.5 m"},
+        {"OW-P101", "developed", "test", Kind::developed, "-70 kPa", "420 m3/h",
+         "sump drawn down 4 m, suction strainer fouled"},
+        {"OW-P101", "bearing", "test", Kind::bearing, "-19 kPa", "410 m3/h", ""},
+        {"OW-P102", "baseline_1", "baseline", Kind::healthy, "140 kPa", "160 m3/h", "clear-water tank full"},
+        {"OW-P102", "baseline_2", "baseline", Kind::healthy, "141 kPa", "158 m3/h", "clear-water tank full"},
+        {"OW-P102", "turbulence", "test", Kind::turbulence, "138 kPa", "190 m3/h", "second zone valve open"},
+        {"OW-P102", "developed", "test", Kind::developed, "135 kPa", "55 m3/h",
+         "discharge valve throttled for a network test"},
     }};
     std::vector<PlannedRecording> plan;
     for (std::size_t i = 0; i < items.size(); ++i) {
@@ -757,9 +762,35 @@ std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
         r.spec.seed = derive_seed(seed, i);
         r.spec.severity = 0.5;
         r.encoding = Encoding::pcm16;
+        const bool p101 = std::string_view(items[i].tag) == "OW-P101";
+        std::ostringstream op;
+        op << "# operating point of " << r.file << " (invented demo duty)\n"
+           << "suction_pressure = \"" << items[i].suction << "\"\n"
+           << "pressure_ref = \"gauge\"\n"
+           << "temperature = \"" << (p101 ? "14 C" : "12 C") << "\"\n"
+           << "elevation = \"62 m\"\n"
+           << "gauge_height = \"" << (p101 ? "0.4 m" : "0.2 m") << "\"\n"
+           << "flow = \"" << items[i].flow << "\"\n"
+           << "bore = \"" << (p101 ? "300 mm" : "150 mm") << "\"\n"
+           << "npsh3_curve = \"" << items[i].tag << ".npsh3.csv\"\n"
+           << "speed = \"" << fmt_number(r.spec.machine.rpm, 0) << " rpm\"\n";
+        if (*items[i].note) op << "note = \"" << items[i].note << "\"\n";
+        r.sidecar_toml = op.str();
         plan.push_back(std::move(r));
     }
     return plan;
+}
+
+std::vector<SetFile> demo_files() {
+    // Invented maker's test curves (3 % head drop), rising with flow as NPSH3 does.
+    return {
+        {"OW-P101.npsh3.csv",
+         "# OW-P101 raw-water lift, 1485 rpm, 7 vanes: NPSH3 (3 % head drop), invented demo curve\n"
+         "flow [m3/h], npsh3 [m]\n200, 2.1\n300, 2.5\n400, 3.1\n500, 4.0\n600, 5.3\n"},
+        {"OW-P102.npsh3.csv",
+         "# OW-P102 treated-water booster, 2960 rpm, 5 vanes: NPSH3 (3 % head drop), invented demo curve\n"
+         "flow [m3/h], npsh3 [m]\n40, 1.6\n80, 1.8\n120, 2.1\n160, 2.5\n200, 3.2\n"},
+    };
 }
 
 std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed) {
@@ -824,7 +855,8 @@ std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed) {
 }
 
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
-                     const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn) {
+                     const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
+                     const std::vector<SetFile>& files) {
     std::error_code ec;
     std::filesystem::create_directories(folder, ec);
     if (ec || !std::filesystem::is_directory(folder))
@@ -865,8 +897,11 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
               << ',' << col(k == Kind::mains, p.mains.amplitude_g, 4) << ','
               << col(k == Kind::speed, 100.0 * p.speed.offset_frac, 3) << ','
               << col(cav || k == Kind::bearing, rec.pulse_amplitude_g, 6) << '\n';
+        if (!r.sidecar_toml.empty())
+            write_text_atomically(folder / (path.stem().string() + ".op.toml"), r.sidecar_toml);
         if (progress) progress(i + 1, plan.size());
     }
+    for (const auto& f : files) write_text_atomically(folder / f.name, f.text);
     write_text_atomically(folder / "manifest.csv", manifest.str());
     write_text_atomically(folder / "truth.csv", truth.str());
     return summary;

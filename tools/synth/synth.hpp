@@ -195,11 +195,27 @@ struct PlannedRecording {
     std::string role;  ///< "baseline" or "test"
     CaseSpec spec;
     Encoding encoding = Encoding::pcm16;
+    /// The operating point at the recording, as a sidecar file (TOML, the keys of
+    /// `cavitas analyze`'s operating-point flags); written beside the recording
+    /// as NAME.op.toml when not empty.
+    std::string sidecar_toml;
+};
+
+/// Further text files of a set (NPSH3 curves): name and contents.
+struct SetFile {
+    std::string name;
+    std::string text;
 };
 
 /// The demo set: OW-P101 (2 baselines, healthy, incipient, developed, bearing)
 /// and OW-P102 (2 baselines, turbulence, developed), 8 s each, 16-bit PCM.
+/// Each recording has its operating point in a sidecar (the invented duty of
+/// the Orrin Weir station, elevation 62 m: OW-P101 lifts 14 C raw water from
+/// the weir sump, the sump drawn down on the incipient and developed days;
+/// OW-P102 boosts 12 C treated water from a flooded tank, throttled to part
+/// load on its developed day), and demo_files() adds each pump's NPSH3 curve.
 std::vector<PlannedRecording> demo_plan(std::uint64_t seed = 20240611);
+std::vector<SetFile> demo_files();
 /// The evaluation set: per machine 3 baselines and `per_kind` tests of every kind,
 /// 10 s each, severities stratified over 0..1, tests in shuffled order under blind
 /// names (OW-P101_test_017.wav), encodings cycling pcm16/pcm24/float/flac16.
@@ -215,7 +231,9 @@ struct SetSummary {
 /// missing), then manifest.csv (header: file,machine,role,label,kind,rpm,vanes,
 /// fs_hz,duration_s,full_scale_g,seed) and truth.csv (the fault parameters).
 /// `progress(done, total)` is called after each file; clipping warnings go to `warn`.
+/// Sidecars of the plan and `files` are written too.
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
-                     const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn);
+                     const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
+                     const std::vector<SetFile>& files = {});
 
 }  // namespace cavitas::synth

@@ -1,0 +1,39 @@
+// How the acoustic verdict and the NPSH margin read together.
+//
+// The acoustic verdict is never changed by the hydraulics: a finding states
+// the margin beside the verdict and says when the two disagree - developed
+// cavitation at a large margin (look for recirculation, air entrainment, a
+// blocked suction or a wrong reading), or a normal verdict at a margin near
+// NPSH3 (at risk).
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "models/classifier.hpp"
+#include "models/operating_point.hpp"
+
+namespace cavitas::models {
+
+/// How the acoustic verdict and the NPSH margin read together.
+enum class MarginAgreement {
+    consistent,           ///< the margin explains the verdict, or does not contradict it
+    at_risk,              ///< normal, but the margin is under guidance or below NPSH3
+    unexplained,          ///< developed cavitation at a large margin
+    margin_unknown,       ///< no NPSH3 (or no NPSHa): the verdict stands alone
+    no_verdict,           ///< indeterminate
+};
+const char* to_string(MarginAgreement a);
+
+struct MarginReading {
+    MarginAgreement agreement = MarginAgreement::margin_unknown;
+    std::string summary;                  ///< one sentence: the margin in numbers
+    std::vector<std::string> notes;       ///< what the two together mean, what to check
+};
+MarginReading read_margin(Verdict verdict, const Hydraulics& h, const MarginGuidance& guidance = {});
+
+/// Differences from the baseline's operating point lower the confidence like
+/// a quality warning (x 0.85 each) and are listed under the finding's warnings.
+void flag_operating_point_differences(Finding& finding, const std::vector<std::string>& differences);
+
+}  // namespace cavitas::models
