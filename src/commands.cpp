@@ -128,16 +128,19 @@ std::optional<ResolvedOperatingPoint> resolve_operating_point(const OperatingPoi
     if (!given.empty()) {
         TextOrigin origin;
         origin.flags = true;
+        if (flags.origin) origin = *flags.origin;
         r.op.overlay(parse_operating_point(given, origin));
-        r.sources.push_back("command line");
+        r.sources.push_back(flags.origin ? flags.origin->file : std::string("command line"));
     }
     if (r.op.empty()) return std::nullopt;
     try {
         r.hydraulics = models::evaluate_operating_point(r.op);
     } catch (const std::invalid_argument& e) {
-        if (file.empty()) throw UsageError(std::string("operating point: ") + e.what());
-        throw InputError(file + ": operating point" + (given.empty() ? "" : " (with the command-line values)") + ": " +
-                         e.what());
+        if (file.empty() && !flags.origin) throw UsageError(std::string("operating point: ") + e.what());
+        std::string where;
+        for (const auto& s : r.sources) where += (where.empty() ? "" : " + ") + s;
+        throw InputError((file.empty() ? flags.origin->file : file) + ": operating point" +
+                         (r.sources.size() > 1 ? " (" + where + ")" : "") + ": " + e.what());
     }
     return r;
 }

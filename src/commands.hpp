@@ -46,6 +46,9 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
 struct OperatingPointFlags {
     std::map<std::string, std::string> values;
     std::optional<std::string> file;
+    /// Where `values` came from when not the command line (a manifest row):
+    /// errors then name that file and line instead of a flag.
+    std::optional<TextOrigin> origin;
     OperatingPointText text() const;
 };
 

@@ -5,6 +5,8 @@
 
 #include "src/commands.hpp"
 #include "src/errors.hpp"
+#include "src/review.hpp"
+#include "src/route.hpp"
 
 using namespace cavitas::app;
 
@@ -155,6 +157,73 @@ int main(int argc, char** argv) {
     add_operating_point_flags(np, no.operating, false);
     np->add_option("--json", no.json_output, "Write the result as JSON to this file (atomically)")->type_name("FILE");
 
+    RouteOptions ro;
+    auto* rt = app.add_subcommand(
+        "route",
+        "Analyse every recording of a route manifest against its point's baseline, on all cores.\n"
+        "The manifest is a CSV with a header row naming at least the columns file (relative to the\n"
+        "manifest), machine, point, channel, datetime (ISO 8601), rpm and vanes, in any order; the\n"
+        "operating-point keys (suction_pressure, temperature, flow, ...) and full_scale, mount,\n"
+        "sensor_max_hz may be columns too; other columns are passed through. The baseline of machine M\n"
+        "at point P is BASELINES/M/P.json. Writes OUT/summary.csv and OUT/summary.jsonl (one row per\n"
+        "manifest row, failures with their reason), OUT/findings/ (each recording's JSON finding) and\n"
+        "OUT/route.json, records every analysed recording in the results store, and prints the latest\n"
+        "state of each machine point, worst first. A bad row never stops the others; the exit status is\n"
+        "1 when any row failed.");
+    rt->add_option("manifest", ro.manifest, "Route manifest (CSV)")->required()->type_name("MANIFEST.csv");
+    rt->add_option("--out", ro.out_dir, "Output folder (created when missing)")->required()->type_name("DIR");
+    rt->add_option("--baselines", ro.baselines, "Baseline library: BASELINES/MACHINE/POINT.json")->required()->type_name("DIR");
+    rt->add_option("--store", ro.store, "Results store (SQLite), created on first use; default BASELINES/history.sqlite")
+        ->type_name("FILE");
+    rt->add_flag("--no-store", ro.no_store, "Do not record the results in the store");
+    rt->add_option("--jobs", ro.jobs, "Recordings analysed at once (default: one per core)")->check(CLI::Range(1, 1024));
+    rt->add_option("--shard", ro.shard,
+                   "Analyse only share K of N of the manifest rows (rows K, K+N, K+2N, ...), e.g. 2/8 in a cluster job "
+                   "array; the store is not written, 'cavitas merge' joins the shards")
+        ->type_name("K/N");
+
+    MergeOptions mo;
+    auto* mg = app.add_subcommand("merge",
+                                  "Join the output folders of 'route --shard K/N' runs of one manifest into one summary,\n"
+                                  "as one run without shards would have written it, and record it in the store.");
+    mg->add_option("shards", mo.shard_dirs, "Output folders of the shards")->required()->type_name("DIR...");
+    mg->add_option("--out", mo.out_dir, "Output folder for the merged summary and findings")->required()->type_name("DIR");
+    std::optional<std::string> merge_store;
+    mg->add_option("--store", merge_store, "Results store to record the merged route in (SQLite)")->type_name("FILE");
+
+    TrendOptions to;
+    auto* tr = app.add_subcommand(
+        "trend",
+        "The history of a machine's measurement points from the results store: the HF level over the\n"
+        "baseline, verdicts, impulse rate and NPSH margin per visit, and whether the HF level is rising\n"
+        "(Theil-Sen slope and a one-sided Mann-Kendall test over the last visits) before it crosses\n"
+        "into an incipient verdict.");
+    tr->add_option("machine", to.machine, "Machine tag")->required();
+    tr->add_option("point", to.point, "Measurement point (default: every point of the machine)");
+    tr->add_option("--store", to.store, "Results store (SQLite) written by 'route'")->type_name("FILE");
+    tr->add_option("--baselines", to.baselines, "Baseline library whose history.sqlite to read")->type_name("DIR");
+    tr->add_option("--json", to.json_output, "Write the history and the trend as JSON")->type_name("FILE");
+    tr->add_option("--csv", to.csv_output, "Write the history as CSV")->type_name("FILE");
+    tr->add_option("--window", to.window, "Visits judged for the trend (default 6)")->check(CLI::Range(4, 1000));
+
+    CompareOptions co;
+    auto* cp = app.add_subcommand(
+        "compare",
+        "Did a repair or an operating change work? Recordings of one machine and point before and after,\n"
+        "each judged against the same baseline; for each key indicator the change (Hodges-Lehmann shift\n"
+        "with its 95 % interval), a Mann-Whitney U test on the 1 s segments and Cliff's delta; the verdict\n"
+        "is improved, unchanged (no significant change) or worse. Warns when the operating points before\n"
+        "and after differ enough to explain the change.");
+    cp->add_option("--baseline", co.baseline, "Baseline of the machine and point")->required()->type_name("FILE");
+    cp->add_option("--before", co.before, "Recordings before the change")->required()->type_name("REC...");
+    cp->add_option("--after", co.after, "Recordings after the change")->required()->type_name("REC...");
+    cp->add_option("--machine", co.machine, "Machine tag; refused when the baseline names another");
+    cp->add_option("--rpm", co.rpm, "Shaft speed of all the recordings, rpm (default: each one's sidecar, else estimated)")
+        ->check(CLI::Range(1.0, 100000.0));
+    cp->add_option("--vanes", co.vanes, "Impeller vanes (default: the baseline's)")->check(CLI::Range(0, 200));
+    cp->add_option("--channel", co.channel, "Channel to read, from 0")->check(CLI::NonNegativeNumber);
+    cp->add_option("--json", co.json_output, "Write the comparison as JSON")->type_name("FILE");
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
@@ -165,6 +234,14 @@ int main(int argc, char** argv) {
         if (*base) run_baseline(bo, std::cout, std::cerr);
         if (*an) run_analyze(ao, std::cout, std::cerr);
         if (*np) run_npsh(no, std::cout);
+        if (*rt) return run_route(ro, std::cout, std::cerr);
+        if (*mg) {
+            mo.store = merge_store;
+            mo.no_store = !merge_store;
+            return run_merge(mo, std::cout, std::cerr);
+        }
+        if (*tr) run_trend(to, std::cout);
+        if (*cp) run_compare(co, std::cout, std::cerr);
         return static_cast<int>(ExitCode::ok);
     } catch (const UsageError& e) {
         std::cerr << "cavitas: usage: " << one_line(e.what()) << "\n";

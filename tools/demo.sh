@@ -1,11 +1,16 @@
 #!/usr/bin/env bash
-# The demo route: learn each machine's baseline from its known-good recordings
-# in samples/, then judge every other recording against it.
+# The demo: the invented Orrin Weir pumping station of the Lowmere Water Trust.
 #   tools/demo.sh [BUILD_DIR]        (default: build)
-# Reads samples/manifest.csv (file,machine,role,label,kind,rpm,vanes,fs_hz,duration_s,full_scale_g,seed);
-# each recording's operating point is in NAME.op.toml beside it (read by
-# cavitas itself), each pump's NPSH3 curve in TAG.npsh3.csv.
-# Writes baselines and JSON findings to BUILD_DIR/demo/.
+#
+#  1. learns each machine point's baseline from its known-good recordings
+#     (samples/baselines.csv) into a baseline library BUILD_DIR/demo/baselines/MACHINE/POINT.json;
+#  2. analyses the route (samples/route.csv: three dated visits of OW-P101, a repair and
+#     a visit after it, and the other pumps) on all cores, with the history in
+#     BUILD_DIR/demo/baselines/history.sqlite;
+#  3. shows the trend of OW-P101 and compares it before and after its repair;
+#  4. works out the NPSH of OW-P101 on the day of its developed finding.
+# Each recording's operating point is in NAME.op.toml beside it (read by cavitas itself).
+# Starts from an empty BUILD_DIR/demo/ every time, so the output is the same on every run.
 set -euo pipefail
 here=$(cd "$(dirname "$0")/.." && pwd)
 build=${1:-build}
@@ -15,28 +20,40 @@ cavitas="$build/cavitas"
 [ -x "$cavitas" ] || cavitas="$build/src/cavitas"
 [ -x "$cavitas" ] || { echo "demo: cavitas not found in $build (build it first)" >&2; exit 1; }
 samples="samples"
-manifest="$samples/manifest.csv"
 out="${build#"$here"/}/demo"
-mkdir -p "$out"
+lib="$out/baselines"
+rm -rf "$out"
+mkdir -p "$lib"
 
-machines=$(awk -F, 'NR > 1 { print $2 }' "$manifest" | sort -u)
-for m in $machines; do
-  rpm=$(awk -F, -v m="$m" 'NR > 1 && $2 == m && $3 == "baseline" { print $6; exit }' "$manifest")
-  vanes=$(awk -F, -v m="$m" 'NR > 1 && $2 == m && $3 == "baseline" { print $7; exit }' "$manifest")
-  fsc=$(awk -F, -v m="$m" 'NR > 1 && $2 == m && $3 == "baseline" { print $10; exit }' "$manifest")
-  mapfile -t good < <(awk -F, -v m="$m" -v d="$samples" 'NR > 1 && $2 == m && $3 == "baseline" { print d "/" $1 }' "$manifest")
-  echo "== $m: learning the baseline from ${#good[@]} known-good recording(s)"
-  "$cavitas" baseline --rpm "$rpm" --vanes "$vanes" --full-scale "${fsc}g" -o "$out/$m.baseline.json" "${good[@]}"
+# Column NAME of a CSV row, by the header's names.
+col() { awk -F, -v name="$1" 'NR == 1 { for (i = 1; i <= NF; i++) c[$i] = i; next } { print $c[name] }' "$2"; }
+
+echo "== 1. baselines from the known-good recordings ($samples/baselines.csv)"
+paste -d, <(col machine "$samples/baselines.csv") <(col point "$samples/baselines.csv") | sort -u |
+while IFS=, read -r machine point; do
+  rows=$(paste -d, <(col machine "$samples/baselines.csv") <(col point "$samples/baselines.csv") \
+                   <(col file "$samples/baselines.csv") <(col rpm "$samples/baselines.csv") \
+                   <(col vanes "$samples/baselines.csv") <(col full_scale "$samples/baselines.csv") |
+         awk -F, -v m="$machine" -v p="$point" '$1 == m && $2 == p')
+  mapfile -t files < <(awk -F, -v d="$samples" '{ print d "/" $3 }' <<< "$rows")
+  IFS=, read -r _ _ _ rpm vanes full_scale <<< "$(head -n 1 <<< "$rows")"
+  mkdir -p "$lib/$machine"
+  "$cavitas" baseline --machine "$machine" --rpm "$rpm" --vanes "$vanes" --full-scale "$full_scale" \
+    -o "$lib/$machine/$point.json" "${files[@]}"
   echo
-  while IFS=, read -r file machine role label kind rec_rpm _; do
-    [ "$machine" = "$m" ] && [ "$role" = "test" ] || continue
-    echo "-- $file  (demo label: $label, $kind)"
-    "$cavitas" analyze --baseline "$out/$m.baseline.json" --rpm "$rec_rpm" \
-      --json "$out/${file%.*}.finding.json" "$samples/$file"
-    echo
-  done < <(tail -n +2 "$manifest")
 done
-echo "== NPSH of OW-P101 on the day of its developed finding (from the recording's sidecar)"
-"$cavitas" npsh --operating-point "$samples/OW-P101_developed.op.toml" --json "$out/OW-P101_developed.npsh.json"
+
+echo "== 2. the route ($samples/route.csv)"
+"$cavitas" route "$samples/route.csv" --baselines "$lib" --out "$out/route"
 echo
-echo "findings written to $out/"
+
+echo "== 3. OW-P101 over time, and before/after its repair of 2026-11-04"
+"$cavitas" trend OW-P101 DE-H --baselines "$lib" --json "$out/trend-OW-P101.json"
+"$cavitas" compare --baseline "$lib/OW-P101/DE-H.json" --before "$samples/OW-P101_2026-11-02.wav" \
+  --after "$samples/OW-P101_2026-11-09.wav" --json "$out/compare-OW-P101.json"
+echo
+
+echo "== 4. NPSH of OW-P101 on the day of its developed finding (from the recording's sidecar)"
+"$cavitas" npsh --operating-point "$samples/OW-P101_2026-11-02.op.toml" --json "$out/npsh-OW-P101_2026-11-02.json"
+echo
+echo "demo outputs in $out/ (baselines, route summary and findings, trend, comparison, NPSH)"

@@ -10,6 +10,7 @@
 //   cavitas_eval EVALSET_DIR [--estimate-speed]   (made by: cavitas-synth eval EVALSET_DIR)
 // With --estimate-speed the test recordings are judged without their speed, as
 // `analyze` without --rpm does: the speed is searched near the baseline's.
+#include <algorithm>
 #include <array>
 #include <cstdio>
 #include <fstream>
@@ -33,28 +34,41 @@ struct Row {
     double full_scale_g = 50;
 };
 
+// The set's manifest.csv, read by its header's column names.
 std::vector<Row> read_manifest(const std::string& path) {
     std::ifstream in(path);
     if (!in) throw std::runtime_error(path + ": cannot open manifest");
-    std::string line;
-    std::getline(in, line);  // header
-    std::vector<Row> rows;
-    while (std::getline(in, line)) {
-        if (line.empty()) continue;
+    auto split = [](const std::string& line) {
         std::vector<std::string> f;
         std::stringstream ss(line);
         std::string cell;
         while (std::getline(ss, cell, ',')) f.push_back(cell);
-        if (f.size() < 11) throw std::runtime_error(path + ": short row: " + line);
+        return f;
+    };
+    std::string line;
+    std::getline(in, line);
+    const auto header = split(line);
+    auto col = [&](const char* name) {
+        const auto it = std::find(header.begin(), header.end(), name);
+        if (it == header.end()) throw std::runtime_error(path + ": no column '" + name + "'");
+        return static_cast<std::size_t>(it - header.begin());
+    };
+    const std::size_t c_file = col("file"), c_machine = col("machine"), c_role = col("role"), c_label = col("label"),
+                      c_kind = col("kind"), c_rpm = col("rpm"), c_vanes = col("vanes"), c_fs = col("full_scale");
+    std::vector<Row> rows;
+    while (std::getline(in, line)) {
+        if (line.empty()) continue;
+        const auto f = split(line);
+        if (f.size() != header.size()) throw std::runtime_error(path + ": short row: " + line);
         Row r;
-        r.file = f[0];
-        r.machine = f[1];
-        r.role = f[2];
-        r.label = f[3];
-        r.kind = f[4];
-        r.rpm = std::stod(f[5]);
-        r.vanes = std::stoi(f[6]);
-        r.full_scale_g = std::stod(f[9]);
+        r.file = f[c_file];
+        r.machine = f[c_machine];
+        r.role = f[c_role];
+        r.label = f[c_label];
+        r.kind = f[c_kind];
+        r.rpm = std::stod(f[c_rpm]);
+        r.vanes = std::stoi(f[c_vanes]);
+        r.full_scale_g = std::stod(f[c_fs]);  // "50g": stod stops at the unit
         rows.push_back(r);
     }
     return rows;

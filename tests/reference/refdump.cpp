@@ -26,6 +26,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "models/rank_tests.hpp"
 #include "signal/envelope.hpp"
 #include "signal/spectrum.hpp"
 #include "signal/stats.hpp"
@@ -259,6 +260,37 @@ json signal_json(std::span<const double> x, const std::string& description) {
     return {{"fs", kFs}, {"dtype", "float64"}, {"description", description}, {"x", to_vector(x)}};
 }
 
+// Two samples for the rank tests: Gaussian with a shift, rounded to `decimals`
+// (coarse rounding makes ties, as dB values printed to 0.1 dB would).
+std::vector<double> sample(Gaussian& g, std::size_t n, double mean, double sigma, int decimals) {
+    std::vector<double> v(n);
+    const double scale = std::pow(10.0, decimals);
+    for (auto& x : v) x = std::round((mean + sigma * g()) * scale) / scale;
+    return v;
+}
+
+json run_rank_sum(const std::string& name, const std::vector<double>& a, const std::vector<double>& b) {
+    namespace m = cavitas::models;
+    const auto u = m::mann_whitney_u(a, b);
+    const auto hl = m::hodges_lehmann(a, b);
+    return {{"name", name},
+            {"a", a},
+            {"b", b},
+            {"u", u.u},
+            {"p_two_sided", u.p_two_sided},
+            {"exact", u.exact},
+            {"hl_shift", hl.shift},
+            {"cliffs_delta", m::cliffs_delta(a, b)}};
+}
+
+json run_trend(const std::string& name, const std::vector<double>& t, const std::vector<double>& y) {
+    namespace m = cavitas::models;
+    const auto mk = m::mann_kendall(t, y);
+    return {{"name", name},       {"t", t},         {"y", y},
+            {"slope", m::theil_sen_slope(t, y)}, {"s", mk.s}, {"tau", mk.tau},
+            {"p_two_sided", mk.p_two_sided},     {"exact", mk.exact}};
+}
+
 json build() {
     Gaussian g(kSeed);
 
@@ -308,6 +340,27 @@ json build() {
         run_envelope("impulse_ringing", fs(burst), 2000, 8192, 3000.0, 5500.0, "numpy"),
         run_envelope("band_tones", fs(band_tones), 0, 8192, 3000.0, 7000.0, "numpy+hilbert_band_limited"),
         run_envelope("odd_bins", fs(odd), 0, 4096, 0.0, 12800.0, "numpy+hilbert_exact"),
+    });
+    // Rank tests (models/rank_tests): small and large, with and without ties.
+    Gaussian r(kSeed + 1);
+    j["rank_sum"] = json::array({
+        run_rank_sum("small_no_ties", sample(r, 7, 0.0, 1.0, 9), sample(r, 6, 0.8, 1.0, 9)),
+        run_rank_sum("segments_no_ties", sample(r, 16, -40.0, 0.6, 9), sample(r, 16, -38.5, 0.6, 9)),
+        run_rank_sum("segments_equal", sample(r, 24, -40.0, 0.6, 9), sample(r, 24, -40.0, 0.6, 9)),
+        run_rank_sum("ties_0.1_db", sample(r, 20, -40.0, 0.3, 1), sample(r, 30, -39.8, 0.3, 1)),
+        run_rank_sum("large_no_ties", sample(r, 80, 3.0, 1.0, 9), sample(r, 70, 3.2, 1.0, 9)),
+    });
+    std::vector<double> days, rising, flat, tied;
+    for (int i = 0; i < 9; ++i) {
+        days.push_back(28.0 * i + (i % 3));
+        rising.push_back(0.25 * i + 0.3 * r());
+        flat.push_back(0.3 * r());
+        tied.push_back(std::round(0.2 * i + 0.5 * r()));
+    }
+    j["trend"] = json::array({
+        run_trend("rising_9", days, rising),
+        run_trend("flat_9", days, flat),
+        run_trend("tied_9", days, tied),
     });
     return j;
 }

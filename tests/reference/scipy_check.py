@@ -285,6 +285,38 @@ def check_envelope(rep, entry, signals, meta):
                       normwise(sq, np.abs(za_true) ** 2), TOL_F32_QUANT)
 
 
+def check_rank_sum(rep, entry):
+    """Mann-Whitney U, Hodges-Lehmann shift and Cliff's delta (models/rank_tests)."""
+    name = entry["name"]
+    a = np.asarray(entry["a"], dtype=np.float64)
+    b = np.asarray(entry["b"], dtype=np.float64)
+    method = "exact" if entry["exact"] else "asymptotic"
+    ref = scipy.stats.mannwhitneyu(a, b, alternative="two-sided", method=method, use_continuity=True)
+    rep.check(f"rank_sum/{name}/U", f"scipy.stats.mannwhitneyu [{SCIPY}]", rel(entry["u"], ref.statistic), TOL_F64)
+    rep.check(f"rank_sum/{name}/p ({method})", f"scipy.stats.mannwhitneyu [{SCIPY}]",
+              rel(entry["p_two_sided"], ref.pvalue), TOL_F64)
+    diffs = (b[None, :] - a[:, None]).ravel()
+    rep.check(f"rank_sum/{name}/hodges_lehmann", f"numpy.median of pairwise differences [{NUMPY}]",
+              abs(entry["hl_shift"] - float(np.median(diffs))), TOL_F64)
+    cliff = (np.count_nonzero(diffs > 0) - np.count_nonzero(diffs < 0)) / diffs.size
+    rep.check(f"rank_sum/{name}/cliffs_delta", f"numpy definition P(b>a)-P(b<a) [{NUMPY}]",
+              abs(entry["cliffs_delta"] - cliff), TOL_F64)
+
+
+def check_trend(rep, entry):
+    """Theil-Sen slope and the Mann-Kendall test against time (models/rank_tests)."""
+    name = entry["name"]
+    t = np.asarray(entry["t"], dtype=np.float64)
+    y = np.asarray(entry["y"], dtype=np.float64)
+    ts = scipy.stats.theilslopes(y, t)
+    rep.check(f"trend/{name}/theil_sen_slope", f"scipy.stats.theilslopes [{SCIPY}]", rel(entry["slope"], ts[0]), TOL_F64)
+    method = "exact" if entry["exact"] else "asymptotic"
+    kt = scipy.stats.kendalltau(t, y, method=method)
+    rep.check(f"trend/{name}/tau_b", f"scipy.stats.kendalltau [{SCIPY}]", abs(entry["tau"] - kt.correlation), TOL_F64)
+    rep.check(f"trend/{name}/p ({method})", f"scipy.stats.kendalltau [{SCIPY}]", rel(entry["p_two_sided"], kt.pvalue),
+              TOL_F64)
+
+
 def main(argv):
     if len(argv) != 2:
         print("usage: scipy_check.py REFDUMP.json")
@@ -306,6 +338,12 @@ def main(argv):
                     fn(rep, entry, signals, doc["signals"])
                 else:
                     fn(rep, entry, signals[entry["signal"]])
+        for key, fn in {"rank_sum": check_rank_sum, "trend": check_trend}.items():
+            entries = doc.get(key, [])
+            if not entries:
+                rep.fail(f"structure/{key}", "refdump JSON", "section missing or empty")
+            for entry in entries:
+                fn(rep, entry)
     except (OSError, ValueError, KeyError, TypeError) as exc:
         rep.fail("structure/read", "refdump JSON", f"{type(exc).__name__}: {exc}")
     print(f"{rep.passed} passed, {rep.failed} failed")

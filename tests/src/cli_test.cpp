@@ -385,8 +385,8 @@ namespace {
 fs::path pump_folder(const std::string& name) {
     const fs::path d = workdir() / name;
     fs::create_directories(d);
-    for (const char* f : {"OW-P101_baseline_1.wav", "OW-P101_baseline_2.wav", "OW-P101_healthy.wav",
-                          "OW-P101_developed.wav", "OW-P101_incipient.wav"})
+    for (const char* f : {"OW-P101_baseline_1.wav", "OW-P101_baseline_2.wav", "OW-P101_2026-09-07.wav",
+                          "OW-P101_2026-11-02.wav", "OW-P101_2026-10-05.wav"})
         fs::copy_file(fs::path(CAVITAS_SAMPLES) / f, d / f, fs::copy_options::overwrite_existing);
     return d;
 }
@@ -417,9 +417,9 @@ TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreeme
     CHECK(r.out.find("operating point") != std::string::npos);
 
     // Developed cavitation at a large margin: not explained by the suction pressure.
-    write_text(d / "OW-P101_developed.op.toml", sidecar("50 kPa", "410 m3/h"));
+    write_text(d / "OW-P101_2026-11-02.op.toml", sidecar("50 kPa", "410 m3/h"));
     const fs::path j1 = d / "developed.json";
-    r = run("analyze --baseline " + q(b) + " --json " + q(j1) + " " + q(d / "OW-P101_developed.wav"));
+    r = run("analyze --baseline " + q(b) + " --json " + q(j1) + " " + q(d / "OW-P101_2026-11-02.wav"));
     REQUIRE(r.status == 0);
     auto f = nlohmann::json::parse(slurp(j1));
     CHECK(f["verdict"] == "developed");
@@ -429,9 +429,9 @@ TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreeme
     CHECK(r.out.find("unexplained_by_margin") != std::string::npos);
 
     // A normal recording with the margin near NPSH3 (-66 kPa gauge: NPSHa about 3.6 m, 1.1 x): at risk.
-    write_text(d / "OW-P101_healthy.op.toml", sidecar("-66 kPa", "410 m3/h"));
+    write_text(d / "OW-P101_2026-09-07.op.toml", sidecar("-66 kPa", "410 m3/h"));
     const fs::path j2 = d / "healthy.json";
-    r = run("analyze --baseline " + q(b) + " --json " + q(j2) + " " + q(d / "OW-P101_healthy.wav"));
+    r = run("analyze --baseline " + q(b) + " --json " + q(j2) + " " + q(d / "OW-P101_2026-09-07.wav"));
     REQUIRE(r.status == 0);
     f = nlohmann::json::parse(slurp(j2));
     CHECK(f["verdict"] == "normal");
@@ -441,14 +441,14 @@ TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreeme
 
     // Flags override the sidecar: the same recording at a comfortable suction is consistent.
     r = run("analyze --baseline " + q(b) + " --suction-pressure 50kPa --json " + q(j2) + " " +
-            q(d / "OW-P101_healthy.wav"));
+            q(d / "OW-P101_2026-09-07.wav"));
     REQUIRE(r.status == 0);
     f = nlohmann::json::parse(slurp(j2));
     CHECK(f["operating_point"]["agreement"] == "consistent");
     CHECK(f["operating_point"]["sources"].size() == 2);
 
     // The same recording at another flow: the baseline's duty differs, flagged and the confidence lowered.
-    r = run("analyze --baseline " + q(b) + " --flow 300m3/h --json " + q(j2) + " " + q(d / "OW-P101_healthy.wav"));
+    r = run("analyze --baseline " + q(b) + " --flow 300m3/h --json " + q(j2) + " " + q(d / "OW-P101_2026-09-07.wav"));
     REQUIRE(r.status == 0);
     f = nlohmann::json::parse(slurp(j2));
     REQUIRE(f["operating_point"]["baseline_differences"].size() == 1);
@@ -461,10 +461,10 @@ TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreeme
     CHECK(r.out.find("lowered confidence") != std::string::npos);
 
     // A bad sidecar stops the analysis with the file named; nothing is written.
-    write_text(d / "OW-P101_incipient.op.toml", "suction_pressure = \"-38 kPa\"\ntemperature = \"14 Q\"\n");
+    write_text(d / "OW-P101_2026-10-05.op.toml", "suction_pressure = \"-38 kPa\"\ntemperature = \"14 Q\"\n");
     const fs::path j3 = d / "incipient.json";
-    r = run("analyze --baseline " + q(b) + " --json " + q(j3) + " " + q(d / "OW-P101_incipient.wav"));
+    r = run("analyze --baseline " + q(b) + " --json " + q(j3) + " " + q(d / "OW-P101_2026-10-05.wav"));
     CHECK(r.status == 1);
-    CHECK(r.err.find("OW-P101_incipient.op.toml: temperature") != std::string::npos);
+    CHECK(r.err.find("OW-P101_2026-10-05.op.toml: temperature") != std::string::npos);
     CHECK_FALSE(fs::exists(j3));
 }

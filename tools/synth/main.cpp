@@ -62,9 +62,12 @@ int main(int argc, char** argv) {
     std::uint64_t demo_seed = 20240611;
     auto* demo = app.add_subcommand(
         "demo",
-        "Write the small demo set (about 5.7 MB): OW-P101 with 2 baselines and healthy, incipient, developed and "
-        "bearing tests; OW-P102 with 2 baselines and turbulence and developed tests. 8 s each, 16-bit PCM, named "
-        "like OW-P101_baseline_1.wav and OW-P101_incipient.wav, plus manifest.csv and truth.csv.");
+        "Write the small demo route (about 6.3 MB): OW-P101 with 2 baselines and visits on 2026-09-07 (healthy), "
+        "10-05 (incipient), 11-02 (developed) and, after a repair, 11-09 (healthy); OW-P102 with 2 baselines, "
+        "turbulence and developed cavitation at part load; OW-P103 with 2 baselines and a bearing look-alike. 8 s "
+        "each, 16-bit PCM, named like OW-P101_baseline_1.wav and OW-P101_2026-10-05.wav, each with its operating "
+        "point in NAME.op.toml; the NPSH3 curves TAG.npsh3.csv; route manifests manifest.csv (all), baselines.csv "
+        "and route.csv; and truth.csv.");
     demo->add_option("OUTDIR", demo_dir, "Folder to write into (created if missing)")->required();
     demo->add_option("--seed", demo_seed, "Master seed of the set")->capture_default_str();
 

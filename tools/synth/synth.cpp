@@ -728,53 +728,75 @@ std::size_t write_wav(const std::string& path, std::span<const float> g, double 
 // ---------------------------------------------------------------------------
 // Sets.
 std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
+    // The invented route of the Orrin Weir station: baselines learned on
+    // 2026-08-03, then monthly visits. OW-P101's sump is drawn down through the
+    // autumn (incipient on 10-05, developed on 11-02); the strainer is cleaned and
+    // the sump level control reset on 11-04, and the visit of 11-09 checks the
+    // repair. OW-P102 runs out on 09-07 (a second zone open: flow noise) and is
+    // throttled for a network test on 10-05. OW-P103 shows a bearing look-alike.
     struct Item {
         const char* tag;
         const char* suffix;
         const char* role;
         Kind kind;
+        const char* datetime;
         const char* suction;  // gauge
         const char* flow;
         const char* note;
     };
-    const std::array<Item, 10> items{{
-        {"OW-P101", "baseline_1", "baseline", Kind::healthy, "-18 kPa", "405 m3/h", "sump at normal level"},
-        {"OW-P101", "baseline_2", "baseline", Kind::healthy, "-19 kPa", "410 m3/h", "sump at normal level"},
-        {"OW-P101", "healthy", "test", Kind::healthy, "-20 kPa", "410 m3/h", ""},
-        {"OW-P101", "incipient", "test", Kind::incipient, "-48 kPa", "415 m3/h", "sump drawn down 2.5 m"},
-        {"OW-P101", "developed", "test", Kind::developed, "-70 kPa", "420 m3/h",
+    const std::array<Item, 13> items{{
+        {"OW-P101", "baseline_1", "baseline", Kind::healthy, "2026-08-03T09:10:00", "-18 kPa", "405 m3/h",
+         "sump at normal level"},
+        {"OW-P101", "baseline_2", "baseline", Kind::healthy, "2026-08-03T09:25:00", "-19 kPa", "410 m3/h",
+         "sump at normal level"},
+        {"OW-P101", "2026-09-07", "test", Kind::healthy, "2026-09-07T08:40:00", "-20 kPa", "410 m3/h", ""},
+        {"OW-P101", "2026-10-05", "test", Kind::incipient, "2026-10-05T08:55:00", "-48 kPa", "415 m3/h",
+         "sump drawn down 2.5 m"},
+        {"OW-P101", "2026-11-02", "test", Kind::developed, "2026-11-02T09:05:00", "-70 kPa", "420 m3/h",
          "sump drawn down 4 m, suction strainer fouled"},
-        {"OW-P101", "bearing", "test", Kind::bearing, "-19 kPa", "410 m3/h", ""},
-        {"OW-P102", "baseline_1", "baseline", Kind::healthy, "140 kPa", "160 m3/h", "clear-water tank full"},
-        {"OW-P102", "baseline_2", "baseline", Kind::healthy, "141 kPa", "158 m3/h", "clear-water tank full"},
-        {"OW-P102", "turbulence", "test", Kind::turbulence, "138 kPa", "190 m3/h", "second zone valve open"},
-        {"OW-P102", "developed", "test", Kind::developed, "135 kPa", "55 m3/h",
+        {"OW-P101", "2026-11-09", "test", Kind::healthy, "2026-11-09T10:15:00", "-17 kPa", "410 m3/h",
+         "after the repair of 2026-11-04: strainer cleaned, sump level control reset"},
+        {"OW-P102", "baseline_1", "baseline", Kind::healthy, "2026-08-03T10:05:00", "140 kPa", "160 m3/h",
+         "clear-water tank full"},
+        {"OW-P102", "baseline_2", "baseline", Kind::healthy, "2026-08-03T10:20:00", "141 kPa", "158 m3/h",
+         "clear-water tank full"},
+        {"OW-P102", "2026-09-07", "test", Kind::turbulence, "2026-09-07T09:30:00", "138 kPa", "190 m3/h",
+         "second zone valve open"},
+        {"OW-P102", "2026-10-05", "test", Kind::developed, "2026-10-05T09:40:00", "135 kPa", "55 m3/h",
          "discharge valve throttled for a network test"},
+        {"OW-P103", "baseline_1", "baseline", Kind::healthy, "2026-08-03T11:00:00", "25 kPa", "600 m3/h", ""},
+        {"OW-P103", "baseline_2", "baseline", Kind::healthy, "2026-08-03T11:15:00", "24 kPa", "600 m3/h", ""},
+        {"OW-P103", "2026-09-07", "test", Kind::bearing, "2026-09-07T10:20:00", "25 kPa", "600 m3/h", ""},
     }};
     std::vector<PlannedRecording> plan;
     for (std::size_t i = 0; i < items.size(); ++i) {
+        const Item& it = items[i];
         PlannedRecording r;
-        r.file = std::string(items[i].tag) + "_" + items[i].suffix + ".wav";
-        r.role = items[i].role;
-        r.spec.machine = machine_by_tag(items[i].tag);
-        r.spec.kind = items[i].kind;
+        r.file = std::string(it.tag) + "_" + it.suffix + ".wav";
+        r.role = it.role;
+        r.point = "DE-H";
+        r.datetime = it.datetime;
+        r.spec.machine = machine_by_tag(it.tag);
+        r.spec.kind = it.kind;
         r.spec.duration_s = 8.0;
         r.spec.seed = derive_seed(seed, i);
         r.spec.severity = 0.5;
         r.encoding = Encoding::pcm16;
-        const bool p101 = std::string_view(items[i].tag) == "OW-P101";
+        const std::string_view tag = it.tag;
+        const bool p101 = tag == "OW-P101", p102 = tag == "OW-P102";
         std::ostringstream op;
         op << "# operating point of " << r.file << " (invented demo duty)\n"
-           << "suction_pressure = \"" << items[i].suction << "\"\n"
+           << "suction_pressure = \"" << it.suction << "\"\n"
            << "pressure_ref = \"gauge\"\n"
            << "temperature = \"" << (p101 ? "14 C" : "12 C") << "\"\n"
            << "elevation = \"62 m\"\n"
            << "gauge_height = \"" << (p101 ? "0.4 m" : "0.2 m") << "\"\n"
-           << "flow = \"" << items[i].flow << "\"\n"
-           << "bore = \"" << (p101 ? "300 mm" : "150 mm") << "\"\n"
-           << "npsh3_curve = \"" << items[i].tag << ".npsh3.csv\"\n"
-           << "speed = \"" << fmt_number(r.spec.machine.rpm, 0) << " rpm\"\n";
-        if (*items[i].note) op << "note = \"" << items[i].note << "\"\n";
+           << "flow = \"" << it.flow << "\"\n"
+           << "bore = \"" << (p101 ? "300 mm" : p102 ? "150 mm" : "350 mm") << "\"\n";
+        if (p101 || p102) op << "npsh3_curve = \"" << it.tag << ".npsh3.csv\"\n";
+        else op << "npsh3 = \"2.8 m\"\n";
+        op << "speed = \"" << fmt_number(r.spec.machine.rpm, 0) << " rpm\"\n";
+        if (*it.note) op << "note = \"" << it.note << "\"\n";
         r.sidecar_toml = op.str();
         plan.push_back(std::move(r));
     }
@@ -848,6 +870,10 @@ std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed) {
                 r.file = machine.tag + "_test_" + num;
             }
             r.file += extension_of(r.encoding);
+            // One minute apart from 2026-01-01 (a distinct time for every recording of a machine).
+            char when[48];
+            std::snprintf(when, sizeof when, "2026-01-%02zuT%02zu:%02zu:00", 1 + j / 1440, (j / 60) % 24, j % 60);
+            r.datetime = when;
             plan.push_back(std::move(r));
         }
     }
@@ -862,8 +888,14 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
     if (ec || !std::filesystem::is_directory(folder))
         throw std::runtime_error("cannot create output folder '" + folder.string() + "': " +
                                  (ec ? ec.message() : std::string("not a folder")));
-    std::ostringstream manifest, truth;
-    manifest << "file,machine,role,label,kind,rpm,vanes,fs_hz,duration_s,full_scale_g,seed\n";
+    // Route-manifest form (see README: file, machine, point, channel, datetime, rpm,
+    // vanes, then optional columns); manifest.csv holds every recording,
+    // baselines.csv and route.csv the known-good ones and the ones to judge.
+    const char* header = "file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed\n";
+    std::ostringstream manifest, baselines, route, truth;
+    manifest << header;
+    baselines << header;
+    route << header;
     truth << "file,kind,severity,collapse_rate_per_s,bpf_depth,shaft_depth,hf_rise_db,lf_rise_db,"
              "bearing_order,bearing_slip,turbulence_lf_rise_db,mains_hz,mains_g,speed_offset_pct,pulse_amplitude_g\n";
     SetSummary summary;
@@ -881,9 +913,13 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         const auto size = std::filesystem::file_size(path, ec);
         if (!ec) summary.bytes += size;
         const Kind k = r.spec.kind;
-        manifest << r.file << ',' << r.spec.machine.tag << ',' << r.role << ',' << label_of(k) << ',' << name_of(k) << ','
-                 << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ',' << fmt_number(rec.fs_hz, 3) << ','
-                 << fmt_number(r.spec.duration_s, 6) << ',' << fmt_number(kFullScaleG, 3) << ',' << r.spec.seed << '\n';
+        std::ostringstream row;
+        row << r.file << ',' << r.spec.machine.tag << ',' << r.point << ",0," << r.datetime << ','
+            << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ',' << fmt_number(kFullScaleG, 3) << "g,"
+            << r.role << ',' << label_of(k) << ',' << name_of(k) << ',' << fmt_number(rec.fs_hz, 3) << ','
+            << fmt_number(r.spec.duration_s, 6) << ',' << r.spec.seed << '\n';
+        manifest << row.str();
+        (r.role == "baseline" ? baselines : route) << row.str();
         const FaultParams& p = rec.params;
         const bool cav = k == Kind::incipient || k == Kind::developed;
         auto col = [](bool on, double v, int dec) { return on ? fmt_number(v, dec) : std::string(); };
@@ -903,6 +939,8 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
     }
     for (const auto& f : files) write_text_atomically(folder / f.name, f.text);
     write_text_atomically(folder / "manifest.csv", manifest.str());
+    write_text_atomically(folder / "baselines.csv", baselines.str());
+    write_text_atomically(folder / "route.csv", route.str());
     write_text_atomically(folder / "truth.csv", truth.str());
     return summary;
 }

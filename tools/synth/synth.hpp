@@ -193,6 +193,8 @@ std::size_t write_wav(const std::string& path, std::span<const float> g, double 
 struct PlannedRecording {
     std::string file;  ///< relative to the set's folder
     std::string role;  ///< "baseline" or "test"
+    std::string point = "DE-H";                       ///< measurement point
+    std::string datetime = "2026-01-01T00:00:00";     ///< when it was recorded (ISO 8601)
     CaseSpec spec;
     Encoding encoding = Encoding::pcm16;
     /// The operating point at the recording, as a sidecar file (TOML, the keys of
@@ -207,8 +209,11 @@ struct SetFile {
     std::string text;
 };
 
-/// The demo set: OW-P101 (2 baselines, healthy, incipient, developed, bearing)
-/// and OW-P102 (2 baselines, turbulence, developed), 8 s each, 16-bit PCM.
+/// The demo set: a small route of the invented Orrin Weir station, 8 s each,
+/// 16-bit PCM: OW-P101 (2 baselines, then visits on 2026-09-07 healthy,
+/// 10-05 incipient, 11-02 developed, a repair, 11-09 healthy), OW-P102
+/// (2 baselines, turbulence, developed at part load), OW-P103 (2 baselines,
+/// a bearing look-alike); all at point DE-H.
 /// Each recording has its operating point in a sidecar (the invented duty of
 /// the Orrin Weir station, elevation 62 m: OW-P101 lifts 14 C raw water from
 /// the weir sump, the sump drawn down on the incipient and developed days;
@@ -228,8 +233,10 @@ struct SetSummary {
 };
 
 /// Synthesizes and writes every planned recording into `folder` (created if
-/// missing), then manifest.csv (header: file,machine,role,label,kind,rpm,vanes,
-/// fs_hz,duration_s,full_scale_g,seed) and truth.csv (the fault parameters).
+/// missing), then route manifests - manifest.csv (all), baselines.csv (role
+/// baseline), route.csv (role test), header file,machine,point,channel,datetime,
+/// rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed - and truth.csv
+/// (the fault parameters).
 /// `progress(done, total)` is called after each file; clipping warnings go to `warn`.
 /// Sidecars of the plan and `files` are written too.
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
