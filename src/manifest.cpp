@@ -64,10 +64,15 @@ std::optional<double> number(const std::string& s, double lo, double hi) {
 
 Manifest read_manifest(const std::string& path) {
     const std::string text = read_text_file(path, "route manifest", 256u << 20);
+    Manifest m = parse_manifest(text, path);
+    m.sha256 = sha256_file(path);
+    return m;
+}
+
+Manifest parse_manifest(const std::string& text, const std::string& path) {
     Manifest m;
     m.path = path;
     m.dir = fs::path(path).parent_path().string();
-    m.sha256 = sha256_file(path);
     const auto records = parse_csv(text, path);
     if (records.empty()) throw InputError(path + ": empty manifest (expected a header row naming the columns)");
     std::vector<std::string> header;

@@ -53,6 +53,8 @@ struct Manifest {
 /// no header, a required column missing, a column named twice) throw
 /// InputError; a bad row keeps its line number and the reason in `error`.
 Manifest read_manifest(const std::string& path);
+/// The same from text (no sha256); `path` names the file in errors and sets the folder.
+Manifest parse_manifest(const std::string& text, const std::string& path);
 
 /// Whether a machine or point tag can name a file of the baseline library
 /// (DIR/MACHINE/POINT.json): not empty, not "." or "..", no '/', '\\' or

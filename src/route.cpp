@@ -480,11 +480,11 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     if (!fs::is_directory(o.baselines, ec))
         throw InputError(o.baselines + ": the baseline library folder does not exist (expected BASELINES/MACHINE/POINT.json)");
     const Manifest manifest = read_manifest(o.manifest);
-    prepare_out_dir(o.out_dir);
     const bool use_store = !o.no_store && !shard;
     const std::string store_path = o.store ? *o.store : (fs::path(o.baselines) / "history.sqlite").string();
     std::unique_ptr<HistoryStore> store;
     if (use_store) store = std::make_unique<HistoryStore>(store_path);  // fail before the analysis, not after
+    prepare_out_dir(o.out_dir);
 
     std::vector<const ManifestRow*> todo;
     for (const auto& r : manifest.rows)

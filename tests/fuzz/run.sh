@@ -29,7 +29,7 @@ CC="${FUZZ_CC:-clang}" CXX="${FUZZ_CXX:-clang++}" cmake -S . -B "$build" \
     -DCAVITAS_FUZZ=ON -DCAVITAS_SANITIZE=ON -DCMAKE_BUILD_TYPE=RelWithDebInfo \
     -DCAVITAS_BUILD_TESTS=OFF -DCAVITAS_BUILD_TOOLS=OFF > "$build/configure.log" 2>&1 ||
     { cat "$build/configure.log" >&2; exit 1; }
-cmake --build "$build" --target fuzz_recording fuzz_baseline fuzz_operating_point -j "$jobs"
+cmake --build "$build" --target fuzz_recording fuzz_baseline fuzz_operating_point fuzz_manifest -j "$jobs"
 
 scratch="$(mktemp -d "${TMPDIR:-/tmp}/cavitas-fuzz.XXXXXX")"
 trap 'rm -rf "$scratch"' EXIT
@@ -39,7 +39,7 @@ export FUZZ_BASELINE_MUST_ACCEPT="tests/fuzz/corpus/baseline/valid.json"
 
 failed=0
 summaries=()
-for kind in recording baseline operating_point; do
+for kind in recording baseline operating_point manifest; do
     target="fuzz_$kind"
     corpus="$scratch/$kind"
     artifacts="$build/fuzz-artifacts/$target"

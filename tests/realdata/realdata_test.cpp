@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "models/classifier.hpp"
+#include "models/compare.hpp"
 #include "src/commands.hpp"
 
 namespace fs = std::filesystem;
@@ -184,6 +185,36 @@ TEST_CASE("CWRU bearing faults are not cavitation and their lines sit at the pub
             CHECK(std::abs(j.finding.bearing_order / c.order - 1.0) < 0.02);
         }
     }
+}
+
+TEST_CASE("Lab pump: compare calls repeat healthy runs unchanged and the throttling a change", "[realdata]") {
+    // Healthy runs r1 and r2 at each speed were recorded minutes apart on the same rig with the
+    // suction valve open (SOURCE.md): a real no-change pair, with real mount and run-to-run noise.
+    const std::vector<std::pair<const char*, double>> speeds = {{"700rpm", 714}, {"1000rpm", 1011}, {"1200rpm", 1208}};
+    for (const auto& [speed, rpm] : speeds) {
+        const std::string s = speed;
+        const auto b = learn({pump() / (s + "_healthy_r1_ch0_acc.wav"), pump() / (s + "_healthy_r2_ch0_acc.wav")}, rpm,
+                             kPumpVanes, kPumpCal);
+        const Judged r1 = judge(pump() / (s + "_healthy_r1_ch0_acc.wav"), b, rpm, kPumpCal);
+        const Judged r2 = judge(pump() / (s + "_healthy_r2_ch0_acc.wav"), b, rpm, kPumpCal);
+        const auto c = models::compare_before_after({{&r1.analysis, &r1.finding}}, {{&r2.analysis, &r2.finding}}, "m_s2");
+        std::cout << "  " << s << " healthy r1 -> r2: " << models::to_string(c.change) << " (HF "
+                  << c.indicators.front().shift << " dB, p " << c.indicators.front().p_value << ")\n";
+        INFO(s);
+        CHECK(c.change == models::Change::unchanged);
+    }
+    // At 1000 rpm the throttled suction (cav025, HF about +10 dB) against the open valve: opening
+    // the valve again is the "repair" and must read as improved, closing it as worse.
+    const auto b = learn({pump() / "1000rpm_healthy_r1_ch0_acc.wav", pump() / "1000rpm_healthy_r2_ch0_acc.wav"}, 1011,
+                         kPumpVanes, kPumpCal);
+    const Judged cav = judge(pump() / "1000rpm_cav025_r1_ch0_acc.wav", b, 1014, kPumpCal);
+    const Judged ok = judge(pump() / "1000rpm_healthy_r2_ch0_acc.wav", b, 1011, kPumpCal);
+    const auto fixed = models::compare_before_after({{&cav.analysis, &cav.finding}}, {{&ok.analysis, &ok.finding}}, "m_s2");
+    std::cout << "  1000rpm cav025 -> healthy: " << models::to_string(fixed.change) << " (HF "
+              << fixed.indicators.front().shift << " dB)\n";
+    CHECK(fixed.change == models::Change::improved);
+    CHECK(models::compare_before_after({{&ok.analysis, &ok.finding}}, {{&cav.analysis, &cav.finding}}, "m_s2").change ==
+          models::Change::worse);
 }
 
 int main(int argc, char** argv) {

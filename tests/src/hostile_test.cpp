@@ -439,6 +439,36 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         {"npsh flag without a value", nothing, "npsh --temperature 20C --suction-pressure", 2, {"--suction-pressure"},
          "", "", kQuickS},
 
+        // --- routes (file-level problems: nothing is analysed, nothing written) ------------
+        {"route manifest missing", [] { fs::create_directories(at("lib")); },
+         "route " + Q("absent.csv") + " --baselines " + Q("lib") + " --out " + Q("r-absent"), 1,
+         {"no such route manifest"}, "absent.csv", "r-absent", kQuickS},
+        {"route manifest is a directory", [] { fs::create_directories(at("mdir.csv")); },
+         "route " + Q("mdir.csv") + " --baselines " + Q("lib") + " --out " + Q("r-mdir"), 1, {"is a directory"},
+         "mdir.csv", "r-mdir", kQuickS},
+        {"route manifest without the required columns", text_file("cols.csv", "file,machine\ntoday.wav,OW-P101\n"),
+         "route " + Q("cols.csv") + " --baselines " + Q("lib") + " --out " + Q("r-cols"), 1,
+         {"lacks the column(s) point, channel, datetime, rpm, vanes"}, "cols.csv", "r-cols", kQuickS},
+        {"route manifest with a quote never closed",
+         text_file("quote.csv", "file,machine,point,channel,datetime,rpm,vanes\n\"today.wav,OW-P101,DE-H,0,2026-11-02,,\n"),
+         "route " + Q("quote.csv") + " --baselines " + Q("lib") + " --out " + Q("r-quote"), 1, {"never closed"},
+         "quote.csv", "r-quote", kQuickS},
+        {"route baseline library missing", text_file("ok.csv", "file,machine,point,channel,datetime,rpm,vanes\n"),
+         "route " + Q("ok.csv") + " --baselines " + Q("no-lib") + " --out " + Q("r-nolib"), 1,
+         {"baseline library folder does not exist"}, "no-lib", "r-nolib", kQuickS},
+        {"route store that is not an SQLite database", text_file("store.sqlite", "a text file, not a database\n"),
+         "route " + Q("ok.csv") + " --baselines " + Q("lib") + " --store " + Q("store.sqlite") + " --out " +
+             Q("r-store"),
+         1, {"store"}, "store.sqlite", "r-store", kQuickS},
+        {"route --shard 0/3", nothing,
+         "route " + Q("ok.csv") + " --baselines " + Q("lib") + " --shard 0/3 --out " + Q("r-shard"), 2, {"--shard"}, "",
+         "r-shard", kQuickS},
+        {"merge of a folder that is no shard", [] { fs::create_directories(at("not-a-shard")); },
+         "merge --out " + Q("m-out") + " " + Q("not-a-shard"), 1, {"no such route run file"}, "not-a-shard", "m-out",
+         kQuickS},
+        {"trend with a store that is a directory", [] { fs::create_directories(at("store-dir")); },
+         "trend OW-P101 --store " + Q("store-dir"), 1, {"not a regular file"}, "store-dir", "", kQuickS},
+
         // --- baselines ---------------------------------------------------------------------
         // Not there at all.
         {"missing baseline", nothing, judge + Q("absent.json") + " --json " + Q("j-absent.json") + " " + today, 1,
