@@ -6,6 +6,7 @@
 
 #include "models/hydraulics.hpp"
 #include "models/machine.hpp"
+#include "src/format.hpp"
 
 namespace cavitas::app {
 
@@ -26,22 +27,10 @@ const char* verdict_words(Verdict v) {
 
 bool cavitating(Verdict v) { return v == Verdict::incipient || v == Verdict::developed; }
 
-std::string num(double v, int decimals) {
-    char b[64];
-    std::snprintf(b, sizeof b, "%.*f", decimals, v);
-    return b;
-}
-
-std::string signed_num(double v, int decimals) {
-    char b[64];
-    std::snprintf(b, sizeof b, "%+.*f", decimals, v);
-    return b;
-}
-
 constexpr double kM3sToM3h = 3600.0;
 
-std::string kpa(double pa) { return num(pa / 1000.0, 3) + " kPa"; }
-std::string celsius(double k) { return num(k - 273.15, 2) + " C"; }
+std::string kpa(double pa) { return fixed(pa / 1000.0, 3) + " kPa"; }
+std::string celsius(double k) { return fixed(k - 273.15, 2) + " C"; }
 
 std::string reference_word(const models::OperatingPoint& op) {
     return op.pressure_reference && *op.pressure_reference == models::PressureReference::absolute ? "absolute" : "gauge";
@@ -56,8 +45,8 @@ void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
     out << "  operating point (" << from << "):\n";
     std::string duty;
     auto add = [&duty](const std::string& s) { duty += (duty.empty() ? "" : ", ") + s; };
-    if (op.flow_m3_s) add(num(*op.flow_m3_s * kM3sToM3h, 1) + " m3/h");
-    if (op.rpm) add(num(*op.rpm, 0) + " rpm");
+    if (op.flow_m3_s) add(fixed(*op.flow_m3_s * kM3sToM3h, 1) + " m3/h");
+    if (op.rpm) add(fixed(*op.rpm, 0) + " rpm");
     if (op.temperature_k) add(celsius(*op.temperature_k));
     if (h.absolute_suction_pa) add("suction " + kpa(*h.absolute_suction_pa) + " absolute");
     if (!duty.empty()) out << "    duty        " << duty << "\n";
@@ -75,11 +64,11 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
     const auto& in = r.recording.info;
     const auto& a = r.recording.analysis;
     const auto& f = r.finding;
-    out << in.path << "  (channel " << in.channel << ", " << num(in.fs_hz, 0) << " Hz, " << num(a.duration_s, 1)
+    out << in.path << "  (channel " << in.channel << ", " << fixed(in.fs_hz, 0) << " Hz, " << fixed(a.duration_s, 1)
         << " s, " << a.series.segments() << " segments)\n";
     out << "  against " << baseline_path << "\n";
     out << "  verdict     " << verdict_words(f.verdict) << "\n";
-    out << "  confidence  " << num(f.confidence, 2) << "\n";
+    out << "  confidence  " << fixed(f.confidence, 2) << "\n";
     if (!f.reasons.empty()) {
         out << "  why indeterminate:\n";
         for (const auto& s : f.reasons) out << "    - " << s << "\n";
@@ -285,7 +274,7 @@ namespace {
 constexpr double kFoot_m = 0.3048;
 
 // "13.05 m (42.82 ft)": heads in both, for readers of either kind of pump curve.
-std::string head(double m) { return num(m, 2) + " m (" + num(m / kFoot_m, 2) + " ft)"; }
+std::string head(double m) { return fixed(m, 2) + " m (" + fixed(m / kFoot_m, 2) + " ft)"; }
 
 // One term of the NPSH sum, right-aligned: "      12.070 m   (p_abs - p_v) / (rho g)".
 std::string term(double m, bool with_sign = false) {
@@ -310,12 +299,12 @@ void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty) {
         out << "  liquid            " << h.liquid->source;
         if (op.temperature_k && h.liquid->source != "given") out << " at " << celsius(*op.temperature_k);
         out << ": vapour pressure " << kpa(h.liquid->vapour_pressure_pa) << ", density "
-            << num(h.liquid->density_kg_m3, 2) << " kg/m3\n";
+            << fixed(h.liquid->density_kg_m3, 2) << " kg/m3\n";
         out << "  pressure head     " << term(n.pressure_head_m) << "   (p_abs - p_v) / (rho g)\n";
         out << "  velocity head     " << term(n.velocity_head_m);
         if (h.velocity_m_s)
-            out << "   v^2 / 2g, v = " << num(*h.velocity_m_s, 2) << " m/s (" << num(*op.flow_m3_s * kM3sToM3h, 1)
-                << " m3/h in a " << num(*op.bore_m * 1000.0, 1) << " mm bore)";
+            out << "   v^2 / 2g, v = " << fixed(*h.velocity_m_s, 2) << " m/s (" << fixed(*op.flow_m3_s * kM3sToM3h, 1)
+                << " m3/h in a " << fixed(*op.bore_m * 1000.0, 1) << " mm bore)";
         else
             out << "   (not included)";
         out << "\n";
@@ -326,22 +315,22 @@ void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty) {
         out << "NPSH3           " << head(*h.npsh3_m) << " (" << h.npsh3_source << ")\n";
         if (h.margin) {
             const auto& m = *h.margin;
-            out << "margin          " << signed_num(m.margin_m, 2) << " m (" << signed_num(m.margin_m / kFoot_m, 2)
-                << " ft), NPSHa/NPSH3 = " << num(m.ratio, 2) << ": " << models::to_string(m.margin_class)
-                << " (guidance minimum " << num(m.required_m, 2) << " m)\n";
+            out << "margin          " << signed_fixed(m.margin_m, 2) << " m (" << signed_fixed(m.margin_m / kFoot_m, 2)
+                << " ft), NPSHa/NPSH3 = " << fixed(m.ratio, 2) << ": " << models::to_string(m.margin_class)
+                << " (guidance minimum " << fixed(m.required_m, 2) << " m)\n";
             out << "  " << models::margin_guidance_text() << "\n";
         }
     }
     if (h.thoma_sigma) {
         const double rho_g = h.liquid->density_kg_m3 * models::kStandardGravityM_s2;
-        out << "Thoma number (plant)  " << num(*h.thoma_sigma, 4) << " = (H_atm " << num(*h.barometric_pa / rho_g, 3)
-            << " m - H_v " << num(h.liquid->vapour_pressure_pa / rho_g, 3) << " m - H_s "
-            << num(*op.runner_setting_m, 3) << " m) / H " << num(*op.net_head_m, 3) << " m\n";
+        out << "Thoma number (plant)  " << fixed(*h.thoma_sigma, 4) << " = (H_atm " << fixed(*h.barometric_pa / rho_g, 3)
+            << " m - H_v " << fixed(h.liquid->vapour_pressure_pa / rho_g, 3) << " m - H_s "
+            << fixed(*op.runner_setting_m, 3) << " m) / H " << fixed(*op.net_head_m, 3) << " m\n";
         out << "  barometric " << kpa(*h.barometric_pa) << " (" << h.barometric_source << "), " << h.liquid->source;
         if (op.temperature_k && h.liquid->source != "given") out << " at " << celsius(*op.temperature_k);
         out << "\n";
         if (h.thoma_ratio)
-            out << "  " << num(*h.thoma_ratio, 2) << " x the critical value " << num(*op.sigma_critical, 4)
+            out << "  " << fixed(*h.thoma_ratio, 2) << " x the critical value " << fixed(*op.sigma_critical, 4)
                 << (*h.thoma_ratio < 1.0 ? ": below it, cavitation is expected at this setting" : "") << "\n";
     }
     if (!h.notes.empty()) {
@@ -359,11 +348,11 @@ void write_operating_point_summary(std::ostream& out, const models::OperatingPoi
     }
     std::string duty;
     auto add = [&duty](const std::string& t) { duty += (duty.empty() ? "" : ", ") + t; };
-    if (s.flow_m3_s) add(num(*s.flow_m3_s * kM3sToM3h, 1) + " m3/h");
-    if (s.rpm) add(num(*s.rpm, 0) + " rpm");
+    if (s.flow_m3_s) add(fixed(*s.flow_m3_s * kM3sToM3h, 1) + " m3/h");
+    if (s.rpm) add(fixed(*s.rpm, 0) + " rpm");
     if (s.temperature_k) add(celsius(*s.temperature_k));
-    if (s.npsha_m) add("NPSHa " + num(*s.npsha_m, 2) + " m");
-    if (s.margin_ratio) add("NPSHa/NPSH3 " + num(*s.margin_ratio, 2));
+    if (s.npsha_m) add("NPSHa " + fixed(*s.npsha_m, 2) + " m");
+    if (s.margin_ratio) add("NPSHa/NPSH3 " + fixed(*s.margin_ratio, 2));
     out << "  operating point (median of " << stated << " of " << recordings << " recording(s)): " << duty << "\n";
 }
 

@@ -13,6 +13,7 @@
 #include "src/atomic_file.hpp"
 #include "src/csv.hpp"
 #include "src/errors.hpp"
+#include "src/format.hpp"
 #include "src/store.hpp"
 
 namespace cavitas::app {
@@ -22,18 +23,6 @@ using nlohmann::json;
 using nlohmann::ordered_json;
 
 namespace {
-
-std::string fixed(double v, int decimals) {
-    char b[64];
-    std::snprintf(b, sizeof b, "%.*f", decimals, v);
-    return b;
-}
-
-std::string signed_fixed(double v, int decimals) {
-    char b[64];
-    std::snprintf(b, sizeof b, "%+.*f", decimals, v);
-    return b;
-}
 
 std::string pad(std::string s, std::size_t n) {
     if (s.size() < n) s.append(n - s.size(), ' ');

@@ -18,6 +18,7 @@
 #include "src/commands.hpp"
 #include "src/csv.hpp"
 #include "src/errors.hpp"
+#include "src/format.hpp"
 #include "src/report.hpp"
 #include "src/text_file.hpp"
 
@@ -28,12 +29,6 @@ using nlohmann::json;
 using nlohmann::ordered_json;
 
 namespace {
-
-std::string fixed(double v, int decimals) {
-    char b[64];
-    std::snprintf(b, sizeof b, "%.*f", decimals, v);
-    return b;
-}
 
 std::string opt_cell(const std::optional<double>& v, int decimals) { return v ? fixed(*v, decimals) : std::string(); }
 

@@ -20,14 +20,14 @@
 
 #include <nlohmann/json.hpp>
 
+#include "tests/support/cli.hpp"
+
 namespace fs = std::filesystem;
+using cavitas::test::q;
+using cavitas::test::Run;
+using cavitas::test::slurp;
 
 namespace {
-
-struct Run {
-    int status = -1;
-    std::string out, err;
-};
 
 fs::path workdir() {
     static const fs::path d = [] {
@@ -38,23 +38,7 @@ fs::path workdir() {
     return d;
 }
 
-std::string slurp(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    std::stringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
-
-Run run(const std::string& args) {
-    const fs::path o = workdir() / "stdout.txt", e = workdir() / "stderr.txt";
-    const std::string cmd = std::string("'") + CAVITAS_BIN + "' " + args + " >'" + o.string() + "' 2>'" + e.string() + "'";
-    const int rc = std::system(cmd.c_str());
-    Run r;
-    r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-    r.out = slurp(o);
-    r.err = slurp(e);
-    return r;
-}
+Run run(const std::string& args) { return cavitas::test::run_binary(CAVITAS_BIN, args, workdir()); }
 
 // A 6 s, 25.6 kHz recording (1x and BPF tones over noise), passed through `spoil` first;
 // written as 16-bit PCM, or 32-bit float when float_file (NaN survives only there).
@@ -87,8 +71,6 @@ fs::path make_spoiled(const std::string& name, unsigned seed, const std::functio
 fs::path make_wav(const std::string& name, unsigned seed, double noise = 0.02) {
     return make_spoiled(name, seed, [](std::vector<float>&) {}, false, noise);
 }
-
-std::string q(const fs::path& p) { return "'" + p.string() + "'"; }
 
 }  // namespace
 

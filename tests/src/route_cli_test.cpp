@@ -14,17 +14,17 @@
 
 #include <nlohmann/json.hpp>
 
+#include "tests/support/cli.hpp"
+
 #include "src/store.hpp"
 
 namespace fs = std::filesystem;
+using cavitas::test::q;
+using cavitas::test::Run;
+using cavitas::test::slurp;
 using nlohmann::json;
 
 namespace {
-
-struct Run {
-    int status = -1;
-    std::string out, err;
-};
 
 fs::path workdir() {
     static const fs::path d = [] {
@@ -35,25 +35,7 @@ fs::path workdir() {
     return d;
 }
 
-std::string slurp(const fs::path& p) {
-    std::ifstream in(p, std::ios::binary);
-    std::stringstream ss;
-    ss << in.rdbuf();
-    return ss.str();
-}
-
-std::string q(const fs::path& p) { return "'" + p.string() + "'"; }
-
-Run run(const std::string& args) {
-    const fs::path o = workdir() / "stdout.txt", e = workdir() / "stderr.txt";
-    const std::string cmd = std::string("'") + CAVITAS_BIN + "' " + args + " >'" + o.string() + "' 2>'" + e.string() + "'";
-    const int rc = std::system(cmd.c_str());
-    Run r;
-    r.status = WIFEXITED(rc) ? WEXITSTATUS(rc) : -1;
-    r.out = slurp(o);
-    r.err = slurp(e);
-    return r;
-}
+Run run(const std::string& args) { return cavitas::test::run_binary(CAVITAS_BIN, args, workdir()); }
 
 // The demo's recordings and sidecars, copied once, with a baseline library built from them.
 struct Site {
