@@ -10,6 +10,7 @@
 #include <string>
 
 #include "signal/window.hpp"
+#include "signal/stats.hpp"
 
 namespace cavitas::dsp {
 namespace {
@@ -26,38 +27,6 @@ const SpectralKurtosisConfig& validated(const SpectralKurtosisConfig& config, do
         throw std::invalid_argument("SpectralKurtosisConfig.window_size = " + std::to_string(config.window_size) +
                                     " must be a multiple of 4 in 8 .. 2^24 (the hop is window_size / 4)");
     return config;
-}
-
-// Standard normal quantile: P. J. Acklam's rational approximation (relative
-// error < 1.2e-9) polished by one Halley step on Phi(x) - p, with Phi from
-// erfc. The lower tail is taken as given and the upper tail by symmetry, so a
-// small tail probability keeps its digits.
-double normal_quantile(double p) {
-    static constexpr double a[] = {-3.969683028665376e+01, 2.209460984245205e+02, -2.759285104469687e+02,
-                                   1.383577518672690e+02,  -3.066479806614716e+01, 2.506628277459239e+00};
-    static constexpr double b[] = {-5.447609879822406e+01, 1.615858368580409e+02, -1.556989798598866e+02,
-                                   6.680131188771972e+01, -1.328068155288572e+01};
-    static constexpr double c[] = {-7.784894002430293e-03, -3.223964580411365e-01, -2.400758277161838e+00,
-                                   -2.549732539343734e+00, 4.374664141464968e+00,  2.938163982698783e+00};
-    static constexpr double d[] = {7.784695709041462e-03, 3.224671290700398e-01, 2.445134137142996e+00,
-                                   3.754408661907416e+00};
-    constexpr double p_low = 0.02425;
-    if (p > 0.5) return -normal_quantile(1.0 - p);
-    double x;
-    if (p < p_low) {
-        const double q = std::sqrt(-2.0 * std::log(p));
-        x = (((((c[0] * q + c[1]) * q + c[2]) * q + c[3]) * q + c[4]) * q + c[5]) /
-            ((((d[0] * q + d[1]) * q + d[2]) * q + d[3]) * q + 1.0);
-    } else {
-        const double q = p - 0.5;
-        const double r = q * q;
-        x = (((((a[0] * r + a[1]) * r + a[2]) * r + a[3]) * r + a[4]) * r + a[5]) * q /
-            (((((b[0] * r + b[1]) * r + b[2]) * r + b[3]) * r + b[4]) * r + 1.0);
-    }
-    // Halley: with e = Phi(x) - p and u = e / phi(x), x <- x - u / (1 + x u / 2).
-    const double e = 0.5 * std::erfc(-x / std::numbers::sqrt2) - p;
-    const double u = e * std::sqrt(2.0 * std::numbers::pi) * std::exp(0.5 * x * x);
-    return x - u / (1.0 + 0.5 * x * u);
 }
 
 }  // namespace

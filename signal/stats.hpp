@@ -47,4 +47,10 @@ private:
     double max_ = 0, min_ = 0;
 };
 
+/// Standard normal quantile Phi^-1(p), 0 < p < 1 (Acklam's approximation
+/// polished by a Halley step: relative error near machine precision).
+double normal_quantile(double p);
+/// Standard normal upper tail 1 - Phi(z).
+double normal_sf(double z);
+
 }  // namespace cavitas::dsp

@@ -182,3 +182,12 @@ TEST_CASE("Moments of an empty input are an error", "[signal]") {
     acc.add(std::span<const float>{});
     CHECK_THROWS_AS(acc.result(), std::invalid_argument);
 }
+
+TEST_CASE("Standard normal quantile and tail", "[signal]") {
+    // scipy.stats.norm (scipy 1.10.1): ppf(0.975) = 1.959963984540054, ppf(1e-6) = -4.753424308822899,
+    // sf(3) = 0.0013498980316300933.
+    CHECK_THAT(cavitas::dsp::normal_quantile(0.975), Catch::Matchers::WithinRel(1.959963984540054, 1e-13));
+    CHECK_THAT(cavitas::dsp::normal_quantile(1e-6), Catch::Matchers::WithinRel(-4.753424308822899, 1e-12));
+    CHECK_THAT(cavitas::dsp::normal_sf(3.0), Catch::Matchers::WithinRel(0.0013498980316300933, 1e-13));
+    CHECK(cavitas::dsp::normal_quantile(0.5) == 0.0);
+}
