@@ -109,6 +109,12 @@ struct RecordingAnalyzer::Impl {
     SegmentSeries series;
     std::size_t samples = 0;
     double full_scale;
+    // Spectrum profile: band of each PSD bin (-1 = none) and the band centres.
+    std::vector<int> bin_band;
+    std::vector<double> band_center_hz;
+    std::vector<double> band_sum;
+    std::vector<int> band_count;
+    std::vector<float> profile_db;
 
     Impl(const AnalysisSetup& s, const MachineContext& m, double fs_value, std::size_t expected)
         : setup(s),
@@ -128,6 +134,36 @@ struct RecordingAnalyzer::Impl {
           ses_power_sum(n / 2 + 1, 0.0),
           full_scale(fs_value) {
         for (auto& v : series.values) v.reserve(1024);
+        make_profile_bands();
+    }
+
+    // About 12 bands per octave from 10 Hz (or the second PSD bin) to the
+    // Nyquist frequency, log-spaced; a band that holds no PSD bin is dropped, so
+    // the low end, where bins are wide, has one band per bin.
+    void make_profile_bands() {
+        const double bin = seg_psd.bin_hz();
+        const double lo = std::max(10.0, 1.5 * bin), hi = 0.5 * setup.fs_hz;
+        const int per_octave = 12;
+        const int edges = static_cast<int>(std::ceil(std::log2(hi / lo) * per_octave)) + 1;
+        bin_band.assign(seg_psd.bins(), -1);
+        std::vector<std::vector<std::size_t>> members;
+        for (int e = 0; e + 1 < edges; ++e) {
+            const double f0 = lo * std::pow(2.0, static_cast<double>(e) / per_octave);
+            const double f1 = std::min(hi, lo * std::pow(2.0, static_cast<double>(e + 1) / per_octave));
+            std::vector<std::size_t> in;
+            for (std::size_t k = 1; k < seg_psd.bins(); ++k) {
+                const double f = static_cast<double>(k) * bin;
+                if (f >= f0 && (f < f1 || (e + 2 == edges && f <= f1))) in.push_back(k);
+            }
+            if (in.empty()) continue;
+            const int band = static_cast<int>(band_center_hz.size());
+            for (std::size_t k : in) bin_band[k] = band;
+            band_center_hz.push_back(std::sqrt(f0 * f1));
+        }
+        band_sum.assign(band_center_hz.size(), 0.0);
+        band_count.assign(band_center_hz.size(), 0);
+        for (int b : bin_band)
+            if (b >= 0) ++band_count[static_cast<std::size_t>(b)];
     }
 
     static std::size_t fine_size(double fs_hz, std::size_t expected) {
@@ -155,6 +191,11 @@ struct RecordingAnalyzer::Impl {
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));
         series[SI::lf_level_db].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.lf.low_hz, setup.lf.high_hz)));
+        std::fill(band_sum.begin(), band_sum.end(), 0.0);
+        for (std::size_t k = 0; k < bin_band.size(); ++k)
+            if (bin_band[k] >= 0) band_sum[static_cast<std::size_t>(bin_band[k])] += seg_psd_out[k];
+        for (std::size_t b = 0; b < band_sum.size(); ++b)
+            profile_db.push_back(static_cast<float>(dsp::power_db(band_sum[b] / band_count[b])));
 
         envelope.process(x);
         const dsp::Moments band = dsp::moments(envelope.band_signal());
@@ -271,6 +312,28 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     for (std::size_t k = 0; k < ses.size(); ++k) ses[k] = std::sqrt(m.ses_power_sum[k] / static_cast<double>(segs));
     const double mean_sq = m.mean_sq_env_sum / static_cast<double>(segs);
     const double ses_bin = m.envelope.bin_hz();
+    r.spectrum.center_hz = m.band_center_hz;
+    r.spectrum.segment_db = m.profile_db;
+    {
+        // For reports: up to past the third blade-pass harmonic and 12x (the bearing-like
+        // search), or 1 kHz when the speed is unknown.
+        double top = 1000.0;
+        if (r.rpm > 0.0) {
+            top = 12.5 * shaft_hz(r.rpm);
+            if (m.machine.vanes > 0) top = std::max(top, 3.5 * blade_pass_hz(r.rpm, m.machine.vanes));
+        }
+        const std::size_t keep = std::min(ses.size(), static_cast<std::size_t>(std::ceil(top / ses_bin)) + 1);
+        r.envelope_spectrum.assign(ses.begin(), ses.begin() + static_cast<std::ptrdiff_t>(keep));
+        r.envelope_bin_hz = ses_bin;
+        r.mean_squared_envelope = mean_sq;
+    }
+    for (std::size_t row = 0; row < m.kurtogram.rows(); ++row) {
+        KurtogramRow kr;
+        kr.level = m.kurtogram.row_level(row);
+        kr.bandwidth_hz = m.kurtogram.row_bandwidth_hz(row);
+        for (std::size_t b = 0; b < m.kurtogram.row_bands(row); ++b) kr.mean.push_back(m.kurtogram.mean(row, b));
+        r.kurtogram_map.push_back(std::move(kr));
+    }
 
     using RI = RecordingIndicator;
     auto set = [&](RI i, double v) { r.recording[static_cast<std::size_t>(i)] = v; };
@@ -393,6 +456,18 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     }
     set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
     return r;
+}
+
+std::vector<double> SpectrumProfile::mean_db() const {
+    const std::size_t nb = bands(), ns = segments();
+    std::vector<double> out(nb, 0.0);
+    if (ns == 0) return out;
+    for (std::size_t b = 0; b < nb; ++b) {
+        double sum = 0.0;
+        for (std::size_t s = 0; s < ns; ++s) sum += std::pow(10.0, 0.1 * segment_db[s * nb + b]);
+        out[b] = dsp::power_db(sum / static_cast<double>(ns));
+    }
+    return out;
 }
 
 }  // namespace cavitas::models

@@ -77,6 +77,25 @@ struct EnvelopePeak {
     double prominence_db = 0.0;  ///< over the local median
 };
 
+/// The segment PSD averaged over log-spaced bands, kept for every segment so that
+/// a report can draw the recording against the baseline's median and spread.
+/// The bands are fixed by the setup (the same for a baseline and its recordings).
+struct SpectrumProfile {
+    std::vector<double> center_hz;   ///< geometric band centres
+    std::vector<float> segment_db;   ///< bands() values per segment, dB re 1 (signal unit)^2/Hz
+    std::size_t bands() const { return center_hz.size(); }
+    std::size_t segments() const { return bands() ? segment_db.size() / bands() : 0; }
+    /// 10 log10 of the mean power over the segments, per band.
+    std::vector<double> mean_db() const;
+};
+
+/// One row of the fast kurtogram's mean map.
+struct KurtogramRow {
+    double level = 0.0;
+    double bandwidth_hz = 0.0;
+    std::vector<double> mean;  ///< band b centred at (b + 0.5) x bandwidth
+};
+
 struct RecordingAnalysis {
     AnalysisSetup setup;
     SegmentSeries series;
@@ -94,6 +113,11 @@ struct RecordingAnalysis {
     std::size_t samples = 0;
     double duration_s = 0.0;
     double level_reference = 1.0;  ///< dB reference (1 signal unit)
+    SpectrumProfile spectrum;
+    std::vector<double> envelope_spectrum;  ///< averaged squared-envelope amplitude, bins from 0 Hz (truncated for reports)
+    double envelope_bin_hz = 0.0;
+    double mean_squared_envelope = 0.0;
+    std::vector<KurtogramRow> kurtogram_map;
     double full_scale = 0.0;       ///< |x| of a full-scale sample in signal units (0 = unknown, float files)
 };
 

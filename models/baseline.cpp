@@ -47,6 +47,22 @@ Baseline learn_baseline(const std::vector<RecordingAnalysis>& analyses) {
         b.recording[i] = robust_stat(per);
     }
     for (const auto& a : analyses) b.segments += a.series.segments();
+    // Spectrum profile statistics, when every recording has the same bands.
+    const auto& c0 = analyses.front().spectrum.center_hz;
+    bool same = !c0.empty();
+    for (const auto& a : analyses) same = same && a.spectrum.center_hz == c0;
+    if (same) {
+        const std::size_t nb = c0.size();
+        b.spectrum.center_hz = c0;
+        for (std::size_t k = 0; k < nb; ++k) {
+            std::vector<double> v;
+            for (const auto& a : analyses)
+                for (std::size_t s = 0; s < a.spectrum.segments(); ++s) v.push_back(a.spectrum.segment_db[s * nb + k]);
+            b.spectrum.median_db.push_back(median(v));
+            b.spectrum.p10_db.push_back(quantile(v, 0.10));
+            b.spectrum.p90_db.push_back(quantile(v, 0.90));
+        }
+    }
     return b;
 }
 

@@ -33,6 +33,14 @@ struct BaselineSource {
     double rpm = 0.0;
 };
 
+/// The baseline's spectrum profile: per band, the median and 10th/90th
+/// percentiles over all its segments (dB re 1 (signal unit)^2/Hz). Empty in
+/// baselines from before reports existed.
+struct SpectrumStats {
+    std::vector<double> center_hz, median_db, p10_db, p90_db;
+    bool empty() const { return center_hz.empty(); }
+};
+
 struct Baseline {
     static constexpr const char* kSchema = "cavitas.baseline/1";
     std::string schema = kSchema;
@@ -48,6 +56,7 @@ struct Baseline {
     double full_scale = 1.0;
     std::vector<BaselineSource> sources;
     OperatingPointSummary operating_point;  ///< the duty it was learned at, as stated (may be empty)
+    SpectrumStats spectrum;
     std::array<RobustStat, kSegmentIndicatorCount> segment{};      ///< pooled over all segments
     std::array<RobustStat, kRecordingIndicatorCount> recording{};  ///< over recordings
     std::size_t segments = 0;

@@ -1,15 +1,35 @@
 #include "src/atomic_file.hpp"
 
+#include <sys/stat.h>
 #include <unistd.h>
 
 #include <cerrno>
 #include <cstdio>
 #include <cstring>
 #include <filesystem>
+#include <fstream>
+#include <string>
 
 #include "src/errors.hpp"
 
 namespace cavitas::app {
+
+namespace {
+
+// The process's umask, read without changing it (umask(2) would race with other
+// threads creating files): Linux reports it in /proc/self/status; 022 otherwise.
+mode_t process_umask() {
+    static const mode_t mask = [] {
+        std::ifstream in("/proc/self/status");
+        std::string line;
+        while (std::getline(in, line))
+            if (line.rfind("Umask:", 0) == 0) return static_cast<mode_t>(std::stoul(line.substr(6), nullptr, 8));
+        return static_cast<mode_t>(022);
+    }();
+    return mask;
+}
+
+}  // namespace
 
 void write_file_atomically(const std::string& path, const std::string& contents) {
     namespace fs = std::filesystem;
@@ -22,6 +42,8 @@ void write_file_atomically(const std::string& path, const std::string& contents)
     std::string tmpl = (dir / ("." + target.filename().string() + ".XXXXXX")).string();
     const int fd = mkstemp(tmpl.data());
     if (fd < 0) throw InputError(path + ": cannot write: " + std::strerror(errno));
+    // mkstemp makes the file private (0600); an output is as readable as any file the user creates.
+    ::fchmod(fd, 0666 & ~process_umask());
     const char* p = contents.data();
     std::size_t left = contents.size();
     while (left > 0) {

@@ -89,6 +89,11 @@ json baseline_to_json(const Baseline& b) {
         {"segment_indicators", seg},
         {"recording_indicators", rec},
         {"operating_point", operating_point_json(b.operating_point)},
+        {"spectrum",
+         {{"center_hz", b.spectrum.center_hz},
+          {"median_db", b.spectrum.median_db},
+          {"p10_db", b.spectrum.p10_db},
+          {"p90_db", b.spectrum.p90_db}}},
     };
 }
 
@@ -189,6 +194,30 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
         b.operating_point.absolute_suction_pa = opt("absolute_suction_pa", 0.0, 1e9);
         b.operating_point.npsha_m = opt("npsha_m", -1e5, 1e5);
         b.operating_point.margin_ratio = opt("margin_ratio", -1e5, 1e5);
+    }
+    // Optional: the spectrum profile statistics (for reports).
+    if (j.contains("spectrum")) {
+        const json& sp = j["spectrum"];
+        const std::string wsp = origin + " (spectrum)";
+        if (!sp.is_object()) throw InputError(wsp + ": expected an object");
+        auto arr = [&](const char* key) {
+            std::vector<double> v;
+            if (!sp.contains(key) || !sp[key].is_array()) throw InputError(wsp + ": missing array '" + key + "'");
+            if (sp[key].size() > 10000) throw InputError(wsp + ": '" + key + "' is too long");
+            for (const auto& x : sp[key]) {
+                if (!x.is_number() || !std::isfinite(x.get<double>()))
+                    throw InputError(wsp + ": '" + key + "' holds a value that is not a finite number");
+                v.push_back(x.get<double>());
+            }
+            return v;
+        };
+        b.spectrum.center_hz = arr("center_hz");
+        b.spectrum.median_db = arr("median_db");
+        b.spectrum.p10_db = arr("p10_db");
+        b.spectrum.p90_db = arr("p90_db");
+        const std::size_t n = b.spectrum.center_hz.size();
+        if (b.spectrum.median_db.size() != n || b.spectrum.p10_db.size() != n || b.spectrum.p90_db.size() != n)
+            throw InputError(wsp + ": the arrays differ in length");
     }
     for (const char* part : {"segment_indicators", "recording_indicators"})
         if (!j.contains(part) || !j[part].is_object()) throw InputError(origin + ": missing '" + part + "'");

@@ -5,6 +5,7 @@
 
 #include "src/commands.hpp"
 #include "src/errors.hpp"
+#include "src/reports.hpp"
 #include "src/review.hpp"
 #include "src/route.hpp"
 
@@ -224,6 +225,28 @@ int main(int argc, char** argv) {
     cp->add_option("--channel", co.channel, "Channel to read, from 0")->check(CLI::NonNegativeNumber);
     cp->add_option("--json", co.json_output, "Write the comparison as JSON")->type_name("FILE");
 
+    ReportOptions rpo;
+    auto* rp = app.add_subcommand(
+        "report",
+        "A work-order report: a self-contained HTML page (no external fonts, scripts or images; prints to A4\n"
+        "and Letter) and a PDF of the same content, from a finding (analyze --json), a route output folder\n"
+        "or a before/after comparison (compare --json). It leads with the verdict in plain words, what to do\n"
+        "next and the cautions, then the evidence: the spectrum against the baseline, the envelope spectrum\n"
+        "with 1X and BPF marked, the kurtogram, the indicator table, the route's table worst first and each\n"
+        "point's history, and where every number came from.");
+    rp->add_option("input", rpo.input, "finding JSON, route output folder, or compare JSON")->required()->type_name("INPUT");
+    rp->add_option("--html", rpo.html, "HTML report to write")->type_name("FILE");
+    rp->add_option("--pdf", rpo.pdf, "PDF report to write")->type_name("FILE");
+    rp->add_option("--work-order", rpo.work_order, "Work-order number for the header");
+    rp->add_option("--site", rpo.site, "Site for the header");
+    rp->add_option("--analyst", rpo.analyst, "Analyst for the header");
+    rp->add_option("--machine", rpo.machine, "Machine tag for the header (default: from the input)");
+    rp->add_option("--point", rpo.point, "Measurement point for the header");
+    rp->add_option("--date", rpo.date, "Date of the recording for the header");
+    rp->add_option("--paper", rpo.paper, "PDF paper: a4 (default) or letter")->check(CLI::IsMember({"a4", "letter"}));
+    rp->add_option("--store", rpo.store, "Results store for the history charts of a route (default: the route's)")
+        ->type_name("FILE");
+
     try {
         app.parse(argc, argv);
     } catch (const CLI::ParseError& e) {
@@ -242,6 +265,7 @@ int main(int argc, char** argv) {
         }
         if (*tr) run_trend(to, std::cout);
         if (*cp) run_compare(co, std::cout, std::cerr);
+        if (*rp) run_report(rpo, std::cout);
         return static_cast<int>(ExitCode::ok);
     } catch (const UsageError& e) {
         std::cerr << "cavitas: usage: " << one_line(e.what()) << "\n";

@@ -60,6 +60,53 @@ void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
 
 }  // namespace
 
+json plots_to_json(const AnalyzeResult& r) {
+    const auto& a = r.recording.analysis;
+    const auto& b = r.baseline;
+    json spectrum = json::object();
+    const std::size_t nb = a.spectrum.bands(), ns = a.spectrum.segments();
+    if (nb > 0 && ns > 0) {
+        std::vector<double> p10(nb), p90(nb);
+        for (std::size_t k = 0; k < nb; ++k) {
+            std::vector<double> v(ns);
+            for (std::size_t s2 = 0; s2 < ns; ++s2) v[s2] = a.spectrum.segment_db[s2 * nb + k];
+            p10[k] = models::quantile(v, 0.10);
+            p90[k] = models::quantile(v, 0.90);
+        }
+        spectrum = {{"center_hz", a.spectrum.center_hz}, {"level_db", a.spectrum.mean_db()}, {"p10_db", p10},
+                    {"p90_db", p90}};
+        if (!b.spectrum.empty() && b.spectrum.center_hz.size() == nb) {
+            spectrum["baseline_median_db"] = b.spectrum.median_db;
+            spectrum["baseline_p10_db"] = b.spectrum.p10_db;
+            spectrum["baseline_p90_db"] = b.spectrum.p90_db;
+        }
+        spectrum["level_reference"] = "dB re 1 " + r.recording.info.calibration.unit + "^2/Hz";
+        spectrum["hf_low_hz"] = a.setup.hf.low_hz;
+        spectrum["hf_high_hz"] = a.setup.hf.high_hz;
+    }
+    json rows = json::array();
+    for (const auto& kr : a.kurtogram_map)
+        rows.push_back({{"level", kr.level}, {"bandwidth_hz", kr.bandwidth_hz}, {"mean", kr.mean}});
+    return {
+        {"spectrum", spectrum},
+        {"envelope_spectrum",
+         {{"bin_hz", a.envelope_bin_hz},
+          {"amplitude", a.envelope_spectrum},
+          {"mean_squared_envelope", a.mean_squared_envelope},
+          {"shaft_hz", a.rpm > 0.0 ? models::shaft_hz(a.rpm) : 0.0},
+          {"bpf_hz", a.rpm > 0.0 && a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0}}},
+        {"kurtogram",
+         {{"rows", rows},
+          {"chosen",
+           {{"center_hz", a.kurtogram_band.center_hz},
+            {"bandwidth_hz", a.kurtogram_band.bandwidth_hz},
+            {"level", a.kurtogram_band.level},
+            {"kurtosis", a.kurtogram_band.kurtosis}}},
+          {"hf_low_hz", a.setup.hf.low_hz},
+          {"hf_high_hz", a.setup.hf.high_hz}}},
+    };
+}
+
 void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string& baseline_path) {
     const auto& in = r.recording.info;
     const auto& a = r.recording.analysis;
@@ -186,6 +233,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
           {"recordings", b.sources.size()},
           {"rpm", b.rpm}}},
     };
+    j["plots"] = plots_to_json(r);
     if (r.operating) {
         json op = hydraulics_to_json(r.operating->resolved);
         op["agreement"] = models::to_string(r.operating->reading.agreement);

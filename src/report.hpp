@@ -16,6 +16,9 @@ inline constexpr const char* kNpshSchema = "cavitas.npsh/1";
 
 void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string& baseline_path);
 nlohmann::json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path);
+/// The data a report draws: the spectrum profile against the baseline's, the
+/// averaged squared-envelope spectrum, the kurtogram's mean map (the finding's "plots").
+nlohmann::json plots_to_json(const AnalyzeResult& r);
 
 /// The derived hydraulics with units in the keys (npsha_m, vapour_pressure_pa,
 /// density_kg_m3, velocity_head_m, absolute_suction_pa, margin_m, margin_ratio,

@@ -274,6 +274,47 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
         }
         j["baseline"] = {{"path", o.baseline}, {"machine", before.results.front().baseline.machine},
                          {"created_utc", before.results.front().baseline.created_utc}};
+        // What a report draws: each side's mean spectrum profile against the baseline's,
+        // and the HF level of every segment.
+        {
+            const auto& b0 = before.results.front();
+            const auto& centers = b0.recording.analysis.spectrum.center_hz;
+            auto side_db = [&centers](const Side& sd) {
+                std::vector<double> sum(centers.size(), 0.0);
+                std::size_t n = 0;
+                for (const auto& r : sd.results) {
+                    const auto& sp = r.recording.analysis.spectrum;
+                    if (sp.center_hz != centers) continue;
+                    for (std::size_t s2 = 0; s2 < sp.segments(); ++s2, ++n)
+                        for (std::size_t k = 0; k < centers.size(); ++k)
+                            sum[k] += std::pow(10.0, 0.1 * sp.segment_db[s2 * centers.size() + k]);
+                }
+                for (auto& v : sum) v = n ? 10.0 * std::log10(std::max(v / static_cast<double>(n), 1e-300)) : 0.0;
+                return sum;
+            };
+            auto hf_segments = [](const Side& sd) {
+                std::vector<double> v;
+                for (const auto& r : sd.results) {
+                    const auto& x = r.recording.analysis.series[models::SegmentIndicator::hf_level_db];
+                    v.insert(v.end(), x.begin(), x.end());
+                }
+                return v;
+            };
+            ordered_json plots;
+            plots["center_hz"] = centers;
+            plots["before_db"] = side_db(before);
+            plots["after_db"] = side_db(after);
+            const auto& bs = b0.baseline.spectrum;
+            if (bs.center_hz == centers) {
+                plots["baseline_median_db"] = bs.median_db;
+                plots["baseline_p10_db"] = bs.p10_db;
+                plots["baseline_p90_db"] = bs.p90_db;
+            }
+            plots["hf_low_hz"] = b0.recording.analysis.setup.hf.low_hz;
+            plots["hf_high_hz"] = b0.recording.analysis.setup.hf.high_hz;
+            plots["hf_segments_db"] = {{"before", hf_segments(before)}, {"after", hf_segments(after)}};
+            j["plots"] = plots;
+        }
         write_file_atomically(*o.json_output, j.dump(2) + "\n");
     }
 }

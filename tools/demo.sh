@@ -8,7 +8,8 @@
 #     a visit after it, and the other pumps) on all cores, with the history in
 #     BUILD_DIR/demo/baselines/history.sqlite;
 #  3. shows the trend of OW-P101 and compares it before and after its repair;
-#  4. works out the NPSH of OW-P101 on the day of its developed finding.
+#  4. writes work-order reports (HTML and PDF) to BUILD_DIR/demo/reports/;
+#  5. works out the NPSH of OW-P101 on the day of its developed finding.
 # Each recording's operating point is in NAME.op.toml beside it (read by cavitas itself).
 # Starts from an empty BUILD_DIR/demo/ every time, so the output is the same on every run.
 set -euo pipefail
@@ -53,7 +54,20 @@ echo "== 3. OW-P101 over time, and before/after its repair of 2026-11-04"
   --after "$samples/OW-P101_2026-11-09.wav" --json "$out/compare-OW-P101.json"
 echo
 
-echo "== 4. NPSH of OW-P101 on the day of its developed finding (from the recording's sidecar)"
+echo "== 4. work-order reports (HTML and PDF) of the route, of the repair and of OW-P102's finding"
+mkdir -p "$out/reports"
+"$cavitas" report "$out/route" --html "$out/reports/route.html" --pdf "$out/reports/route.pdf" \
+  --work-order WO-2611-0040 --site "Orrin Weir pumping station" --analyst "R. Okafor"
+"$cavitas" report "$out/compare-OW-P101.json" --html "$out/reports/repair-OW-P101.html" \
+  --pdf "$out/reports/repair-OW-P101.pdf" --work-order WO-2611-0041 --site "Orrin Weir pumping station" \
+  --analyst "R. Okafor" --point DE-H --date "2026-11-02 / 2026-11-09"
+"$cavitas" report "$out/route/findings/L000007_OW-P102_DE-H.json" --html "$out/reports/finding-OW-P102.html" \
+  --pdf "$out/reports/finding-OW-P102.pdf" --work-order WO-2610-0037 --site "Orrin Weir pumping station" \
+  --analyst "R. Okafor" --point DE-H --date 2026-10-05
+echo
+
+echo "== 5. NPSH of OW-P101 on the day of its developed finding (from the recording's sidecar)"
 "$cavitas" npsh --operating-point "$samples/OW-P101_2026-11-02.op.toml" --json "$out/npsh-OW-P101_2026-11-02.json"
 echo
-echo "demo outputs in $out/ (baselines, route summary and findings, trend, comparison, NPSH)"
+echo "demo outputs in $out/ (baselines, route summary and findings, trend, comparison, reports, NPSH)"
+echo "open $out/reports/route.html in a browser to see which pump to look at first, and why"
