@@ -82,6 +82,9 @@ std::size_t pow2_round(double x) {
     return static_cast<std::size_t>(std::exp2(l));
 }
 
+// Segments the kurtogram is run on at most (see Impl::kurtogram_stride); our choice.
+constexpr std::size_t kKurtogramSegments = 6;
+
 int kurtogram_levels_for(std::size_t n) {
     const int max_levels = static_cast<int>(std::floor(std::log2(static_cast<double>(n)))) - 7;
     return std::clamp(max_levels, 1, 7);
@@ -115,6 +118,12 @@ struct RecordingAnalyzer::Impl {
     std::vector<double> band_sum;
     std::vector<int> band_count;
     std::vector<float> profile_db;
+    // The kurtogram runs on at most kKurtogramSegments segments spread evenly over
+    // the record (every kurtogram_stride-th): its mean map is what is used, and a
+    // handful of 1 s segments pins it down while the filter bank is the costliest
+    // block by far (about half of all the work when run on every segment).
+    std::size_t kurtogram_stride = 1;
+    std::size_t segment_index = 0;
 
     Impl(const AnalysisSetup& s, const MachineContext& m, double fs_value, std::size_t expected)
         : setup(s),
@@ -135,6 +144,9 @@ struct RecordingAnalyzer::Impl {
           full_scale(fs_value) {
         for (auto& v : series.values) v.reserve(1024);
         make_profile_bands();
+        const std::size_t expected_segments = expected / n;
+        if (expected_segments > kKurtogramSegments)
+            kurtogram_stride = (expected_segments + kKurtogramSegments - 1) / kKurtogramSegments;
     }
 
     // About 12 bands per octave from 10 Hz (or the second PSD bin) to the
@@ -146,19 +158,24 @@ struct RecordingAnalyzer::Impl {
         const int per_octave = 12;
         const int edges = static_cast<int>(std::ceil(std::log2(hi / lo) * per_octave)) + 1;
         bin_band.assign(seg_psd.bins(), -1);
-        std::vector<std::vector<std::size_t>> members;
-        for (int e = 0; e + 1 < edges; ++e) {
-            const double f0 = lo * std::pow(2.0, static_cast<double>(e) / per_octave);
-            const double f1 = std::min(hi, lo * std::pow(2.0, static_cast<double>(e + 1) / per_octave));
-            std::vector<std::size_t> in;
-            for (std::size_t k = 1; k < seg_psd.bins(); ++k) {
-                const double f = static_cast<double>(k) * bin;
-                if (f >= f0 && (f < f1 || (e + 2 == edges && f <= f1))) in.push_back(k);
+        // Each bin's log band, in one pass; bands that hold no bin get no number.
+        std::vector<int> band_of_edge(static_cast<std::size_t>(std::max(edges, 1)), -1);
+        for (std::size_t k = 1; k < seg_psd.bins(); ++k) {
+            const double f = static_cast<double>(k) * bin;
+            if (f < lo || f > hi) continue;
+            int e = static_cast<int>(std::floor(std::log2(f / lo) * per_octave));
+            e = std::clamp(e, 0, edges - 2);
+            // Guard the rounding at an edge: the band is the one whose [f0, f1) holds f.
+            while (e > 0 && f < lo * std::pow(2.0, static_cast<double>(e) / per_octave)) --e;
+            while (e + 2 < edges && f >= lo * std::pow(2.0, static_cast<double>(e + 1) / per_octave)) ++e;
+            auto& b = band_of_edge[static_cast<std::size_t>(e)];
+            if (b < 0) {
+                b = static_cast<int>(band_center_hz.size());
+                const double f0 = lo * std::pow(2.0, static_cast<double>(e) / per_octave);
+                const double f1 = std::min(hi, lo * std::pow(2.0, static_cast<double>(e + 1) / per_octave));
+                band_center_hz.push_back(std::sqrt(f0 * f1));
             }
-            if (in.empty()) continue;
-            const int band = static_cast<int>(band_center_hz.size());
-            for (std::size_t k : in) bin_band[k] = band;
-            band_center_hz.push_back(std::sqrt(f0 * f1));
+            bin_band[k] = b;
         }
         band_sum.assign(band_center_hz.size(), 0.0);
         band_count.assign(band_center_hz.size(), 0);
@@ -219,7 +236,8 @@ struct RecordingAnalyzer::Impl {
         }
         series[SI::hf_spectral_kurtosis].push_back(sk_count ? sk_sum / static_cast<double>(sk_count) : 0.0);
 
-        kurtogram.process(x);
+        if (segment_index % kurtogram_stride == 0) kurtogram.process(x);
+        ++segment_index;
     }
 };
 

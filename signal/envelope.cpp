@@ -16,9 +16,9 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
       n_(segment_size),
       k_low_(0),
       k_high_(0),
-      real_(std::max<std::size_t>(segment_size, 2)),
-      analytic_(std::max<std::size_t>(segment_size, 2)),
-      ses_fft_(std::max<std::size_t>(segment_size, 2)) {
+      real_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only),
+      analytic_(std::max<std::size_t>(segment_size, 2), FftDirections::inverse_only),
+      ses_fft_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only) {
     if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
         throw std::invalid_argument("EnvelopeAnalyzer sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
     if (segment_size < 16)
@@ -72,7 +72,8 @@ void EnvelopeAnalyzer::process(std::span<const float> x) {
     for (std::size_t i = 0; i < n_; ++i) s[i] = (sq_env_[i] - mean_sq_env_) * window_[i];
     ses_fft_.forward();
     const auto S = ses_fft_.spectrum();
-    for (std::size_t k = 0; k < ses_.size(); ++k) ses_[k] = std::abs(S[k]) * ses_scale_;
+    for (std::size_t k = 0; k < ses_.size(); ++k)
+        ses_[k] = std::sqrt(S[k].real() * S[k].real() + S[k].imag() * S[k].imag()) * ses_scale_;
     ses_[0] = 0.0;
 }
 

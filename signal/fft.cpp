@@ -31,16 +31,18 @@ void check_size(std::size_t n, const char* what) {
 
 }  // namespace
 
-RealFft::RealFft(std::size_t n) : n_(n) {
+RealFft::RealFft(std::size_t n, FftDirections directions) : n_(n) {
     check_size(n, "RealFft");
     time_ = aligned_alloc_n<double>(n);
     freq_ = aligned_alloc_n<std::complex<double>>(n / 2 + 1);
     std::lock_guard<std::mutex> lock(planner_mutex());
     const int ni = static_cast<int>(n);
     auto* f = reinterpret_cast<fftw_complex*>(freq_);
-    forward_plan_ = fftw_plan_dft_r2c_1d(ni, time_, f, FFTW_ESTIMATE);
-    inverse_plan_ = fftw_plan_dft_c2r_1d(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
-    if (forward_plan_ == nullptr || inverse_plan_ == nullptr) {
+    if (directions != FftDirections::inverse_only) forward_plan_ = fftw_plan_dft_r2c_1d(ni, time_, f, FFTW_ESTIMATE);
+    if (directions != FftDirections::forward_only)
+        inverse_plan_ = fftw_plan_dft_c2r_1d(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
+    if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
+        (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
         release();
         throw std::runtime_error("FFTW could not plan a real transform of size " + std::to_string(n));
     }
@@ -81,18 +83,25 @@ RealFft& RealFft::operator=(RealFft&& o) noexcept {
     return *this;
 }
 
-void RealFft::forward() { fftw_execute(static_cast<fftw_plan>(forward_plan_)); }
-void RealFft::inverse() { fftw_execute(static_cast<fftw_plan>(inverse_plan_)); }
+void RealFft::forward() {
+    if (!forward_plan_) throw std::logic_error("RealFft planned for the inverse only: forward() called");
+    fftw_execute(static_cast<fftw_plan>(forward_plan_));
+}
+void RealFft::inverse() {
+    if (!inverse_plan_) throw std::logic_error("RealFft planned for the forward only: inverse() called");
+    fftw_execute(static_cast<fftw_plan>(inverse_plan_));
+}
 
-ComplexFft::ComplexFft(std::size_t n) : n_(n) {
+ComplexFft::ComplexFft(std::size_t n, FftDirections directions) : n_(n) {
     check_size(n, "ComplexFft");
     data_ = aligned_alloc_n<std::complex<double>>(n);
     std::lock_guard<std::mutex> lock(planner_mutex());
     const int ni = static_cast<int>(n);
     auto* d = reinterpret_cast<fftw_complex*>(data_);
-    forward_plan_ = fftw_plan_dft_1d(ni, d, d, FFTW_FORWARD, FFTW_ESTIMATE);
-    inverse_plan_ = fftw_plan_dft_1d(ni, d, d, FFTW_BACKWARD, FFTW_ESTIMATE);
-    if (forward_plan_ == nullptr || inverse_plan_ == nullptr) {
+    if (directions != FftDirections::inverse_only) forward_plan_ = fftw_plan_dft_1d(ni, d, d, FFTW_FORWARD, FFTW_ESTIMATE);
+    if (directions != FftDirections::forward_only) inverse_plan_ = fftw_plan_dft_1d(ni, d, d, FFTW_BACKWARD, FFTW_ESTIMATE);
+    if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
+        (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
         release();
         throw std::runtime_error("FFTW could not plan a complex transform of size " + std::to_string(n));
     }
@@ -129,7 +138,13 @@ ComplexFft& ComplexFft::operator=(ComplexFft&& o) noexcept {
     return *this;
 }
 
-void ComplexFft::forward() { fftw_execute(static_cast<fftw_plan>(forward_plan_)); }
-void ComplexFft::inverse() { fftw_execute(static_cast<fftw_plan>(inverse_plan_)); }
+void ComplexFft::forward() {
+    if (!forward_plan_) throw std::logic_error("ComplexFft planned for the inverse only: forward() called");
+    fftw_execute(static_cast<fftw_plan>(forward_plan_));
+}
+void ComplexFft::inverse() {
+    if (!inverse_plan_) throw std::logic_error("ComplexFft planned for the forward only: inverse() called");
+    fftw_execute(static_cast<fftw_plan>(inverse_plan_));
+}
 
 }  // namespace cavitas::dsp

@@ -12,12 +12,17 @@
 
 namespace cavitas::dsp {
 
+/// Which directions to plan. Planning is the costly part of an FFT object for
+/// large sizes (twiddle tables), so a block that only ever goes one way plans only
+/// that way; calling the other direction then throws std::logic_error.
+enum class FftDirections { both, forward_only, inverse_only };
+
 /// n-point real-to-complex forward and complex-to-real inverse transform.
 /// forward(): time() [size n] -> spectrum() [size n/2+1], unnormalised.
 /// inverse(): spectrum() -> time(), unnormalised (a round trip scales by n).
 class RealFft {
 public:
-    explicit RealFft(std::size_t n);
+    explicit RealFft(std::size_t n, FftDirections directions = FftDirections::both);
     ~RealFft();
     RealFft(RealFft&& other) noexcept;
     RealFft& operator=(RealFft&& other) noexcept;
@@ -46,7 +51,7 @@ private:
 /// inverse() e^{+j...}; both unnormalised.
 class ComplexFft {
 public:
-    explicit ComplexFft(std::size_t n);
+    explicit ComplexFft(std::size_t n, FftDirections directions = FftDirections::both);
     ~ComplexFft();
     ComplexFft(ComplexFft&& other) noexcept;
     ComplexFft& operator=(ComplexFft&& other) noexcept;

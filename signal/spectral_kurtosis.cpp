@@ -34,7 +34,7 @@ const SpectralKurtosisConfig& validated(const SpectralKurtosisConfig& config, do
 SpectralKurtosis::SpectralKurtosis(const SpectralKurtosisConfig& config, double fs_hz)
     : config_(validated(config, fs_hz)),
       fs_hz_(fs_hz),
-      fft_(config_.window_size),
+      fft_(config_.window_size, FftDirections::forward_only),
       window_(hann_periodic(config_.window_size)),
       sum_p_(bins(), 0.0),
       sum_p2_(bins(), 0.0) {}

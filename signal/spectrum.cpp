@@ -11,7 +11,7 @@
 namespace cavitas::dsp {
 
 WelchPsd::WelchPsd(const WelchConfig& config, double fs_hz)
-    : n_(config.segment_size), hop_(config.segment_size / 2), fs_hz_(fs_hz), fft_(std::max<std::size_t>(config.segment_size, 2)) {
+    : n_(config.segment_size), hop_(config.segment_size / 2), fs_hz_(fs_hz), fft_(std::max<std::size_t>(config.segment_size, 2), FftDirections::forward_only) {
     if (config.segment_size < 8)
         throw std::invalid_argument("WelchConfig.segment_size = " + std::to_string(config.segment_size) +
                                     " is below the minimum of 8");
