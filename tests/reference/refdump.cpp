@@ -27,6 +27,7 @@
 #include <nlohmann/json.hpp>
 
 #include "models/rank_tests.hpp"
+#include "signal/decimate.hpp"
 #include "signal/envelope.hpp"
 #include "signal/spectrum.hpp"
 #include "signal/stats.hpp"
@@ -341,6 +342,19 @@ json build() {
         run_envelope("band_tones", fs(band_tones), 0, 8192, 3000.0, 7000.0, "numpy+hilbert_band_limited"),
         run_envelope("odd_bins", fs(odd), 0, 4096, 0.0, 12800.0, "numpy+hilbert_exact"),
     });
+    // Decimator (signal/decimate): the taps and the decimated output of the noise.
+    {
+        json dec = json::array();
+        for (std::size_t factor : {3u, 12u}) {
+            cavitas::dsp::Decimator d(cavitas::dsp::DecimatorConfig{factor});
+            std::vector<float> out(noise.size() / factor + 2);
+            out.resize(d.process(noise, out));
+            std::vector<double> taps(d.taps().rbegin(), d.taps().rend());
+            dec.push_back({{"signal", "white_noise"}, {"factor", factor}, {"numtaps", taps.size()},
+                           {"cutoff", 0.8 / static_cast<double>(factor)}, {"taps", taps}, {"output", widen(std::span<const float>(out))}});
+        }
+        j["decimate"] = dec;
+    }
     // Rank tests (models/rank_tests): small and large, with and without ties.
     Gaussian r(kSeed + 1);
     j["rank_sum"] = json::array({

@@ -285,6 +285,21 @@ def check_envelope(rep, entry, signals, meta):
                       normwise(sq, np.abs(za_true) ** 2), TOL_F32_QUANT)
 
 
+def check_decimate(rep, entry, x):
+    """Decimator (signal/decimate): the taps are scipy.signal.firwin's Blackman design,
+    and the output is scipy.signal.lfilter with them, every factor-th sample."""
+    factor = entry["factor"]
+    taps = np.asarray(entry["taps"])
+    ref_taps = scipy.signal.firwin(entry["numtaps"], entry["cutoff"], window="blackman")
+    rep.check(f"decimate/{factor}/taps", f"scipy.signal.firwin blackman [{SCIPY}]",
+              float(np.max(np.abs(taps - ref_taps))), TOL_F64)
+    y = np.asarray(entry["output"])
+    ref = scipy.signal.lfilter(ref_taps, 1.0, x)[::factor][: len(y)]
+    if same_length(rep, f"decimate/{factor}/output", y, ref):
+        # cavitas writes float32 samples: one float32 ulp of the signal's scale.
+        rep.check(f"decimate/{factor}/output", f"scipy.signal.lfilter [{SCIPY}]", normwise(y, ref), 4 * 2.0**-24)
+
+
 def check_rank_sum(rep, entry):
     """Mann-Whitney U, Hodges-Lehmann shift and Cliff's delta (models/rank_tests)."""
     name = entry["name"]
@@ -338,6 +353,10 @@ def main(argv):
                     fn(rep, entry, signals, doc["signals"])
                 else:
                     fn(rep, entry, signals[entry["signal"]])
+        for entry in doc.get("decimate", []):
+            check_decimate(rep, entry, signals[entry["signal"]])
+        if not doc.get("decimate"):
+            rep.fail("structure/decimate", "refdump JSON", "section missing or empty")
         for key, fn in {"rank_sum": check_rank_sum, "trend": check_trend}.items():
             entries = doc.get(key, [])
             if not entries:
