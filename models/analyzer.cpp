@@ -87,7 +87,7 @@ std::size_t pow2_round(double x) {
 constexpr std::size_t kPushChunk = 32768;
 
 // Segments the kurtogram is run on at most (see Impl::kurtogram_stride); our choice.
-constexpr std::size_t kKurtogramSegments = 6;
+constexpr std::size_t kKurtogramSegments = 4;
 
 int kurtogram_levels_for(std::size_t n) {
     const int max_levels = static_cast<int>(std::floor(std::log2(static_cast<double>(n)))) - 7;

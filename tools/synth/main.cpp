@@ -82,11 +82,12 @@ int main(int argc, char** argv) {
         "(OW-P101_test_017.wav) in shuffled order; the truth is in manifest.csv (label, kind) and truth.csv "
         "(fault parameters). Encodings cycle through 16-bit PCM, 24-bit PCM, 32-bit float WAV and 16-bit FLAC.");
     const std::string set_footer =
-        "manifest.csv columns: file (relative to the folder), machine, role (baseline or test), label (normal, "
-        "incipient or developed: the truth a detector must give), kind (which signal was made), rpm (true shaft "
-        "speed), vanes, fs_hz, duration_s, full_scale_g (g at sample value 1.0), seed. truth.csv holds each "
-        "recording's severity and fault parameters; `cavitas-synth one --machine M --kind K --seconds D --seed S "
-        "--severity X` reproduces a recording's samples.";
+        "The manifests are route manifests (cavitas route): manifest.csv (every recording), baselines.csv and "
+        "route.csv, columns file (relative to the folder), machine, point, channel, datetime, rpm (true shaft "
+        "speed), vanes, full_scale (50g: g at sample value 1.0), then role (baseline or test), label (normal, "
+        "incipient or developed: the truth a detector must give), kind (which signal was made), fs_hz, "
+        "duration_s, seed. truth.csv holds each recording's severity and fault parameters; `cavitas-synth one "
+        "--machine M --kind K --seconds D --seed S --severity X` reproduces a recording's samples.";
     demo->footer(set_footer);
     eval->footer(set_footer);
     eval->add_option("OUTDIR", eval_dir, "Folder to write into (created if missing)")->required();
