@@ -147,12 +147,12 @@ struct RecordingAnalyzer::Impl {
           fine_psd(dsp::WelchConfig{fine_size(s.fs_hz / static_cast<double>(fine_factor(s.fs_hz)),
                                               expected / fine_factor(s.fs_hz))},
                    s.fs_hz / static_cast<double>(fine_factor(s.fs_hz))),
-          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz}, s.fs_hz, n),
-          impulses(dsp::ImpulseConfig{}, s.fs_hz, n),
+          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz, true}, s.fs_hz, n),
+          impulses(dsp::ImpulseConfig{}, envelope.envelope_rate_hz(), envelope.envelope_samples()),
           sk(dsp::SpectralKurtosisConfig{std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096)}, s.fs_hz),
           sk_out(sk.bins()),
           kurtogram(dsp::KurtogramConfig{kurtogram_levels_for(n), s.hf.low_hz}, s.fs_hz, n),
-          ses_power_sum(n / 2 + 1, 0.0),
+          ses_power_sum(envelope.envelope_spectrum().size(), 0.0),
           full_scale(fs_value) {
         for (auto& v : series.values) v.reserve(1024);
         make_profile_bands();
@@ -233,9 +233,8 @@ struct RecordingAnalyzer::Impl {
             profile_db.push_back(static_cast<float>(dsp::power_db(band_sum[b] / band_count[b])));
 
         envelope.process(x);
-        const dsp::Moments band = dsp::moments(envelope.band_signal());
-        series[SI::hf_kurtosis].push_back(band.kurtosis);
-        series[SI::hf_crest].push_back(band.crest);
+        series[SI::hf_kurtosis].push_back(envelope.band_kurtosis());
+        series[SI::hf_crest].push_back(envelope.band_crest());
         const std::size_t events = impulses.count(envelope.squared_envelope());
         series[SI::impulse_rate].push_back(static_cast<double>(events) / setup.segment_s);
         const auto ses = envelope.envelope_spectrum();

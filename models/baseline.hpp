@@ -42,7 +42,7 @@ struct SpectrumStats {
 };
 
 struct Baseline {
-    static constexpr const char* kSchema = "cavitas.baseline/1";
+    static constexpr const char* kSchema = "cavitas.baseline/2";
     std::string schema = kSchema;
     std::string cavitas_version;
     std::string created_utc;

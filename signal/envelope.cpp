@@ -6,19 +6,45 @@
 #include <stdexcept>
 #include <string>
 
+#include "signal/stats.hpp"
 #include "signal/window.hpp"
 
 namespace cavitas::dsp {
+
+std::size_t fast_fft_size(std::size_t target) {
+    for (std::size_t n = std::max<std::size_t>(target, 1);; ++n) {
+        std::size_t r = n;
+        for (std::size_t p : {2u, 3u, 5u})
+            while (r % p == 0) r /= p;
+        if (r == 1) return n;
+    }
+}
+
+namespace {
+
+// Envelope samples per segment: all n, or (decimate) the fast size that holds
+// |z|^2 without aliasing: twice the band's bins, at least 16, at most n.
+std::size_t envelope_size(const EnvelopeConfig& c, double fs_hz, std::size_t n) {
+    if (!c.decimate || n < 16 || !(fs_hz > 0.0)) return std::max<std::size_t>(n, 2);
+    const double bin = fs_hz / static_cast<double>(n);
+    const auto lo = static_cast<std::size_t>(std::max(1.0, std::ceil(c.band_low_hz / bin)));
+    const auto hi = static_cast<std::size_t>(std::max(0.0, std::floor(c.band_high_hz / bin)));
+    const std::size_t bins = hi >= lo ? hi - lo + 1 : 1;
+    return std::min(n, fast_fft_size(std::max<std::size_t>(16, 2 * bins)));
+}
+
+}  // namespace
 
 EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, std::size_t segment_size)
     : config_(config),
       fs_hz_(fs_hz),
       n_(segment_size),
+      m_(envelope_size(config, fs_hz, segment_size)),
       k_low_(0),
       k_high_(0),
       real_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only),
-      analytic_(std::max<std::size_t>(segment_size, 2), FftDirections::inverse_only),
-      ses_fft_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only) {
+      analytic_(m_, FftDirections::inverse_only),
+      ses_fft_(m_, FftDirections::forward_only) {
     if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
         throw std::invalid_argument("EnvelopeAnalyzer sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
     if (segment_size < 16)
@@ -42,11 +68,15 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
         throw std::invalid_argument("EnvelopeConfig band " + std::to_string(config.band_low_hz) + "-" +
                                     std::to_string(config.band_high_hz) + " Hz holds no frequency bin at " +
                                     std::to_string(bin) + " Hz resolution");
-    window_ = hann_periodic(n_);
+    if (config.decimate && 2 * (k_high_ - k_low_ + 1) > m_)
+        throw std::invalid_argument("EnvelopeConfig band " + std::to_string(config.band_low_hz) + "-" +
+                                    std::to_string(config.band_high_hz) + " Hz is too wide to decimate in a segment of " +
+                                    std::to_string(n_) + " samples");
+    window_ = hann_periodic(m_);
     ses_scale_ = 2.0 / window_sum(window_);
-    band_.assign(n_, 0.0);
-    sq_env_.assign(n_, 0.0);
-    ses_.assign(n_ / 2 + 1, 0.0);
+    if (!config.decimate) band_.assign(n_, 0.0);
+    sq_env_.assign(m_, 0.0);
+    ses_.assign(m_ / 2 + 1, 0.0);
 }
 
 void EnvelopeAnalyzer::process(std::span<const float> x) {
@@ -57,19 +87,35 @@ void EnvelopeAnalyzer::process(std::span<const float> x) {
     const auto X = real_.spectrum();
     auto z = analytic_.data();
     std::fill(z.begin(), z.end(), std::complex<double>{});
-    for (std::size_t k = k_low_; k <= k_high_; ++k) z[k] = 2.0 * X[k];
+    // Full rate: the band's bins where they are. Decimated: shifted down to 0 Hz
+    // (a frequency shift multiplies z by a unit phasor: |z| is unchanged).
+    const std::size_t shift = config_.decimate ? k_low_ : 0;
+    for (std::size_t k = k_low_; k <= k_high_; ++k) z[k - shift] = 2.0 * X[k];
     analytic_.inverse();
     const double inv_n = 1.0 / static_cast<double>(n_);
-    double sum = 0.0;
-    for (std::size_t i = 0; i < n_; ++i) {
+    double sum = 0.0, sum2 = 0.0, peak = 0.0;
+    for (std::size_t i = 0; i < m_; ++i) {
         const std::complex<double> zi = z[i] * inv_n;
-        band_[i] = zi.real();
-        sq_env_[i] = std::norm(zi);
-        sum += sq_env_[i];
+        if (!config_.decimate) band_[i] = zi.real();
+        const double e = std::norm(zi);
+        sq_env_[i] = e;
+        sum += e;
+        sum2 += e * e;
+        peak = std::max(peak, e);
     }
-    mean_sq_env_ = sum * inv_n;
+    const double inv_m = 1.0 / static_cast<double>(m_);
+    mean_sq_env_ = sum * inv_m;
+    if (config_.decimate) {
+        const double m2 = mean_sq_env_, m4 = sum2 * inv_m;
+        band_kurtosis_ = m2 > 0.0 ? 1.5 * m4 / (m2 * m2) : 0.0;
+        band_crest_ = m2 > 0.0 ? std::sqrt(2.0 * peak / m2) : 0.0;
+    } else {
+        const Moments mo = moments(std::span<const double>(band_));
+        band_kurtosis_ = mo.kurtosis;
+        band_crest_ = mo.crest;
+    }
     auto s = ses_fft_.time();
-    for (std::size_t i = 0; i < n_; ++i) s[i] = (sq_env_[i] - mean_sq_env_) * window_[i];
+    for (std::size_t i = 0; i < m_; ++i) s[i] = (sq_env_[i] - mean_sq_env_) * window_[i];
     ses_fft_.forward();
     const auto S = ses_fft_.spectrum();
     for (std::size_t k = 0; k < ses_.size(); ++k)

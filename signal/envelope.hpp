@@ -9,6 +9,17 @@
 // band). Re z is the band-passed signal; |z|^2 is the squared envelope, which
 // Randall recommends over the envelope itself.
 //
+// With `decimate`, the band's bins are moved to baseband and transformed back
+// at a lower rate instead (complex demodulation): the inverse transform has
+// only m >= 2 (band bins) points, enough for |z|^2, whose spectrum reaches the
+// band width at most, so the squared envelope and its spectrum are the same
+// at the frequencies they share, for a fraction of the work. The real band
+// signal is not formed then; its kurtosis and crest factor come from the
+// envelope: for x = Re(z e^{j w t}) with the carrier phase independent of the
+// envelope, E x^4 / (E x^2)^2 = 1.5 E|z|^4 / (E|z|^2)^2 (E cos^4 = 3/8,
+// E cos^2 = 1/2): 1.5 for a sine, 3 for Gaussian noise; and the crest factor is
+// sqrt(2) max|z| / rms|z|.
+//
 // The squared-envelope spectrum (SES) is the one-sided amplitude spectrum of
 // (|z|^2 - mean) with a periodic Hann window, scaled so that a cosine of
 // amplitude A in |z|^2 gives a line of height A at an exact bin
@@ -28,6 +39,7 @@ namespace cavitas::dsp {
 struct EnvelopeConfig {
     double band_low_hz = 2000.0;
     double band_high_hz = 10000.0;
+    bool decimate = false;  ///< complex demodulation at a lower rate (see above)
 };
 
 class EnvelopeAnalyzer {
@@ -38,12 +50,18 @@ public:
     /// Analyse one segment (x.size() == segment_size). Allocates nothing.
     void process(std::span<const float> x);
 
-    /// Band-passed signal (Re z), segment_size values.
+    /// Band-passed signal (Re z), segment_size values; empty with `decimate`.
     std::span<const double> band_signal() const { return band_; }
-    /// Squared envelope |z|^2, segment_size values.
+    /// Squared envelope |z|^2: envelope_samples() values at envelope_rate_hz().
     std::span<const double> squared_envelope() const { return sq_env_; }
-    /// SES amplitude, segment_size/2 + 1 values, bin k at k * bin_hz(); DC set to 0.
+    /// SES amplitude, envelope_samples()/2 + 1 values, bin k at k * bin_hz(); DC set to 0.
     std::span<const double> envelope_spectrum() const { return ses_; }
+    /// Kurtosis and crest factor of the band signal (from Re z, or from the envelope with `decimate`).
+    double band_kurtosis() const { return band_kurtosis_; }
+    double band_crest() const { return band_crest_; }
+    /// Samples of the squared envelope per segment, and their rate.
+    std::size_t envelope_samples() const { return m_; }
+    double envelope_rate_hz() const { return fs_hz_ * static_cast<double>(m_) / static_cast<double>(n_); }
     /// Mean of the squared envelope (= mean power of the analytic band signal,
     /// twice the band-passed signal's mean square).
     double mean_squared_envelope() const { return mean_sq_env_; }
@@ -55,6 +73,7 @@ private:
     EnvelopeConfig config_;
     double fs_hz_;
     std::size_t n_;
+    std::size_t m_;  // envelope samples per segment (n_, or fewer with decimate)
     std::size_t k_low_, k_high_;
     RealFft real_;
     ComplexFft analytic_;
@@ -63,7 +82,11 @@ private:
     double ses_scale_;
     std::vector<double> band_, sq_env_, ses_;
     double mean_sq_env_ = 0.0;
+    double band_kurtosis_ = 0.0, band_crest_ = 0.0;
 };
+
+/// The smallest n >= target whose only prime factors are 2, 3 and 5 (FFT-friendly).
+std::size_t fast_fft_size(std::size_t target);
 
 /// A spectral line measured against its local floor.
 struct LineMeasure {

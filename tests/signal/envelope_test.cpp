@@ -12,6 +12,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstddef>
+#include <cstdint>
 #include <numbers>
 #include <span>
 #include <stdexcept>
@@ -188,4 +189,62 @@ TEST_CASE("measure_line does not take the flank of a stronger line outside its w
     const auto on = cavitas::dsp::measure_line(spec, 1.0, 104.0, 2.0, 30.0);
     CHECK(on.found_hz == 104.0);
     CHECK_THAT(on.prominence_db, Catch::Matchers::WithinAbs(40.0, 1e-9));  // 20 log10(1 / 0.01)
+}
+
+TEST_CASE("Decimated demodulation gives the same envelope and spectrum at a fraction of the rate", "[signal]") {
+    // Band 800-1200 Hz = 401 bins: |z|^2 needs at least 802 samples; the fast size is 810 (2 x 3^4 x 5).
+    EnvelopeAnalyzer full(EnvelopeConfig{800.0, 1200.0}, kFs, kN);
+    EnvelopeAnalyzer dec(EnvelopeConfig{800.0, 1200.0, true}, kFs, kN);
+    CHECK(dec.envelope_samples() == 810);
+    CHECK(cavitas::dsp::fast_fft_size(802) == 810);
+    CHECK(full.envelope_samples() == kN);
+    CHECK_THAT(dec.envelope_rate_hz(), WithinRel(kFs * 810.0 / 8192.0, 1e-12));
+    CHECK(dec.band_signal().empty());
+    const auto x = am_signal(0.4, 1000.0, 37.0);
+    full.process(x);
+    dec.process(x);
+    // The same mean power (1 + m^2/2 = 1.08) and the same SES lines, 2m at fm and m^2/2 at 2 fm.
+    CHECK_THAT(dec.mean_squared_envelope(), WithinRel(full.mean_squared_envelope(), 1e-6));
+    CHECK_THAT(dec.envelope_spectrum()[37], WithinAbs(0.8, 1e-3));
+    CHECK_THAT(dec.envelope_spectrum()[74], WithinAbs(0.08, 1e-3));
+    for (std::size_t k = 1; k < dec.envelope_spectrum().size(); ++k)
+        CHECK_THAT(dec.envelope_spectrum()[k], WithinAbs(full.envelope_spectrum()[k], 1e-4));
+    // The squared envelope at the decimated instants is the full-rate one there (t = i n / m
+    // falls between full-rate samples; the envelope (1 + 0.4 cos)^2 is compared with its formula).
+    for (std::size_t i = 0; i < dec.envelope_samples(); i += 37) {
+        const double t = static_cast<double>(i) * 8192.0 / 810.0 / kFs;
+        const double e = 1.0 + 0.4 * std::cos(kTwoPi * 37.0 * t);
+        CHECK_THAT(dec.squared_envelope()[i], WithinAbs(e * e, 1e-4));
+    }
+}
+
+TEST_CASE("Band kurtosis and crest from the envelope match the real band signal's", "[signal]") {
+    // A sine: kurtosis 1.5, crest sqrt(2), computed from the definition; both ways.
+    EnvelopeAnalyzer full(EnvelopeConfig{800.0, 1200.0}, kFs, kN);
+    EnvelopeAnalyzer dec(EnvelopeConfig{800.0, 1200.0, true}, kFs, kN);
+    const auto s = tone_signal(1.0, 1000.0, 0.3);
+    full.process(s);
+    dec.process(s);
+    CHECK_THAT(full.band_kurtosis(), WithinAbs(1.5, 1e-6));
+    CHECK_THAT(dec.band_kurtosis(), WithinAbs(1.5, 1e-6));
+    CHECK_THAT(dec.band_crest(), WithinAbs(std::sqrt(2.0), 1e-6));
+    // Gaussian noise: 3 for the real band signal (Gaussian) and, from the Rayleigh envelope,
+    // 1.5 E|z|^4 / (E|z|^2)^2 = 1.5 x 2 = 3; over 8192 samples within 0.25 of each other.
+    std::vector<float> g(kN);
+    std::uint64_t st = 12345;
+    for (auto& v : g) {  // sum of 12 uniforms: near-Gaussian, deterministic
+        double acc = 0.0;
+        for (int k = 0; k < 12; ++k) {
+            st = st * 6364136223846793005ULL + 1442695040888963407ULL;
+            acc += static_cast<double>(st >> 11) / 9007199254740992.0;
+        }
+        v = static_cast<float>(acc - 6.0);
+    }
+    full.process(g);
+    dec.process(g);
+    CHECK_THAT(full.band_kurtosis(), WithinAbs(3.0, 0.25));
+    CHECK_THAT(dec.band_kurtosis(), WithinAbs(3.0, 0.25));
+    CHECK_THAT(dec.band_kurtosis(), WithinAbs(full.band_kurtosis(), 0.25));
+    // The envelope's peak is at least the real signal's (|Re z| <= |z|).
+    CHECK(dec.band_crest() >= full.band_crest() - 1e-9);
 }

@@ -127,7 +127,7 @@ TEST_CASE("baseline then analyze gives a JSON finding with the contracted keys",
     REQUIRE(r.status == 0);
     REQUIRE(fs::exists(b));
     const auto base = nlohmann::json::parse(slurp(b));
-    CHECK(base["schema"] == "cavitas.baseline/1");
+    CHECK(base["schema"] == "cavitas.baseline/2");
     CHECK(base["context"]["rpm"] == 1485.0);
     CHECK(base["context"]["vanes"] == 7);
     CHECK(base["context"]["unit"] == "g");
@@ -162,7 +162,7 @@ TEST_CASE("baseline then analyze gives a JSON finding with the contracted keys",
 TEST_CASE("A corrupt, foreign or future baseline exits 1 naming the file", "[cli]") {
     const fs::path rec = make_wav("rec.wav", 21);
     const fs::path bad = workdir() / "corrupt.json";
-    std::ofstream(bad) << "{\"schema\": \"cavitas.baseline/1\", \"context\": {";
+    std::ofstream(bad) << "{\"schema\": \"cavitas.baseline/2\", \"context\": {";
     Run r = run("analyze --baseline " + q(bad) + " " + q(rec));
     CHECK(r.status == 1);
     CHECK(r.err.find("corrupt.json") != std::string::npos);
