@@ -8,6 +8,32 @@
 
 namespace cavitas::dsp {
 
+namespace {
+
+// sum a[j] b[j] in four-lane float vectors (GCC/Clang vector extensions: SSE on
+// any x86-64, NEON on ARM), the tail in scalars. The products of a float FIR
+// keep about 1e-7 of the output's scale, far below what a spectrum resolves.
+float dot(const float* a, const float* b, std::size_t n) {
+    typedef float v4 __attribute__((vector_size(16)));
+    v4 acc0 = {0, 0, 0, 0}, acc1 = {0, 0, 0, 0};
+    std::size_t j = 0;
+    for (; j + 8 <= n; j += 8) {
+        v4 a0, a1, b0, b1;
+        __builtin_memcpy(&a0, a + j, sizeof a0);
+        __builtin_memcpy(&a1, a + j + 4, sizeof a1);
+        __builtin_memcpy(&b0, b + j, sizeof b0);
+        __builtin_memcpy(&b1, b + j + 4, sizeof b1);
+        acc0 += a0 * b0;
+        acc1 += a1 * b1;
+    }
+    const v4 acc = acc0 + acc1;
+    float s = (acc[0] + acc[1]) + (acc[2] + acc[3]);
+    for (; j < n; ++j) s += a[j] * b[j];
+    return s;
+}
+
+}  // namespace
+
 std::vector<double> lowpass_fir(std::size_t numtaps, double cutoff) {
     if (numtaps < 1) throw std::invalid_argument("lowpass_fir: numtaps must be at least 1");
     if (!(cutoff > 0.0 && cutoff < 1.0)) throw std::invalid_argument("lowpass_fir: cutoff must be within (0, 1)");
@@ -38,15 +64,15 @@ Decimator::Decimator(const DecimatorConfig& c) : factor_(c.factor) {
     if (!(c.passband > 0.0 && c.passband < 1.0))
         throw std::invalid_argument("DecimatorConfig.passband = " + std::to_string(c.passband) + " is outside (0, 1)");
     if (factor_ > 1) {
-        taps_ = lowpass_fir(c.taps_per_phase * factor_ + 1, c.passband / static_cast<double>(factor_));
-        std::reverse(taps_.begin(), taps_.end());
-        history_.assign(taps_.size() - 1, 0.0);
+        design_ = lowpass_fir(c.taps_per_phase * factor_ + 1, c.passband / static_cast<double>(factor_));
+        taps_.assign(design_.rbegin(), design_.rend());
+        history_.assign(taps_.size() - 1, 0.0f);
         history_.reserve(taps_.size() - 1 + (std::size_t{1} << 16));
     }
 }
 
 void Decimator::reset() {
-    std::fill(history_.begin(), history_.end(), 0.0);
+    std::fill(history_.begin(), history_.end(), 0.0f);
     history_.resize(taps_.empty() ? 0 : taps_.size() - 1);
     phase_ = 0;
 }
@@ -68,10 +94,7 @@ std::size_t Decimator::process(std::span<const float> x, std::span<float> out) {
         // window ending at the kept input.
         std::size_t i = phase_;
         for (; i < len; i += factor_) {
-            const double* w = history_.data() + i;  // window [i, i + nt)
-            double acc = 0.0;
-            for (std::size_t j = 0; j < nt; ++j) acc += taps_[j] * w[j];
-            out[written++] = static_cast<float>(acc);
+            out[written++] = static_cast<float>(dot(taps_.data(), history_.data() + i, nt));
         }
         phase_ = i - len;
         history_.erase(history_.begin(), history_.end() - static_cast<std::ptrdiff_t>(keep));

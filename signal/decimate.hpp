@@ -30,7 +30,8 @@ public:
     /// taps_per_phase 0, passband outside (0, 1)).
     explicit Decimator(const DecimatorConfig& config);
     std::size_t factor() const { return factor_; }
-    const std::vector<double>& taps() const { return taps_; }
+    /// The filter as designed (double precision; applied in single precision).
+    const std::vector<double>& taps() const { return design_; }
     /// Filters x and writes the kept samples to out; returns how many. out must
     /// hold at least x.size() / factor + 1. Allocates nothing.
     std::size_t process(std::span<const float> x, std::span<float> out);
@@ -38,8 +39,9 @@ public:
 
 private:
     std::size_t factor_;
-    std::vector<double> taps_;     // numtaps, reversed for a dot product with the history
-    std::vector<double> history_;  // the last numtaps - 1 inputs, then the current block's
+    std::vector<double> design_;   // the taps as designed
+    std::vector<float> taps_;      // the same, reversed for a dot product with the history
+    std::vector<float> history_;   // the last numtaps - 1 inputs, then the current block's
     std::size_t phase_ = 0;        // inputs to skip before the next kept sample
 };
 

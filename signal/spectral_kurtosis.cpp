@@ -26,6 +26,10 @@ const SpectralKurtosisConfig& validated(const SpectralKurtosisConfig& config, do
     if (config.window_size < kMinWindow || config.window_size % 4 != 0 || config.window_size > (std::size_t{1} << 24))
         throw std::invalid_argument("SpectralKurtosisConfig.window_size = " + std::to_string(config.window_size) +
                                     " must be a multiple of 4 in 8 .. 2^24 (the hop is window_size / 4)");
+    if (config.hop > config.window_size)
+        throw std::invalid_argument("SpectralKurtosisConfig.hop = " + std::to_string(config.hop) +
+                                    " exceeds window_size = " + std::to_string(config.window_size) +
+                                    " (frames would skip samples)");
     return config;
 }
 
@@ -41,7 +45,7 @@ SpectralKurtosis::SpectralKurtosis(const SpectralKurtosisConfig& config, double 
 
 void SpectralKurtosis::compute(std::span<const float> x, std::span<double> out) {
     const std::size_t n = config_.window_size;
-    const std::size_t hop = n / 4;
+    const std::size_t hop = this->hop();
     const std::size_t nb = bins();
     assert(out.size() == nb);
     assert(x.size() >= n + hop);

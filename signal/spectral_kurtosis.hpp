@@ -17,7 +17,8 @@
 namespace cavitas::dsp {
 
 struct SpectralKurtosisConfig {
-    std::size_t window_size = 256;  ///< STFT frame length (periodic Hann), hop = window_size / 4
+    std::size_t window_size = 256;  ///< STFT frame length (periodic Hann)
+    std::size_t hop = 0;            ///< frame step; 0 = window_size / 4 (75 % overlap)
 };
 
 class SpectralKurtosis {
@@ -26,6 +27,7 @@ public:
 
     /// SK of x, one value per bin (window_size/2 + 1 values) written into out.
     /// Needs at least 2 frames (x.size() >= window_size + hop).
+    std::size_t hop() const { return config_.hop ? config_.hop : config_.window_size / 4; }
     void compute(std::span<const float> x, std::span<double> out);
     std::size_t bins() const { return config_.window_size / 2 + 1; }
     double bin_hz() const { return fs_hz_ / static_cast<double>(config_.window_size); }

@@ -349,7 +349,7 @@ json build() {
             cavitas::dsp::Decimator d(cavitas::dsp::DecimatorConfig{factor});
             std::vector<float> out(noise.size() / factor + 2);
             out.resize(d.process(noise, out));
-            std::vector<double> taps(d.taps().rbegin(), d.taps().rend());
+            const std::vector<double>& taps = d.taps();
             dec.push_back({{"signal", "white_noise"}, {"factor", factor}, {"numtaps", taps.size()},
                            {"cutoff", 0.8 / static_cast<double>(factor)}, {"taps", taps}, {"output", widen(std::span<const float>(out))}});
         }

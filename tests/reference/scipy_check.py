@@ -296,8 +296,9 @@ def check_decimate(rep, entry, x):
     y = np.asarray(entry["output"])
     ref = scipy.signal.lfilter(ref_taps, 1.0, x)[::factor][: len(y)]
     if same_length(rep, f"decimate/{factor}/output", y, ref):
-        # cavitas writes float32 samples: one float32 ulp of the signal's scale.
-        rep.check(f"decimate/{factor}/output", f"scipy.signal.lfilter [{SCIPY}]", normwise(y, ref), 4 * 2.0**-24)
+        # cavitas filters in single precision: numtaps products summed in float32 carry
+        # about sqrt(numtaps) ulps of the output's scale (sqrt(193) x 6e-8 = 8e-7); 2e-6 bounds it.
+        rep.check(f"decimate/{factor}/output", f"scipy.signal.lfilter [{SCIPY}]", normwise(y, ref), 2e-6)
 
 
 def check_rank_sum(rep, entry):
