@@ -103,7 +103,8 @@ struct RecordingAnalyzer::Impl {
     std::vector<float> segment;
     std::size_t fill = 0;
     dsp::QualityMeter quality;
-    dsp::WelchPsd seg_psd;
+    // The segment's PSD comes from the envelope analyzer's transform of the same
+    // segment (one Hann-windowed frame of the whole segment, 1/segment_s resolution).
     std::vector<double> seg_psd_out;
     // The fine PSD (speed search, mains lines, ski slope) only needs the low
     // part of the spectrum: it runs on the signal decimated to about 8 kHz.
@@ -140,8 +141,7 @@ struct RecordingAnalyzer::Impl {
           segment(n),
           quality(dsp::QualityConfig{fs_value, 0.999, 3,
                                      std::max<std::size_t>(16, static_cast<std::size_t>(std::lround(kDropoutRunS * s.fs_hz)))}),
-          seg_psd(dsp::WelchConfig{std::max<std::size_t>(64, std::min(pow2_round(s.fs_hz / 8.0), n / 2))}, s.fs_hz),
-          seg_psd_out(seg_psd.bins()),
+          seg_psd_out(n / 2 + 1),
           fine_decimator(dsp::DecimatorConfig{fine_factor(s.fs_hz)}),
           fine_block(kPushChunk / fine_factor(s.fs_hz) + 2),
           fine_psd(dsp::WelchConfig{fine_size(s.fs_hz / static_cast<double>(fine_factor(s.fs_hz)),
@@ -168,14 +168,15 @@ struct RecordingAnalyzer::Impl {
     // Nyquist frequency, log-spaced; a band that holds no PSD bin is dropped, so
     // the low end, where bins are wide, has one band per bin.
     void make_profile_bands() {
-        const double bin = seg_psd.bin_hz();
+        const double bin = setup.fs_hz / static_cast<double>(n);
+        const std::size_t bins = n / 2 + 1;
         const double lo = std::max(10.0, 1.5 * bin), hi = 0.5 * setup.fs_hz;
         const int per_octave = 12;
         const int edges = static_cast<int>(std::ceil(std::log2(hi / lo) * per_octave)) + 1;
-        bin_band.assign(seg_psd.bins(), -1);
+        bin_band.assign(bins, -1);
         // Each bin's log band, in one pass; bands that hold no bin get no number.
         std::vector<int> band_of_edge(static_cast<std::size_t>(std::max(edges, 1)), -1);
-        for (std::size_t k = 1; k < seg_psd.bins(); ++k) {
+        for (std::size_t k = 1; k < bins; ++k) {
             const double f = static_cast<double>(k) * bin;
             if (f < lo || f > hi) continue;
             int e = static_cast<int>(std::floor(std::log2(f / lo) * per_octave));
@@ -221,10 +222,9 @@ struct RecordingAnalyzer::Impl {
         series[SI::overall_crest].push_back(raw.crest);
         series[SI::overall_kurtosis].push_back(raw.kurtosis);
 
-        seg_psd.reset();
-        seg_psd.push(x);
-        seg_psd.psd(seg_psd_out);
-        const double bin = seg_psd.bin_hz();
+        envelope.process(x);
+        dsp::hann_psd_from_spectrum(envelope.segment_spectrum(), n, setup.fs_hz, seg_psd_out);
+        const double bin = setup.fs_hz / static_cast<double>(n);
         series[SI::hf_level_db].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));
         series[SI::lf_level_db].push_back(
@@ -235,7 +235,6 @@ struct RecordingAnalyzer::Impl {
         for (std::size_t b = 0; b < band_sum.size(); ++b)
             profile_db.push_back(static_cast<float>(dsp::power_db(band_sum[b] / band_count[b])));
 
-        envelope.process(x);
         series[SI::hf_kurtosis].push_back(envelope.band_kurtosis());
         series[SI::hf_crest].push_back(envelope.band_crest());
         const std::size_t events = impulses.count(envelope.squared_envelope());

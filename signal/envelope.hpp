@@ -56,6 +56,9 @@ public:
     std::span<const double> squared_envelope() const { return sq_env_; }
     /// SES amplitude, envelope_samples()/2 + 1 values, bin k at k * bin_hz(); DC set to 0.
     std::span<const double> envelope_spectrum() const { return ses_; }
+    /// The last segment's unwindowed DFT (segment_size/2 + 1 bins), for a PSD without
+    /// a transform of its own (hann_psd_from_spectrum).
+    std::span<const std::complex<double>> segment_spectrum() const { return real_.spectrum(); }
     /// Kurtosis and crest factor of the band signal (from Re z, or from the envelope with `decimate`).
     double band_kurtosis() const { return band_kurtosis_; }
     double band_crest() const { return band_crest_; }

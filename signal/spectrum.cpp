@@ -81,6 +81,27 @@ void WelchPsd::reset() {
     fill_ = 0;
 }
 
+void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t n, double fs_hz,
+                            std::span<double> out) {
+    const std::size_t nb = n / 2 + 1;
+    if (X.size() < nb || out.size() < nb || n < 4)
+        throw std::invalid_argument("hann_psd_from_spectrum: needs n >= 4 and n/2 + 1 bins in and out");
+    // Bin k of the full DFT: X_k for k <= n/2, conj(X_{n-k}) above; X_0 = 0 (detrend).
+    auto at = [&](long k) -> std::complex<double> {
+        const long nn = static_cast<long>(n);
+        k = ((k % nn) + nn) % nn;
+        if (k == 0) return {};
+        return k <= nn / 2 ? X[static_cast<std::size_t>(k)] : std::conj(X[static_cast<std::size_t>(nn - k)]);
+    };
+    const double scale = 1.0 / (fs_hz * 3.0 * static_cast<double>(n) / 8.0);  // sum of Hann^2 = 3n/8
+    for (std::size_t k = 0; k < nb; ++k) {
+        const long kk = static_cast<long>(k);
+        const std::complex<double> y = 0.5 * at(kk) - 0.25 * (at(kk - 1) + at(kk + 1));
+        const bool edge = k == 0 || (n % 2 == 0 && k == n / 2);
+        out[k] = std::norm(y) * scale * (edge ? 1.0 : 2.0);
+    }
+}
+
 double band_power(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {
     if (!(bin_hz > 0.0)) throw std::invalid_argument("band_power: bin width must be > 0 Hz");
     if (high_hz < low_hz) throw std::invalid_argument("band_power: band high edge is below its low edge");

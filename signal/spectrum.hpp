@@ -11,6 +11,7 @@
 // record can be fed block by block; memory is fixed by segment_size.
 #pragma once
 
+#include <complex>
 #include <cstddef>
 #include <span>
 #include <vector>
@@ -56,6 +57,14 @@ private:
     std::vector<double> acc_;
     std::size_t frames_ = 0;
 };
+
+/// The one-sided PSD of one n-sample frame, Welch's conventions above (constant
+/// detrend, periodic Hann, density scaling), from the frame's unwindowed DFT X
+/// (n/2 + 1 bins, as RealFft gives it): the window is applied in the frequency
+/// domain, Y_k = X_k / 2 - (X_{k-1} + X_{k+1}) / 4, with X_0 taken as 0 (the
+/// detrend). Equal to WelchPsd with segment_size n over exactly n samples,
+/// without a transform of its own. out must hold n/2 + 1 values.
+void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t n, double fs_hz, std::span<double> out);
 
 /// Power in [low_hz, high_hz] from a one-sided PSD (sum of psd * bin width over
 /// the bins whose centre lies in the band). Units^2.

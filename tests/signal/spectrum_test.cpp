@@ -193,3 +193,30 @@ TEST_CASE("Zero power or amplitude reads -300 dB instead of minus infinity", "[s
     CHECK(std::isfinite(power_db(0.0)));
     CHECK(std::isfinite(amplitude_db(0.0)));
 }
+
+TEST_CASE("A Hann PSD from a frame's DFT equals Welch over that one frame", "[signal]") {
+    // Windowing in the frequency domain: the periodic Hann is 1/2 - (e^{+} + e^{-})/4, so
+    // the windowed DFT is X_k/2 - (X_{k-1} + X_{k+1})/4 (computed from the definition);
+    // the detrend removes X_0. Checked against WelchPsd with one frame, even and odd n.
+    for (std::size_t n : {1024u, 1000u, 999u}) {
+        std::vector<float> x(n);
+        std::uint64_t st = 99 + n;
+        for (std::size_t i = 0; i < n; ++i) {
+            st = st * 6364136223846793005ULL + 1442695040888963407ULL;
+            x[i] = static_cast<float>(0.3 + std::sin(0.05 * static_cast<double>(i)) +
+                                      static_cast<double>(st >> 11) / 9007199254740992.0 - 0.5);
+        }
+        cavitas::dsp::WelchPsd welch(cavitas::dsp::WelchConfig{n}, 2000.0);
+        welch.push(std::span<const float>(x));
+        REQUIRE(welch.frames() == 1);
+        const auto ref = welch.psd();
+        cavitas::dsp::RealFft fft(n, cavitas::dsp::FftDirections::forward_only);
+        for (std::size_t i = 0; i < n; ++i) fft.time()[i] = x[i];
+        fft.forward();
+        std::vector<double> got(n / 2 + 1);
+        cavitas::dsp::hann_psd_from_spectrum(fft.spectrum(), n, 2000.0, got);
+        double peak = 0.0;
+        for (double v : ref) peak = std::max(peak, v);
+        for (std::size_t k = 0; k < got.size(); ++k) CHECK_THAT(got[k], Catch::Matchers::WithinAbs(ref[k], 1e-12 * peak));
+    }
+}
