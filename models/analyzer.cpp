@@ -174,24 +174,26 @@ struct RecordingAnalyzer::Impl {
         const int per_octave = 12;
         const int edges = static_cast<int>(std::ceil(std::log2(hi / lo) * per_octave)) + 1;
         bin_band.assign(bins, -1);
-        // Each bin's log band, in one pass; bands that hold no bin get no number.
-        std::vector<int> band_of_edge(static_cast<std::size_t>(std::max(edges, 1)), -1);
+        // Each bin's log band, in one pass over bins and edges together; bands that
+        // hold no bin get no number.
+        auto edge_hz = [&](int e) { return lo * std::pow(2.0, static_cast<double>(e) / per_octave); };
+        int e = 0;
+        double f1 = edge_hz(1);
+        int current = -1;  // band number of edge interval e, once it has a bin
         for (std::size_t k = 1; k < bins; ++k) {
             const double f = static_cast<double>(k) * bin;
-            if (f < lo || f > hi) continue;
-            int e = static_cast<int>(std::floor(std::log2(f / lo) * per_octave));
-            e = std::clamp(e, 0, edges - 2);
-            // Guard the rounding at an edge: the band is the one whose [f0, f1) holds f.
-            while (e > 0 && f < lo * std::pow(2.0, static_cast<double>(e) / per_octave)) --e;
-            while (e + 2 < edges && f >= lo * std::pow(2.0, static_cast<double>(e + 1) / per_octave)) ++e;
-            auto& b = band_of_edge[static_cast<std::size_t>(e)];
-            if (b < 0) {
-                b = static_cast<int>(band_center_hz.size());
-                const double f0 = lo * std::pow(2.0, static_cast<double>(e) / per_octave);
-                const double f1 = std::min(hi, lo * std::pow(2.0, static_cast<double>(e + 1) / per_octave));
-                band_center_hz.push_back(std::sqrt(f0 * f1));
+            if (f < lo) continue;
+            if (f > hi) break;
+            while (e + 2 < edges && f >= f1) {
+                ++e;
+                f1 = edge_hz(e + 1);
+                current = -1;
             }
-            bin_band[k] = b;
+            if (current < 0) {
+                current = static_cast<int>(band_center_hz.size());
+                band_center_hz.push_back(std::sqrt(edge_hz(e) * std::min(hi, f1)));
+            }
+            bin_band[k] = current;
         }
         band_sum.assign(band_center_hz.size(), 0.0);
         band_count.assign(band_center_hz.size(), 0);

@@ -94,12 +94,18 @@ void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t
         return k <= nn / 2 ? X[static_cast<std::size_t>(k)] : std::conj(X[static_cast<std::size_t>(nn - k)]);
     };
     const double scale = 1.0 / (fs_hz * 3.0 * static_cast<double>(n) / 8.0);  // sum of Hann^2 = 3n/8
-    for (std::size_t k = 0; k < nb; ++k) {
-        const long kk = static_cast<long>(k);
-        const std::complex<double> y = 0.5 * at(kk) - 0.25 * (at(kk - 1) + at(kk + 1));
+    auto put = [&](std::size_t k, std::complex<double> y) {
         const bool edge = k == 0 || (n % 2 == 0 && k == n / 2);
-        out[k] = std::norm(y) * scale * (edge ? 1.0 : 2.0);
+        out[k] = (y.real() * y.real() + y.imag() * y.imag()) * scale * (edge ? 1.0 : 2.0);
+    };
+    // Interior bins straight from their neighbours; the two ends through at().
+    put(0, 0.5 * at(0) - 0.25 * (at(-1) + at(1)));
+    for (std::size_t k = 1; k + 1 < nb; ++k) {
+        const std::complex<double> left = k == 1 ? std::complex<double>{} : X[k - 1];
+        put(k, 0.5 * X[k] - 0.25 * (left + X[k + 1]));
     }
+    const long last = static_cast<long>(nb) - 1;
+    if (nb > 1) put(nb - 1, 0.5 * at(last) - 0.25 * (at(last - 1) + at(last + 1)));
 }
 
 double band_power(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {
