@@ -134,7 +134,7 @@ struct RecordingAnalyzer::Impl {
     std::size_t kurtogram_stride = 1;
     std::size_t segment_index = 0;
 
-    Impl(const AnalysisSetup& s, const MachineContext& m, double fs_value, std::size_t expected)
+    Impl(const AnalysisSetup& s, const MachineContext& m, double fs_value, std::size_t expected, Fidelity fid)
         : setup(s),
           machine(m),
           n(s.segment_size()),
@@ -142,16 +142,17 @@ struct RecordingAnalyzer::Impl {
           quality(dsp::QualityConfig{fs_value, 0.999, 3,
                                      std::max<std::size_t>(16, static_cast<std::size_t>(std::lround(kDropoutRunS * s.fs_hz)))}),
           seg_psd_out(n / 2 + 1),
-          fine_decimator(dsp::DecimatorConfig{fine_factor(s.fs_hz)}),
-          fine_block(kPushChunk / fine_factor(s.fs_hz) + 2),
-          fine_psd(dsp::WelchConfig{fine_size(s.fs_hz / static_cast<double>(fine_factor(s.fs_hz)),
-                                              expected / fine_factor(s.fs_hz))},
-                   s.fs_hz / static_cast<double>(fine_factor(s.fs_hz))),
-          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz, true}, s.fs_hz, n),
+          fine_decimator(dsp::DecimatorConfig{fine_factor(s.fs_hz, fid)}),
+          fine_block(kPushChunk / fine_factor(s.fs_hz, fid) + 2),
+          fine_psd(dsp::WelchConfig{fine_size(s.fs_hz / static_cast<double>(fine_factor(s.fs_hz, fid)),
+                                              expected / fine_factor(s.fs_hz, fid))},
+                   s.fs_hz / static_cast<double>(fine_factor(s.fs_hz, fid))),
+          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz, fid == Fidelity::fast}, s.fs_hz, n),
           impulses(dsp::ImpulseConfig{}, envelope.envelope_rate_hz(), envelope.envelope_samples()),
           // 50 % overlap: frames half as many as at the default 75 %, nearly independent.
           sk(dsp::SpectralKurtosisConfig{std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096),
-                                         std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096) / 2},
+                                         std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096) /
+                                             (fid == Fidelity::fast ? 2 : 4)},
              s.fs_hz),
           sk_out(sk.bins()),
           kurtogram(dsp::KurtogramConfig{kurtogram_levels_for(n), s.hf.low_hz}, s.fs_hz, n),
@@ -160,7 +161,7 @@ struct RecordingAnalyzer::Impl {
         for (auto& v : series.values) v.reserve(1024);
         make_profile_bands();
         const std::size_t expected_segments = expected / n;
-        if (expected_segments > kKurtogramSegments)
+        if (fid == Fidelity::fast && expected_segments > kKurtogramSegments)
             kurtogram_stride = (expected_segments + kKurtogramSegments - 1) / kKurtogramSegments;
     }
 
@@ -203,7 +204,9 @@ struct RecordingAnalyzer::Impl {
 
     // Decimate to about 8 kHz: harmonics to 8x shaft speed and the blade pass of
     // up to 12 vanes at 6000 rpm (1.2 kHz) stay well inside the 3.2 kHz passband.
-    static std::size_t fine_factor(double fs_hz) {
+    // The reference path keeps the full rate.
+    static std::size_t fine_factor(double fs_hz, Fidelity fid) {
+        if (fid == Fidelity::reference) return 1;
         return std::max<std::size_t>(1, static_cast<std::size_t>(std::floor(fs_hz / 8000.0)));
     }
 
@@ -263,8 +266,8 @@ struct RecordingAnalyzer::Impl {
 };
 
 RecordingAnalyzer::RecordingAnalyzer(const AnalysisSetup& setup, const MachineContext& machine, double full_scale,
-                                     std::size_t expected_samples)
-    : impl_(std::make_unique<Impl>(setup, machine, full_scale, expected_samples)) {
+                                     std::size_t expected_samples, Fidelity fidelity)
+    : impl_(std::make_unique<Impl>(setup, machine, full_scale, expected_samples, fidelity)) {
     if (setup.segment_size() < 256)
         throw std::invalid_argument("analysis segment of " + std::to_string(setup.segment_size()) +
                                     " samples is too short (need 256 or more)");

@@ -70,6 +70,16 @@ struct MachineContext {
     double rpm_hint = 0.0;      ///< speed to search near when rpm is not given (e.g. the baseline's)
 };
 
+/// How the analysis spends its work. `fast` is what cavitas runs: the envelope
+/// by decimated complex demodulation, the kurtogram on at most four segments
+/// spread over the record, spectral kurtosis at 50 % frame overlap, the fine
+/// spectrum from a single-precision decimator. `reference` is the plain
+/// computation the fast one is checked against (tests/eval, --reference): the
+/// full-rate analytic signal in double precision with the band statistics of
+/// the real band signal, the kurtogram on every segment, spectral kurtosis at
+/// 75 % overlap. Baselines and recordings must be analysed the same way.
+enum class Fidelity { fast, reference };
+
 /// A peak of the averaged squared-envelope spectrum.
 struct EnvelopePeak {
     double hz = 0.0;
@@ -126,7 +136,7 @@ public:
     /// expected_samples sizes the fine speed spectrum (0 = unknown);
     /// full_scale is |x| of a full-scale sample in signal units (0 = unknown).
     RecordingAnalyzer(const AnalysisSetup& setup, const MachineContext& machine, double full_scale,
-                      std::size_t expected_samples);
+                      std::size_t expected_samples, Fidelity fidelity = Fidelity::fast);
     ~RecordingAnalyzer();
     RecordingAnalyzer(const RecordingAnalyzer&) = delete;
     RecordingAnalyzer& operator=(const RecordingAnalyzer&) = delete;

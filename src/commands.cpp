@@ -34,9 +34,10 @@ std::string utc_now() {
 }
 
 models::RecordingAnalysis analyze_source(AudioSource& source, const models::AnalysisSetup& setup,
-                                         const models::MachineContext& machine, const Progress& progress) {
+                                         const models::MachineContext& machine, const Progress& progress,
+                                         models::Fidelity fidelity) {
     const RecordingInfo& info = source.info();
-    models::RecordingAnalyzer analyzer(setup, machine, info.full_scale_value(), info.frames);
+    models::RecordingAnalyzer analyzer(setup, machine, info.full_scale_value(), info.frames, fidelity);
     std::vector<float> block(1u << 15);
     std::size_t done = 0;
     const double total_s = info.duration_s();
@@ -71,7 +72,8 @@ std::string seconds_text(double s) {
 
 AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
                                const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
-                               const models::MachineContext& machine, const Progress& progress) {
+                               const models::MachineContext& machine, const Progress& progress,
+                               models::Fidelity fidelity) {
     AnalyzedRecording r;
     SndfileSource source(path, channel, calibration);
     r.info = source.info();
@@ -93,7 +95,7 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
                          seconds_text(use.segment_s) + " analysis segment");
     r.sha256 = sha256_file(path);
     try {
-        r.analysis = analyze_source(source, use, machine, progress);
+        r.analysis = analyze_source(source, use, machine, progress, fidelity);
     } catch (const std::invalid_argument& e) {
         throw InputError(path + ": cannot be analysed in these bands: " + e.what());
     }

@@ -33,13 +33,15 @@ using Progress = std::function<void(double done_s, double total_s)>;
 
 /// Read `source` block by block through a RecordingAnalyzer.
 models::RecordingAnalysis analyze_source(AudioSource& source, const models::AnalysisSetup& setup,
-                                         const models::MachineContext& machine, const Progress& progress = {});
+                                         const models::MachineContext& machine, const Progress& progress = {},
+                                         models::Fidelity fidelity = models::Fidelity::fast);
 
 /// Open, hash and analyse one file. setup: the baseline's (nullopt = choose from
 /// the file's rate and sensor_max_hz).
 AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
                                const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
-                               const models::MachineContext& machine, const Progress& progress = {});
+                               const models::MachineContext& machine, const Progress& progress = {},
+                               models::Fidelity fidelity = models::Fidelity::fast);
 
 /// The operating-point flags of a command, as typed (key -> text; empty = not
 /// given), and --operating-point FILE.
