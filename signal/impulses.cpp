@@ -9,7 +9,7 @@
 namespace cavitas::dsp {
 
 ImpulseCounter::ImpulseCounter(const ImpulseConfig& config, double fs_hz, std::size_t max_segment_size)
-    : config_(config), fs_hz_(fs_hz) {
+    : config_(config), fs_hz_(fs_hz), median_(max_segment_size) {
     if (!(config.exceedance_probability > 0.0 && config.exceedance_probability < 0.5))
         throw std::invalid_argument("ImpulseConfig.exceedance_probability = " +
                                     std::to_string(config.exceedance_probability) + " must lie in (0, 0.5)");
@@ -18,18 +18,13 @@ ImpulseCounter::ImpulseCounter(const ImpulseConfig& config, double fs_hz, std::s
     if (!(fs_hz > 0.0)) throw std::invalid_argument("ImpulseCounter sample rate must be > 0 Hz");
     factor_ = std::sqrt(std::log(1.0 / config.exceedance_probability) / std::log(2.0));
     rearm_samples_ = static_cast<std::size_t>(std::lround(config.rearm_s * fs_hz));
-    scratch_.resize(max_segment_size);
 }
 
 std::size_t ImpulseCounter::count(std::span<const double> sq) {
-    assert(sq.size() <= scratch_.size());
     if (sq.empty()) return 0;
     const std::size_t n = sq.size();
-    std::copy(sq.begin(), sq.end(), scratch_.begin());
-    auto mid = scratch_.begin() + static_cast<std::ptrdiff_t>(n / 2);
-    std::nth_element(scratch_.begin(), mid, scratch_.begin() + static_cast<std::ptrdiff_t>(n));
     // Median of |z|^2 is the square of the median of |z| (monotone map).
-    const double median_mag = std::sqrt(std::max(0.0, *mid));
+    const double median_mag = std::sqrt(std::max(0.0, median_.select(sq, n / 2)));
     threshold_ = factor_ * median_mag;
     if (!(threshold_ > 0.0)) return 0;
     const double thr2 = threshold_ * threshold_;

@@ -15,6 +15,8 @@
 #include <span>
 #include <vector>
 
+#include "signal/stats.hpp"
+
 namespace cavitas::dsp {
 
 struct ImpulseConfig {
@@ -37,7 +39,7 @@ private:
     double fs_hz_;
     double factor_;
     std::size_t rearm_samples_;
-    std::vector<double> scratch_;
+    OrderSelector median_;
     double threshold_ = 0.0;
 };
 

@@ -1,7 +1,11 @@
 #include "signal/quality.hpp"
 
+#include "signal/lanes.hpp"
+
 #include <algorithm>
 #include <cmath>
+#include <cstring>
+#include <limits>
 
 namespace cavitas::dsp {
 
@@ -19,15 +23,34 @@ std::size_t QualityCounts::flat_top_samples(double fraction) const {
     return n;
 }
 
+namespace {
+
+std::uint32_t bits_of(float v) {
+    std::uint32_t u;
+    std::memcpy(&u, &v, sizeof u);
+    return u;
+}
+
+}  // namespace
+
 QualityMeter::QualityMeter(const QualityConfig& config) : config_(config) {
     config_.clip_run_min = std::max<std::size_t>(config_.clip_run_min, 2);
     config_.dropout_run_min = std::max<std::size_t>(config_.dropout_run_min, 2);
+    const double clip = config_.full_scale > 0.0 ? config_.near_full_scale * config_.full_scale : 0.0;
+    if (!(clip > 0.0)) {
+        clip_bits_ = 0xffffffffu;  // no |x| reaches it: nothing counts as at full scale
+    } else {
+        // |v| >= clip (in double) holds exactly when |v| >= the smallest float not below clip.
+        float c = static_cast<float>(std::min(clip, static_cast<double>(std::numeric_limits<float>::max())));
+        if (static_cast<double>(c) < clip) c = std::nextafter(c, std::numeric_limits<float>::infinity());
+        clip_bits_ = bits_of(c);
+    }
 }
 
-void QualityMeter::close_run(QualityCounts& c) const {
-    if (run_ >= config_.dropout_run_min) c.dropout_samples += run_;
-    if (run_ >= config_.clip_run_min && last_ != 0.0f) {
-        const double mag = std::abs(static_cast<double>(last_));
+void QualityMeter::close_run(QualityCounts& c, float value, std::size_t run) const {
+    if (run >= config_.dropout_run_min) c.dropout_samples += run;
+    if (run >= config_.clip_run_min && value != 0.0f) {
+        const double mag = std::abs(static_cast<double>(value));
         // Add to the bin of this magnitude, or take the smallest bin if it is smaller.
         auto& bins = c.flat_runs;
         auto it = std::find_if(bins.begin(), bins.end(), [&](const QualityCounts::RunBin& b) {
@@ -40,40 +63,90 @@ void QualityMeter::close_run(QualityCounts& c) const {
             if (it->samples > 0 && it->magnitude >= mag) return;
             *it = {mag, 0};
         }
-        it->samples += run_;
+        it->samples += run;
     }
 }
 
 void QualityMeter::process(std::span<float> x) {
-    const double clip = config_.full_scale > 0.0 ? config_.near_full_scale * config_.full_scale : 0.0;
     QualityCounts& c = counts_;
-    for (float& v : x) {
-        if (!std::isfinite(v)) {
-            ++c.non_finite;
-            v = 0.0f;
-        }
-        const double d = static_cast<double>(v);
-        const double a = std::abs(d);
-        if (clip > 0.0 && a >= clip) ++c.at_full_scale;
-        if (v == 0.0f) ++c.zero_samples;
-        c.max_abs = std::max(c.max_abs, a);
-        if (c.samples > 0 && v == last_) {
-            ++run_;
-        } else {
-            if (c.samples > 0) close_run(c);
-            run_ = 1;
-        }
-        c.longest_flat_run = std::max(c.longest_flat_run, run_);
-        last_ = v;
-        c.sum += d;
-        c.sum_sq += d * d;
-        ++c.samples;
+    const std::size_t n = x.size();
+    // 1. Non-finite samples become 0 (rare: a scalar fix-up after a cheap test).
+    constexpr std::uint32_t kExp = 0x7f800000u, kMag = 0x7fffffffu;
+    std::size_t non_finite = 0;
+    for (std::size_t i = 0; i < n; ++i) non_finite += (bits_of(x[i]) & kExp) == kExp;
+    if (non_finite > 0) {
+        c.non_finite += non_finite;
+        for (float& v : x)
+            if (!std::isfinite(v)) v = 0.0f;
     }
+    // 2. Zeros, samples at full scale and the largest |x|, on the bits of |x|.
+    std::size_t zeros = 0, at_fs = 0;
+    std::uint32_t max_bits = 0;
+    for (std::size_t i = 0; i < n; ++i) {
+        const std::uint32_t a = bits_of(x[i]) & kMag;
+        zeros += a == 0;
+        at_fs += a >= clip_bits_;
+        max_bits = std::max(max_bits, a);
+    }
+    c.zero_samples += zeros;
+    c.at_full_scale += at_fs;
+    float max_abs;
+    std::memcpy(&max_abs, &max_bits, sizeof max_abs);
+    c.max_abs = std::max(c.max_abs, static_cast<double>(max_abs));
+    // 3. Sums for the mean and rms, sample i of the record into lane i mod 8.
+    std::size_t i = 0;
+    for (; i < n && (c.samples + i) % kLanes != 0; ++i) {
+        const double d = x[i];
+        lane_sum_[(c.samples + i) % kLanes] += d;
+        lane_sum_sq_[(c.samples + i) % kLanes] += d * d;
+    }
+    {
+        auto s = lanes::Lanes8::from_array(lane_sum_), q = lanes::Lanes8::from_array(lane_sum_sq_);
+        for (; i + kLanes <= n; i += kLanes)
+            for (std::size_t j = 0; j < 4; ++j) {
+                const lanes::d2 d = lanes::load(x.data() + i + 2 * j);
+                s.v[j] += d;
+                q.v[j] += d * d;
+            }
+        lane_sum_ = s.to_array();
+        lane_sum_sq_ = q.to_array();
+    }
+    for (; i < n; ++i) {
+        const double d = x[i];
+        lane_sum_[(c.samples + i) % kLanes] += d;
+        lane_sum_sq_[(c.samples + i) % kLanes] += d * d;
+    }
+    // 4. Runs of equal values (the first sample of the record opens a run of 1).
+    const std::size_t shortest = std::min(config_.clip_run_min, config_.dropout_run_min);
+    float last = last_;
+    std::size_t run = run_, longest = c.longest_flat_run;
+    for (std::size_t j = 0; j < n; ++j) {
+        const float v = x[j];
+        if (v == last) {
+            ++run;
+        } else {
+            if (run >= shortest) close_run(c, last, run);
+            run = 1;
+        }
+        longest = std::max(longest, run);
+        last = v;
+    }
+    last_ = last;
+    run_ = run;
+    c.longest_flat_run = longest;
+    c.samples += n;
 }
 
 QualityCounts QualityMeter::counts() const {
     QualityCounts c = counts_;
-    if (c.samples > 0) close_run(c);
+    if (c.samples > 0 && run_ >= std::min(config_.clip_run_min, config_.dropout_run_min)) close_run(c, last_, run_);
+    double s = 0.0, q = 0.0;
+    for (std::size_t l = 0; l < kLanes; ++l) {
+        s += lane_sum_[l];
+        q += lane_sum_sq_[l];
+    }
+    c.sum = s;
+    c.sum_sq = q;
     return c;
 }
 

@@ -10,6 +10,7 @@
 
 #include <array>
 #include <cstddef>
+#include <cstdint>
 #include <span>
 
 namespace cavitas::dsp {
@@ -56,9 +57,14 @@ public:
     QualityCounts counts() const;
 
 private:
-    void close_run(QualityCounts& c) const;
+    void close_run(QualityCounts& c, float value, std::size_t run) const;
+    static constexpr std::size_t kLanes = 8;
     QualityConfig config_;
-    QualityCounts counts_;
+    std::uint32_t clip_bits_;  ///< bit pattern of the smallest float >= the clip level (non-negative floats order like their bits)
+    QualityCounts counts_;     ///< everything but sum and sum_sq, which live in the lanes
+    // Sample i of the record adds to lane i mod 8: the sums do not depend on how
+    // the record was cut into blocks, and the loop is vectorisable.
+    std::array<double, kLanes> lane_sum_{}, lane_sum_sq_{};
     float last_ = 0.0f;
     std::size_t run_ = 0;
 };

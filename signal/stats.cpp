@@ -1,6 +1,11 @@
 #include "signal/stats.hpp"
 
+#include "signal/lanes.hpp"
+
 #include <algorithm>
+#include <array>
+#include <cstring>
+#include <string>
 #include <cmath>
 #include <numbers>
 #include <stdexcept>
@@ -39,31 +44,98 @@ double normal_quantile(double p) {
     return x - u / (1.0 + 0.5 * x * u);
 }
 
+OrderSelector::OrderSelector(std::size_t capacity)
+    : scratch_(capacity), counts_(std::size_t{1} << (63 - kBucketShift), 0) {}
+
+double OrderSelector::select(std::span<const double> x, std::size_t k) {
+    if (x.size() > scratch_.size())
+        throw std::invalid_argument("OrderSelector: " + std::to_string(x.size()) + " values exceed the capacity of " +
+                                    std::to_string(scratch_.size()));
+    if (k >= x.size()) throw std::invalid_argument("OrderSelector: rank " + std::to_string(k) + " out of range");
+    const auto nth = [&](std::size_t count, std::size_t rank) {
+        auto first = scratch_.begin(), mid = first + static_cast<std::ptrdiff_t>(rank);
+        std::nth_element(first, mid, first + static_cast<std::ptrdiff_t>(count));
+        return *mid;
+    };
+    constexpr std::uint64_t kExponent = 0x7ff0000000000000ull;
+    std::uint64_t bad = 0;  // any sign bit, or an all-ones exponent (Inf, NaN)
+    for (const double v : x) {
+        std::uint64_t u;
+        std::memcpy(&u, &v, sizeof u);
+        bad |= (u >> 63) | static_cast<std::uint64_t>((u & kExponent) == kExponent);
+        ++counts_[(u >> kBucketShift) & (counts_.size() - 1)];
+    }
+    if (bad) {
+        std::fill(counts_.begin(), counts_.end(), 0u);
+        std::copy(x.begin(), x.end(), scratch_.begin());
+        return nth(x.size(), k);
+    }
+    std::size_t bucket = 0, below = 0;
+    while (below + counts_[bucket] <= k) below += counts_[bucket++];
+    std::fill(counts_.begin(), counts_.end(), 0u);
+    std::size_t m = 0;
+    for (const double v : x) {
+        std::uint64_t u;
+        std::memcpy(&u, &v, sizeof u);
+        if ((u >> kBucketShift) == bucket) scratch_[m++] = v;
+    }
+    return nth(m, k - below);
+}
+
 double normal_sf(double z) { return 0.5 * std::erfc(z / std::numbers::sqrt2); }
 
 namespace {
 
+using lanes::d2;
+using lanes::kLanes;
+
 template <typename T>
 Moments moments_impl(std::span<const T> x) {
     if (x.empty()) throw std::invalid_argument("moments: empty input");
-    // Two passes: the mean first, then central sums, for accuracy.
-    double sum = 0.0;
-    T lo = x[0], hi = x[0];
-    for (T v : x) {
-        sum += static_cast<double>(v);
+    const std::size_t count = x.size(), body = count - count % kLanes;
+    // Two passes: the mean first, then central sums, for accuracy. Sums in
+    // 8 lanes (signal/lanes.hpp); the extremes in double lanes (exact for float).
+    const double first = static_cast<double>(x[0]);
+    lanes::Lanes8 s, lo_l, hi_l;
+    for (auto& v : lo_l.v) v = lanes::splat(first);
+    hi_l = lo_l;
+    for (std::size_t i = 0; i < body; i += kLanes)
+        for (std::size_t j = 0; j < 4; ++j) {
+            const d2 a = lanes::load(x.data() + i + 2 * j);
+            s.v[j] += a;
+            lo_l.v[j] = a < lo_l.v[j] ? a : lo_l.v[j];
+            hi_l.v[j] = hi_l.v[j] < a ? a : hi_l.v[j];
+        }
+    auto sums = s.to_array();
+    const auto los = lo_l.to_array(), his = hi_l.to_array();
+    double lo = *std::min_element(los.begin(), los.end()), hi = *std::max_element(his.begin(), his.end());
+    for (std::size_t i = body; i < count; ++i) {
+        const double v = static_cast<double>(x[i]);
+        sums[i - body] += v;
         lo = std::min(lo, v);
         hi = std::max(hi, v);
     }
-    const double n = static_cast<double>(x.size());
-    const double mean = sum / n;
-    double m2 = 0.0, m4 = 0.0, peak = 0.0;
-    for (T v : x) {
-        const double d = static_cast<double>(v) - mean;
-        const double d2 = d * d;
-        m2 += d2;
-        m4 += d2 * d2;
-        peak = std::max(peak, std::abs(d));
+    const double n = static_cast<double>(count);
+    const double mean = lanes::total(sums) / n;
+    lanes::Lanes8 q2, q4;
+    const d2 mu = lanes::splat(mean);
+    for (std::size_t i = 0; i < body; i += kLanes)
+        for (std::size_t j = 0; j < 4; ++j) {
+            const d2 a = lanes::load(x.data() + i + 2 * j) - mu;
+            const d2 a2 = a * a;
+            q2.v[j] += a2;
+            q4.v[j] += a2 * a2;
+        }
+    auto s2 = q2.to_array(), s4 = q4.to_array();
+    for (std::size_t i = body; i < count; ++i) {
+        const double d = static_cast<double>(x[i]) - mean;
+        const double d2v = d * d;
+        s2[i - body] += d2v;
+        s4[i - body] += d2v * d2v;
     }
+    double m2 = lanes::total(s2), m4 = lanes::total(s4);
+    // max |x - mean| is reached at the smallest or the largest sample.
+    const double peak = std::max(hi - mean, mean - lo);
     m2 /= n;
     m4 /= n;
     Moments m;
@@ -72,7 +144,7 @@ Moments moments_impl(std::span<const T> x) {
     // A constant record: the computed mean can sit a rounding error away from
     // the samples, which must not leave a spurious rms of 1e-15.
     if (lo == hi) {
-        m.mean = static_cast<double>(lo);
+        m.mean = lo;
         return m;
     }
     m.rms = std::sqrt(m2);

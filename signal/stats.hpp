@@ -12,7 +12,9 @@
 #pragma once
 
 #include <cstddef>
+#include <cstdint>
 #include <span>
+#include <vector>
 
 namespace cavitas::dsp {
 
@@ -45,6 +47,24 @@ private:
     std::size_t n_ = 0;
     double s1_ = 0, s2_ = 0, s3_ = 0, s4_ = 0;
     double max_ = 0, min_ = 0;
+};
+
+/// The k-th smallest (0-based) of up to `capacity` values: the value
+/// std::nth_element would put at position k, found in linear time. Non-negative
+/// finite doubles order like their IEEE-754 bit patterns, so one pass counts the
+/// values per bucket of the top bits (exponent and 3 mantissa bits), a second
+/// copies the one bucket that holds rank k, and nth_element runs on that bucket
+/// alone. A negative or non-finite value falls back to nth_element on a copy.
+/// Scratch is allocated once; select() allocates nothing.
+class OrderSelector {
+public:
+    explicit OrderSelector(std::size_t capacity);
+    double select(std::span<const double> x, std::size_t k);
+
+private:
+    static constexpr int kBucketShift = 49;  // 64 - sign bit - 11 exponent bits - 3 mantissa bits
+    std::vector<double> scratch_;
+    std::vector<std::uint32_t> counts_;
 };
 
 /// Standard normal quantile Phi^-1(p), 0 < p < 1 (Acklam's approximation

@@ -11,6 +11,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <iterator>
+#include <limits>
 #include <numbers>
 #include <random>
 #include <span>
@@ -190,4 +191,41 @@ TEST_CASE("Standard normal quantile and tail", "[signal]") {
     CHECK_THAT(cavitas::dsp::normal_quantile(1e-6), Catch::Matchers::WithinRel(-4.753424308822899, 1e-12));
     CHECK_THAT(cavitas::dsp::normal_sf(3.0), Catch::Matchers::WithinRel(0.0013498980316300933, 1e-13));
     CHECK(cavitas::dsp::normal_quantile(0.5) == 0.0);
+}
+
+// OrderSelector against std::nth_element (the definition of the k-th order
+// statistic it must reproduce exactly) on values spread over many binades,
+// heavy ties, zeros and subnormals, and the fallback for negative and
+// non-finite values.
+TEST_CASE("OrderSelector returns exactly the k-th smallest value", "[signal]") {
+    using cavitas::dsp::OrderSelector;
+    std::mt19937_64 rng(20261202);
+    std::normal_distribution<double> g(0.0, 1.0);
+    std::uniform_int_distribution<int> tie(0, 5);
+    const auto reference = [](std::vector<double> v, std::size_t k) {
+        std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(k), v.end());
+        return v[k];
+    };
+    OrderSelector sel(5000);
+    for (int trial = 0; trial < 40; ++trial) {
+        const std::size_t n = 1 + static_cast<std::size_t>(rng() % 5000);
+        std::vector<double> v(n);
+        for (auto& x : v) {
+            switch (trial % 5) {
+                case 0: x = g(rng) * g(rng); x *= x; break;                    // squared, many binades
+                case 1: x = std::exp(20.0 * g(rng)); break;                    // very wide range
+                case 2: x = static_cast<double>(tie(rng)); break;              // ties and zeros
+                case 3: x = std::ldexp(std::abs(g(rng)), -1070); break;        // subnormals
+                default: x = g(rng); break;                                    // negatives: fallback
+            }
+        }
+        if (trial == 7) v[n / 2] = std::numeric_limits<double>::infinity();   // non-finite: fallback
+        for (const std::size_t k : {std::size_t{0}, n / 2, n - 1, static_cast<std::size_t>(rng() % n)})
+            REQUIRE(sel.select(v, k) == reference(v, k));
+    }
+    std::vector<double> big(5001, 1.0);
+    REQUIRE_THROWS_AS(sel.select(big, 0), std::invalid_argument);
+    std::vector<double> three{3.0, 1.0, 2.0};
+    REQUIRE_THROWS_AS(sel.select(three, 3), std::invalid_argument);
+    REQUIRE(sel.select(three, 1) == 2.0);
 }
