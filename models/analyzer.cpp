@@ -147,7 +147,7 @@ struct RecordingAnalyzer::Impl {
           fine_psd(dsp::WelchConfig{fine_size(s.fs_hz / static_cast<double>(fine_factor(s.fs_hz, fid)),
                                               expected / fine_factor(s.fs_hz, fid))},
                    s.fs_hz / static_cast<double>(fine_factor(s.fs_hz, fid))),
-          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz, fid == Fidelity::fast}, s.fs_hz, n),
+          envelope(dsp::EnvelopeConfig{s.hf.low_hz, s.hf.high_hz, fid == Fidelity::fast, fid == Fidelity::fast}, s.fs_hz, n),
           impulses(dsp::ImpulseConfig{}, envelope.envelope_rate_hz(), envelope.envelope_samples()),
           // 50 % overlap: frames half as many as at the default 75 %, nearly independent.
           sk(dsp::SpectralKurtosisConfig{std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096),

@@ -42,9 +42,7 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
       m_(envelope_size(config, fs_hz, segment_size)),
       k_low_(0),
       k_high_(0),
-      real_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only),
-      analytic_(m_, FftDirections::inverse_only),
-      ses_fft_(m_, FftDirections::forward_only) {
+      real_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only) {
     if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
         throw std::invalid_argument("EnvelopeAnalyzer sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
     if (segment_size < 16)
@@ -72,6 +70,13 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
         throw std::invalid_argument("EnvelopeConfig band " + std::to_string(config.band_low_hz) + "-" +
                                     std::to_string(config.band_high_hz) + " Hz is too wide to decimate in a segment of " +
                                     std::to_string(n_) + " samples");
+    if (config.single_precision) {
+        analytic_f_.emplace(m_, FftDirections::inverse_only);
+        ses_fft_f_.emplace(m_, FftDirections::forward_only);
+    } else {
+        analytic_.emplace(m_, FftDirections::inverse_only);
+        ses_fft_.emplace(m_, FftDirections::forward_only);
+    }
     window_ = hann_periodic(m_);
     ses_scale_ = 2.0 / window_sum(window_);
     if (!config.decimate) band_.assign(n_, 0.0);
@@ -84,18 +89,30 @@ void EnvelopeAnalyzer::process(std::span<const float> x) {
     auto t = real_.time();
     for (std::size_t i = 0; i < n_; ++i) t[i] = static_cast<double>(x[i]);
     real_.forward();
+    if (config_.single_precision)
+        demodulate(*analytic_f_, *ses_fft_f_);
+    else
+        demodulate(*analytic_, *ses_fft_);
+}
+
+template <typename T>
+void EnvelopeAnalyzer::demodulate(BasicComplexFft<T>& analytic, BasicRealFft<T>& ses_fft) {
     const auto X = real_.spectrum();
-    auto z = analytic_.data();
-    std::fill(z.begin(), z.end(), std::complex<double>{});
+    auto z = analytic.data();
     // Full rate: the band's bins where they are. Decimated: shifted down to 0 Hz
     // (a frequency shift multiplies z by a unit phasor: |z| is unchanged).
+    // Every other bin is zero.
     const std::size_t shift = config_.decimate ? k_low_ : 0;
-    for (std::size_t k = k_low_; k <= k_high_; ++k) z[k - shift] = 2.0 * X[k];
-    analytic_.inverse();
+    const auto first = static_cast<std::ptrdiff_t>(k_low_ - shift), past = static_cast<std::ptrdiff_t>(k_high_ - shift + 1);
+    std::fill(z.begin(), z.begin() + first, std::complex<T>{});
+    for (std::size_t k = k_low_; k <= k_high_; ++k)
+        z[k - shift] = {static_cast<T>(2.0 * X[k].real()), static_cast<T>(2.0 * X[k].imag())};
+    std::fill(z.begin() + past, z.end(), std::complex<T>{});
+    analytic.inverse();
     const double inv_n = 1.0 / static_cast<double>(n_);
     double sum = 0.0, sum2 = 0.0, peak = 0.0;
     for (std::size_t i = 0; i < m_; ++i) {
-        const std::complex<double> zi = z[i] * inv_n;
+        const std::complex<double> zi(static_cast<double>(z[i].real()) * inv_n, static_cast<double>(z[i].imag()) * inv_n);
         if (!config_.decimate) band_[i] = zi.real();
         const double e = std::norm(zi);
         sq_env_[i] = e;
@@ -114,12 +131,14 @@ void EnvelopeAnalyzer::process(std::span<const float> x) {
         band_kurtosis_ = mo.kurtosis;
         band_crest_ = mo.crest;
     }
-    auto s = ses_fft_.time();
-    for (std::size_t i = 0; i < m_; ++i) s[i] = (sq_env_[i] - mean_sq_env_) * window_[i];
-    ses_fft_.forward();
-    const auto S = ses_fft_.spectrum();
-    for (std::size_t k = 0; k < ses_.size(); ++k)
-        ses_[k] = std::sqrt(S[k].real() * S[k].real() + S[k].imag() * S[k].imag()) * ses_scale_;
+    auto s = ses_fft.time();
+    for (std::size_t i = 0; i < m_; ++i) s[i] = static_cast<T>((sq_env_[i] - mean_sq_env_) * window_[i]);
+    ses_fft.forward();
+    const auto S = ses_fft.spectrum();
+    for (std::size_t k = 0; k < ses_.size(); ++k) {
+        const double re = S[k].real(), im = S[k].imag();
+        ses_[k] = std::sqrt(re * re + im * im) * ses_scale_;
+    }
     ses_[0] = 0.0;
 }
 

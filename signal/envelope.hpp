@@ -29,6 +29,7 @@
 
 #include <complex>
 #include <cstddef>
+#include <optional>
 #include <span>
 #include <vector>
 
@@ -40,6 +41,9 @@ struct EnvelopeConfig {
     double band_low_hz = 2000.0;
     double band_high_hz = 10000.0;
     bool decimate = false;  ///< complex demodulation at a lower rate (see above)
+    /// The inverse transform to z and the envelope spectrum in single precision
+    /// (the segment's forward transform, which also feeds the PSD, stays double).
+    bool single_precision = false;
 };
 
 class EnvelopeAnalyzer {
@@ -78,9 +82,15 @@ private:
     std::size_t n_;
     std::size_t m_;  // envelope samples per segment (n_, or fewer with decimate)
     std::size_t k_low_, k_high_;
+    template <typename T>
+    void demodulate(BasicComplexFft<T>& analytic, BasicRealFft<T>& ses_fft);
+
     RealFft real_;
-    ComplexFft analytic_;
-    RealFft ses_fft_;
+    // One pair of the two, by config_.single_precision.
+    std::optional<ComplexFft> analytic_;
+    std::optional<RealFft> ses_fft_;
+    std::optional<ComplexFftF> analytic_f_;
+    std::optional<RealFftF> ses_fft_f_;
     std::vector<double> window_;
     double ses_scale_;
     std::vector<double> band_, sq_env_, ses_;

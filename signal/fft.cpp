@@ -16,11 +16,39 @@ std::mutex& planner_mutex() {
     return m;
 }
 
+// FFTW's double (fftw_) and single precision (fftwf_) interfaces under one name.
 template <typename T>
-T* aligned_alloc_n(std::size_t n) {
-    void* p = fftw_malloc(sizeof(T) * n);
+struct Fftw;
+template <>
+struct Fftw<double> {
+    using plan = fftw_plan;
+    using cpx = fftw_complex;
+    static void* malloc(std::size_t bytes) { return fftw_malloc(bytes); }
+    static void free(void* p) { fftw_free(p); }
+    static plan r2c(int n, double* in, cpx* out, unsigned f) { return fftw_plan_dft_r2c_1d(n, in, out, f); }
+    static plan c2r(int n, cpx* in, double* out, unsigned f) { return fftw_plan_dft_c2r_1d(n, in, out, f); }
+    static plan dft(int n, cpx* d, int sign, unsigned f) { return fftw_plan_dft_1d(n, d, d, sign, f); }
+    static void execute(void* p) { fftw_execute(static_cast<plan>(p)); }
+    static void destroy(void* p) { fftw_destroy_plan(static_cast<plan>(p)); }
+};
+template <>
+struct Fftw<float> {
+    using plan = fftwf_plan;
+    using cpx = fftwf_complex;
+    static void* malloc(std::size_t bytes) { return fftwf_malloc(bytes); }
+    static void free(void* p) { fftwf_free(p); }
+    static plan r2c(int n, float* in, cpx* out, unsigned f) { return fftwf_plan_dft_r2c_1d(n, in, out, f); }
+    static plan c2r(int n, cpx* in, float* out, unsigned f) { return fftwf_plan_dft_c2r_1d(n, in, out, f); }
+    static plan dft(int n, cpx* d, int sign, unsigned f) { return fftwf_plan_dft_1d(n, d, d, sign, f); }
+    static void execute(void* p) { fftwf_execute(static_cast<plan>(p)); }
+    static void destroy(void* p) { fftwf_destroy_plan(static_cast<plan>(p)); }
+};
+
+template <typename T, typename E>
+E* aligned_alloc_n(std::size_t n) {
+    void* p = Fftw<T>::malloc(sizeof(E) * n);
     if (p == nullptr) throw std::bad_alloc();
-    return static_cast<T*>(p);
+    return static_cast<E*>(p);
 }
 
 void check_size(std::size_t n, const char* what) {
@@ -31,16 +59,17 @@ void check_size(std::size_t n, const char* what) {
 
 }  // namespace
 
-RealFft::RealFft(std::size_t n, FftDirections directions) : n_(n) {
+template <typename T>
+BasicRealFft<T>::BasicRealFft(std::size_t n, FftDirections directions) : n_(n) {
     check_size(n, "RealFft");
-    time_ = aligned_alloc_n<double>(n);
-    freq_ = aligned_alloc_n<std::complex<double>>(n / 2 + 1);
+    time_ = aligned_alloc_n<T, T>(n);
+    freq_ = aligned_alloc_n<T, std::complex<T>>(n / 2 + 1);
     std::lock_guard<std::mutex> lock(planner_mutex());
     const int ni = static_cast<int>(n);
-    auto* f = reinterpret_cast<fftw_complex*>(freq_);
-    if (directions != FftDirections::inverse_only) forward_plan_ = fftw_plan_dft_r2c_1d(ni, time_, f, FFTW_ESTIMATE);
+    auto* f = reinterpret_cast<typename Fftw<T>::cpx*>(freq_);
+    if (directions != FftDirections::inverse_only) forward_plan_ = Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE);
     if (directions != FftDirections::forward_only)
-        inverse_plan_ = fftw_plan_dft_c2r_1d(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
+        inverse_plan_ = Fftw<T>::c2r(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
         release();
@@ -48,30 +77,34 @@ RealFft::RealFft(std::size_t n, FftDirections directions) : n_(n) {
     }
 }
 
-RealFft::~RealFft() { release(); }
+template <typename T>
+BasicRealFft<T>::~BasicRealFft() { release(); }
 
-void RealFft::release() noexcept {
+template <typename T>
+void BasicRealFft<T>::release() noexcept {
     {
         std::lock_guard<std::mutex> lock(planner_mutex());
-        if (forward_plan_) fftw_destroy_plan(static_cast<fftw_plan>(forward_plan_));
-        if (inverse_plan_) fftw_destroy_plan(static_cast<fftw_plan>(inverse_plan_));
+        if (forward_plan_) Fftw<T>::destroy(forward_plan_);
+        if (inverse_plan_) Fftw<T>::destroy(inverse_plan_);
     }
     forward_plan_ = inverse_plan_ = nullptr;
-    if (time_) fftw_free(time_);
-    if (freq_) fftw_free(freq_);
+    if (time_) Fftw<T>::free(time_);
+    if (freq_) Fftw<T>::free(freq_);
     time_ = nullptr;
     freq_ = nullptr;
     n_ = 0;
 }
 
-RealFft::RealFft(RealFft&& o) noexcept
+template <typename T>
+BasicRealFft<T>::BasicRealFft(BasicRealFft&& o) noexcept
     : n_(std::exchange(o.n_, 0)),
       time_(std::exchange(o.time_, nullptr)),
       freq_(std::exchange(o.freq_, nullptr)),
       forward_plan_(std::exchange(o.forward_plan_, nullptr)),
       inverse_plan_(std::exchange(o.inverse_plan_, nullptr)) {}
 
-RealFft& RealFft::operator=(RealFft&& o) noexcept {
+template <typename T>
+BasicRealFft<T>& BasicRealFft<T>::operator=(BasicRealFft&& o) noexcept {
     if (this != &o) {
         release();
         n_ = std::exchange(o.n_, 0);
@@ -83,23 +116,26 @@ RealFft& RealFft::operator=(RealFft&& o) noexcept {
     return *this;
 }
 
-void RealFft::forward() {
+template <typename T>
+void BasicRealFft<T>::forward() {
     if (!forward_plan_) throw std::logic_error("RealFft planned for the inverse only: forward() called");
-    fftw_execute(static_cast<fftw_plan>(forward_plan_));
+    Fftw<T>::execute(forward_plan_);
 }
-void RealFft::inverse() {
+template <typename T>
+void BasicRealFft<T>::inverse() {
     if (!inverse_plan_) throw std::logic_error("RealFft planned for the forward only: inverse() called");
-    fftw_execute(static_cast<fftw_plan>(inverse_plan_));
+    Fftw<T>::execute(inverse_plan_);
 }
 
-ComplexFft::ComplexFft(std::size_t n, FftDirections directions) : n_(n) {
+template <typename T>
+BasicComplexFft<T>::BasicComplexFft(std::size_t n, FftDirections directions) : n_(n) {
     check_size(n, "ComplexFft");
-    data_ = aligned_alloc_n<std::complex<double>>(n);
+    data_ = aligned_alloc_n<T, std::complex<T>>(n);
     std::lock_guard<std::mutex> lock(planner_mutex());
     const int ni = static_cast<int>(n);
-    auto* d = reinterpret_cast<fftw_complex*>(data_);
-    if (directions != FftDirections::inverse_only) forward_plan_ = fftw_plan_dft_1d(ni, d, d, FFTW_FORWARD, FFTW_ESTIMATE);
-    if (directions != FftDirections::forward_only) inverse_plan_ = fftw_plan_dft_1d(ni, d, d, FFTW_BACKWARD, FFTW_ESTIMATE);
+    auto* d = reinterpret_cast<typename Fftw<T>::cpx*>(data_);
+    if (directions != FftDirections::inverse_only) forward_plan_ = Fftw<T>::dft(ni, d, FFTW_FORWARD, FFTW_ESTIMATE);
+    if (directions != FftDirections::forward_only) inverse_plan_ = Fftw<T>::dft(ni, d, FFTW_BACKWARD, FFTW_ESTIMATE);
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
         release();
@@ -107,27 +143,31 @@ ComplexFft::ComplexFft(std::size_t n, FftDirections directions) : n_(n) {
     }
 }
 
-ComplexFft::~ComplexFft() { release(); }
+template <typename T>
+BasicComplexFft<T>::~BasicComplexFft() { release(); }
 
-void ComplexFft::release() noexcept {
+template <typename T>
+void BasicComplexFft<T>::release() noexcept {
     {
         std::lock_guard<std::mutex> lock(planner_mutex());
-        if (forward_plan_) fftw_destroy_plan(static_cast<fftw_plan>(forward_plan_));
-        if (inverse_plan_) fftw_destroy_plan(static_cast<fftw_plan>(inverse_plan_));
+        if (forward_plan_) Fftw<T>::destroy(forward_plan_);
+        if (inverse_plan_) Fftw<T>::destroy(inverse_plan_);
     }
     forward_plan_ = inverse_plan_ = nullptr;
-    if (data_) fftw_free(data_);
+    if (data_) Fftw<T>::free(data_);
     data_ = nullptr;
     n_ = 0;
 }
 
-ComplexFft::ComplexFft(ComplexFft&& o) noexcept
+template <typename T>
+BasicComplexFft<T>::BasicComplexFft(BasicComplexFft&& o) noexcept
     : n_(std::exchange(o.n_, 0)),
       data_(std::exchange(o.data_, nullptr)),
       forward_plan_(std::exchange(o.forward_plan_, nullptr)),
       inverse_plan_(std::exchange(o.inverse_plan_, nullptr)) {}
 
-ComplexFft& ComplexFft::operator=(ComplexFft&& o) noexcept {
+template <typename T>
+BasicComplexFft<T>& BasicComplexFft<T>::operator=(BasicComplexFft&& o) noexcept {
     if (this != &o) {
         release();
         n_ = std::exchange(o.n_, 0);
@@ -138,13 +178,20 @@ ComplexFft& ComplexFft::operator=(ComplexFft&& o) noexcept {
     return *this;
 }
 
-void ComplexFft::forward() {
+template <typename T>
+void BasicComplexFft<T>::forward() {
     if (!forward_plan_) throw std::logic_error("ComplexFft planned for the inverse only: forward() called");
-    fftw_execute(static_cast<fftw_plan>(forward_plan_));
+    Fftw<T>::execute(forward_plan_);
 }
-void ComplexFft::inverse() {
+template <typename T>
+void BasicComplexFft<T>::inverse() {
     if (!inverse_plan_) throw std::logic_error("ComplexFft planned for the forward only: inverse() called");
-    fftw_execute(static_cast<fftw_plan>(inverse_plan_));
+    Fftw<T>::execute(inverse_plan_);
 }
+
+template class BasicRealFft<double>;
+template class BasicRealFft<float>;
+template class BasicComplexFft<double>;
+template class BasicComplexFft<float>;
 
 }  // namespace cavitas::dsp

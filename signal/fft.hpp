@@ -1,4 +1,4 @@
-// Real and complex FFTs on FFTW (double precision), planned once and reused.
+// Real and complex FFTs on FFTW (double or single precision), planned once and reused.
 //
 // Plans are made under one process-wide mutex (FFTW's planner is not thread
 // safe) with FFTW_ESTIMATE, so results repeat from run to run. Buffers are
@@ -17,23 +17,25 @@ namespace cavitas::dsp {
 /// that way; calling the other direction then throws std::logic_error.
 enum class FftDirections { both, forward_only, inverse_only };
 
-/// n-point real-to-complex forward and complex-to-real inverse transform.
+/// n-point real-to-complex forward and complex-to-real inverse transform, in
+/// double (RealFft) or single precision (RealFftF, FFTW's fftwf_ plans).
 /// forward(): time() [size n] -> spectrum() [size n/2+1], unnormalised.
 /// inverse(): spectrum() -> time(), unnormalised (a round trip scales by n).
-class RealFft {
+template <typename T>
+class BasicRealFft {
 public:
-    explicit RealFft(std::size_t n, FftDirections directions = FftDirections::both);
-    ~RealFft();
-    RealFft(RealFft&& other) noexcept;
-    RealFft& operator=(RealFft&& other) noexcept;
-    RealFft(const RealFft&) = delete;
-    RealFft& operator=(const RealFft&) = delete;
+    explicit BasicRealFft(std::size_t n, FftDirections directions = FftDirections::both);
+    ~BasicRealFft();
+    BasicRealFft(BasicRealFft&& other) noexcept;
+    BasicRealFft& operator=(BasicRealFft&& other) noexcept;
+    BasicRealFft(const BasicRealFft&) = delete;
+    BasicRealFft& operator=(const BasicRealFft&) = delete;
 
     std::size_t size() const { return n_; }
-    std::span<double> time() { return {time_, n_}; }
-    std::span<const double> time() const { return {time_, n_}; }
-    std::span<std::complex<double>> spectrum() { return {freq_, n_ / 2 + 1}; }
-    std::span<const std::complex<double>> spectrum() const { return {freq_, n_ / 2 + 1}; }
+    std::span<T> time() { return {time_, n_}; }
+    std::span<const T> time() const { return {time_, n_}; }
+    std::span<std::complex<T>> spectrum() { return {freq_, n_ / 2 + 1}; }
+    std::span<const std::complex<T>> spectrum() const { return {freq_, n_ / 2 + 1}; }
 
     void forward();
     void inverse();
@@ -41,26 +43,28 @@ public:
 private:
     void release() noexcept;
     std::size_t n_ = 0;
-    double* time_ = nullptr;
-    std::complex<double>* freq_ = nullptr;
+    T* time_ = nullptr;
+    std::complex<T>* freq_ = nullptr;
     void* forward_plan_ = nullptr;
     void* inverse_plan_ = nullptr;
 };
 
 /// n-point complex transform on one in-place buffer. forward() uses e^{-j...},
-/// inverse() e^{+j...}; both unnormalised.
-class ComplexFft {
+/// inverse() e^{+j...}; both unnormalised. ComplexFft in double, ComplexFftF in
+/// single precision.
+template <typename T>
+class BasicComplexFft {
 public:
-    explicit ComplexFft(std::size_t n, FftDirections directions = FftDirections::both);
-    ~ComplexFft();
-    ComplexFft(ComplexFft&& other) noexcept;
-    ComplexFft& operator=(ComplexFft&& other) noexcept;
-    ComplexFft(const ComplexFft&) = delete;
-    ComplexFft& operator=(const ComplexFft&) = delete;
+    explicit BasicComplexFft(std::size_t n, FftDirections directions = FftDirections::both);
+    ~BasicComplexFft();
+    BasicComplexFft(BasicComplexFft&& other) noexcept;
+    BasicComplexFft& operator=(BasicComplexFft&& other) noexcept;
+    BasicComplexFft(const BasicComplexFft&) = delete;
+    BasicComplexFft& operator=(const BasicComplexFft&) = delete;
 
     std::size_t size() const { return n_; }
-    std::span<std::complex<double>> data() { return {data_, n_}; }
-    std::span<const std::complex<double>> data() const { return {data_, n_}; }
+    std::span<std::complex<T>> data() { return {data_, n_}; }
+    std::span<const std::complex<T>> data() const { return {data_, n_}; }
 
     void forward();
     void inverse();
@@ -68,9 +72,19 @@ public:
 private:
     void release() noexcept;
     std::size_t n_ = 0;
-    std::complex<double>* data_ = nullptr;
+    std::complex<T>* data_ = nullptr;
     void* forward_plan_ = nullptr;
     void* inverse_plan_ = nullptr;
 };
+
+using RealFft = BasicRealFft<double>;
+using RealFftF = BasicRealFft<float>;
+using ComplexFft = BasicComplexFft<double>;
+using ComplexFftF = BasicComplexFft<float>;
+
+extern template class BasicRealFft<double>;
+extern template class BasicRealFft<float>;
+extern template class BasicComplexFft<double>;
+extern template class BasicComplexFft<float>;
 
 }  // namespace cavitas::dsp

@@ -1,8 +1,9 @@
 // The fast analysis against the reference one, and streaming against whole-record,
 // on the generator's labelled evaluation set.
 //
-//  - fast (what cavitas runs) vs reference (full-rate analytic signal in double
-//    precision, the real band signal's statistics, the kurtogram on every
+//  - fast (what cavitas runs: decimated demodulation, its inverse transform and
+//    envelope spectrum in single precision) vs reference (full-rate analytic
+//    signal in double precision, the real band signal's statistics, the kurtogram on every
 //    segment, spectral kurtosis at 75 % overlap, the fine spectrum at the full
 //    rate; models/analyzer.hpp, Fidelity): every verdict must agree, and each
 //    indicator within the tolerance stated below;
@@ -83,9 +84,10 @@ const std::vector<Tolerance> kSegmentTolerances = {
     {"hf_spectral_kurtosis", 0.1, 0.15},
 };
 const std::vector<Tolerance> kRecordingTolerances = {
-    // The envelope spectrum does not depend on the fidelity: same to rounding.
-    {"envelope_1x_prominence", 1e-6, 0.0}, {"envelope_bpf_prominence", 1e-6, 0.0}, {"envelope_2bpf_prominence", 1e-6, 0.0},
-    {"modulation_1x", 1e-9, 0.0},          {"modulation_bpf", 1e-9, 0.0},          {"kurtogram_max", 0.3, 0.45},
+    // The envelope spectrum differs by single-precision rounding only
+    // (measured: 1.3e-6 dB on the prominences, 4e-8 on the modulation depths).
+    {"envelope_1x_prominence", 1e-4, 0.0}, {"envelope_bpf_prominence", 1e-4, 0.0}, {"envelope_2bpf_prominence", 1e-4, 0.0},
+    {"modulation_1x", 1e-6, 0.0},          {"modulation_bpf", 1e-6, 0.0},          {"kurtogram_max", 0.3, 0.45},
     {"ski_slope", 2.0, 0.0},
 };
 

@@ -215,3 +215,49 @@ TEST_CASE("A transform of size 0 or 1 is rejected", "[signal]") {
     CHECK_NOTHROW(RealFft(2));
     CHECK_NOTHROW(ComplexFft(2));
 }
+
+// Single precision: the same transforms as the double ones to the accuracy of
+// float arithmetic. The error of an FFT grows like the rounding unit (6e-8 for
+// float) times log2 n (from memory); 1e-5 of the largest bin is a loose bound
+// for n up to 10^5.
+TEST_CASE("Single-precision transforms agree with the double ones to float accuracy", "[signal]") {
+    using cavitas::dsp::ComplexFftF;
+    using cavitas::dsp::RealFftF;
+    for (const std::size_t n : {std::size_t{1000}, std::size_t{67500}, std::size_t{96000}}) {
+        const auto x = uniform_values(n, n);
+        RealFft d(n, cavitas::dsp::FftDirections::forward_only);
+        RealFftF f(n, cavitas::dsp::FftDirections::forward_only);
+        for (std::size_t i = 0; i < n; ++i) {
+            d.time()[i] = x[i];
+            f.time()[i] = static_cast<float>(x[i]);
+        }
+        d.forward();
+        f.forward();
+        double peak = 0.0, worst = 0.0;
+        for (std::size_t k = 0; k < d.spectrum().size(); ++k) {
+            peak = std::max(peak, std::abs(d.spectrum()[k]));
+            const std::complex<double> fk(f.spectrum()[k].real(), f.spectrum()[k].imag());
+            worst = std::max(worst, std::abs(fk - d.spectrum()[k]));
+        }
+        CHECK(worst <= 1e-5 * peak);
+        // Complex inverse in float against double, and the round trip scales by n.
+        ComplexFft cd(n);
+        ComplexFftF cf(n);
+        for (std::size_t i = 0; i < n; ++i) {
+            cd.data()[i] = {x[i], x[(i * 7) % n]};
+            cf.data()[i] = {static_cast<float>(x[i]), static_cast<float>(x[(i * 7) % n])};
+        }
+        cd.inverse();
+        cf.inverse();
+        double cpeak = 0.0, cworst = 0.0;
+        for (std::size_t i = 0; i < n; ++i) {
+            cpeak = std::max(cpeak, std::abs(cd.data()[i]));
+            const std::complex<double> fi(cf.data()[i].real(), cf.data()[i].imag());
+            cworst = std::max(cworst, std::abs(fi - cd.data()[i]));
+        }
+        CHECK(cworst <= 1e-5 * cpeak);
+        cf.forward();
+        for (std::size_t i = 0; i < n; i += n / 10)
+            CHECK_THAT(static_cast<double>(cf.data()[i].real()) / static_cast<double>(n), WithinAbs(x[i], 1e-5));
+    }
+}
