@@ -2,19 +2,16 @@
 
 #include <fftw3.h>
 
+#include <map>
 #include <mutex>
 #include <new>
 #include <stdexcept>
 #include <string>
+#include <tuple>
 #include <utility>
 
 namespace cavitas::dsp {
 namespace {
-
-std::mutex& planner_mutex() {
-    static std::mutex m;
-    return m;
-}
 
 // FFTW's double (fftw_) and single precision (fftwf_) interfaces under one name.
 template <typename T>
@@ -23,25 +20,83 @@ template <>
 struct Fftw<double> {
     using plan = fftw_plan;
     using cpx = fftw_complex;
+    static constexpr int precision = 2;
     static void* malloc(std::size_t bytes) { return fftw_malloc(bytes); }
     static void free(void* p) { fftw_free(p); }
     static plan r2c(int n, double* in, cpx* out, unsigned f) { return fftw_plan_dft_r2c_1d(n, in, out, f); }
     static plan c2r(int n, cpx* in, double* out, unsigned f) { return fftw_plan_dft_c2r_1d(n, in, out, f); }
     static plan dft(int n, cpx* d, int sign, unsigned f) { return fftw_plan_dft_1d(n, d, d, sign, f); }
-    static void execute(void* p) { fftw_execute(static_cast<plan>(p)); }
+    static void run_r2c(void* p, double* in, std::complex<double>* out) {
+        fftw_execute_dft_r2c(static_cast<plan>(p), in, reinterpret_cast<cpx*>(out));
+    }
+    static void run_c2r(void* p, std::complex<double>* in, double* out) {
+        fftw_execute_dft_c2r(static_cast<plan>(p), reinterpret_cast<cpx*>(in), out);
+    }
+    static void run_dft(void* p, std::complex<double>* d) {
+        fftw_execute_dft(static_cast<plan>(p), reinterpret_cast<cpx*>(d), reinterpret_cast<cpx*>(d));
+    }
     static void destroy(void* p) { fftw_destroy_plan(static_cast<plan>(p)); }
 };
 template <>
 struct Fftw<float> {
     using plan = fftwf_plan;
     using cpx = fftwf_complex;
+    static constexpr int precision = 1;
     static void* malloc(std::size_t bytes) { return fftwf_malloc(bytes); }
     static void free(void* p) { fftwf_free(p); }
     static plan r2c(int n, float* in, cpx* out, unsigned f) { return fftwf_plan_dft_r2c_1d(n, in, out, f); }
     static plan c2r(int n, cpx* in, float* out, unsigned f) { return fftwf_plan_dft_c2r_1d(n, in, out, f); }
     static plan dft(int n, cpx* d, int sign, unsigned f) { return fftwf_plan_dft_1d(n, d, d, sign, f); }
-    static void execute(void* p) { fftwf_execute(static_cast<plan>(p)); }
+    static void run_r2c(void* p, float* in, std::complex<float>* out) {
+        fftwf_execute_dft_r2c(static_cast<plan>(p), in, reinterpret_cast<cpx*>(out));
+    }
+    static void run_c2r(void* p, std::complex<float>* in, float* out) {
+        fftwf_execute_dft_c2r(static_cast<plan>(p), reinterpret_cast<cpx*>(in), out);
+    }
+    static void run_dft(void* p, std::complex<float>* d) {
+        fftwf_execute_dft(static_cast<plan>(p), reinterpret_cast<cpx*>(d), reinterpret_cast<cpx*>(d));
+    }
     static void destroy(void* p) { fftwf_destroy_plan(static_cast<plan>(p)); }
+};
+
+// One plan per (precision, kind, size) for the whole process, made on first
+// use under one mutex (FFTW's planner is not thread safe) and kept until exit.
+// Every transform object runs the shared plan on its own buffers through
+// FFTW's new-array execute functions, which are thread safe; fftw_malloc gives
+// every buffer the same alignment, which those functions require. Keeping the
+// plans keeps their twiddle tables: the second recording of a route, or a
+// second analyzer in the same process, plans nothing.
+enum class Kind { r2c, c2r, forward, backward };
+
+class PlanCache {
+public:
+    static PlanCache& instance() {
+        static PlanCache cache;
+        return cache;
+    }
+    template <typename T, typename Make>
+    void* get(Kind kind, std::size_t n, Make make) {
+        std::lock_guard<std::mutex> lock(mutex_);
+        const auto key = std::make_tuple(Fftw<T>::precision, static_cast<int>(kind), n);
+        auto it = plans_.find(key);
+        if (it != plans_.end()) return it->second;
+        void* p = make();
+        if (p != nullptr) plans_.emplace(key, p);
+        return p;
+    }
+    ~PlanCache() {
+        for (auto& [key, p] : plans_) {
+            if (std::get<0>(key) == Fftw<double>::precision)
+                Fftw<double>::destroy(p);
+            else
+                Fftw<float>::destroy(p);
+        }
+    }
+
+private:
+    PlanCache() = default;
+    std::mutex mutex_;
+    std::map<std::tuple<int, int, std::size_t>, void*> plans_;
 };
 
 template <typename T, typename E>
@@ -64,12 +119,15 @@ BasicRealFft<T>::BasicRealFft(std::size_t n, FftDirections directions) : n_(n) {
     check_size(n, "RealFft");
     time_ = aligned_alloc_n<T, T>(n);
     freq_ = aligned_alloc_n<T, std::complex<T>>(n / 2 + 1);
-    std::lock_guard<std::mutex> lock(planner_mutex());
     const int ni = static_cast<int>(n);
     auto* f = reinterpret_cast<typename Fftw<T>::cpx*>(freq_);
-    if (directions != FftDirections::inverse_only) forward_plan_ = Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE);
+    auto& cache = PlanCache::instance();
+    if (directions != FftDirections::inverse_only)
+        forward_plan_ = cache.get<T>(Kind::r2c, n, [&] { return static_cast<void*>(Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE)); });
     if (directions != FftDirections::forward_only)
-        inverse_plan_ = Fftw<T>::c2r(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT);
+        inverse_plan_ = cache.get<T>(Kind::c2r, n, [&] {
+            return static_cast<void*>(Fftw<T>::c2r(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT));
+        });
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
         release();
@@ -82,12 +140,7 @@ BasicRealFft<T>::~BasicRealFft() { release(); }
 
 template <typename T>
 void BasicRealFft<T>::release() noexcept {
-    {
-        std::lock_guard<std::mutex> lock(planner_mutex());
-        if (forward_plan_) Fftw<T>::destroy(forward_plan_);
-        if (inverse_plan_) Fftw<T>::destroy(inverse_plan_);
-    }
-    forward_plan_ = inverse_plan_ = nullptr;
+    forward_plan_ = inverse_plan_ = nullptr;  // the plans belong to the cache
     if (time_) Fftw<T>::free(time_);
     if (freq_) Fftw<T>::free(freq_);
     time_ = nullptr;
@@ -119,23 +172,29 @@ BasicRealFft<T>& BasicRealFft<T>::operator=(BasicRealFft&& o) noexcept {
 template <typename T>
 void BasicRealFft<T>::forward() {
     if (!forward_plan_) throw std::logic_error("RealFft planned for the inverse only: forward() called");
-    Fftw<T>::execute(forward_plan_);
+    Fftw<T>::run_r2c(forward_plan_, time_, freq_);
 }
 template <typename T>
 void BasicRealFft<T>::inverse() {
     if (!inverse_plan_) throw std::logic_error("RealFft planned for the forward only: inverse() called");
-    Fftw<T>::execute(inverse_plan_);
+    Fftw<T>::run_c2r(inverse_plan_, freq_, time_);
 }
 
 template <typename T>
 BasicComplexFft<T>::BasicComplexFft(std::size_t n, FftDirections directions) : n_(n) {
     check_size(n, "ComplexFft");
     data_ = aligned_alloc_n<T, std::complex<T>>(n);
-    std::lock_guard<std::mutex> lock(planner_mutex());
     const int ni = static_cast<int>(n);
     auto* d = reinterpret_cast<typename Fftw<T>::cpx*>(data_);
-    if (directions != FftDirections::inverse_only) forward_plan_ = Fftw<T>::dft(ni, d, FFTW_FORWARD, FFTW_ESTIMATE);
-    if (directions != FftDirections::forward_only) inverse_plan_ = Fftw<T>::dft(ni, d, FFTW_BACKWARD, FFTW_ESTIMATE);
+    auto& cache = PlanCache::instance();
+    if (directions != FftDirections::inverse_only)
+        forward_plan_ = cache.get<T>(Kind::forward, n, [&] {
+            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_FORWARD, FFTW_ESTIMATE));
+        });
+    if (directions != FftDirections::forward_only)
+        inverse_plan_ = cache.get<T>(Kind::backward, n, [&] {
+            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_BACKWARD, FFTW_ESTIMATE));
+        });
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
         release();
@@ -148,12 +207,7 @@ BasicComplexFft<T>::~BasicComplexFft() { release(); }
 
 template <typename T>
 void BasicComplexFft<T>::release() noexcept {
-    {
-        std::lock_guard<std::mutex> lock(planner_mutex());
-        if (forward_plan_) Fftw<T>::destroy(forward_plan_);
-        if (inverse_plan_) Fftw<T>::destroy(inverse_plan_);
-    }
-    forward_plan_ = inverse_plan_ = nullptr;
+    forward_plan_ = inverse_plan_ = nullptr;  // the plans belong to the cache
     if (data_) Fftw<T>::free(data_);
     data_ = nullptr;
     n_ = 0;
@@ -181,12 +235,12 @@ BasicComplexFft<T>& BasicComplexFft<T>::operator=(BasicComplexFft&& o) noexcept 
 template <typename T>
 void BasicComplexFft<T>::forward() {
     if (!forward_plan_) throw std::logic_error("ComplexFft planned for the inverse only: forward() called");
-    Fftw<T>::execute(forward_plan_);
+    Fftw<T>::run_dft(forward_plan_, data_);
 }
 template <typename T>
 void BasicComplexFft<T>::inverse() {
     if (!inverse_plan_) throw std::logic_error("ComplexFft planned for the forward only: inverse() called");
-    Fftw<T>::execute(inverse_plan_);
+    Fftw<T>::run_dft(inverse_plan_, data_);
 }
 
 template class BasicRealFft<double>;

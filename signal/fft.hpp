@@ -1,9 +1,11 @@
 // Real and complex FFTs on FFTW (double or single precision), planned once and reused.
 //
-// Plans are made under one process-wide mutex (FFTW's planner is not thread
-// safe) with FFTW_ESTIMATE, so results repeat from run to run. Buffers are
-// owned by the object and aligned by fftw_malloc; the hot path only calls
-// fftw_execute on the object's own buffers and never allocates.
+// Plans are made with FFTW_ESTIMATE, so results repeat from run to run, once
+// per (precision, kind, size) for the whole process, under one mutex (FFTW's
+// planner is not thread safe), and kept until exit: a second object of the
+// same size plans nothing. Buffers are owned by each object and aligned by
+// fftw_malloc; the hot path runs the shared plan on the object's own buffers
+// (FFTW's new-array execute, thread safe) and never allocates.
 #pragma once
 
 #include <complex>

@@ -6,9 +6,11 @@
 #include <atomic>
 #include <chrono>
 #include <cmath>
+#include <condition_variable>
 #include <cstdio>
 #include <filesystem>
 #include <map>
+#include <mutex>
 #include <ostream>
 #include <set>
 #include <sstream>
@@ -491,20 +493,33 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
         1, std::min<std::size_t>(o.jobs > 0 ? static_cast<std::size_t>(o.jobs) : cores, std::max<std::size_t>(1, todo.size()))));
     std::vector<SummaryRow> rows(todo.size());
     std::atomic<std::size_t> next{0}, done{0}, failed{0};
+    // The workers wake the main thread when a recording is done, so the route
+    // ends as soon as the last one does; the progress line is redrawn at most
+    // every 200 ms.
+    std::mutex done_mutex;
+    std::condition_variable done_cv;
     auto worker = [&] {
         for (;;) {
             const std::size_t i = next.fetch_add(1);
             if (i >= todo.size()) return;
             rows[i] = analyse_row(*todo[i], manifest, o.baselines, o.out_dir);
             if (rows[i].failed()) failed.fetch_add(1);
-            done.fetch_add(1);
+            {
+                std::lock_guard<std::mutex> lock(done_mutex);
+                done.fetch_add(1);
+            }
+            done_cv.notify_one();
         }
     };
     std::vector<std::thread> pool;
     for (int t = 0; t < jobs; ++t) pool.emplace_back(worker);
     const bool tty = isatty(STDERR_FILENO) != 0;
-    while (done.load() < todo.size()) {
-        std::this_thread::sleep_for(std::chrono::milliseconds(200));
+    for (;;) {
+        {
+            std::unique_lock<std::mutex> lock(done_mutex);
+            done_cv.wait_for(lock, std::chrono::milliseconds(200), [&] { return done.load() >= todo.size(); });
+        }
+        if (done.load() >= todo.size()) break;
         if (!tty) continue;
         const double el = std::chrono::duration<double>(clock::now() - started).count();
         const std::size_t d = done.load();

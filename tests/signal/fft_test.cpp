@@ -12,6 +12,7 @@
 #include <numbers>
 #include <random>
 #include <stdexcept>
+#include <thread>
 #include <utility>
 #include <vector>
 
@@ -260,4 +261,33 @@ TEST_CASE("Single-precision transforms agree with the double ones to float accur
         for (std::size_t i = 0; i < n; i += n / 10)
             CHECK_THAT(static_cast<double>(cf.data()[i].real()) / static_cast<double>(n), WithinAbs(x[i], 1e-5));
     }
+}
+
+// Objects of one size share one plan (signal/fft.cpp, PlanCache): a transform
+// made after the first object of its size is gone, and two objects run at once
+// on two threads, give exactly the result of a lone object.
+TEST_CASE("Transforms sharing a plan give identical results, alone, later and on two threads", "[signal]") {
+    const std::size_t n = 12000;
+    const auto x = uniform_values(n, 99);
+    std::vector<std::complex<double>> expected;
+    {
+        RealFft lone(n, cavitas::dsp::FftDirections::forward_only);
+        std::copy(x.begin(), x.end(), lone.time().begin());
+        lone.forward();
+        expected.assign(lone.spectrum().begin(), lone.spectrum().end());
+    }
+    std::vector<std::vector<std::complex<double>>> got(2);
+    auto run = [&](std::size_t t) {
+        RealFft f(n, cavitas::dsp::FftDirections::forward_only);
+        for (int rep = 0; rep < 50; ++rep) {
+            std::copy(x.begin(), x.end(), f.time().begin());
+            f.forward();
+        }
+        got[t].assign(f.spectrum().begin(), f.spectrum().end());
+    };
+    std::thread a(run, 0), b(run, 1);
+    a.join();
+    b.join();
+    CHECK(got[0] == expected);
+    CHECK(got[1] == expected);
 }
