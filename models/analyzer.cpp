@@ -228,7 +228,7 @@ struct RecordingAnalyzer::Impl {
         series[SI::overall_kurtosis].push_back(raw.kurtosis);
 
         envelope.process(x);
-        dsp::hann_psd_from_spectrum(envelope.segment_spectrum(), n, setup.fs_hz, seg_psd_out);
+        envelope.segment_psd(seg_psd_out);
         const double bin = setup.fs_hz / static_cast<double>(n);
         series[SI::hf_level_db].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));

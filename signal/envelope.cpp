@@ -1,5 +1,8 @@
 #include "signal/envelope.hpp"
 
+#include "signal/lanes.hpp"
+#include "signal/spectrum.hpp"
+
 #include <algorithm>
 #include <cassert>
 #include <cmath>
@@ -41,8 +44,7 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
       n_(segment_size),
       m_(envelope_size(config, fs_hz, segment_size)),
       k_low_(0),
-      k_high_(0),
-      real_(std::max<std::size_t>(segment_size, 2), FftDirections::forward_only) {
+      k_high_(0) {
     if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
         throw std::invalid_argument("EnvelopeAnalyzer sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
     if (segment_size < 16)
@@ -71,9 +73,11 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
                                     std::to_string(config.band_high_hz) + " Hz is too wide to decimate in a segment of " +
                                     std::to_string(n_) + " samples");
     if (config.single_precision) {
+        real_f_.emplace(n_, FftDirections::forward_only);
         analytic_f_.emplace(m_, FftDirections::inverse_only);
         ses_fft_f_.emplace(m_, FftDirections::forward_only);
     } else {
+        real_.emplace(n_, FftDirections::forward_only);
         analytic_.emplace(m_, FftDirections::inverse_only);
         ses_fft_.emplace(m_, FftDirections::forward_only);
     }
@@ -86,18 +90,26 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
 
 void EnvelopeAnalyzer::process(std::span<const float> x) {
     assert(x.size() == n_);
-    auto t = real_.time();
-    for (std::size_t i = 0; i < n_; ++i) t[i] = static_cast<double>(x[i]);
-    real_.forward();
     if (config_.single_precision)
-        demodulate(*analytic_f_, *ses_fft_f_);
+        demodulate(*real_f_, *analytic_f_, *ses_fft_f_, x);
     else
-        demodulate(*analytic_, *ses_fft_);
+        demodulate(*real_, *analytic_, *ses_fft_, x);
+}
+
+void EnvelopeAnalyzer::segment_psd(std::span<double> out) const {
+    if (config_.single_precision)
+        hann_psd_from_spectrum(real_f_->spectrum(), n_, fs_hz_, out);
+    else
+        hann_psd_from_spectrum(real_->spectrum(), n_, fs_hz_, out);
 }
 
 template <typename T>
-void EnvelopeAnalyzer::demodulate(BasicComplexFft<T>& analytic, BasicRealFft<T>& ses_fft) {
-    const auto X = real_.spectrum();
+void EnvelopeAnalyzer::demodulate(BasicRealFft<T>& real, BasicComplexFft<T>& analytic, BasicRealFft<T>& ses_fft,
+                                  std::span<const float> x) {
+    auto t = real.time();
+    for (std::size_t i = 0; i < n_; ++i) t[i] = static_cast<T>(x[i]);
+    real.forward();
+    const auto X = real.spectrum();
     auto z = analytic.data();
     // Full rate: the band's bins where they are. Decimated: shifted down to 0 Hz
     // (a frequency shift multiplies z by a unit phasor: |z| is unchanged).
@@ -106,20 +118,18 @@ void EnvelopeAnalyzer::demodulate(BasicComplexFft<T>& analytic, BasicRealFft<T>&
     const auto first = static_cast<std::ptrdiff_t>(k_low_ - shift), past = static_cast<std::ptrdiff_t>(k_high_ - shift + 1);
     std::fill(z.begin(), z.begin() + first, std::complex<T>{});
     for (std::size_t k = k_low_; k <= k_high_; ++k)
-        z[k - shift] = {static_cast<T>(2.0 * X[k].real()), static_cast<T>(2.0 * X[k].imag())};
+        z[k - shift] = X[k] * T(2);
     std::fill(z.begin() + past, z.end(), std::complex<T>{});
     analytic.inverse();
     const double inv_n = 1.0 / static_cast<double>(n_);
-    double sum = 0.0, sum2 = 0.0, peak = 0.0;
     for (std::size_t i = 0; i < m_; ++i) {
-        const std::complex<double> zi(static_cast<double>(z[i].real()) * inv_n, static_cast<double>(z[i].imag()) * inv_n);
-        if (!config_.decimate) band_[i] = zi.real();
-        const double e = std::norm(zi);
-        sq_env_[i] = e;
-        sum += e;
-        sum2 += e * e;
-        peak = std::max(peak, e);
+        const double re = static_cast<double>(z[i].real()) * inv_n, im = static_cast<double>(z[i].imag()) * inv_n;
+        sq_env_[i] = re * re + im * im;
     }
+    if (!config_.decimate)
+        for (std::size_t i = 0; i < m_; ++i) band_[i] = static_cast<double>(z[i].real()) * inv_n;
+    const lanes::PowerSums ps = lanes::power_sums(sq_env_.data(), m_);
+    const double sum = ps.sum, sum2 = ps.sum_sq, peak = ps.max;
     const double inv_m = 1.0 / static_cast<double>(m_);
     mean_sq_env_ = sum * inv_m;
     if (config_.decimate) {

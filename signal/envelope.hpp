@@ -41,8 +41,8 @@ struct EnvelopeConfig {
     double band_low_hz = 2000.0;
     double band_high_hz = 10000.0;
     bool decimate = false;  ///< complex demodulation at a lower rate (see above)
-    /// The inverse transform to z and the envelope spectrum in single precision
-    /// (the segment's forward transform, which also feeds the PSD, stays double).
+    /// The segment's transform (which also gives the segment PSD), the inverse
+    /// to z and the envelope spectrum in single precision; sums stay double.
     bool single_precision = false;
 };
 
@@ -60,9 +60,10 @@ public:
     std::span<const double> squared_envelope() const { return sq_env_; }
     /// SES amplitude, envelope_samples()/2 + 1 values, bin k at k * bin_hz(); DC set to 0.
     std::span<const double> envelope_spectrum() const { return ses_; }
-    /// The last segment's unwindowed DFT (segment_size/2 + 1 bins), for a PSD without
-    /// a transform of its own (hann_psd_from_spectrum).
-    std::span<const std::complex<double>> segment_spectrum() const { return real_.spectrum(); }
+    /// The last segment's one-sided Hann PSD (segment_size/2 + 1 values, WelchPsd's
+    /// conventions over exactly this segment), from the envelope's own DFT of it
+    /// (hann_psd_from_spectrum): no transform of its own.
+    void segment_psd(std::span<double> out) const;
     /// Kurtosis and crest factor of the band signal (from Re z, or from the envelope with `decimate`).
     double band_kurtosis() const { return band_kurtosis_; }
     double band_crest() const { return band_crest_; }
@@ -83,10 +84,11 @@ private:
     std::size_t m_;  // envelope samples per segment (n_, or fewer with decimate)
     std::size_t k_low_, k_high_;
     template <typename T>
-    void demodulate(BasicComplexFft<T>& analytic, BasicRealFft<T>& ses_fft);
+    void demodulate(BasicRealFft<T>& real, BasicComplexFft<T>& analytic, BasicRealFft<T>& ses_fft, std::span<const float> x);
 
-    RealFft real_;
-    // One pair of the two, by config_.single_precision.
+    // One set of the two, by config_.single_precision.
+    std::optional<RealFft> real_;
+    std::optional<RealFftF> real_f_;
     std::optional<ComplexFft> analytic_;
     std::optional<RealFft> ses_fft_;
     std::optional<ComplexFftF> analytic_f_;

@@ -49,4 +49,35 @@ inline double total(const std::array<double, kLanes>& a) {
     return ((a[0] + a[1]) + (a[2] + a[3])) + ((a[4] + a[5]) + (a[6] + a[7]));
 }
 
+/// Sum, sum of squares and maximum of x (x non-empty), in lanes.
+struct PowerSums {
+    double sum = 0.0, sum_sq = 0.0, max = 0.0;
+};
+inline PowerSums power_sums(const double* x, std::size_t n) {
+    const std::size_t body = n - n % kLanes;
+    Lanes8 s, q, m;
+    if (n > 0)
+        for (auto& v : m.v) v = splat(x[0]);
+    for (std::size_t i = 0; i < body; i += kLanes)
+        for (std::size_t j = 0; j < 4; ++j) {
+            const d2 a = load(x + i + 2 * j);
+            s.v[j] += a;
+            q.v[j] += a * a;
+            m.v[j] = m.v[j] < a ? a : m.v[j];
+        }
+    auto sa = s.to_array(), qa = q.to_array();
+    const auto ma = m.to_array();
+    PowerSums r;
+    r.max = n > 0 ? x[0] : 0.0;
+    for (const double v : ma) r.max = v > r.max ? v : r.max;
+    for (std::size_t i = body; i < n; ++i) {
+        sa[i - body] += x[i];
+        qa[i - body] += x[i] * x[i];
+        r.max = x[i] > r.max ? x[i] : r.max;
+    }
+    r.sum = total(sa);
+    r.sum_sq = total(qa);
+    return r;
+}
+
 }  // namespace cavitas::dsp::lanes

@@ -81,8 +81,11 @@ void WelchPsd::reset() {
     fill_ = 0;
 }
 
-void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t n, double fs_hz,
-                            std::span<double> out) {
+namespace {
+
+template <typename T>
+void hann_psd_from_spectrum_impl(std::span<const std::complex<T>> X, std::size_t n, double fs_hz,
+                                 std::span<double> out) {
     const std::size_t nb = n / 2 + 1;
     if (X.size() < nb || out.size() < nb || n < 4)
         throw std::invalid_argument("hann_psd_from_spectrum: needs n >= 4 and n/2 + 1 bins in and out");
@@ -91,7 +94,8 @@ void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t
         const long nn = static_cast<long>(n);
         k = ((k % nn) + nn) % nn;
         if (k == 0) return {};
-        return k <= nn / 2 ? X[static_cast<std::size_t>(k)] : std::conj(X[static_cast<std::size_t>(nn - k)]);
+        const std::complex<T> v = k <= nn / 2 ? X[static_cast<std::size_t>(k)] : std::conj(X[static_cast<std::size_t>(nn - k)]);
+        return {static_cast<double>(v.real()), static_cast<double>(v.imag())};
     };
     const double scale = 1.0 / (fs_hz * 3.0 * static_cast<double>(n) / 8.0);  // sum of Hann^2 = 3n/8
     auto put = [&](std::size_t k, std::complex<double> y) {
@@ -101,11 +105,25 @@ void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t
     // Interior bins straight from their neighbours; the two ends through at().
     put(0, 0.5 * at(0) - 0.25 * (at(-1) + at(1)));
     for (std::size_t k = 1; k + 1 < nb; ++k) {
-        const std::complex<double> left = k == 1 ? std::complex<double>{} : X[k - 1];
-        put(k, 0.5 * X[k] - 0.25 * (left + X[k + 1]));
+        const auto c = [&](std::size_t j) {
+            return std::complex<double>(static_cast<double>(X[j].real()), static_cast<double>(X[j].imag()));
+        };
+        const std::complex<double> left = k == 1 ? std::complex<double>{} : c(k - 1);
+        put(k, 0.5 * c(k) - 0.25 * (left + c(k + 1)));
     }
     const long last = static_cast<long>(nb) - 1;
     if (nb > 1) put(nb - 1, 0.5 * at(last) - 0.25 * (at(last - 1) + at(last + 1)));
+}
+
+}  // namespace
+
+void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t n, double fs_hz,
+                            std::span<double> out) {
+    hann_psd_from_spectrum_impl(X, n, fs_hz, out);
+}
+void hann_psd_from_spectrum(std::span<const std::complex<float>> X, std::size_t n, double fs_hz,
+                            std::span<double> out) {
+    hann_psd_from_spectrum_impl(X, n, fs_hz, out);
 }
 
 double band_power(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {

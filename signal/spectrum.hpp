@@ -65,6 +65,8 @@ private:
 /// detrend). Equal to WelchPsd with segment_size n over exactly n samples,
 /// without a transform of its own. out must hold n/2 + 1 values.
 void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t n, double fs_hz, std::span<double> out);
+/// The same from a single-precision DFT (RealFftF); the arithmetic is in double.
+void hann_psd_from_spectrum(std::span<const std::complex<float>> X, std::size_t n, double fs_hz, std::span<double> out);
 
 /// Power in [low_hz, high_hz] from a one-sided PSD (sum of psd * bin width over
 /// the bins whose centre lies in the band). Units^2.

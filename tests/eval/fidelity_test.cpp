@@ -1,8 +1,8 @@
 // The fast analysis against the reference one, and streaming against whole-record,
 // on the generator's labelled evaluation set.
 //
-//  - fast (what cavitas runs: decimated demodulation, its inverse transform and
-//    envelope spectrum in single precision) vs reference (full-rate analytic
+//  - fast (what cavitas runs: decimated demodulation, the segment's transform,
+//    the inverse and the envelope spectrum in single precision) vs reference (full-rate analytic
 //    signal in double precision, the real band signal's statistics, the kurtogram on every
 //    segment, spectral kurtosis at 75 % overlap, the fine spectrum at the full
 //    rate; models/analyzer.hpp, Fidelity): every verdict must agree, and each
@@ -64,7 +64,7 @@ std::vector<Row> read_manifest(const std::string& path) {
 }
 
 // Tolerances of fast against reference (our statement; the measured largest
-// differences are printed beside them). Levels come from the same PSD path;
+// differences are printed beside them). Levels come from the same PSD formula;
 // the band statistics from the envelope estimate the same moments with fewer
 // samples; the kurtogram's mean over 4 segments estimates the mean over all.
 // Measured on the 126-recording evaluation set (largest absolute / relative):
@@ -78,14 +78,15 @@ struct Tolerance {
     double relative;
 };
 const std::vector<Tolerance> kSegmentTolerances = {
+    // Band levels from the segment's DFT in single precision (measured 3.7e-7 dB).
     {"overall_rms", 1e-9, 0.0},   {"overall_peak", 1e-9, 0.0},   {"overall_crest", 1e-9, 0.0},
-    {"overall_kurtosis", 1e-9, 0.0}, {"hf_band_level", 1e-9, 0.0}, {"hf_kurtosis", 0.0, 0.15},
-    {"hf_crest", 0.0, 0.35},      {"lf_band_level", 1e-9, 0.0},  {"impulse_rate", 3.0, 0.2},
+    {"overall_kurtosis", 1e-9, 0.0}, {"hf_band_level", 1e-5, 0.0}, {"hf_kurtosis", 0.0, 0.15},
+    {"hf_crest", 0.0, 0.35},      {"lf_band_level", 1e-5, 0.0},  {"impulse_rate", 3.0, 0.2},
     {"hf_spectral_kurtosis", 0.1, 0.15},
 };
 const std::vector<Tolerance> kRecordingTolerances = {
     // The envelope spectrum differs by single-precision rounding only
-    // (measured: 1.3e-6 dB on the prominences, 4e-8 on the modulation depths).
+    // (measured: 5.6e-6 dB on the prominences, 3e-8 on the modulation depths).
     {"envelope_1x_prominence", 1e-4, 0.0}, {"envelope_bpf_prominence", 1e-4, 0.0}, {"envelope_2bpf_prominence", 1e-4, 0.0},
     {"modulation_1x", 1e-6, 0.0},          {"modulation_bpf", 1e-6, 0.0},          {"kurtogram_max", 0.3, 0.45},
     {"ski_slope", 2.0, 0.0},
