@@ -96,7 +96,10 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
         r.file = get_str(j, "file");
         r.machine = get_str(j, "machine");
         r.point = get_str(j, "point");
-        r.channel = static_cast<int>(get_opt(j, "channel").value_or(0.0));
+        const double channel = get_opt(j, "channel").value_or(0.0);
+        if (!(channel >= 0 && channel <= 1023 && channel == std::floor(channel)))
+            throw std::invalid_argument("'channel' is not a whole number from 0 to 1023");
+        r.channel = static_cast<int>(channel);
         r.datetime = get_str(j, "datetime");
         r.days = get_opt(j, "days").value_or(0.0);
         r.verdict = get_str(j, "verdict");

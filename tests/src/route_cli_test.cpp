@@ -16,6 +16,8 @@
 
 #include "tests/support/cli.hpp"
 
+#include "src/errors.hpp"
+#include "src/route.hpp"
 #include "src/store.hpp"
 
 namespace fs = std::filesystem;
@@ -184,6 +186,23 @@ TEST_CASE("route: shards merge into the same summary as one run", "[route]") {
     CHECK(missing.err.find("shard(s) 2 of 2 are missing") != std::string::npos);
     CHECK(run("merge --out " + q(workdir() / "out-m3") + " " + q(a) + " " + q(a)).status == 1);
     CHECK(run("route " + q(manifest) + " --baselines " + q(s.lib) + " --shard 3/2 --out " + q(a)).status == 2);
+}
+
+TEST_CASE("route: a summary line with a channel no recording can have is refused, not cast", "[route]") {
+    // Found by fuzz_manifest: a channel of 1.5e12 was converted to int (undefined behaviour).
+    const Site& s = site();
+    const fs::path out = workdir() / "out-channel";
+    CHECK(run("route " + q(mixed_manifest()) + " --baselines " + q(s.lib) + " --shard 1/2 --out " + q(out)).status ==
+          1);
+    const auto rows = jsonl(out / "summary.jsonl");
+    REQUIRE(!rows.empty());
+    CHECK_NOTHROW(cavitas::app::SummaryRow::from_json(rows.front(), "summary.jsonl:1"));
+    for (const double bad : {1.54129e12, -1.0, 2.5, 1024.0}) {
+        json r = rows.front();
+        r["channel"] = bad;
+        INFO("channel " << bad);
+        CHECK_THROWS_AS(cavitas::app::SummaryRow::from_json(r, "summary.jsonl:1"), cavitas::app::InputError);
+    }
 }
 
 TEST_CASE("history: importing a route twice adds no rows, and trend reads it", "[route]") {
