@@ -29,6 +29,8 @@
 // with the complex filters up to rounding.
 #include "signal/kurtogram.hpp"
 
+#include "signal/lanes.hpp"
+
 #include <algorithm>
 #include <bit>
 #include <cassert>
@@ -41,6 +43,8 @@
 
 namespace cavitas::dsp {
 namespace {
+
+using Sample = float;  // the filter bank's arithmetic (kurtogram.hpp)
 
 constexpr std::size_t kBinaryTaps = 17;   // the paper's 16th-order prototype
 constexpr std::size_t kTernaryTaps = 25;  // 3/2 of the binary order, for the 3/2 narrower band
@@ -55,6 +59,8 @@ constexpr std::size_t kSkipUpper = kBinaryTaps - 2;  // g has 16 taps
 constexpr std::size_t kSkipTernary = kBinaryTaps - 1;  // the paper uses the binary length here too
 // Levels are bounded by log2(N) - 7 (paper): the deepest node keeps >= 128 samples.
 constexpr int kMinLog2Samples = 7;
+// Share of the segment power below which a band counts as empty (see process()).
+constexpr double kEmptyBand = 1e-10;
 
 // Hamming-windowed sinc, cut-off in units of Nyquist, unit DC gain (the window
 // design of a linear-phase FIR). Built from its centre outwards so that it is
@@ -79,7 +85,7 @@ std::array<double, Taps> hamming_lowpass(double cutoff_of_nyquist) {
 }
 
 struct Rotation {
-    double c, s;
+    Sample c, s;
 };
 
 // e^{sign j 2 pi k / Period}, k = 0 .. Period - 1, exact on the axes so that the
@@ -90,12 +96,12 @@ std::array<Rotation, Period> rotations(double sign) {
     for (std::size_t k = 0; k < Period; ++k) {
         if (4 * k % Period == 0) {
             const std::size_t quarter = 4 * k / Period;
-            const double c = quarter == 0 ? 1.0 : (quarter == 2 ? -1.0 : 0.0);
-            const double s = quarter == 1 ? 1.0 : (quarter == 3 ? -1.0 : 0.0);
-            r[k] = {c, sign * s};
+            const Sample c = quarter == 0 ? 1.0f : (quarter == 2 ? -1.0f : 0.0f);
+            const Sample s = quarter == 1 ? 1.0f : (quarter == 3 ? -1.0f : 0.0f);
+            r[k] = {c, static_cast<Sample>(sign) * s};
         } else {
             const double a = 2.0 * std::numbers::pi * static_cast<double>(k) / static_cast<double>(Period);
-            r[k] = {std::cos(a), sign * std::sin(a)};
+            r[k] = {static_cast<Sample>(std::cos(a)), static_cast<Sample>(sign * std::sin(a))};
         }
     }
     return r;
@@ -114,8 +120,8 @@ const std::array<Rotation, 12>& demod_ternary() {
 // Step * 4 is a multiple of Period for both banks, so the rotation repeats
 // every 4 outputs.
 template <std::size_t Step, std::size_t Period>
-void demodulate(const double* __restrict xr, const double* __restrict xi, std::size_t n0, std::size_t count,
-                const std::array<Rotation, Period>& rot, double* __restrict outr, double* __restrict outi) {
+void demodulate(const Sample* __restrict xr, const Sample* __restrict xi, std::size_t n0, std::size_t count,
+                const std::array<Rotation, Period>& rot, Sample* __restrict outr, Sample* __restrict outi) {
     static_assert(Step * 4 % Period == 0);
     Rotation r[4];
     for (std::size_t k = 0; k < 4; ++k) r[k] = rot[(n0 + Step * k) % Period];
@@ -125,14 +131,14 @@ void demodulate(const double* __restrict xr, const double* __restrict xi, std::s
     for (; s + 4 <= count; s += 4) {
 #pragma GCC unroll 4
         for (std::size_t k = 0; k < 4; ++k) {
-            const double a = xr[Step * (s + k)], b = xi[Step * (s + k)];
+            const Sample a = xr[Step * (s + k)], b = xi[Step * (s + k)];
             outr[s + k] = a * r[k].c - b * r[k].s;
             outi[s + k] = a * r[k].s + b * r[k].c;
         }
     }
     for (; s < count; ++s) {
         const Rotation q = r[s & 3];
-        const double a = xr[Step * s], b = xi[Step * s];
+        const Sample a = xr[Step * s], b = xi[Step * s];
         outr[s] = a * q.c - b * q.s;
         outi[s] = a * q.s + b * q.c;
     }
@@ -142,13 +148,13 @@ void demodulate(const double* __restrict xr, const double* __restrict xi, std::s
 // of one block, with the kPad samples before them (zero ahead of the node start):
 // out[i] = u[Step (m0 - kPad + i) + phase], i < kPad + count.
 template <std::size_t Step, std::size_t Period>
-void stream_block(const double* xr, const double* xi, std::size_t phase, std::size_t m0, std::size_t count,
-                  const std::array<Rotation, Period>& rot, double* outr, double* outi) {
+void stream_block(const Sample* xr, const Sample* xi, std::size_t phase, std::size_t m0, std::size_t count,
+                  const std::array<Rotation, Period>& rot, Sample* outr, Sample* outi) {
     std::size_t lead = 0;
     if (m0 < kPad) {
         lead = kPad - m0;
-        std::fill(outr, outr + lead, 0.0);
-        std::fill(outi, outi + lead, 0.0);
+        std::fill(outr, outr + lead, Sample{0});
+        std::fill(outi, outi + lead, Sample{0});
     }
     const std::size_t s0 = m0 + lead - kPad;
     demodulate<Step>(xr, xi, Step * s0 + phase, kPad + count - lead, rot, outr + lead, outi + lead);
@@ -161,21 +167,21 @@ void stream_block(const double* xr, const double* xi, std::size_t phase, std::si
 // The taps come by value so the compiler sees that they cannot alias the outputs.
 // Fixed != 0 fixes count at compile time, which lets -O2 vectorise the loop too.
 template <std::size_t Fixed>
-void binary_block(const std::array<double, 9> a_odd, const std::array<double, 8> a_even,
-                  const std::array<double, 8> d_odd, const std::array<double, 8> d_even,
-                  const double* __restrict er, const double* __restrict ei, const double* __restrict o_r,
-                  const double* __restrict o_i, std::size_t count, double* __restrict ar, double* __restrict ai,
-                  double* __restrict br, double* __restrict bi) {
+void binary_block(const std::array<Sample, 9> a_odd, const std::array<Sample, 8> a_even,
+                  const std::array<Sample, 8> d_odd, const std::array<Sample, 8> d_even,
+                  const Sample* __restrict er, const Sample* __restrict ei, const Sample* __restrict o_r,
+                  const Sample* __restrict o_i, std::size_t count, Sample* __restrict ar, Sample* __restrict ai,
+                  Sample* __restrict br, Sample* __restrict bi) {
     const std::size_t n = Fixed != 0 ? Fixed : count;
     for (std::size_t t = 0; t < n; ++t) {
-        const double* o_re = o_r + t;
-        const double* o_im = o_i + t;
-        const double* e_re = er + t;
-        const double* e_im = ei + t;
-        double a_r = a_odd[4] * o_re[-4], a_i = a_odd[4] * o_im[-4];
-        double p_r = 0.0, p_i = 0.0;
-        double q_r = d_even[3] * e_re[-3] + d_even[7] * e_re[-7];
-        double q_i = d_even[3] * e_im[-3] + d_even[7] * e_im[-7];
+        const Sample* o_re = o_r + t;
+        const Sample* o_im = o_i + t;
+        const Sample* e_re = er + t;
+        const Sample* e_im = ei + t;
+        Sample a_r = a_odd[4] * o_re[-4], a_i = a_odd[4] * o_im[-4];
+        Sample p_r = 0, p_i = 0;
+        Sample q_r = d_even[3] * e_re[-3] + d_even[7] * e_re[-7];
+        Sample q_i = d_even[3] * e_im[-3] + d_even[7] * e_im[-7];
 #pragma GCC unroll 4
         for (std::ptrdiff_t q = 0; q < 4; ++q) {
             const auto k = static_cast<std::size_t>(q);
@@ -199,7 +205,7 @@ void binary_block(const std::array<double, 9> a_odd, const std::array<double, 8>
 
 // sum_q c[q] s[t - delay - 2q]: one phase of the ternary prototype.
 template <std::size_t Taps>
-inline void phase_sum(const std::array<double, Taps>& c, const double* s, std::ptrdiff_t delay, double& acc) {
+inline void phase_sum(const std::array<Sample, Taps>& c, const Sample* s, std::ptrdiff_t delay, Sample& acc) {
 #pragma GCC unroll 8
     for (std::size_t q = 0; q < Taps; ++q) acc += c[q] * s[-delay - 2 * static_cast<std::ptrdiff_t>(q)];
 }
@@ -207,22 +213,23 @@ inline void phase_sum(const std::array<double, Taps>& c, const double* s, std::p
 // Y_0, Y_1, Y_2 of the ternary split from the three phase streams of w.
 // Phases 0 and 3 of the symmetric prototype are themselves symmetric and fold.
 template <std::size_t Fixed>
-void ternary_block(const std::array<double, 5> t0, const std::array<double, 4> t1, const std::array<double, 4> t2,
-                   const std::array<double, 4> t3, const std::array<double, 4> t4, const std::array<double, 4> t5,
-                   const double* __restrict w0r, const double* __restrict w0i, const double* __restrict w1r,
-                   const double* __restrict w1i, const double* __restrict w2r, const double* __restrict w2i,
-                   std::size_t count, double* __restrict y0r, double* __restrict y0i, double* __restrict y1r,
-                   double* __restrict y1i, double* __restrict y2r, double* __restrict y2i) {
-    constexpr double h = 0.86602540378443864676;  // sin(pi/3)
+void ternary_block(const std::array<Sample, 5> t0, const std::array<Sample, 4> t1, const std::array<Sample, 4> t2,
+                   const std::array<Sample, 4> t3, const std::array<Sample, 4> t4, const std::array<Sample, 4> t5,
+                   const Sample* __restrict w0r, const Sample* __restrict w0i, const Sample* __restrict w1r,
+                   const Sample* __restrict w1i, const Sample* __restrict w2r, const Sample* __restrict w2i,
+                   std::size_t count, Sample* __restrict y0r, Sample* __restrict y0i, Sample* __restrict y1r,
+                   Sample* __restrict y1i, Sample* __restrict y2r, Sample* __restrict y2i) {
+    constexpr Sample h = 0.86602540378443864676f;  // sin(pi/3)
+    constexpr Sample half = 0.5f;
     const std::size_t n = Fixed != 0 ? Fixed : count;
     for (std::size_t t = 0; t < n; ++t) {
-        const double *u0r = w0r + t, *u0i = w0i + t, *u1r = w1r + t, *u1i = w1i + t, *u2r = w2r + t,
+        const Sample *u0r = w0r + t, *u0i = w0i + t, *u1r = w1r + t, *u1i = w1i + t, *u2r = w2r + t,
                      *u2i = w2i + t;
-        double s0r = t0[0] * (u2r[0] + u2r[-8]) + t0[1] * (u2r[-2] + u2r[-6]) + t0[2] * u2r[-4];
-        double s0i = t0[0] * (u2i[0] + u2i[-8]) + t0[1] * (u2i[-2] + u2i[-6]) + t0[2] * u2i[-4];
-        const double s3r = t3[0] * (u2r[-1] + u2r[-7]) + t3[1] * (u2r[-3] + u2r[-5]);
-        const double s3i = t3[0] * (u2i[-1] + u2i[-7]) + t3[1] * (u2i[-3] + u2i[-5]);
-        double s1r = 0, s1i = 0, s2r = 0, s2i = 0, s4r = 0, s4i = 0, s5r = 0, s5i = 0;
+        Sample s0r = t0[0] * (u2r[0] + u2r[-8]) + t0[1] * (u2r[-2] + u2r[-6]) + t0[2] * u2r[-4];
+        Sample s0i = t0[0] * (u2i[0] + u2i[-8]) + t0[1] * (u2i[-2] + u2i[-6]) + t0[2] * u2i[-4];
+        const Sample s3r = t3[0] * (u2r[-1] + u2r[-7]) + t3[1] * (u2r[-3] + u2r[-5]);
+        const Sample s3i = t3[0] * (u2i[-1] + u2i[-7]) + t3[1] * (u2i[-3] + u2i[-5]);
+        Sample s1r = 0, s1i = 0, s2r = 0, s2i = 0, s4r = 0, s4i = 0, s5r = 0, s5i = 0;
         phase_sum(t1, u1r, 0, s1r);
         phase_sum(t1, u1i, 0, s1i);
         phase_sum(t2, u0r, 0, s2r);
@@ -235,21 +242,21 @@ void ternary_block(const std::array<double, 5> t0, const std::array<double, 4> t
         //   Y_0 = E0 + E1 + E2, Y_1 = D0 + zeta D1 + zeta^2 D2,
         //   Y_2 = E0 + zeta^2 E1 - zeta E2   (E_r = S_r + S_(r+3), D_r = S_r - S_(r+3));
         // zeta z = (zr/2 - h zi) + j(h zr + zi/2), zeta^2 z = (-zr/2 - h zi) + j(h zr - zi/2).
-        const double e0r = s0r + s3r, e0i = s0i + s3i, d0r = s0r - s3r, d0i = s0i - s3i;
-        const double e1r = s1r + s4r, e1i = s1i + s4i, d1r = s1r - s4r, d1i = s1i - s4i;
-        const double e2r = s2r + s5r, e2i = s2i + s5i, d2r = s2r - s5r, d2i = s2i - s5i;
+        const Sample e0r = s0r + s3r, e0i = s0i + s3i, d0r = s0r - s3r, d0i = s0i - s3i;
+        const Sample e1r = s1r + s4r, e1i = s1i + s4i, d1r = s1r - s4r, d1i = s1i - s4i;
+        const Sample e2r = s2r + s5r, e2i = s2i + s5i, d2r = s2r - s5r, d2i = s2i - s5i;
         y0r[t] = e0r + e1r + e2r;
         y0i[t] = e0i + e1i + e2i;
-        y1r[t] = d0r + (0.5 * d1r - h * d1i) + (-0.5 * d2r - h * d2i);
-        y1i[t] = d0i + (h * d1r + 0.5 * d1i) + (h * d2r - 0.5 * d2i);
-        y2r[t] = e0r + (-0.5 * e1r - h * e1i) - (0.5 * e2r - h * e2i);
-        y2i[t] = e0i + (h * e1r - 0.5 * e1i) - (h * e2r + 0.5 * e2i);
+        y1r[t] = d0r + (half * d1r - h * d1i) + (-half * d2r - h * d2i);
+        y1i[t] = d0i + (h * d1r + half * d1i) + (h * d2r - half * d2i);
+        y2r[t] = e0r + (-half * e1r - h * e1i) - (half * e2r - h * e2i);
+        y2i[t] = e0i + (h * e1r - half * e1i) - (h * e2r + half * e2i);
     }
 }
 
 // out[t] = in[t] * base * turn^t, turn = +j or -j (quarter_sign = +1 / -1).
-void rotate_quarters(const double* __restrict inr, const double* __restrict ini, std::size_t count, Rotation base,
-                     double quarter_sign, double* __restrict outr, double* __restrict outi) {
+void rotate_quarters(const Sample* __restrict inr, const Sample* __restrict ini, std::size_t count, Rotation base,
+                     Sample quarter_sign, Sample* __restrict outr, Sample* __restrict outi) {
     Rotation r[4];
     r[0] = base;
     for (std::size_t k = 1; k < 4; ++k) r[k] = {-quarter_sign * r[k - 1].s, quarter_sign * r[k - 1].c};
@@ -257,67 +264,57 @@ void rotate_quarters(const double* __restrict inr, const double* __restrict ini,
     for (; t + 4 <= count; t += 4) {
 #pragma GCC unroll 4
         for (std::size_t k = 0; k < 4; ++k) {
-            const double a = inr[t + k], b = ini[t + k];
+            const Sample a = inr[t + k], b = ini[t + k];
             outr[t + k] = a * r[k].c - b * r[k].s;
             outi[t + k] = a * r[k].s + b * r[k].c;
         }
     }
     for (; t < count; ++t) {
         const Rotation q = r[t & 3];
-        const double a = inr[t], b = ini[t];
+        const Sample a = inr[t], b = ini[t];
         outr[t] = a * q.c - b * q.s;
         outi[t] = a * q.s + b * q.c;
     }
 }
 
-// Two doubles in one register (GCC / Clang vector extension): the sums below
-// are reductions, which the compiler may not vectorise by itself because that
-// reorders floating-point additions; here the order is fixed by hand.
-using Pair = double __attribute__((vector_size(16)));
-
-inline Pair load_pair(const double* p) {
-    Pair v;
-    std::memcpy(&v, p, sizeof v);
-    return v;
-}
-
-inline double lanes_sum(Pair a, Pair b) { return (a[0] + a[1]) + (b[0] + b[1]); }
-
 // Kurtosis ('kurt2' of the paper) of c[first..n): about the mean, 0 when the
-// band is empty (mean power <= floor), negative values clipped to 0.
-double complex_kurtosis(const double* re, const double* im, std::size_t first, std::size_t n, double floor) {
+// band is empty (mean power <= floor), negative values clipped to 0. The
+// samples are single precision; the sums are in double, in fixed lanes
+// (signal/lanes.hpp), so the order of addition is fixed by hand.
+double complex_kurtosis(const Sample* re, const Sample* im, std::size_t first, std::size_t n, double floor) {
+    using lanes::d2;
     const std::size_t count = n - first;
     re += first;
     im += first;
-    Pair r0{0, 0}, r1{0, 0}, i0{0, 0}, i1{0, 0};
+    d2 r0{0, 0}, r1{0, 0}, i0{0, 0}, i1{0, 0};
     std::size_t k = 0;
     for (; k + 4 <= count; k += 4) {
-        r0 += load_pair(re + k);
-        r1 += load_pair(re + k + 2);
-        i0 += load_pair(im + k);
-        i1 += load_pair(im + k + 2);
+        r0 += lanes::load(re + k);
+        r1 += lanes::load(re + k + 2);
+        i0 += lanes::load(im + k);
+        i1 += lanes::load(im + k + 2);
     }
-    double sum_r = lanes_sum(r0, r1), sum_i = lanes_sum(i0, i1);
+    double sum_r = (r0[0] + r0[1]) + (r1[0] + r1[1]), sum_i = (i0[0] + i0[1]) + (i1[0] + i1[1]);
     for (std::size_t t = k; t < count; ++t) {
-        sum_r += re[t];
-        sum_i += im[t];
+        sum_r += static_cast<double>(re[t]);
+        sum_i += static_cast<double>(im[t]);
     }
     const double inv = 1.0 / static_cast<double>(count);
     const double mean_r = sum_r * inv, mean_i = sum_i * inv;
-    const Pair mr{mean_r, mean_r}, mi{mean_i, mean_i};
-    Pair p2a{0, 0}, p2b{0, 0}, p4a{0, 0}, p4b{0, 0};
+    const d2 mr = lanes::splat(mean_r), mi = lanes::splat(mean_i);
+    d2 p2a{0, 0}, p2b{0, 0}, p4a{0, 0}, p4b{0, 0};
     for (k = 0; k + 4 <= count; k += 4) {
-        const Pair a0 = load_pair(re + k) - mr, b0 = load_pair(im + k) - mi;
-        const Pair a1 = load_pair(re + k + 2) - mr, b1 = load_pair(im + k + 2) - mi;
-        const Pair q0 = a0 * a0 + b0 * b0, q1 = a1 * a1 + b1 * b1;
+        const d2 a0 = lanes::load(re + k) - mr, b0 = lanes::load(im + k) - mi;
+        const d2 a1 = lanes::load(re + k + 2) - mr, b1 = lanes::load(im + k + 2) - mi;
+        const d2 q0 = a0 * a0 + b0 * b0, q1 = a1 * a1 + b1 * b1;
         p2a += q0;
         p2b += q1;
         p4a += q0 * q0;
         p4b += q1 * q1;
     }
-    double s2 = lanes_sum(p2a, p2b), s4 = lanes_sum(p4a, p4b);
+    double s2 = (p2a[0] + p2a[1]) + (p2b[0] + p2b[1]), s4 = (p4a[0] + p4a[1]) + (p4b[0] + p4b[1]);
     for (std::size_t t = k; t < count; ++t) {
-        const double a = re[t] - mean_r, b = im[t] - mean_i;
+        const double a = static_cast<double>(re[t]) - mean_r, b = static_cast<double>(im[t]) - mean_i;
         const double q = a * a + b * b;
         s2 += q;
         s4 += q * q;
@@ -379,25 +376,26 @@ FastKurtogram::FastKurtogram(const KurtogramConfig& config, double fs_hz, std::s
     sum_.assign(cells, 0.0);
 
     const auto h0 = hamming_lowpass<kBinaryTaps>(kBinaryCutoff);
-    for (std::size_t q = 0; q < 9; ++q) binary_.a_odd[q] = h0[2 * q];
+    const auto f = [](double v) { return static_cast<Sample>(v); };
+    for (std::size_t q = 0; q < 9; ++q) binary_.a_odd[q] = f(h0[2 * q]);
     for (std::size_t q = 0; q < 8; ++q) {
         const double sign = q % 2 == 0 ? 1.0 : -1.0;
-        binary_.a_even[q] = h0[2 * q + 1];
-        binary_.d_odd[q] = sign * h0[2 * q + 1];
-        binary_.d_even[q] = sign * h0[2 * q + 2];
+        binary_.a_even[q] = f(h0[2 * q + 1]);
+        binary_.d_odd[q] = f(sign * h0[2 * q + 1]);
+        binary_.d_even[q] = f(sign * h0[2 * q + 2]);
     }
     const auto p = hamming_lowpass<kTernaryTaps>(kTernaryCutoff);
-    for (std::size_t q = 0; q < 5; ++q) ternary_.t0[q] = p[6 * q];
+    for (std::size_t q = 0; q < 5; ++q) ternary_.t0[q] = f(p[6 * q]);
     for (std::size_t q = 0; q < 4; ++q) {
-        ternary_.t1[q] = p[6 * q + 1];
-        ternary_.t2[q] = p[6 * q + 2];
-        ternary_.t3[q] = p[6 * q + 3];
-        ternary_.t4[q] = p[6 * q + 4];
-        ternary_.t5[q] = p[6 * q + 5];
+        ternary_.t1[q] = f(p[6 * q + 1]);
+        ternary_.t2[q] = f(p[6 * q + 2]);
+        ternary_.t3[q] = f(p[6 * q + 3]);
+        ternary_.t4[q] = f(p[6 * q + 4]);
+        ternary_.t5[q] = f(p[6 * q + 5]);
     }
 
-    root_re_.assign(n_, 0.0);
-    root_im_.assign(n_, 0.0);
+    root_re_.assign(n_, 0.0f);
+    root_im_.assign(n_, 0.0f);
     // tree_offset_[d]: the two children (2 * len_d samples) of the node being split at depth d - 1.
     tree_offset_.assign(levels + 1, 0);
     std::size_t len = n_, total = 0;
@@ -406,28 +404,28 @@ FastKurtogram::FastKurtogram(const KurtogramConfig& config, double fs_hz, std::s
         tree_offset_[d] = total;
         total += 2 * len;
     }
-    tree_re_.assign(total, 0.0);
-    tree_im_.assign(total, 0.0);
-    stream_re_.assign(3 * (kPad + kBlock), 0.0);
-    stream_im_.assign(3 * (kPad + kBlock), 0.0);
-    block_.assign(6 * kBlock, 0.0);
-    out_re_.assign(n_, 0.0);
-    out_im_.assign(n_, 0.0);
+    tree_re_.assign(total, 0.0f);
+    tree_im_.assign(total, 0.0f);
+    stream_re_.assign(3 * (kPad + kBlock), 0.0f);
+    stream_im_.assign(3 * (kPad + kBlock), 0.0f);
+    block_.assign(6 * kBlock, 0.0f);
+    out_re_.assign(n_, 0.0f);
+    out_im_.assign(n_, 0.0f);
 }
 
-void FastKurtogram::split(const double* xr, const double* xi, std::size_t len, double* ar, double* ai, double* dr,
-                          double* di) {
+void FastKurtogram::split(const Sample* xr, const Sample* xi, std::size_t len, Sample* ar, Sample* ai, Sample* dr,
+                          Sample* di) {
     const std::size_t m_count = len / 2;
     constexpr std::size_t span = kPad + kBlock;
-    double* er = stream_re_.data();
-    double* ei = stream_im_.data();
-    double* o_r = er + span;
-    double* o_i = ei + span;
-    double* s_ar = block_.data();
-    double* s_ai = s_ar + kBlock;
-    double* s_br = s_ai + kBlock;
-    double* s_bi = s_br + kBlock;
-    constexpr double kHalfRoot2 = 0.70710678118654752440;
+    Sample* er = stream_re_.data();
+    Sample* ei = stream_im_.data();
+    Sample* o_r = er + span;
+    Sample* o_i = ei + span;
+    Sample* s_ar = block_.data();
+    Sample* s_ai = s_ar + kBlock;
+    Sample* s_br = s_ai + kBlock;
+    Sample* s_bi = s_br + kBlock;
+    constexpr Sample kHalfRoot2 = 0.70710678118654752440f;
     for (std::size_t m0 = 0; m0 < m_count; m0 += kBlock) {  // m0 % 4 == 0
         const std::size_t count = std::min(kBlock, m_count - m0);
         stream_block<2>(xr, xi, 0, m0, count, demod_binary(), er, ei);
@@ -441,14 +439,14 @@ void FastKurtogram::split(const double* xr, const double* xi, std::size_t len, d
     }
 }
 
-void FastKurtogram::ternary(const double* xr, const double* xi, std::size_t len) {
+void FastKurtogram::ternary(const Sample* xr, const Sample* xi, std::size_t len) {
     const std::size_t m_count = len / 3;
     constexpr std::size_t span = kPad + kBlock;
-    double* y = block_.data();
+    Sample* y = block_.data();
     const TernaryTaps& c = ternary_;
-    const Rotation base{0.5, 0.86602540378443864676};  // e^{j pi/3}
-    double* wr = stream_re_.data();
-    double* wi = stream_im_.data();
+    const Rotation base{0.5f, 0.86602540378443864676f};  // e^{j pi/3}
+    Sample* wr = stream_re_.data();
+    Sample* wi = stream_im_.data();
     for (std::size_t m0 = 0; m0 < m_count; m0 += kBlock) {  // m0 % 4 == 0
         const std::size_t count = std::min(kBlock, m_count - m0);
         for (std::size_t f = 0; f < 3; ++f)
@@ -464,14 +462,14 @@ void FastKurtogram::ternary(const double* xr, const double* xi, std::size_t len)
     }
 }
 
-void FastKurtogram::visit(std::size_t depth, std::size_t node, const double* xr, const double* xi, std::size_t len) {
+void FastKurtogram::visit(std::size_t depth, std::size_t node, const Sample* xr, const Sample* xi, std::size_t len) {
     // Depth first, so that below the top levels a node and its children stay in cache.
     const auto levels = static_cast<std::size_t>(config_.levels);
     const std::size_t half = len / 2;
-    double* ar = tree_re_.data() + tree_offset_[depth + 1];
-    double* ai = tree_im_.data() + tree_offset_[depth + 1];
-    double* dr = ar + half;
-    double* di = ai + half;
+    Sample* ar = tree_re_.data() + tree_offset_[depth + 1];
+    Sample* ai = tree_im_.data() + tree_offset_[depth + 1];
+    Sample* dr = ar + half;
+    Sample* di = ai + half;
     split(xr, xi, len, ar, ai, dr, di);
     const Row& bin_row = rows_[2 * depth + 1];
     last_[bin_row.offset + 2 * node] = complex_kurtosis(ar, ai, kSkipLower, half, energy_floor_);
@@ -496,21 +494,22 @@ void FastKurtogram::process(std::span<const float> x) {
     for (float v : x) dc += static_cast<double>(v);
     dc /= static_cast<double>(n_);
 
-    double* xr = root_re_.data();
-    const double* xi = root_im_.data();
+    Sample* xr = root_re_.data();
+    const Sample* xi = root_im_.data();
     double s2 = 0.0, s4 = 0.0;
     for (std::size_t k = 0; k < n_; ++k) {
         const double v = static_cast<double>(x[k]) - dc;
-        xr[k] = v;
+        xr[k] = static_cast<Sample>(v);
         s2 += v * v;
         s4 += v * v * v * v;
     }
     const double inv_n = 1.0 / static_cast<double>(n_);
     const double power = s2 * inv_n;
     // Relative version of the paper's "E < eps -> 0", so the map does not depend
-    // on the unit of x: a band holding less than eps of the segment power is
-    // rounding noise.
-    energy_floor_ = std::numeric_limits<double>::epsilon() * power;
+    // on the unit of x: a band holding less than 1e-10 of the segment power
+    // (-100 dB) is rounding noise of the single-precision filter bank, whose
+    // rounding sits near (6e-8)^2 = 4e-15 of the power per operation.
+    energy_floor_ = kEmptyBand * power;
     // Level 0 is real: excess kurtosis about 3.
     last_[0] = power > 0.0 ? std::max(0.0, s4 * inv_n / (power * power) - 3.0) : 0.0;
 

@@ -67,6 +67,9 @@ public:
     void reset();
 
 private:
+    // The filter bank runs in single precision (4 lanes per SSE register);
+    // the kurtosis sums over each band are in double.
+    using Sample = float;
     struct Row {
         double level;
         std::size_t bands;
@@ -74,20 +77,20 @@ private:
     };
     // Polyphase views of the analysis filters (see kurtogram.cpp).
     struct BinaryTaps {
-        std::array<double, 9> a_odd;   // lower branch on the odd-phase stream
-        std::array<double, 8> a_even;  // lower branch on the even-phase stream
-        std::array<double, 8> d_odd;   // upper branch, real part of its taps
-        std::array<double, 8> d_even;  // upper branch, imaginary part of its taps
+        std::array<Sample, 9> a_odd;   // lower branch on the odd-phase stream
+        std::array<Sample, 8> a_even;  // lower branch on the even-phase stream
+        std::array<Sample, 8> d_odd;   // upper branch, real part of its taps
+        std::array<Sample, 8> d_even;  // upper branch, imaginary part of its taps
     };
     struct TernaryTaps {
-        std::array<double, 5> t0;  // phases r = 0 .. 5 of the 25-tap prototype, k = 6q + r
-        std::array<double, 4> t1, t2, t3, t4, t5;
+        std::array<Sample, 5> t0;  // phases r = 0 .. 5 of the 25-tap prototype, k = 6q + r
+        std::array<Sample, 4> t1, t2, t3, t4, t5;
     };
 
-    void split(const double* xr, const double* xi, std::size_t len, double* ar, double* ai, double* dr,
-               double* di);
-    void ternary(const double* xr, const double* xi, std::size_t len);
-    void visit(std::size_t depth, std::size_t node, const double* xr, const double* xi, std::size_t len);
+    void split(const Sample* xr, const Sample* xi, std::size_t len, Sample* ar, Sample* ai, Sample* dr,
+               Sample* di);
+    void ternary(const Sample* xr, const Sample* xi, std::size_t len);
+    void visit(std::size_t depth, std::size_t node, const Sample* xr, const Sample* xi, std::size_t len);
     void check_cell(std::size_t r, std::size_t b) const;
     KurtogramBand best_of(const std::vector<double>& map, double scale) const;
 
@@ -102,12 +105,12 @@ private:
     TernaryTaps ternary_{};
     double energy_floor_ = 0.0;  // per segment: bands below this mean power read 0
     // Work space sized in the constructor so that process() never allocates.
-    std::vector<double> root_re_, root_im_;    // the segment less its mean (imaginary part 0)
-    std::vector<double> tree_re_, tree_im_;    // per depth, the two children of the node being split
+    std::vector<Sample> root_re_, root_im_;    // the segment less its mean (imaginary part 0)
+    std::vector<Sample> tree_re_, tree_im_;    // per depth, the two children of the node being split
     std::vector<std::size_t> tree_offset_;     // where depth d starts in tree_re_ / tree_im_
-    std::vector<double> stream_re_, stream_im_;  // one block of the demodulated polyphase streams
-    std::vector<double> block_;                  // one block of filter sums
-    std::vector<double> out_re_, out_im_;        // the three outputs of a ternary split
+    std::vector<Sample> stream_re_, stream_im_;  // one block of the demodulated polyphase streams
+    std::vector<Sample> block_;                  // one block of filter sums
+    std::vector<Sample> out_re_, out_im_;        // the three outputs of a ternary split
 };
 
 }  // namespace cavitas::dsp

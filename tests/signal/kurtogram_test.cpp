@@ -246,7 +246,9 @@ TEST_CASE("The fast filter bank gives the kurtosis of direct convolution with th
         REQUIRE(ref[r].size() == k.row_bands(r));
         for (std::size_t b = 0; b < k.row_bands(r); ++b) {
             CAPTURE(r, b);
-            CHECK_THAT(k.last(r, b), WithinAbs(ref[r][b], 1e-9 * std::max(1.0, ref[r][b])));
+            // The fast bank runs in single precision (the direct model in
+            // double): differences measured up to 6e-8 here; 1e-6 bounds them.
+            CHECK_THAT(k.last(r, b), WithinAbs(ref[r][b], 1e-6 * std::max(1.0, ref[r][b])));
             if (ref[r][b] > 0.1) ++non_zero;
         }
     }
@@ -367,7 +369,10 @@ TEST_CASE("Scaling the input by 1000 leaves the kurtogram unchanged", "[signal]"
     for (std::size_t r = 0; r < ka.rows(); ++r)
         for (std::size_t b2 = 0; b2 < ka.row_bands(r); ++b2) {
             CAPTURE(r, b2);
-            CHECK_THAT(kb.last(r, b2), WithinRel(ka.last(r, b2), 1e-9) || WithinAbs(ka.last(r, b2), 1e-12));
+            // Equal up to the single-precision rounding of the filter bank
+            // (x 1000 is not a power of two, so the roundings differ; measured
+            // up to 1.8e-7 absolute on kurtosis values near 0).
+            CHECK_THAT(kb.last(r, b2), WithinRel(ka.last(r, b2), 1e-5) || WithinAbs(ka.last(r, b2), 1e-6));
         }
     CHECK(ka.best_last().kurtosis > 1.0);  // a map with content, not all zeros
     CHECK_THAT(kb.best_last().center_hz, WithinRel(ka.best_last().center_hz, 1e-12));
