@@ -771,7 +771,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     return d;
 }
 
-void run_report(const ReportOptions& o, std::ostream& out) {
+void render_report(const ReportOptions& o, std::ostream& out) {
     if (!o.html && !o.pdf) throw UsageError("report: give --html OUT.html, --pdf OUT.pdf or both");
     if (o.paper != "a4" && o.paper != "letter") throw UsageError("--paper '" + o.paper + "': use a4 or letter");
     for (const auto* p : {&o.html, &o.pdf})

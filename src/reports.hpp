@@ -6,25 +6,17 @@
 #pragma once
 
 #include <iosfwd>
-#include <optional>
 #include <string>
 
 #include <nlohmann/json.hpp>
 
 #include "src/document.hpp"
+#include "src/report_options.hpp"
 
 namespace cavitas::app {
 
-struct ReportOptions {
-    std::string input;                 ///< finding JSON, route output folder, or compare JSON
-    std::optional<std::string> html;
-    std::optional<std::string> pdf;
-    std::string work_order, site, analyst, machine, point, date;
-    std::string paper = "a4";          ///< a4 or letter (the PDF)
-    std::optional<std::string> store;  ///< route: history for the trend charts (default: the route's store)
-};
-
-void run_report(const ReportOptions& options, std::ostream& out);
+/// Renders the report (the body of the report module; see report_options.hpp).
+void render_report(const ReportOptions& options, std::ostream& out);
 
 /// The documents, for tests and other front ends.
 doc::Document finding_document(const nlohmann::json& finding, const ReportOptions& options);

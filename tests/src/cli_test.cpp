@@ -450,3 +450,23 @@ TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreeme
     CHECK(r.err.find("OW-P101_2026-10-05.op.toml: temperature") != std::string::npos);
     CHECK_FALSE(fs::exists(j3));
 }
+
+TEST_CASE("report: without its renderer module beside the executable, a clear error and nothing written",
+          "[cli][report]") {
+    // The report renderer is cavitas-report.so beside the executable (src/report_options.hpp).
+    const fs::path lone = workdir() / "lone-bin";
+    fs::create_directories(lone);
+    fs::copy_file(CAVITAS_BIN, lone / "cavitas", fs::copy_options::overwrite_existing);
+    const fs::path finding = workdir() / "lone-finding.json";
+    std::ofstream(finding) << "{\"schema\":\"cavitas.finding/1\"}";
+    const fs::path html = workdir() / "lone.html";
+    const Run r = cavitas::test::run_binary((lone / "cavitas").string(),
+                                            "report '" + finding.string() + "' --html '" + html.string() + "'", workdir());
+    INFO(r.err);
+    CHECK(r.status == 1);
+    CHECK(r.err.find("cavitas-report.so was not found") != std::string::npos);
+    CHECK(!fs::exists(html));
+    // Beside the real executable it loads (the same input is then judged on its content).
+    const Run real = run("report '" + finding.string() + "' --html '" + html.string() + "'");
+    CHECK(real.err.find("cavitas-report.so") == std::string::npos);
+}
