@@ -121,6 +121,12 @@ int main(int argc, char** argv) {
     // by the analyzers alive at once, one per job.
     mallopt(M_MMAP_THRESHOLD, 32 << 20);
     mallopt(M_TRIM_THRESHOLD, 512 << 20);
+    // One heap for all threads: route's jobs allocate only when an analyzer is
+    // built (never per segment), so they do not contend for it, and their
+    // buffers land in the heap below rather than in per-thread arenas of 4 KiB
+    // pages (measured: route on 2 jobs went from 1.53x to 1.73x the throughput
+    // of 1 job, 16 recordings of 10 s at 96 kHz).
+    mallopt(M_ARENA_MAX, 1);
     heap_in_huge_pages();
     CLI::App app{kIntro, "cavitas"};
     app.require_subcommand(1);
