@@ -9,6 +9,7 @@
 #include "signal/envelope.hpp"
 #include "signal/decimate.hpp"
 #include "signal/impulses.hpp"
+#include "signal/lanes.hpp"
 #include "signal/spectral_kurtosis.hpp"
 #include "signal/spectrum.hpp"
 #include "signal/stats.hpp"
@@ -124,7 +125,7 @@ struct RecordingAnalyzer::Impl {
     // Spectrum profile: band of each PSD bin (-1 = none) and the band centres.
     std::vector<int> bin_band;
     std::vector<double> band_center_hz;
-    std::vector<double> band_sum;
+    std::vector<std::size_t> band_first;  // first bin of each band; its bins are adjacent
     std::vector<int> band_count;
     std::vector<float> profile_db;
     // The kurtogram runs on at most kKurtogramSegments segments spread evenly over
@@ -196,10 +197,13 @@ struct RecordingAnalyzer::Impl {
             }
             bin_band[k] = current;
         }
-        band_sum.assign(band_center_hz.size(), 0.0);
+        band_first.assign(band_center_hz.size(), 0);
         band_count.assign(band_center_hz.size(), 0);
-        for (int b : bin_band)
-            if (b >= 0) ++band_count[static_cast<std::size_t>(b)];
+        for (std::size_t k = 0; k < bin_band.size(); ++k) {
+            const int b = bin_band[k];
+            if (b < 0) continue;
+            if (band_count[static_cast<std::size_t>(b)]++ == 0) band_first[static_cast<std::size_t>(b)] = k;
+        }
     }
 
     // Decimate to about 8 kHz: harmonics to 8x shaft speed and the blade pass of
@@ -234,11 +238,11 @@ struct RecordingAnalyzer::Impl {
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));
         series[SI::lf_level_db].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.lf.low_hz, setup.lf.high_hz)));
-        std::fill(band_sum.begin(), band_sum.end(), 0.0);
-        for (std::size_t k = 0; k < bin_band.size(); ++k)
-            if (bin_band[k] >= 0) band_sum[static_cast<std::size_t>(bin_band[k])] += seg_psd_out[k];
-        for (std::size_t b = 0; b < band_sum.size(); ++b)
-            profile_db.push_back(static_cast<float>(dsp::power_db(band_sum[b] / band_count[b])));
+        // Each profile band is a run of adjacent bins (band_first .. + band_count).
+        for (std::size_t b = 0; b < band_first.size(); ++b) {
+            const double sum = dsp::lanes::sum(seg_psd_out.data() + band_first[b], static_cast<std::size_t>(band_count[b]));
+            profile_db.push_back(static_cast<float>(dsp::power_db(sum / band_count[b])));
+        }
 
         series[SI::hf_kurtosis].push_back(envelope.band_kurtosis());
         series[SI::hf_crest].push_back(envelope.band_crest());

@@ -49,6 +49,17 @@ inline double total(const std::array<double, kLanes>& a) {
     return ((a[0] + a[1]) + (a[2] + a[3])) + ((a[4] + a[5]) + (a[6] + a[7]));
 }
 
+/// Sum of x[0 .. n) in lanes (x[i] in lane i mod 8), added in the fixed order.
+inline double sum(const double* x, std::size_t n) {
+    const std::size_t body = n - n % kLanes;
+    Lanes8 s;
+    for (std::size_t i = 0; i < body; i += kLanes)
+        for (std::size_t j = 0; j < 4; ++j) s.v[j] += load(x + i + 2 * j);
+    auto a = s.to_array();
+    for (std::size_t i = body; i < n; ++i) a[i - body] += x[i];
+    return total(a);
+}
+
 /// Sum, sum of squares and maximum of x (x non-empty), in lanes.
 struct PowerSums {
     double sum = 0.0, sum_sq = 0.0, max = 0.0;

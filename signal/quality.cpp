@@ -68,11 +68,18 @@ void QualityMeter::close_run(QualityCounts& c, float value, std::size_t run) con
 }
 
 void QualityMeter::process(std::span<float> x) {
+    constexpr std::size_t kMaxBlock = std::size_t{1} << 30;  // the counts below are 32-bit
+    if (x.size() > kMaxBlock) {
+        for (std::size_t i = 0; i < x.size(); i += kMaxBlock) process(x.subspan(i, std::min(kMaxBlock, x.size() - i)));
+        return;
+    }
     QualityCounts& c = counts_;
     const std::size_t n = x.size();
     // 1. Non-finite samples become 0 (rare: a scalar fix-up after a cheap test).
     constexpr std::uint32_t kExp = 0x7f800000u, kMag = 0x7fffffffu;
-    std::size_t non_finite = 0;
+    // Counts in 32-bit lanes (a block is far below 2^32 samples), so the loops
+    // vectorise four samples wide without widening to 64 bits.
+    std::uint32_t non_finite = 0;
     for (std::size_t i = 0; i < n; ++i) non_finite += (bits_of(x[i]) & kExp) == kExp;
     if (non_finite > 0) {
         c.non_finite += non_finite;
@@ -80,8 +87,7 @@ void QualityMeter::process(std::span<float> x) {
             if (!std::isfinite(v)) v = 0.0f;
     }
     // 2. Zeros, samples at full scale and the largest |x|, on the bits of |x|.
-    std::size_t zeros = 0, at_fs = 0;
-    std::uint32_t max_bits = 0;
+    std::uint32_t zeros = 0, at_fs = 0, max_bits = 0;
     for (std::size_t i = 0; i < n; ++i) {
         const std::uint32_t a = bits_of(x[i]) & kMag;
         zeros += a == 0;
@@ -120,16 +126,43 @@ void QualityMeter::process(std::span<float> x) {
     const std::size_t shortest = std::min(config_.clip_run_min, config_.dropout_run_min);
     float last = last_;
     std::size_t run = run_, longest = c.longest_flat_run;
-    for (std::size_t j = 0; j < n; ++j) {
-        const float v = x[j];
-        if (v == last) {
-            ++run;
-        } else {
-            if (run >= shortest) close_run(c, last, run);
-            run = 1;
+    constexpr std::size_t kChunk = 16;
+    for (std::size_t j = 0; j < n;) {
+        // Fast path (the usual case): no sample of the chunk equals the one
+        // before it, so the open run ends at its first sample and every run in
+        // it has length 1 (never closed: shortest >= 2, see the constructor). The
+        // test vectorises; the outcome is the loop's below.
+        if (j > 0 && j + kChunk <= n) {
+            typedef float v4 __attribute__((vector_size(16)));
+            typedef std::int32_t i4 __attribute__((vector_size(16)));
+            i4 equal = {0, 0, 0, 0};
+            for (std::size_t k = 0; k < kChunk; k += 4) {
+                v4 now, before;
+                __builtin_memcpy(&now, x.data() + j + k, sizeof now);
+                __builtin_memcpy(&before, x.data() + j + k - 1, sizeof before);
+                equal |= now == before;
+            }
+            if ((equal[0] | equal[1] | equal[2] | equal[3]) == 0) {
+                if (run >= shortest) close_run(c, last, run);
+                run = 1;
+                longest = std::max<std::size_t>(longest, 1);
+                last = x[j + kChunk - 1];
+                j += kChunk;
+                continue;
+            }
         }
-        longest = std::max(longest, run);
-        last = v;
+        const std::size_t end = std::min(n, j + kChunk);
+        for (; j < end; ++j) {
+            const float v = x[j];
+            if (v == last) {
+                ++run;
+            } else {
+                if (run >= shortest) close_run(c, last, run);
+                run = 1;
+            }
+            longest = std::max(longest, run);
+            last = v;
+        }
     }
     last_ = last;
     run_ = run;
