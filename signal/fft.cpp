@@ -123,7 +123,9 @@ BasicRealFft<T>::BasicRealFft(std::size_t n, FftDirections directions) : n_(n) {
     auto* f = reinterpret_cast<typename Fftw<T>::cpx*>(freq_);
     auto& cache = PlanCache::instance();
     if (directions != FftDirections::inverse_only)
-        forward_plan_ = cache.get<T>(Kind::r2c, n, [&] { return static_cast<void*>(Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE)); });
+        forward_plan_ = cache.get<T>(Kind::r2c, n, [&] {
+            return static_cast<void*>(Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE | FFTW_DESTROY_INPUT));
+        });
     if (directions != FftDirections::forward_only)
         inverse_plan_ = cache.get<T>(Kind::c2r, n, [&] {
             return static_cast<void*>(Fftw<T>::c2r(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT));

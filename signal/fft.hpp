@@ -21,8 +21,10 @@ enum class FftDirections { both, forward_only, inverse_only };
 
 /// n-point real-to-complex forward and complex-to-real inverse transform, in
 /// double (RealFft) or single precision (RealFftF, FFTW's fftwf_ plans).
-/// forward(): time() [size n] -> spectrum() [size n/2+1], unnormalised.
-/// inverse(): spectrum() -> time(), unnormalised (a round trip scales by n).
+/// forward(): time() [size n] -> spectrum() [size n/2+1], unnormalised; time()
+///            may be overwritten (FFTW may then use faster in-place algorithms).
+/// inverse(): spectrum() -> time(), unnormalised (a round trip scales by n);
+///            spectrum() may be overwritten.
 template <typename T>
 class BasicRealFft {
 public:
