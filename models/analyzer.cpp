@@ -153,7 +153,8 @@ struct RecordingAnalyzer::Impl {
           // 50 % overlap: frames half as many as at the default 75 %, nearly independent.
           sk(dsp::SpectralKurtosisConfig{std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096),
                                          std::clamp<std::size_t>(pow2_round(s.fs_hz / 128.0), 64, 4096) /
-                                             (fid == Fidelity::fast ? 2 : 4)},
+                                             (fid == Fidelity::fast ? 2 : 4),
+                                         fid == Fidelity::fast},
              s.fs_hz),
           sk_out(sk.bins()),
           kurtogram(dsp::KurtogramConfig{kurtogram_levels_for(n), s.hf.low_hz}, s.fs_hz, n),

@@ -38,10 +38,30 @@ const SpectralKurtosisConfig& validated(const SpectralKurtosisConfig& config, do
 SpectralKurtosis::SpectralKurtosis(const SpectralKurtosisConfig& config, double fs_hz)
     : config_(validated(config, fs_hz)),
       fs_hz_(fs_hz),
-      fft_(config_.window_size, FftDirections::forward_only),
       window_(hann_periodic(config_.window_size)),
       sum_p_(bins(), 0.0),
-      sum_p2_(bins(), 0.0) {}
+      sum_p2_(bins(), 0.0) {
+    if (config_.single_precision) fft_f_.emplace(config_.window_size, FftDirections::forward_only);
+    else fft_.emplace(config_.window_size, FftDirections::forward_only);
+}
+
+template <typename T>
+void SpectralKurtosis::accumulate(BasicRealFft<T>& fft, std::span<const float> x, std::size_t frames) {
+    const std::size_t n = config_.window_size, hop = this->hop(), nb = bins();
+    const auto time = fft.time();
+    const auto spectrum = fft.spectrum();
+    for (std::size_t f = 0; f < frames; ++f) {
+        const float* frame = x.data() + f * hop;
+        for (std::size_t k = 0; k < n; ++k) time[k] = static_cast<T>(window_[k] * static_cast<double>(frame[k]));
+        fft.forward();
+        for (std::size_t k = 0; k < nb; ++k) {
+            const double re = spectrum[k].real(), im = spectrum[k].imag();
+            const double p = re * re + im * im;
+            sum_p_[k] += p;
+            sum_p2_[k] += p * p;
+        }
+    }
+}
 
 void SpectralKurtosis::compute(std::span<const float> x, std::span<double> out) {
     const std::size_t n = config_.window_size;
@@ -52,18 +72,8 @@ void SpectralKurtosis::compute(std::span<const float> x, std::span<double> out) 
     std::fill(sum_p_.begin(), sum_p_.end(), 0.0);
     std::fill(sum_p2_.begin(), sum_p2_.end(), 0.0);
     const std::size_t frames = 1 + (x.size() - n) / hop;
-    const auto time = fft_.time();
-    const auto spectrum = fft_.spectrum();
-    for (std::size_t f = 0; f < frames; ++f) {
-        const float* frame = x.data() + f * hop;
-        for (std::size_t k = 0; k < n; ++k) time[k] = window_[k] * static_cast<double>(frame[k]);
-        fft_.forward();
-        for (std::size_t k = 0; k < nb; ++k) {
-            const double p = std::norm(spectrum[k]);
-            sum_p_[k] += p;
-            sum_p2_[k] += p * p;
-        }
-    }
+    if (fft_f_) accumulate(*fft_f_, x, frames);
+    else accumulate(*fft_, x, frames);
     // SK = (K + 1)/(K - 1) * <P^2>/<P>^2 - 2 (Antoni 2006, the unbiased STFT
     // estimator); frames >= 2 here, so K - 1 > 0.
     const double k_frames = static_cast<double>(frames);

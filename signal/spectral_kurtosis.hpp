@@ -9,16 +9,19 @@
 #pragma once
 
 #include <cstddef>
+#include <optional>
 #include <span>
+#include <vector>
 
 #include "signal/fft.hpp"
-#include <vector>
 
 namespace cavitas::dsp {
 
 struct SpectralKurtosisConfig {
     std::size_t window_size = 256;  ///< STFT frame length (periodic Hann)
     std::size_t hop = 0;            ///< frame step; 0 = window_size / 4 (75 % overlap)
+    /// Frames transformed in single precision (the power sums stay in double).
+    bool single_precision = false;
 };
 
 class SpectralKurtosis {
@@ -35,9 +38,13 @@ public:
     static double gaussian_threshold(double confidence, std::size_t frames);
 
 private:
+    template <typename T>
+    void accumulate(BasicRealFft<T>& fft, std::span<const float> x, std::size_t frames);
+
     SpectralKurtosisConfig config_;
     double fs_hz_;
-    RealFft fft_;
+    std::optional<RealFft> fft_;     // one of the two, by config_.single_precision
+    std::optional<RealFftF> fft_f_;
     std::vector<double> window_, sum_p_, sum_p2_;
 };
 
