@@ -2,6 +2,7 @@
 
 #include <fftw3.h>
 
+#include <cstdlib>
 #include <map>
 #include <mutex>
 #include <new>
@@ -83,6 +84,13 @@ public:
         void* p = make();
         if (p != nullptr) plans_.emplace(key, p);
         return p;
+    }
+    /// Runs f under the planner's mutex (FFTW's wisdom functions are no more
+    /// thread safe than its planner).
+    template <typename F>
+    auto locked(F f) {
+        std::lock_guard<std::mutex> lock(mutex_);
+        return f();
     }
     ~PlanCache() {
         for (auto& [key, p] : plans_) {
@@ -249,5 +257,33 @@ template class BasicRealFft<double>;
 template class BasicRealFft<float>;
 template class BasicComplexFft<double>;
 template class BasicComplexFft<float>;
+
+namespace {
+
+std::string take_string(char* text, void (*release)(void*)) {
+    std::string s = text ? text : "";
+    if (text) release(text);
+    return s;
+}
+
+}  // namespace
+
+FftWisdom export_fft_wisdom() {
+    return PlanCache::instance().locked([] {
+        FftWisdom w;
+        w.single_precision = take_string(fftwf_export_wisdom_to_string(), ::free);
+        w.double_precision = take_string(fftw_export_wisdom_to_string(), ::free);
+        return w;
+    });
+}
+
+bool import_fft_wisdom(const FftWisdom& wisdom) {
+    return PlanCache::instance().locked([&] {
+        bool ok = true;
+        if (!wisdom.single_precision.empty()) ok = fftwf_import_wisdom_from_string(wisdom.single_precision.c_str()) != 0 && ok;
+        if (!wisdom.double_precision.empty()) ok = fftw_import_wisdom_from_string(wisdom.double_precision.c_str()) != 0 && ok;
+        return ok;
+    });
+}
 
 }  // namespace cavitas::dsp

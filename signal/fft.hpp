@@ -11,6 +11,7 @@
 #include <complex>
 #include <cstddef>
 #include <span>
+#include <string>
 
 namespace cavitas::dsp {
 
@@ -80,6 +81,18 @@ private:
     void* forward_plan_ = nullptr;
     void* inverse_plan_ = nullptr;
 };
+
+/// FFTW "wisdom": the plans made so far in this process, as FFTW's own text,
+/// one per precision, so that an application can keep them between runs (FFTW
+/// then rebuilds a plan from it in a fraction of the planning time; the plan is
+/// the same one, so results are unchanged). Text only: files are the caller's.
+struct FftWisdom {
+    std::string single_precision, double_precision;
+};
+FftWisdom export_fft_wisdom();
+/// Adds wisdom exported by export_fft_wisdom (an empty part is skipped).
+/// Returns false when FFTW refuses a part (another FFTW version, damaged text).
+bool import_fft_wisdom(const FftWisdom& wisdom);
 
 using RealFft = BasicRealFft<double>;
 using RealFftF = BasicRealFft<float>;

@@ -14,6 +14,7 @@
 #include "models/quality.hpp"
 #include "src/atomic_file.hpp"
 #include "src/baseline_io.hpp"
+#include "src/plan_store.hpp"
 #include "src/report.hpp"
 
 #ifndef CAVITAS_VERSION
@@ -37,6 +38,7 @@ models::RecordingAnalysis analyze_source(AudioSource& source, const models::Anal
                                          const models::MachineContext& machine, const Progress& progress,
                                          models::Fidelity fidelity) {
     const RecordingInfo& info = source.info();
+    load_saved_fft_plans();
     models::RecordingAnalyzer analyzer(setup, machine, info.full_scale_value(), info.frames, fidelity);
     std::vector<float> block(1u << 15);
     std::size_t done = 0;

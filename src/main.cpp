@@ -11,6 +11,7 @@
 
 #include "src/commands.hpp"
 #include "src/errors.hpp"
+#include "src/plan_store.hpp"
 #include "src/report_options.hpp"
 #include "src/review.hpp"
 #include "src/route.hpp"
@@ -292,6 +293,11 @@ int main(int argc, char** argv) {
         const int rc = app.exit(e);
         return rc == 0 ? 0 : static_cast<int>(ExitCode::usage_error);
     }
+    // The FFT plans this run made are kept for the next one, however it ends
+    // (src/plan_store.hpp; nothing happens when no recording was analysed).
+    struct SavePlans {
+        ~SavePlans() { save_fft_plans(); }
+    } save_plans;
     try {
         if (*base) run_baseline(bo, std::cout, std::cerr);
         if (*an) run_analyze(ao, std::cout, std::cerr);

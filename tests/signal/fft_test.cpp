@@ -291,3 +291,25 @@ TEST_CASE("Transforms sharing a plan give identical results, alone, later and on
     CHECK(got[0] == expected);
     CHECK(got[1] == expected);
 }
+
+TEST_CASE("FFT wisdom exports the plans made, reads back, and damaged text is refused", "[signal]") {
+    // A size no other test plans, in both precisions, so the wisdom must name it.
+    cavitas::dsp::RealFft d(1000 * 7);
+    cavitas::dsp::RealFftF f(1000 * 7);
+    const auto w = cavitas::dsp::export_fft_wisdom();
+    CHECK(w.single_precision.find("fftwf_wisdom") != std::string::npos);  // FFTW's own header (from FFTW's format)
+    CHECK(w.double_precision.find("fftw_wisdom") != std::string::npos);
+    CHECK(cavitas::dsp::import_fft_wisdom(w));
+    CHECK(cavitas::dsp::import_fft_wisdom({}));  // nothing to add is not an error
+    CHECK_FALSE(cavitas::dsp::import_fft_wisdom({"(not wisdom at all", ""}));
+    CHECK_FALSE(cavitas::dsp::import_fft_wisdom({"", "(fftw-0.0.0 fftw_wisdom #x0 #x0 #x0 #x0)"}));
+    // A transform planned after the import gives the same numbers as before.
+    std::vector<double> x(7000);
+    for (std::size_t i = 0; i < x.size(); ++i) x[i] = std::sin(0.01 * static_cast<double>(i * i % 997));
+    std::copy(x.begin(), x.end(), d.time().begin());
+    d.forward();
+    cavitas::dsp::RealFft again(7000);
+    std::copy(x.begin(), x.end(), again.time().begin());
+    again.forward();
+    for (std::size_t k = 0; k < d.spectrum().size(); ++k) CHECK(again.spectrum()[k] == d.spectrum()[k]);
+}

@@ -9,6 +9,7 @@
 #include <array>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <functional>
@@ -469,4 +470,41 @@ TEST_CASE("report: without its renderer module beside the executable, a clear er
     // Beside the real executable it loads (the same input is then judged on its content).
     const Run real = run("report '" + finding.string() + "' --html '" + html.string() + "'");
     CHECK(real.err.find("cavitas-report.so") == std::string::npos);
+}
+
+TEST_CASE("FFT plans are kept in the cache folder and change no result; a damaged cache is ignored", "[cli]") {
+    // src/plan_store.hpp: CAVITAS_CACHE_DIR names the folder (empty = no cache).
+    const fs::path cache = workdir() / "plan-cache";
+    fs::remove_all(cache);
+    const fs::path b = workdir() / "cache-base.json";
+    const fs::path rec = make_wav("cache-today.wav", 81);
+    ::setenv("CAVITAS_CACHE_DIR", "", 1);
+    REQUIRE(run("baseline --rpm 1485 --vanes 7 -o " + q(b) + " " + q(make_wav("cache-good.wav", 80))).status == 0);
+    const fs::path j0 = workdir() / "cache-none.json", j1 = workdir() / "cache-first.json",
+                   j2 = workdir() / "cache-second.json", j3 = workdir() / "cache-damaged.json";
+    REQUIRE(run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j0) + " " + q(rec)).status == 0);
+    CHECK(!fs::exists(cache));
+    ::setenv("CAVITAS_CACHE_DIR", cache.c_str(), 1);
+    REQUIRE(run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j1) + " " + q(rec)).status == 0);
+    std::vector<fs::path> files;
+    if (fs::is_directory(cache))
+        for (const auto& e : fs::directory_iterator(cache)) files.push_back(e.path());
+    REQUIRE(files.size() == 2);  // fftw-KEY.single and fftw-KEY.double
+    for (const auto& f : files) CHECK(slurp(f).find("_wisdom") != std::string::npos);
+    const auto stamp = fs::last_write_time(files[0]);
+    REQUIRE(run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j2) + " " + q(rec)).status == 0);
+    CHECK(fs::last_write_time(files[0]) == stamp);  // nothing new to keep: not rewritten
+    for (const auto& f : files) std::ofstream(f, std::ios::trunc) << "(damaged";
+    REQUIRE(run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j3) + " " + q(rec)).status == 0);
+    for (const auto& f : files) CHECK(slurp(f).find("_wisdom") != std::string::npos);  // written anew
+    ::unsetenv("CAVITAS_CACHE_DIR");
+    // The findings agree in every field but the time of analysis.
+    auto strip = [](const fs::path& p) {
+        auto j = nlohmann::json::parse(slurp(p));
+        j.erase("created_utc");
+        return j.dump();
+    };
+    CHECK(strip(j1) == strip(j0));
+    CHECK(strip(j2) == strip(j0));
+    CHECK(strip(j3) == strip(j0));
 }
