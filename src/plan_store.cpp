@@ -57,13 +57,12 @@ std::string processor_key() {
 }
 
 std::string read_small(const fs::path& p) {
+    std::error_code ec;
+    const auto size = fs::file_size(p, ec);
+    if (ec || size > kMaxWisdomBytes) return {};
     std::ifstream in(p, std::ios::binary);
-    if (!in) return {};
-    std::string s(kMaxWisdomBytes + 1, '\0');
-    in.read(s.data(), static_cast<std::streamsize>(s.size()));
-    const auto got = static_cast<std::size_t>(in.gcount());
-    if (got > kMaxWisdomBytes) return {};
-    s.resize(got);
+    std::string s(static_cast<std::size_t>(size), '\0');
+    if (!in || !in.read(s.data(), static_cast<std::streamsize>(s.size()))) return {};
     return s;
 }
 
