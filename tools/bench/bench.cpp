@@ -4,12 +4,14 @@
 // run are what to compare).
 //
 //   cavitas-bench [--seconds 60] [--fs 96000] [--reps 5] [--memory-minutes 1,10,60]
-//                 [--route-files 16] [--python PATH] [--cavitas PATH] [--skip-scipy] [--keep DIR]
+//                 [--route-files 32] [--python PATH] [--cavitas PATH] [--skip-scipy] [--keep DIR]
 //
 // 1. cavitas analyze, the whole process (start-up, decode, SHA-256, quality gate,
 //    every indicator, classification), on a 60 s, 96 kHz, 16-bit mono recording
 //    of developed cavitation: median of --reps runs, one core (nothing in
-//    analyze is threaded).
+//    analyze is threaded); with the FFT plans kept from earlier runs (the
+//    bench's own cache folder, as a user's laptop has after its first analysis)
+//    and, alternating with those runs, with no plans kept.
 // 2. The same indicators the numpy/scipy way (tools/bench/scipy_pipeline.py),
 //    timed inside Python, start-up excluded: median of the runs.
 // 3. A bare FFTW Welch pass over the same samples (8192-point frames, Hann, 50 %
@@ -17,7 +19,9 @@
 //    analysis can avoid; and the time to decode the file into memory.
 // 4. Peak resident memory of analyze (/usr/bin/time -v) on 1, 10 and 60 min
 //    recordings made by repeating the 60 s one (streamed; memory must not grow).
-// 5. route throughput on --jobs 1 and --jobs 2 over --route-files recordings.
+// 5. route throughput on --jobs 1 and --jobs 2 over --route-files recordings
+//    of 10 s (default 32, a small route: with fewer, the start-up and the last
+//    recording's tail, both serial, weigh more than a real route has them).
 // Prints each stage's median and the ratios.
 #include <sys/resource.h>
 #include <sys/wait.h>
@@ -190,7 +194,7 @@ double json_number(const std::string& j, const std::string& key) {
 
 int main(int argc, char** argv) {
     if (flag(argc, argv, "--help")) {
-        std::puts("cavitas-bench [--seconds 60] [--fs 96000] [--reps 5] [--memory-minutes 1,10,60] [--route-files 16]\n"
+        std::puts("cavitas-bench [--seconds 60] [--fs 96000] [--reps 5] [--memory-minutes 1,10,60] [--route-files 32]\n"
                   "              [--python PATH] [--cavitas PATH] [--skip-scipy] [--keep DIR]\n"
                   "Times cavitas analyze against the numpy/scipy pipeline and a bare FFTW Welch pass on one\n"
                   "generated recording, measures analyze's peak memory on long recordings and route's\n"
@@ -200,7 +204,7 @@ int main(int argc, char** argv) {
     const double seconds = std::atof(opt(argc, argv, "--seconds", "60").c_str());
     const double fs_hz = std::atof(opt(argc, argv, "--fs", "96000").c_str());
     const int reps = std::max(1, std::atoi(opt(argc, argv, "--reps", "5").c_str()));
-    const int route_files = std::max(2, std::atoi(opt(argc, argv, "--route-files", "16").c_str()));
+    const int route_files = std::max(2, std::atoi(opt(argc, argv, "--route-files", "32").c_str()));
     std::vector<int> minutes;
     {
         std::stringstream ss(opt(argc, argv, "--memory-minutes", "1,10,60"));
@@ -221,6 +225,9 @@ int main(int argc, char** argv) {
     }
 
     std::fprintf(stderr, "bench: generating recordings in %s\n", dir.string().c_str());
+    // Every cavitas run below keeps its FFT plans here, not in the user's cache.
+    const std::string plan_cache = (dir / "plan-cache").string();
+    ::setenv("CAVITAS_CACHE_DIR", plan_cache.c_str(), 1);
     const fs::path good = dir / "baseline.wav", test = dir / "developed.wav", base = dir / "baseline.json";
     const std::vector<float> g_good = make(synth::Kind::healthy, 20.0, fs_hz, 1);
     const std::vector<float> g_test = make(synth::Kind::developed, seconds, fs_hz, 2);
@@ -232,18 +239,24 @@ int main(int argc, char** argv) {
         return 1;
     }
 
-    // 1. analyze, whole process.
-    std::vector<double> t_an;
+    // 1. analyze, whole process: with the FFT plans kept by the runs before
+    // (src/plan_store.hpp; the baseline run above filled the bench's own cache
+    // folder), and with no plan cache at all, in alternation.
+    std::vector<double> t_an, t_cold;
     for (int i = 0; i < reps; ++i) {
-        const fs::path j = dir / "finding.json";
-        const double t = timed({cavitas, "analyze", "--baseline", base.string(), "--rpm", "1485", "--json", j.string(),
-                                test.string()});
-        if (t < 0 || slurp(j).find("\"verdict\": \"developed\"") == std::string::npos) {
-            std::fprintf(stderr, "bench: analyze failed or did not call the developed recording developed\n");
-            return 1;
+        for (const bool cold : {false, true}) {
+            ::setenv("CAVITAS_CACHE_DIR", cold ? "" : plan_cache.c_str(), 1);
+            const fs::path j = dir / "finding.json";
+            const double t = timed({cavitas, "analyze", "--baseline", base.string(), "--rpm", "1485", "--json",
+                                    j.string(), test.string()});
+            if (t < 0 || slurp(j).find("\"verdict\": \"developed\"") == std::string::npos) {
+                std::fprintf(stderr, "bench: analyze failed or did not call the developed recording developed\n");
+                return 1;
+            }
+            (cold ? t_cold : t_an).push_back(t);
         }
-        t_an.push_back(t);
     }
+    ::setenv("CAVITAS_CACHE_DIR", plan_cache.c_str(), 1);
     // 3. decode and bare Welch.
     std::vector<double> x;
     double fs_read = 0;
@@ -298,7 +311,7 @@ int main(int argc, char** argv) {
         }
         m.close();
         std::vector<double> r1, r2;
-        for (int i = 0; i < std::min(reps, 3); ++i) {
+        for (int i = 0; i < std::min(reps, 5); ++i) {
             r1.push_back(timed({cavitas, "route", (rdir / "route.csv").string(), "--baselines", (rdir / "lib").string(),
                                 "--no-store", "--jobs", "1", "--out", (rdir / "out1").string()}));
             r2.push_back(timed({cavitas, "route", (rdir / "route.csv").string(), "--baselines", (rdir / "lib").string(),
@@ -308,10 +321,12 @@ int main(int argc, char** argv) {
         route2 = median(r2);
     }
 
-    const double an = median(t_an), dec = median(t_dec), wel = median(t_welch);
+    const double an = median(t_an), cold = median(t_cold), dec = median(t_dec), wel = median(t_welch);
     std::printf("cavitas-bench: %.0f s of %.0f Hz 16-bit mono audio (generated developed cavitation), %d runs each, medians\n",
                 seconds, fs_hz, reps);
     std::printf("  %-58s %9.3f s   %7.0fx real time\n", "cavitas analyze, whole process, one core", an, seconds / an);
+    std::printf("  %-58s %9.3f s   %7.0fx real time\n", "  the same with no FFT plans kept from earlier runs", cold,
+                seconds / cold);
     if (scipy_total > 0) {
         std::printf("  %-58s %9.3f s   (kurtogram %.3f s, band-pass + Hilbert %.3f s)\n",
                     "numpy/scipy pipeline, compute only", scipy_total, scipy_kurt, scipy_hilbert);
@@ -321,8 +336,9 @@ int main(int argc, char** argv) {
     std::printf("  %-58s %9.3f s\n", "decode the file (libsndfile, to memory)", dec);
     std::printf("ratios:\n");
     if (scipy_total > 0) std::printf("  scipy / cavitas            %8.1f   (target >= 20)\n", scipy_total / an);
-    std::printf("  cavitas / bare Welch       %8.1f   (target <= 5)\n", an / wel);
-    std::printf("  audio s per wall s         %8.0f   (target >= 300)\n", seconds / an);
+    std::printf("  cavitas / bare Welch       %8.1f   (target <= 5; %.1f with no plans kept)\n", an / wel, cold / wel);
+    std::printf("  audio s per wall s         %8.0f   (target >= 300; %.0f with no plans kept)\n", seconds / an,
+                seconds / cold);
     std::printf("peak resident memory of analyze (/usr/bin/time -v):\n");
     for (const auto& [m, kb] : rss) std::printf("  %3d min   %8.1f MiB   (target < 150)\n", m, static_cast<double>(kb) / 1024.0);
     std::printf("route over %d recordings of 10 s:\n", route_files);
