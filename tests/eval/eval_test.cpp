@@ -22,57 +22,15 @@
 
 #include "models/classifier.hpp"
 #include "src/commands.hpp"
+#include "tests/support/evalset.hpp"
 
 using namespace cavitas;
 
 namespace {
 
-struct Row {
-    std::string file, machine, role, label, kind;
-    double rpm = 0;
-    int vanes = 0;
-    double full_scale_g = 50;
-};
+using Row = cavitas::test::EvalRow;
 
-// The set's manifest.csv, read by its header's column names.
-std::vector<Row> read_manifest(const std::string& path) {
-    std::ifstream in(path);
-    if (!in) throw std::runtime_error(path + ": cannot open manifest");
-    auto split = [](const std::string& line) {
-        std::vector<std::string> f;
-        std::stringstream ss(line);
-        std::string cell;
-        while (std::getline(ss, cell, ',')) f.push_back(cell);
-        return f;
-    };
-    std::string line;
-    std::getline(in, line);
-    const auto header = split(line);
-    auto col = [&](const char* name) {
-        const auto it = std::find(header.begin(), header.end(), name);
-        if (it == header.end()) throw std::runtime_error(path + ": no column '" + name + "'");
-        return static_cast<std::size_t>(it - header.begin());
-    };
-    const std::size_t c_file = col("file"), c_machine = col("machine"), c_role = col("role"), c_label = col("label"),
-                      c_kind = col("kind"), c_rpm = col("rpm"), c_vanes = col("vanes"), c_fs = col("full_scale");
-    std::vector<Row> rows;
-    while (std::getline(in, line)) {
-        if (line.empty()) continue;
-        const auto f = split(line);
-        if (f.size() != header.size()) throw std::runtime_error(path + ": short row: " + line);
-        Row r;
-        r.file = f[c_file];
-        r.machine = f[c_machine];
-        r.role = f[c_role];
-        r.label = f[c_label];
-        r.kind = f[c_kind];
-        r.rpm = std::stod(f[c_rpm]);
-        r.vanes = std::stoi(f[c_vanes]);
-        r.full_scale_g = std::stod(f[c_fs]);  // "50g": stod stops at the unit
-        rows.push_back(r);
-    }
-    return rows;
-}
+std::vector<Row> read_manifest(const std::string& path) { return cavitas::test::read_eval_manifest(path); }
 
 int index_of(const std::string& label) {
     if (label == "normal") return 0;

@@ -27,41 +27,16 @@
 #include "models/baseline.hpp"
 #include "models/classifier.hpp"
 #include "src/commands.hpp"
+#include "tests/support/evalset.hpp"
 
 namespace models = cavitas::models;
 namespace app = cavitas::app;
 
 namespace {
 
-struct Row {
-    std::string file, machine, role, label;
-    double rpm = 0;
-    int vanes = 0;
-};
+using Row = cavitas::test::EvalRow;
 
-std::vector<Row> read_manifest(const std::string& path) {
-    std::ifstream in(path);
-    if (!in) throw std::runtime_error(path + ": cannot open manifest");
-    auto split = [](const std::string& line) {
-        std::vector<std::string> f;
-        std::stringstream ss(line);
-        std::string c;
-        while (std::getline(ss, c, ',')) f.push_back(c);
-        return f;
-    };
-    std::string line;
-    std::getline(in, line);
-    const auto h = split(line);
-    auto col = [&](const char* n) { return static_cast<std::size_t>(std::find(h.begin(), h.end(), n) - h.begin()); };
-    std::vector<Row> rows;
-    while (std::getline(in, line)) {
-        if (line.empty()) continue;
-        const auto f = split(line);
-        rows.push_back({f.at(col("file")), f.at(col("machine")), f.at(col("role")), f.at(col("label")),
-                        std::stod(f.at(col("rpm"))), std::stoi(f.at(col("vanes")))});
-    }
-    return rows;
-}
+std::vector<Row> read_manifest(const std::string& path) { return cavitas::test::read_eval_manifest(path); }
 
 // Tolerances of fast against reference (our statement; the measured largest
 // differences are printed beside them). Levels come from the same PSD formula;
