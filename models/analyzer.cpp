@@ -1,6 +1,7 @@
 #include "models/analyzer.hpp"
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <stdexcept>
 #include <string>
@@ -97,7 +98,36 @@ int kurtogram_levels_for(std::size_t n) {
 
 }  // namespace
 
+namespace {
+
+enum class Stage { setup, quality, fine_spectrum, moments, envelope, impulses, spectral_kurtosis, kurtogram, finish, count };
+constexpr const char* kStageNames[] = {"set-up",     "quality gate",      "fine spectrum", "moments", "envelope",
+                                       "impulses",   "spectral kurtosis", "kurtogram",     "finish"};
+static_assert(std::size(kStageNames) == static_cast<std::size_t>(Stage::count));
+
+// Accumulates wall time per stage: `lap(s)` charges the time since the last
+// lap to stage s.
+class StageClock {
+public:
+    using clock = std::chrono::steady_clock;
+    StageClock() : last_(clock::now()) {}
+    void restart() { last_ = clock::now(); }
+    void lap(Stage s) {
+        const auto now = clock::now();
+        ns_[static_cast<std::size_t>(s)] += std::chrono::duration_cast<std::chrono::nanoseconds>(now - last_).count();
+        last_ = now;
+    }
+    double seconds(std::size_t i) const { return 1e-9 * static_cast<double>(ns_[i]); }
+
+private:
+    clock::time_point last_;
+    std::array<long long, static_cast<std::size_t>(Stage::count)> ns_{};
+};
+
+}  // namespace
+
 struct RecordingAnalyzer::Impl {
+    StageClock clock;  // first: started before the members below are built
     AnalysisSetup setup;
     MachineContext machine;
     std::size_t n;
@@ -165,6 +195,7 @@ struct RecordingAnalyzer::Impl {
         const std::size_t expected_segments = expected / n;
         if (fid == Fidelity::fast && expected_segments > kKurtogramSegments)
             kurtogram_stride = (expected_segments + kKurtogramSegments - 1) / kKurtogramSegments;
+        clock.lap(Stage::setup);
     }
 
     // About 12 bands per octave from 10 Hz (or the second PSD bin) to the
@@ -226,11 +257,13 @@ struct RecordingAnalyzer::Impl {
     void analyse_segment() {
         using SI = SegmentIndicator;
         const std::span<const float> x(segment.data(), n);
+        clock.restart();
         const dsp::Moments raw = dsp::moments(x);
         series[SI::overall_rms].push_back(raw.rms);
         series[SI::overall_peak].push_back(raw.peak);
         series[SI::overall_crest].push_back(raw.crest);
         series[SI::overall_kurtosis].push_back(raw.kurtosis);
+        clock.lap(Stage::moments);
 
         envelope.process(x);
         envelope.segment_psd(seg_psd_out);
@@ -247,11 +280,13 @@ struct RecordingAnalyzer::Impl {
 
         series[SI::hf_kurtosis].push_back(envelope.band_kurtosis());
         series[SI::hf_crest].push_back(envelope.band_crest());
-        const std::size_t events = impulses.count(envelope.squared_envelope());
-        series[SI::impulse_rate].push_back(static_cast<double>(events) / setup.segment_s);
         const auto ses = envelope.envelope_spectrum();
         for (std::size_t k = 0; k < ses.size(); ++k) ses_power_sum[k] += ses[k] * ses[k];
         mean_sq_env_sum += envelope.mean_squared_envelope();
+        clock.lap(Stage::envelope);
+        const std::size_t events = impulses.count(envelope.squared_envelope());
+        series[SI::impulse_rate].push_back(static_cast<double>(events) / setup.segment_s);
+        clock.lap(Stage::impulses);
 
         sk.compute(x, sk_out);
         double sk_sum = 0.0;
@@ -264,9 +299,11 @@ struct RecordingAnalyzer::Impl {
             }
         }
         series[SI::hf_spectral_kurtosis].push_back(sk_count ? sk_sum / static_cast<double>(sk_count) : 0.0);
+        clock.lap(Stage::spectral_kurtosis);
 
         if (segment_index % kurtogram_stride == 0) kurtogram.process(x);
         ++segment_index;
+        clock.lap(Stage::kurtogram);
     }
 };
 
@@ -282,12 +319,15 @@ RecordingAnalyzer::~RecordingAnalyzer() = default;
 
 void RecordingAnalyzer::push(std::span<float> block) {
     Impl& m = *impl_;
+    m.clock.restart();
     m.quality.process(block);
+    m.clock.lap(Stage::quality);
     for (std::size_t at = 0; at < block.size(); at += kPushChunk) {
         const std::size_t len = std::min(kPushChunk, block.size() - at);
         const std::size_t got = m.fine_decimator.process(std::span<const float>(block.data() + at, len), m.fine_block);
         m.fine_psd.push(std::span<const float>(m.fine_block.data(), got));
     }
+    m.clock.lap(Stage::fine_spectrum);
     m.samples += block.size();
     std::size_t i = 0;
     while (i < block.size()) {
@@ -304,6 +344,12 @@ void RecordingAnalyzer::push(std::span<float> block) {
 }
 
 std::size_t RecordingAnalyzer::segments() const { return impl_->series.segments(); }
+
+std::vector<StageTime> RecordingAnalyzer::stage_times() const {
+    std::vector<StageTime> t;
+    for (std::size_t i = 0; i < static_cast<std::size_t>(Stage::count); ++i) t.push_back({kStageNames[i], impl_->clock.seconds(i)});
+    return t;
+}
 
 namespace {
 
@@ -325,6 +371,7 @@ double amplitude_prominence_db(std::span<const double> spec, long k, long half, 
 
 RecordingAnalysis RecordingAnalyzer::finish() {
     Impl& m = *impl_;
+    m.clock.restart();
     RecordingAnalysis r;
     r.setup = m.setup;
     r.quality = m.quality.counts();
@@ -506,6 +553,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
             set(RI::ski_slope_db, 10.0 * std::log10(low / static_cast<double>(nl) / ref_med));
     }
     set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
+    m.clock.lap(Stage::finish);
     return r;
 }
 

@@ -133,6 +133,13 @@ struct RecordingAnalysis {
     double full_scale = 0.0;       ///< |x| of a full-scale sample in signal units (0 = unknown, float files)
 };
 
+/// Where an analyzer's time went, in seconds of wall time per stage (for
+/// developers: `CAVITAS_STAGE_TIMES=1 cavitas analyze ...` prints them).
+struct StageTime {
+    const char* stage;
+    double seconds;
+};
+
 class RecordingAnalyzer {
 public:
     /// expected_samples sizes the fine speed spectrum (0 = unknown);
@@ -150,6 +157,10 @@ public:
     /// Finish: the tail shorter than one segment is left out of the segment
     /// indicators. Throws std::runtime_error when not one segment was complete.
     RecordingAnalysis finish();
+    /// Wall time spent so far in each stage (set-up, quality gate, fine
+    /// spectrum, moments, envelope, impulses, spectral kurtosis, kurtogram,
+    /// finish). Timing costs two clock reads per stage and segment.
+    std::vector<StageTime> stage_times() const;
 
 private:
     struct Impl;

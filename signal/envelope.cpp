@@ -17,9 +17,11 @@ namespace cavitas::dsp {
 std::size_t fast_fft_size(std::size_t target) {
     for (std::size_t n = std::max<std::size_t>(target, 1);; ++n) {
         std::size_t r = n;
-        for (std::size_t p : {2u, 3u, 5u})
-            while (r % p == 0) r /= p;
-        if (r == 1) return n;
+        int twos = 0, threes = 0, fives = 0;
+        for (; r % 2 == 0; r /= 2) ++twos;
+        for (; r % 3 == 0; r /= 3) ++threes;
+        for (; r % 5 == 0; r /= 5) ++fives;
+        if (r == 1 && threes <= 2 && fives <= 3 && (n < 4096 || twos >= 5)) return n;
     }
 }
 

@@ -81,9 +81,19 @@ public:
         const auto key = std::make_tuple(Fftw<T>::precision, static_cast<int>(kind), n);
         auto it = plans_.find(key);
         if (it != plans_.end()) return it->second;
-        void* p = make();
+        // From wisdom when FFTW has it for this transform (imported from an
+        // earlier run); otherwise planned, and counted as new.
+        void* p = make(FFTW_WISDOM_ONLY);
+        if (p == nullptr) {
+            p = make(0u);
+            if (p != nullptr) ++searched_;
+        }
         if (p != nullptr) plans_.emplace(key, p);
         return p;
+    }
+    std::size_t searched() {
+        std::lock_guard<std::mutex> lock(mutex_);
+        return searched_;
     }
     /// Runs f under the planner's mutex (FFTW's wisdom functions are no more
     /// thread safe than its planner).
@@ -105,6 +115,7 @@ private:
     PlanCache() = default;
     std::mutex mutex_;
     std::map<std::tuple<int, int, std::size_t>, void*> plans_;
+    std::size_t searched_ = 0;
 };
 
 template <typename T, typename E>
@@ -131,12 +142,12 @@ BasicRealFft<T>::BasicRealFft(std::size_t n, FftDirections directions) : n_(n) {
     auto* f = reinterpret_cast<typename Fftw<T>::cpx*>(freq_);
     auto& cache = PlanCache::instance();
     if (directions != FftDirections::inverse_only)
-        forward_plan_ = cache.get<T>(Kind::r2c, n, [&] {
-            return static_cast<void*>(Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE | FFTW_DESTROY_INPUT));
+        forward_plan_ = cache.get<T>(Kind::r2c, n, [&](unsigned extra) {
+            return static_cast<void*>(Fftw<T>::r2c(ni, time_, f, FFTW_ESTIMATE | FFTW_DESTROY_INPUT | extra));
         });
     if (directions != FftDirections::forward_only)
-        inverse_plan_ = cache.get<T>(Kind::c2r, n, [&] {
-            return static_cast<void*>(Fftw<T>::c2r(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT));
+        inverse_plan_ = cache.get<T>(Kind::c2r, n, [&](unsigned extra) {
+            return static_cast<void*>(Fftw<T>::c2r(ni, f, time_, FFTW_ESTIMATE | FFTW_DESTROY_INPUT | extra));
         });
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
@@ -198,12 +209,12 @@ BasicComplexFft<T>::BasicComplexFft(std::size_t n, FftDirections directions) : n
     auto* d = reinterpret_cast<typename Fftw<T>::cpx*>(data_);
     auto& cache = PlanCache::instance();
     if (directions != FftDirections::inverse_only)
-        forward_plan_ = cache.get<T>(Kind::forward, n, [&] {
-            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_FORWARD, FFTW_ESTIMATE));
+        forward_plan_ = cache.get<T>(Kind::forward, n, [&](unsigned extra) {
+            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_FORWARD, FFTW_ESTIMATE | extra));
         });
     if (directions != FftDirections::forward_only)
-        inverse_plan_ = cache.get<T>(Kind::backward, n, [&] {
-            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_BACKWARD, FFTW_ESTIMATE));
+        inverse_plan_ = cache.get<T>(Kind::backward, n, [&](unsigned extra) {
+            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_BACKWARD, FFTW_ESTIMATE | extra));
         });
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
@@ -276,6 +287,8 @@ FftWisdom export_fft_wisdom() {
         return w;
     });
 }
+
+std::size_t fft_plans_made() { return PlanCache::instance().searched(); }
 
 bool import_fft_wisdom(const FftWisdom& wisdom) {
     return PlanCache::instance().locked([&] {

@@ -93,6 +93,9 @@ FftWisdom export_fft_wisdom();
 /// Adds wisdom exported by export_fft_wisdom (an empty part is skipped).
 /// Returns false when FFTW refuses a part (another FFTW version, damaged text).
 bool import_fft_wisdom(const FftWisdom& wisdom);
+/// How many plans this process has had to make without wisdom: while it stays
+/// the same, export_fft_wisdom would give what was imported (plus nothing).
+std::size_t fft_plans_made();
 
 using RealFft = BasicRealFft<double>;
 using RealFftF = BasicRealFft<float>;

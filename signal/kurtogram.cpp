@@ -41,6 +41,8 @@
 #include <stdexcept>
 #include <string>
 
+#include "signal/clones.hpp"
+
 namespace cavitas::dsp {
 namespace {
 
@@ -120,7 +122,7 @@ const std::array<Rotation, 12>& demod_ternary() {
 // Step * 4 is a multiple of Period for both banks, so the rotation repeats
 // every 4 outputs.
 template <std::size_t Step, std::size_t Period>
-void demodulate(const Sample* __restrict xr, const Sample* __restrict xi, std::size_t n0, std::size_t count,
+CAVITAS_ALWAYS_INLINE void demodulate(const Sample* __restrict xr, const Sample* __restrict xi, std::size_t n0, std::size_t count,
                 const std::array<Rotation, Period>& rot, Sample* __restrict outr, Sample* __restrict outi) {
     static_assert(Step * 4 % Period == 0);
     Rotation r[4];
@@ -148,7 +150,7 @@ void demodulate(const Sample* __restrict xr, const Sample* __restrict xi, std::s
 // of one block, with the kPad samples before them (zero ahead of the node start):
 // out[i] = u[Step (m0 - kPad + i) + phase], i < kPad + count.
 template <std::size_t Step, std::size_t Period>
-void stream_block(const Sample* xr, const Sample* xi, std::size_t phase, std::size_t m0, std::size_t count,
+CAVITAS_ALWAYS_INLINE void stream_block(const Sample* xr, const Sample* xi, std::size_t phase, std::size_t m0, std::size_t count,
                   const std::array<Rotation, Period>& rot, Sample* outr, Sample* outi) {
     std::size_t lead = 0;
     if (m0 < kPad) {
@@ -167,7 +169,7 @@ void stream_block(const Sample* xr, const Sample* xi, std::size_t phase, std::si
 // The taps come by value so the compiler sees that they cannot alias the outputs.
 // Fixed != 0 fixes count at compile time, which lets -O2 vectorise the loop too.
 template <std::size_t Fixed>
-void binary_block(const std::array<Sample, 9> a_odd, const std::array<Sample, 8> a_even,
+CAVITAS_ALWAYS_INLINE void binary_block(const std::array<Sample, 9> a_odd, const std::array<Sample, 8> a_even,
                   const std::array<Sample, 8> d_odd, const std::array<Sample, 8> d_even,
                   const Sample* __restrict er, const Sample* __restrict ei, const Sample* __restrict o_r,
                   const Sample* __restrict o_i, std::size_t count, Sample* __restrict ar, Sample* __restrict ai,
@@ -205,7 +207,7 @@ void binary_block(const std::array<Sample, 9> a_odd, const std::array<Sample, 8>
 
 // sum_q c[q] s[t - delay - 2q]: one phase of the ternary prototype.
 template <std::size_t Taps>
-inline void phase_sum(const std::array<Sample, Taps>& c, const Sample* s, std::ptrdiff_t delay, Sample& acc) {
+CAVITAS_ALWAYS_INLINE void phase_sum(const std::array<Sample, Taps>& c, const Sample* s, std::ptrdiff_t delay, Sample& acc) {
 #pragma GCC unroll 8
     for (std::size_t q = 0; q < Taps; ++q) acc += c[q] * s[-delay - 2 * static_cast<std::ptrdiff_t>(q)];
 }
@@ -213,7 +215,7 @@ inline void phase_sum(const std::array<Sample, Taps>& c, const Sample* s, std::p
 // Y_0, Y_1, Y_2 of the ternary split from the three phase streams of w.
 // Phases 0 and 3 of the symmetric prototype are themselves symmetric and fold.
 template <std::size_t Fixed>
-void ternary_block(const std::array<Sample, 5> t0, const std::array<Sample, 4> t1, const std::array<Sample, 4> t2,
+CAVITAS_ALWAYS_INLINE void ternary_block(const std::array<Sample, 5> t0, const std::array<Sample, 4> t1, const std::array<Sample, 4> t2,
                    const std::array<Sample, 4> t3, const std::array<Sample, 4> t4, const std::array<Sample, 4> t5,
                    const Sample* __restrict w0r, const Sample* __restrict w0i, const Sample* __restrict w1r,
                    const Sample* __restrict w1i, const Sample* __restrict w2r, const Sample* __restrict w2i,
@@ -255,7 +257,7 @@ void ternary_block(const std::array<Sample, 5> t0, const std::array<Sample, 4> t
 }
 
 // out[t] = in[t] * base * turn^t, turn = +j or -j (quarter_sign = +1 / -1).
-void rotate_quarters(const Sample* __restrict inr, const Sample* __restrict ini, std::size_t count, Rotation base,
+CAVITAS_ALWAYS_INLINE void rotate_quarters(const Sample* __restrict inr, const Sample* __restrict ini, std::size_t count, Rotation base,
                      Sample quarter_sign, Sample* __restrict outr, Sample* __restrict outi) {
     Rotation r[4];
     r[0] = base;
@@ -274,6 +276,69 @@ void rotate_quarters(const Sample* __restrict inr, const Sample* __restrict ini,
         const Sample a = inr[t], b = ini[t];
         outr[t] = a * q.c - b * q.s;
         outi[t] = a * q.s + b * q.c;
+    }
+}
+
+// The binary split of one node (see FastKurtogram::split), block by block.
+CAVITAS_CLONED void split_pass(const std::array<Sample, 9>& a_odd, const std::array<Sample, 8>& a_even,
+                               const std::array<Sample, 8>& d_odd, const std::array<Sample, 8>& d_even,
+                               const Sample* xr, const Sample* xi, std::size_t len, Sample* ar, Sample* ai,
+                               Sample* dr, Sample* di, Sample* stream_re, Sample* stream_im, Sample* block) {
+    const std::size_t m_count = len / 2;
+    constexpr std::size_t span = kPad + kBlock;
+    Sample* er = stream_re;
+    Sample* ei = stream_im;
+    Sample* o_r = er + span;
+    Sample* o_i = ei + span;
+    Sample* s_ar = block;
+    Sample* s_ai = s_ar + kBlock;
+    Sample* s_br = s_ai + kBlock;
+    Sample* s_bi = s_br + kBlock;
+    constexpr Sample kHalfRoot2 = 0.70710678118654752440f;
+    for (std::size_t m0 = 0; m0 < m_count; m0 += kBlock) {  // m0 % 4 == 0
+        const std::size_t count = std::min(kBlock, m_count - m0);
+        stream_block<2>(xr, xi, 0, m0, count, demod_binary(), er, ei);
+        stream_block<2>(xr, xi, 1, m0, count, demod_binary(), o_r, o_i);
+        if (count == kBlock)
+            binary_block<kBlock>(a_odd, a_even, d_odd, d_even, er + kPad, ei + kPad, o_r + kPad, o_i + kPad, count,
+                                 s_ar, s_ai, s_br, s_bi);
+        else
+            binary_block<0>(a_odd, a_even, d_odd, d_even, er + kPad, ei + kPad, o_r + kPad, o_i + kPad, count, s_ar,
+                            s_ai, s_br, s_bi);
+        // a = e^{j pi (2m+1)/4} A = e^{j pi/4} j^m A;  d = (-j)^m B.
+        rotate_quarters(s_ar, s_ai, count, {kHalfRoot2, kHalfRoot2}, 1.0, ar + m0, ai + m0);
+        rotate_quarters(s_br, s_bi, count, {1.0, 0.0}, -1.0, dr + m0, di + m0);
+    }
+}
+
+// The ternary split of one node (see FastKurtogram::ternary) into out (three
+// channels of len / 3 outputs each), block by block.
+CAVITAS_CLONED void ternary_pass(const std::array<Sample, 5>& t0, const std::array<Sample, 4>& t1,
+                                 const std::array<Sample, 4>& t2, const std::array<Sample, 4>& t3,
+                                 const std::array<Sample, 4>& t4, const std::array<Sample, 4>& t5, const Sample* xr,
+                                 const Sample* xi, std::size_t len, Sample* stream_re, Sample* stream_im, Sample* y,
+                                 Sample* out_re, Sample* out_im) {
+    const std::size_t m_count = len / 3;
+    constexpr std::size_t span = kPad + kBlock;
+    const Rotation base{0.5f, 0.86602540378443864676f};  // e^{j pi/3}
+    Sample* wr = stream_re;
+    Sample* wi = stream_im;
+    for (std::size_t m0 = 0; m0 < m_count; m0 += kBlock) {  // m0 % 4 == 0
+        const std::size_t count = std::min(kBlock, m_count - m0);
+        for (std::size_t f = 0; f < 3; ++f)
+            stream_block<3>(xr, xi, f, m0, count, demod_ternary(), wr + f * span, wi + f * span);
+        if (count == kBlock)
+            ternary_block<kBlock>(t0, t1, t2, t3, t4, t5, wr + kPad, wi + kPad, wr + span + kPad, wi + span + kPad,
+                                  wr + 2 * span + kPad, wi + 2 * span + kPad, count, y, y + kBlock, y + 2 * kBlock,
+                                  y + 3 * kBlock, y + 4 * kBlock, y + 5 * kBlock);
+        else
+            ternary_block<0>(t0, t1, t2, t3, t4, t5, wr + kPad, wi + kPad, wr + span + kPad, wi + span + kPad,
+                             wr + 2 * span + kPad, wi + 2 * span + kPad, count, y, y + kBlock, y + 2 * kBlock,
+                             y + 3 * kBlock, y + 4 * kBlock, y + 5 * kBlock);
+        // Every channel is remodulated by e^{j pi (3m+2)/6} = e^{j pi/3} j^m.
+        for (std::size_t ch = 0; ch < 3; ++ch)
+            rotate_quarters(y + 2 * ch * kBlock, y + (2 * ch + 1) * kBlock, count, base, 1.0,
+                            out_re + ch * m_count + m0, out_im + ch * m_count + m0);
     }
 }
 
@@ -415,51 +480,14 @@ FastKurtogram::FastKurtogram(const KurtogramConfig& config, double fs_hz, std::s
 
 void FastKurtogram::split(const Sample* xr, const Sample* xi, std::size_t len, Sample* ar, Sample* ai, Sample* dr,
                           Sample* di) {
-    const std::size_t m_count = len / 2;
-    constexpr std::size_t span = kPad + kBlock;
-    Sample* er = stream_re_.data();
-    Sample* ei = stream_im_.data();
-    Sample* o_r = er + span;
-    Sample* o_i = ei + span;
-    Sample* s_ar = block_.data();
-    Sample* s_ai = s_ar + kBlock;
-    Sample* s_br = s_ai + kBlock;
-    Sample* s_bi = s_br + kBlock;
-    constexpr Sample kHalfRoot2 = 0.70710678118654752440f;
-    for (std::size_t m0 = 0; m0 < m_count; m0 += kBlock) {  // m0 % 4 == 0
-        const std::size_t count = std::min(kBlock, m_count - m0);
-        stream_block<2>(xr, xi, 0, m0, count, demod_binary(), er, ei);
-        stream_block<2>(xr, xi, 1, m0, count, demod_binary(), o_r, o_i);
-        const auto run = count == kBlock ? &binary_block<kBlock> : &binary_block<0>;
-        run(binary_.a_odd, binary_.a_even, binary_.d_odd, binary_.d_even, er + kPad, ei + kPad, o_r + kPad,
-            o_i + kPad, count, s_ar, s_ai, s_br, s_bi);
-        // a = e^{j pi (2m+1)/4} A = e^{j pi/4} j^m A;  d = (-j)^m B.
-        rotate_quarters(s_ar, s_ai, count, {kHalfRoot2, kHalfRoot2}, 1.0, ar + m0, ai + m0);
-        rotate_quarters(s_br, s_bi, count, {1.0, 0.0}, -1.0, dr + m0, di + m0);
-    }
+    split_pass(binary_.a_odd, binary_.a_even, binary_.d_odd, binary_.d_even, xr, xi, len, ar, ai, dr, di,
+               stream_re_.data(), stream_im_.data(), block_.data());
 }
 
 void FastKurtogram::ternary(const Sample* xr, const Sample* xi, std::size_t len) {
-    const std::size_t m_count = len / 3;
-    constexpr std::size_t span = kPad + kBlock;
-    Sample* y = block_.data();
     const TernaryTaps& c = ternary_;
-    const Rotation base{0.5f, 0.86602540378443864676f};  // e^{j pi/3}
-    Sample* wr = stream_re_.data();
-    Sample* wi = stream_im_.data();
-    for (std::size_t m0 = 0; m0 < m_count; m0 += kBlock) {  // m0 % 4 == 0
-        const std::size_t count = std::min(kBlock, m_count - m0);
-        for (std::size_t f = 0; f < 3; ++f)
-            stream_block<3>(xr, xi, f, m0, count, demod_ternary(), wr + f * span, wi + f * span);
-        const auto run = count == kBlock ? &ternary_block<kBlock> : &ternary_block<0>;
-        run(c.t0, c.t1, c.t2, c.t3, c.t4, c.t5, wr + kPad, wi + kPad, wr + span + kPad, wi + span + kPad,
-            wr + 2 * span + kPad, wi + 2 * span + kPad, count, y, y + kBlock, y + 2 * kBlock, y + 3 * kBlock,
-            y + 4 * kBlock, y + 5 * kBlock);
-        // Every channel is remodulated by e^{j pi (3m+2)/6} = e^{j pi/3} j^m.
-        for (std::size_t ch = 0; ch < 3; ++ch)
-            rotate_quarters(y + 2 * ch * kBlock, y + (2 * ch + 1) * kBlock, count, base, 1.0,
-                            out_re_.data() + ch * m_count + m0, out_im_.data() + ch * m_count + m0);
-    }
+    ternary_pass(c.t0, c.t1, c.t2, c.t3, c.t4, c.t5, xr, xi, len, stream_re_.data(), stream_im_.data(), block_.data(),
+                 out_re_.data(), out_im_.data());
 }
 
 void FastKurtogram::visit(std::size_t depth, std::size_t node, const Sample* xr, const Sample* xi, std::size_t len) {

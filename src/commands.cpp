@@ -3,6 +3,7 @@
 #include <unistd.h>
 
 #include <algorithm>
+#include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <ctime>
@@ -38,14 +39,20 @@ models::RecordingAnalysis analyze_source(AudioSource& source, const models::Anal
                                          const models::MachineContext& machine, const Progress& progress,
                                          models::Fidelity fidelity) {
     const RecordingInfo& info = source.info();
+    using clock = std::chrono::steady_clock;
+    const auto t0 = clock::now();
     load_saved_fft_plans();
+    const auto t1 = clock::now();
     models::RecordingAnalyzer analyzer(setup, machine, info.full_scale_value(), info.frames, fidelity);
     std::vector<float> block(1u << 15);
     std::size_t done = 0;
     const double total_s = info.duration_s();
     double next_report_s = 0.0;
+    clock::duration decoding{};
     for (;;) {
+        const auto r0 = clock::now();
         const std::size_t got = source.read(block);
+        decoding += clock::now() - r0;
         if (got == 0) break;
         analyzer.push(std::span<float>(block.data(), got));
         done += got;
@@ -58,7 +65,16 @@ models::RecordingAnalysis analyze_source(AudioSource& source, const models::Anal
         }
     }
     try {
-        return analyzer.finish();
+        models::RecordingAnalysis a = analyzer.finish();
+        // For developers: where the time went (DEVELOPERS.md, "Where the time goes").
+        if (const char* e = std::getenv("CAVITAS_STAGE_TIMES"); e && e[0] && e[0] != '0') {
+            auto ms = [](clock::duration d) { return 1e3 * std::chrono::duration<double>(d).count(); };
+            std::fprintf(stderr, "stage times of %s (ms):\n  %-18s %8.2f\n  %-18s %8.2f\n", info.path.c_str(),
+                         "plan cache", ms(t1 - t0), "decode", ms(decoding));
+            for (const auto& st : analyzer.stage_times()) std::fprintf(stderr, "  %-18s %8.2f\n", st.stage, 1e3 * st.seconds);
+            std::fprintf(stderr, "  %-18s %8.2f\n", "all of the above", ms(clock::now() - t0));
+        }
+        return a;
     } catch (const std::runtime_error& e) {
         throw InputError(info.path + ": " + e.what());
     }
@@ -95,7 +111,11 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
     if (r.info.duration_s() < use.segment_s)
         throw InputError(path + ": record of " + seconds_text(r.info.duration_s()) + " is shorter than one " +
                          seconds_text(use.segment_s) + " analysis segment");
+    const auto h0 = std::chrono::steady_clock::now();
     r.sha256 = sha256_file(path);
+    if (const char* e = std::getenv("CAVITAS_STAGE_TIMES"); e && e[0] && e[0] != '0')
+        std::fprintf(stderr, "hash of %s: %.2f ms\n", path.c_str(),
+                     1e3 * std::chrono::duration<double>(std::chrono::steady_clock::now() - h0).count());
     try {
         r.analysis = analyze_source(source, use, machine, progress, fidelity);
     } catch (const std::invalid_argument& e) {

@@ -24,7 +24,8 @@ struct State {
     std::mutex mutex;
     bool loaded = false;
     std::string folder, key;
-    dsp::FftWisdom at_load;
+    dsp::FftWisdom at_load;     // the text read (empty when refused or absent)
+    std::size_t plans_at_load = 0;  // dsp::fft_plans_made() then
 };
 
 State& state() {
@@ -91,7 +92,8 @@ void load_saved_fft_plans() noexcept {
             std::lock_guard<std::mutex> lock(st.mutex);
             st.folder = folder;
             st.key = key;
-            st.at_load = dsp::export_fft_wisdom();
+            st.at_load = std::move(w);
+            st.plans_at_load = dsp::fft_plans_made();
             st.loaded = true;
         } catch (...) {
         }
@@ -103,6 +105,9 @@ void save_fft_plans() noexcept {
         State& st = state();
         std::lock_guard<std::mutex> lock(st.mutex);
         if (!st.loaded) return;
+        // Every plan came from the wisdom read: nothing to add (and no export,
+        // which costs about as much as reading).
+        if (dsp::fft_plans_made() == st.plans_at_load) return;
         const dsp::FftWisdom now = dsp::export_fft_wisdom();
         if (now.single_precision == st.at_load.single_precision && now.double_precision == st.at_load.double_precision)
             return;
@@ -115,6 +120,7 @@ void save_fft_plans() noexcept {
         if (now.double_precision != st.at_load.double_precision)
             write_file_atomically(base.string() + ".double", now.double_precision);
         st.at_load = now;
+        st.plans_at_load = dsp::fft_plans_made();
     } catch (...) {
     }
 }

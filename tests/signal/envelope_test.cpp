@@ -192,13 +192,18 @@ TEST_CASE("measure_line does not take the flank of a stronger line outside its w
 }
 
 TEST_CASE("Decimated demodulation gives the same envelope and spectrum at a fraction of the rate", "[signal]") {
-    // Band 800-1200 Hz = 401 bins: |z|^2 needs at least 802 samples; the fast size is 810 (2 x 3^4 x 5).
+    // Band 800-1200 Hz = 401 bins: |z|^2 needs at least 802 samples; the fast size is 900 (2^2 x 3^2 x 5^2:
+    // 810 = 2 x 3^4 x 5 and 864 = 2^5 x 3^3 have too many factors of 3).
     EnvelopeAnalyzer full(EnvelopeConfig{800.0, 1200.0}, kFs, kN);
     EnvelopeAnalyzer dec(EnvelopeConfig{800.0, 1200.0, true}, kFs, kN);
-    CHECK(dec.envelope_samples() == 810);
-    CHECK(cavitas::dsp::fast_fft_size(802) == 810);
+    CHECK(dec.envelope_samples() == 900);
+    CHECK(cavitas::dsp::fast_fft_size(802) == 900);
+    // At 96 kHz the HF band (5-38.4 kHz) holds 33401 bins: 66802 -> 72000 = 2^6 x 3^2 x 5^3, not 67500 = 2^2 x 3^3 x 5^4.
+    CHECK(cavitas::dsp::fast_fft_size(66802) == 72000);
+    CHECK(cavitas::dsp::fast_fft_size(4000) == 4000);  // 2^5 x 5^3
+    CHECK(cavitas::dsp::fast_fft_size(4097) == 4608);  // 2^9 x 3^2; 4320 = 2^5 x 3^3 x 5 has 3^3
     CHECK(full.envelope_samples() == kN);
-    CHECK_THAT(dec.envelope_rate_hz(), WithinRel(kFs * 810.0 / 8192.0, 1e-12));
+    CHECK_THAT(dec.envelope_rate_hz(), WithinRel(kFs * 900.0 / 8192.0, 1e-12));
     CHECK(dec.band_signal().empty());
     const auto x = am_signal(0.4, 1000.0, 37.0);
     full.process(x);
@@ -212,7 +217,7 @@ TEST_CASE("Decimated demodulation gives the same envelope and spectrum at a frac
     // The squared envelope at the decimated instants is the full-rate one there (t = i n / m
     // falls between full-rate samples; the envelope (1 + 0.4 cos)^2 is compared with its formula).
     for (std::size_t i = 0; i < dec.envelope_samples(); i += 37) {
-        const double t = static_cast<double>(i) * 8192.0 / 810.0 / kFs;
+        const double t = static_cast<double>(i) * 8192.0 / 900.0 / kFs;
         const double e = 1.0 + 0.4 * std::cos(kTwoPi * 37.0 * t);
         CHECK_THAT(dec.squared_envelope()[i], WithinAbs(e * e, 1e-4));
     }
@@ -245,6 +250,8 @@ TEST_CASE("Band kurtosis and crest from the envelope match the real band signal'
     CHECK_THAT(full.band_kurtosis(), WithinAbs(3.0, 0.25));
     CHECK_THAT(dec.band_kurtosis(), WithinAbs(3.0, 0.25));
     CHECK_THAT(dec.band_kurtosis(), WithinAbs(full.band_kurtosis(), 0.25));
-    // The envelope's peak is at least the real signal's (|Re z| <= |z|).
-    CHECK(dec.band_crest() >= full.band_crest() - 1e-9);
+    // On a common grid the envelope's peak would bound the real signal's (|Re z| <= |z|);
+    // the decimated grid (900 of 8192 points) can step over the top of the highest
+    // burst, so the two crest factors agree only closely (0.05 % here; bound 2 %).
+    CHECK_THAT(dec.band_crest(), WithinRel(full.band_crest(), 0.02));
 }

@@ -313,3 +313,16 @@ TEST_CASE("FFT wisdom exports the plans made, reads back, and damaged text is re
     again.forward();
     for (std::size_t k = 0; k < d.spectrum().size(); ++k) CHECK(again.spectrum()[k] == d.spectrum()[k]);
 }
+
+TEST_CASE("Plans are counted as made only when FFTW had no wisdom for them", "[signal]") {
+    // Sizes no other test plans. A new size is planned (counted); the same size
+    // again reuses the process's plan (not counted).
+    const std::size_t before = cavitas::dsp::fft_plans_made();
+    cavitas::dsp::RealFftF a(6930, cavitas::dsp::FftDirections::forward_only);
+    CHECK(cavitas::dsp::fft_plans_made() == before + 1);
+    cavitas::dsp::RealFftF b(6930, cavitas::dsp::FftDirections::forward_only);
+    CHECK(cavitas::dsp::fft_plans_made() == before + 1);
+    // The double-precision twin is another transform: counted.
+    cavitas::dsp::RealFft c(6930, cavitas::dsp::FftDirections::forward_only);
+    CHECK(cavitas::dsp::fft_plans_made() == before + 2);
+}
