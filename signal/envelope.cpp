@@ -76,11 +76,11 @@ EnvelopeAnalyzer::EnvelopeAnalyzer(const EnvelopeConfig& config, double fs_hz, s
                                     std::to_string(n_) + " samples");
     if (config.single_precision) {
         real_f_.emplace(n_, FftDirections::forward_only);
-        analytic_f_.emplace(m_, FftDirections::inverse_only);
+        analytic_f_.emplace(m_, FftDirections::inverse_only, FftPlacement::apart);
         ses_fft_f_.emplace(m_, FftDirections::forward_only);
     } else {
         real_.emplace(n_, FftDirections::forward_only);
-        analytic_.emplace(m_, FftDirections::inverse_only);
+        analytic_.emplace(m_, FftDirections::inverse_only, FftPlacement::apart);
         ses_fft_.emplace(m_, FftDirections::forward_only);
     }
     window_ = hann_periodic(m_);
@@ -123,13 +123,14 @@ void EnvelopeAnalyzer::demodulate(BasicRealFft<T>& real, BasicComplexFft<T>& ana
         z[k - shift] = X[k] * T(2);
     std::fill(z.begin() + past, z.end(), std::complex<T>{});
     analytic.inverse();
+    const auto zo = analytic.output();
     const double inv_n = 1.0 / static_cast<double>(n_);
     for (std::size_t i = 0; i < m_; ++i) {
-        const double re = static_cast<double>(z[i].real()) * inv_n, im = static_cast<double>(z[i].imag()) * inv_n;
+        const double re = static_cast<double>(zo[i].real()) * inv_n, im = static_cast<double>(zo[i].imag()) * inv_n;
         sq_env_[i] = re * re + im * im;
     }
     if (!config_.decimate)
-        for (std::size_t i = 0; i < m_; ++i) band_[i] = static_cast<double>(z[i].real()) * inv_n;
+        for (std::size_t i = 0; i < m_; ++i) band_[i] = static_cast<double>(zo[i].real()) * inv_n;
     const lanes::PowerSums ps = lanes::power_sums(sq_env_.data(), m_);
     const double sum = ps.sum, sum2 = ps.sum_sq, peak = ps.max;
     const double inv_m = 1.0 / static_cast<double>(m_);

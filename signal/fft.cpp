@@ -26,15 +26,15 @@ struct Fftw<double> {
     static void free(void* p) { fftw_free(p); }
     static plan r2c(int n, double* in, cpx* out, unsigned f) { return fftw_plan_dft_r2c_1d(n, in, out, f); }
     static plan c2r(int n, cpx* in, double* out, unsigned f) { return fftw_plan_dft_c2r_1d(n, in, out, f); }
-    static plan dft(int n, cpx* d, int sign, unsigned f) { return fftw_plan_dft_1d(n, d, d, sign, f); }
+    static plan dft(int n, cpx* in, cpx* out, int sign, unsigned f) { return fftw_plan_dft_1d(n, in, out, sign, f); }
     static void run_r2c(void* p, double* in, std::complex<double>* out) {
         fftw_execute_dft_r2c(static_cast<plan>(p), in, reinterpret_cast<cpx*>(out));
     }
     static void run_c2r(void* p, std::complex<double>* in, double* out) {
         fftw_execute_dft_c2r(static_cast<plan>(p), reinterpret_cast<cpx*>(in), out);
     }
-    static void run_dft(void* p, std::complex<double>* d) {
-        fftw_execute_dft(static_cast<plan>(p), reinterpret_cast<cpx*>(d), reinterpret_cast<cpx*>(d));
+    static void run_dft(void* p, std::complex<double>* in, std::complex<double>* out) {
+        fftw_execute_dft(static_cast<plan>(p), reinterpret_cast<cpx*>(in), reinterpret_cast<cpx*>(out));
     }
     static void destroy(void* p) { fftw_destroy_plan(static_cast<plan>(p)); }
 };
@@ -47,15 +47,15 @@ struct Fftw<float> {
     static void free(void* p) { fftwf_free(p); }
     static plan r2c(int n, float* in, cpx* out, unsigned f) { return fftwf_plan_dft_r2c_1d(n, in, out, f); }
     static plan c2r(int n, cpx* in, float* out, unsigned f) { return fftwf_plan_dft_c2r_1d(n, in, out, f); }
-    static plan dft(int n, cpx* d, int sign, unsigned f) { return fftwf_plan_dft_1d(n, d, d, sign, f); }
+    static plan dft(int n, cpx* in, cpx* out, int sign, unsigned f) { return fftwf_plan_dft_1d(n, in, out, sign, f); }
     static void run_r2c(void* p, float* in, std::complex<float>* out) {
         fftwf_execute_dft_r2c(static_cast<plan>(p), in, reinterpret_cast<cpx*>(out));
     }
     static void run_c2r(void* p, std::complex<float>* in, float* out) {
         fftwf_execute_dft_c2r(static_cast<plan>(p), reinterpret_cast<cpx*>(in), out);
     }
-    static void run_dft(void* p, std::complex<float>* d) {
-        fftwf_execute_dft(static_cast<plan>(p), reinterpret_cast<cpx*>(d), reinterpret_cast<cpx*>(d));
+    static void run_dft(void* p, std::complex<float>* in, std::complex<float>* out) {
+        fftwf_execute_dft(static_cast<plan>(p), reinterpret_cast<cpx*>(in), reinterpret_cast<cpx*>(out));
     }
     static void destroy(void* p) { fftwf_destroy_plan(static_cast<plan>(p)); }
 };
@@ -67,7 +67,7 @@ struct Fftw<float> {
 // every buffer the same alignment, which those functions require. Keeping the
 // plans keeps their twiddle tables: the second recording of a route, or a
 // second analyzer in the same process, plans nothing.
-enum class Kind { r2c, c2r, forward, backward };
+enum class Kind { r2c, c2r, forward, backward, forward_apart, backward_apart };
 
 class PlanCache {
 public:
@@ -202,19 +202,31 @@ void BasicRealFft<T>::inverse() {
 }
 
 template <typename T>
-BasicComplexFft<T>::BasicComplexFft(std::size_t n, FftDirections directions) : n_(n) {
+BasicComplexFft<T>::BasicComplexFft(std::size_t n, FftDirections directions, FftPlacement placement) : n_(n) {
     check_size(n, "ComplexFft");
     data_ = aligned_alloc_n<T, std::complex<T>>(n);
+    if (placement == FftPlacement::apart) {
+        try {
+            out_ = aligned_alloc_n<T, std::complex<T>>(n);
+        } catch (...) {
+            release();
+            throw;
+        }
+    }
     const int ni = static_cast<int>(n);
     auto* d = reinterpret_cast<typename Fftw<T>::cpx*>(data_);
+    auto* o = out_ ? reinterpret_cast<typename Fftw<T>::cpx*>(out_) : d;
+    const bool apart = out_ != nullptr;
+    // Apart: the input may be overwritten (as for the real transforms).
+    const unsigned flags = FFTW_ESTIMATE | (apart ? FFTW_DESTROY_INPUT : 0u);
     auto& cache = PlanCache::instance();
     if (directions != FftDirections::inverse_only)
-        forward_plan_ = cache.get<T>(Kind::forward, n, [&](unsigned extra) {
-            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_FORWARD, FFTW_ESTIMATE | extra));
+        forward_plan_ = cache.get<T>(apart ? Kind::forward_apart : Kind::forward, n, [&](unsigned extra) {
+            return static_cast<void*>(Fftw<T>::dft(ni, d, o, FFTW_FORWARD, flags | extra));
         });
     if (directions != FftDirections::forward_only)
-        inverse_plan_ = cache.get<T>(Kind::backward, n, [&](unsigned extra) {
-            return static_cast<void*>(Fftw<T>::dft(ni, d, FFTW_BACKWARD, FFTW_ESTIMATE | extra));
+        inverse_plan_ = cache.get<T>(apart ? Kind::backward_apart : Kind::backward, n, [&](unsigned extra) {
+            return static_cast<void*>(Fftw<T>::dft(ni, d, o, FFTW_BACKWARD, flags | extra));
         });
     if ((directions != FftDirections::inverse_only && forward_plan_ == nullptr) ||
         (directions != FftDirections::forward_only && inverse_plan_ == nullptr)) {
@@ -230,7 +242,9 @@ template <typename T>
 void BasicComplexFft<T>::release() noexcept {
     forward_plan_ = inverse_plan_ = nullptr;  // the plans belong to the cache
     if (data_) Fftw<T>::free(data_);
+    if (out_) Fftw<T>::free(out_);
     data_ = nullptr;
+    out_ = nullptr;
     n_ = 0;
 }
 
@@ -238,6 +252,7 @@ template <typename T>
 BasicComplexFft<T>::BasicComplexFft(BasicComplexFft&& o) noexcept
     : n_(std::exchange(o.n_, 0)),
       data_(std::exchange(o.data_, nullptr)),
+      out_(std::exchange(o.out_, nullptr)),
       forward_plan_(std::exchange(o.forward_plan_, nullptr)),
       inverse_plan_(std::exchange(o.inverse_plan_, nullptr)) {}
 
@@ -247,6 +262,7 @@ BasicComplexFft<T>& BasicComplexFft<T>::operator=(BasicComplexFft&& o) noexcept 
         release();
         n_ = std::exchange(o.n_, 0);
         data_ = std::exchange(o.data_, nullptr);
+        out_ = std::exchange(o.out_, nullptr);
         forward_plan_ = std::exchange(o.forward_plan_, nullptr);
         inverse_plan_ = std::exchange(o.inverse_plan_, nullptr);
     }
@@ -256,12 +272,12 @@ BasicComplexFft<T>& BasicComplexFft<T>::operator=(BasicComplexFft&& o) noexcept 
 template <typename T>
 void BasicComplexFft<T>::forward() {
     if (!forward_plan_) throw std::logic_error("ComplexFft planned for the inverse only: forward() called");
-    Fftw<T>::run_dft(forward_plan_, data_);
+    Fftw<T>::run_dft(forward_plan_, data_, out_ ? out_ : data_);
 }
 template <typename T>
 void BasicComplexFft<T>::inverse() {
     if (!inverse_plan_) throw std::logic_error("ComplexFft planned for the forward only: inverse() called");
-    Fftw<T>::run_dft(inverse_plan_, data_);
+    Fftw<T>::run_dft(inverse_plan_, data_, out_ ? out_ : data_);
 }
 
 template class BasicRealFft<double>;

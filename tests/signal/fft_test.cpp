@@ -326,3 +326,28 @@ TEST_CASE("Plans are counted as made only when FFTW had no wisdom for them", "[s
     cavitas::dsp::RealFft c(6930, cavitas::dsp::FftDirections::forward_only);
     CHECK(cavitas::dsp::fft_plans_made() == before + 2);
 }
+
+TEST_CASE("A complex transform with its result apart gives the in-place numbers", "[signal]") {
+    // The same FFTW algorithm family on a second buffer: equal within single-precision
+    // rounding of the 72000-point size the envelope uses (tolerance: our statement).
+    const std::size_t n = 72000;
+    cavitas::dsp::ComplexFftF in_place(n, cavitas::dsp::FftDirections::inverse_only);
+    cavitas::dsp::ComplexFftF apart(n, cavitas::dsp::FftDirections::inverse_only, cavitas::dsp::FftPlacement::apart);
+    CHECK(apart.output().data() != apart.data().data());
+    CHECK(in_place.output().data() == in_place.data().data());
+    for (std::size_t k = 0; k < n; ++k) {
+        const std::complex<float> v(static_cast<float>(std::sin(0.001 * static_cast<double>(k * k % 7919))),
+                                    static_cast<float>(std::cos(0.37 * static_cast<double>(k))));
+        in_place.data()[k] = v;
+        apart.data()[k] = v;
+    }
+    in_place.inverse();
+    apart.inverse();
+    double worst = 0.0, scale = 0.0;
+    for (std::size_t k = 0; k < n; ++k) {
+        worst = std::max(worst, static_cast<double>(std::abs(in_place.output()[k] - apart.output()[k])));
+        scale = std::max(scale, static_cast<double>(std::abs(in_place.output()[k])));
+    }
+    CHECK(scale > 100.0);
+    CHECK(worst <= 1e-5 * scale);
+}
