@@ -1,5 +1,6 @@
 #include "signal/envelope.hpp"
 
+#include "signal/clones.hpp"
 #include "signal/lanes.hpp"
 #include "signal/spectrum.hpp"
 
@@ -8,6 +9,7 @@
 #include <cmath>
 #include <stdexcept>
 #include <string>
+#include <type_traits>
 
 #include "signal/stats.hpp"
 #include "signal/window.hpp"
@@ -36,6 +38,27 @@ std::size_t envelope_size(const EnvelopeConfig& c, double fs_hz, std::size_t n) 
     const auto hi = static_cast<std::size_t>(std::max(0.0, std::floor(c.band_high_hz / bin)));
     const std::size_t bins = hi >= lo ? hi - lo + 1 : 1;
     return std::min(n, fast_fft_size(std::max<std::size_t>(16, 2 * bins)));
+}
+
+// The single-precision path's loops over the envelope, built for AVX2 too
+// (signal/clones.hpp); each is the generic loop below, element by element.
+CAVITAS_CLONED void squared_magnitudes(const std::complex<float>* z, double scale, double* out, std::size_t m) {
+    const float* zs = reinterpret_cast<const float*>(z);  // re, im interleaved (std::complex layout)
+    for (std::size_t i = 0; i < m; ++i) {
+        const double re = static_cast<double>(zs[2 * i]) * scale, im = static_cast<double>(zs[2 * i + 1]) * scale;
+        out[i] = re * re + im * im;
+    }
+}
+CAVITAS_CLONED lanes::PowerSums power_sums_of(const double* x, std::size_t n) { return lanes::power_sums(x, n); }
+CAVITAS_CLONED void windowed_deviation(const double* x, double mean, const double* w, float* out, std::size_t m) {
+    for (std::size_t i = 0; i < m; ++i) out[i] = static_cast<float>((x[i] - mean) * w[i]);
+}
+CAVITAS_CLONED void scaled_magnitudes(const std::complex<float>* S, double scale, double* out, std::size_t count) {
+    const float* ss = reinterpret_cast<const float*>(S);
+    for (std::size_t k = 0; k < count; ++k) {
+        const double re = ss[2 * k], im = ss[2 * k + 1];
+        out[k] = std::sqrt(re * re + im * im) * scale;
+    }
 }
 
 }  // namespace
@@ -125,13 +148,17 @@ void EnvelopeAnalyzer::demodulate(BasicRealFft<T>& real, BasicComplexFft<T>& ana
     analytic.inverse();
     const auto zo = analytic.output();
     const double inv_n = 1.0 / static_cast<double>(n_);
-    for (std::size_t i = 0; i < m_; ++i) {
-        const double re = static_cast<double>(zo[i].real()) * inv_n, im = static_cast<double>(zo[i].imag()) * inv_n;
-        sq_env_[i] = re * re + im * im;
+    if constexpr (std::is_same_v<T, float>) {
+        squared_magnitudes(zo.data(), inv_n, sq_env_.data(), m_);
+    } else {
+        for (std::size_t i = 0; i < m_; ++i) {
+            const double re = static_cast<double>(zo[i].real()) * inv_n, im = static_cast<double>(zo[i].imag()) * inv_n;
+            sq_env_[i] = re * re + im * im;
+        }
     }
     if (!config_.decimate)
         for (std::size_t i = 0; i < m_; ++i) band_[i] = static_cast<double>(zo[i].real()) * inv_n;
-    const lanes::PowerSums ps = lanes::power_sums(sq_env_.data(), m_);
+    const lanes::PowerSums ps = power_sums_of(sq_env_.data(), m_);
     const double sum = ps.sum, sum2 = ps.sum_sq, peak = ps.max;
     const double inv_m = 1.0 / static_cast<double>(m_);
     mean_sq_env_ = sum * inv_m;
@@ -145,12 +172,19 @@ void EnvelopeAnalyzer::demodulate(BasicRealFft<T>& real, BasicComplexFft<T>& ana
         band_crest_ = mo.crest;
     }
     auto s = ses_fft.time();
-    for (std::size_t i = 0; i < m_; ++i) s[i] = static_cast<T>((sq_env_[i] - mean_sq_env_) * window_[i]);
+    if constexpr (std::is_same_v<T, float>)
+        windowed_deviation(sq_env_.data(), mean_sq_env_, window_.data(), s.data(), m_);
+    else
+        for (std::size_t i = 0; i < m_; ++i) s[i] = static_cast<T>((sq_env_[i] - mean_sq_env_) * window_[i]);
     ses_fft.forward();
     const auto S = ses_fft.spectrum();
-    for (std::size_t k = 0; k < ses_.size(); ++k) {
-        const double re = S[k].real(), im = S[k].imag();
-        ses_[k] = std::sqrt(re * re + im * im) * ses_scale_;
+    if constexpr (std::is_same_v<T, float>) {
+        scaled_magnitudes(S.data(), ses_scale_, ses_.data(), ses_.size());
+    } else {
+        for (std::size_t k = 0; k < ses_.size(); ++k) {
+            const double re = S[k].real(), im = S[k].imag();
+            ses_[k] = std::sqrt(re * re + im * im) * ses_scale_;
+        }
     }
     ses_[0] = 0.0;
 }

@@ -346,7 +346,7 @@ CAVITAS_CLONED void ternary_pass(const std::array<Sample, 5>& t0, const std::arr
 // band is empty (mean power <= floor), negative values clipped to 0. The
 // samples are single precision; the sums are in double, in fixed lanes
 // (signal/lanes.hpp), so the order of addition is fixed by hand.
-double complex_kurtosis(const Sample* re, const Sample* im, std::size_t first, std::size_t n, double floor) {
+CAVITAS_CLONED double complex_kurtosis(const Sample* re, const Sample* im, std::size_t first, std::size_t n, double floor) {
     using lanes::d2;
     const std::size_t count = n - first;
     re += first;

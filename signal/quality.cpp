@@ -1,5 +1,6 @@
 #include "signal/quality.hpp"
 
+#include "signal/clones.hpp"
 #include "signal/lanes.hpp"
 
 #include <algorithm>
@@ -29,6 +30,44 @@ std::uint32_t bits_of(float v) {
     std::uint32_t u;
     std::memcpy(&u, &v, sizeof u);
     return u;
+}
+
+constexpr std::uint32_t kExp = 0x7f800000u, kMag = 0x7fffffffu;
+
+struct BitCounts {
+    std::uint32_t non_finite = 0, zeros = 0, at_fs = 0, max_bits = 0;
+};
+
+// Non-finite samples, zeros, samples at full scale and the largest |x|, on the
+// bits of |x|, in one pass. Counts in 32-bit lanes (a block is far below 2^32
+// samples), so the loop vectorises without widening; integer counts come out
+// the same however the lanes are grouped.
+CAVITAS_CLONED BitCounts count_bits(const float* x, std::size_t n, std::uint32_t clip_bits) {
+    BitCounts c;
+    std::uint32_t non_finite = 0, zeros = 0, at_fs = 0, max_bits = 0;
+    for (std::size_t i = 0; i < n; ++i) {
+        const std::uint32_t a = bits_of(x[i]) & kMag;
+        non_finite += a >= kExp;
+        zeros += a == 0;
+        at_fs += a >= clip_bits;
+        max_bits = std::max(max_bits, a);
+    }
+    c.non_finite = non_finite;
+    c.zeros = zeros;
+    c.at_fs = at_fs;
+    c.max_bits = max_bits;
+    return c;
+}
+
+// Sums and sums of squares of x[0 .. n) (n a multiple of 8) into the lanes,
+// sample i into lane i mod 8 (signal/lanes.hpp).
+CAVITAS_CLONED void add_lane_sums(const float* x, std::size_t n, lanes::Lanes8& s, lanes::Lanes8& q) {
+    for (std::size_t i = 0; i + lanes::kLanes <= n; i += lanes::kLanes)
+        for (std::size_t j = 0; j < 4; ++j) {
+            const lanes::d2 d = lanes::load(x + i + 2 * j);
+            s.v[j] += d;
+            q.v[j] += d * d;
+        }
 }
 
 }  // namespace
@@ -75,29 +114,20 @@ void QualityMeter::process(std::span<float> x) {
     }
     QualityCounts& c = counts_;
     const std::size_t n = x.size();
-    // 1. Non-finite samples become 0 (rare: a scalar fix-up after a cheap test).
-    constexpr std::uint32_t kExp = 0x7f800000u, kMag = 0x7fffffffu;
-    // Counts in 32-bit lanes (a block is far below 2^32 samples), so the loops
-    // vectorise four samples wide without widening to 64 bits.
-    std::uint32_t non_finite = 0;
-    for (std::size_t i = 0; i < n; ++i) non_finite += (bits_of(x[i]) & kExp) == kExp;
-    if (non_finite > 0) {
-        c.non_finite += non_finite;
+    // 1-2. Non-finite samples, zeros, samples at full scale and the largest
+    // |x| in one pass; non-finite samples become 0 (rare: a scalar fix-up and
+    // a second count, since they took part in the first).
+    BitCounts bc = count_bits(x.data(), n, clip_bits_);
+    if (bc.non_finite > 0) {
+        c.non_finite += bc.non_finite;
         for (float& v : x)
             if (!std::isfinite(v)) v = 0.0f;
+        bc = count_bits(x.data(), n, clip_bits_);
     }
-    // 2. Zeros, samples at full scale and the largest |x|, on the bits of |x|.
-    std::uint32_t zeros = 0, at_fs = 0, max_bits = 0;
-    for (std::size_t i = 0; i < n; ++i) {
-        const std::uint32_t a = bits_of(x[i]) & kMag;
-        zeros += a == 0;
-        at_fs += a >= clip_bits_;
-        max_bits = std::max(max_bits, a);
-    }
-    c.zero_samples += zeros;
-    c.at_full_scale += at_fs;
+    c.zero_samples += bc.zeros;
+    c.at_full_scale += bc.at_fs;
     float max_abs;
-    std::memcpy(&max_abs, &max_bits, sizeof max_abs);
+    std::memcpy(&max_abs, &bc.max_bits, sizeof max_abs);
     c.max_abs = std::max(c.max_abs, static_cast<double>(max_abs));
     // 3. Sums for the mean and rms, sample i of the record into lane i mod 8.
     std::size_t i = 0;
@@ -108,12 +138,9 @@ void QualityMeter::process(std::span<float> x) {
     }
     {
         auto s = lanes::Lanes8::from_array(lane_sum_), q = lanes::Lanes8::from_array(lane_sum_sq_);
-        for (; i + kLanes <= n; i += kLanes)
-            for (std::size_t j = 0; j < 4; ++j) {
-                const lanes::d2 d = lanes::load(x.data() + i + 2 * j);
-                s.v[j] += d;
-                q.v[j] += d * d;
-            }
+        const std::size_t body = (n - i) - (n - i) % kLanes;
+        add_lane_sums(x.data() + i, body, s, q);
+        i += body;
         lane_sum_ = s.to_array();
         lane_sum_sq_ = q.to_array();
     }

@@ -1,5 +1,6 @@
 #include "signal/spectrum.hpp"
 
+#include "signal/clones.hpp"
 #include "signal/lanes.hpp"
 
 #include <algorithm>
@@ -87,7 +88,7 @@ void WelchPsd::reset() {
 namespace {
 
 template <typename T>
-void hann_psd_from_spectrum_impl(std::span<const std::complex<T>> X, std::size_t n, double fs_hz,
+CAVITAS_ALWAYS_INLINE void hann_psd_from_spectrum_impl(std::span<const std::complex<T>> X, std::size_t n, double fs_hz,
                                  std::span<double> out) {
     const std::size_t nb = n / 2 + 1;
     if (X.size() < nb || out.size() < nb || n < 4)
@@ -133,8 +134,8 @@ void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t
                             std::span<double> out) {
     hann_psd_from_spectrum_impl(X, n, fs_hz, out);
 }
-void hann_psd_from_spectrum(std::span<const std::complex<float>> X, std::size_t n, double fs_hz,
-                            std::span<double> out) {
+CAVITAS_CLONED void hann_psd_from_spectrum(std::span<const std::complex<float>> X, std::size_t n, double fs_hz,
+                                           std::span<double> out) {
     hann_psd_from_spectrum_impl(X, n, fs_hz, out);
 }
 

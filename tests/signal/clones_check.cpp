@@ -6,10 +6,15 @@
 #include <cstdint>
 #include <cstdio>
 #include <cstring>
+#include <limits>
 #include <vector>
 
 #include "signal/decimate.hpp"
+#include "signal/envelope.hpp"
 #include "signal/kurtogram.hpp"
+#include "signal/quality.hpp"
+#include "signal/spectral_kurtosis.hpp"
+#include "signal/stats.hpp"
 
 namespace {
 
@@ -61,6 +66,47 @@ int main() {
         at += len;
         step = step * 7 % 5003 + 17;
     }
+    // Envelope, single precision and decimated (squared envelope, band
+    // statistics, envelope spectrum and the segment PSD from its transform).
+    const std::size_t seg = 1u << 16;
+    cavitas::dsp::EnvelopeAnalyzer env(cavitas::dsp::EnvelopeConfig{5000.0, 38400.0, true, true}, 96000.0, seg);
+    env.process(std::span<const float>(x.data(), seg));
+    for (double v : env.squared_envelope()) d.add(v);
+    for (double v : env.envelope_spectrum()) d.add(v);
+    d.add(env.band_kurtosis());
+    d.add(env.band_crest());
+    d.add(env.mean_squared_envelope());
+    std::vector<double> psd(seg / 2 + 1);
+    env.segment_psd(psd);
+    for (double v : psd) d.add(v);
+    // Spectral kurtosis, single precision.
+    cavitas::dsp::SpectralKurtosis sk(cavitas::dsp::SpectralKurtosisConfig{1024, 512, true}, 96000.0);
+    std::vector<double> sk_out(sk.bins());
+    sk.compute(std::span<const float>(x.data(), seg), sk_out);
+    for (double v : sk_out) d.add(v);
+    // Moments of float samples.
+    const auto mo = cavitas::dsp::moments(std::span<const float>(x.data(), n));
+    d.add(mo.mean);
+    d.add(mo.rms);
+    d.add(mo.kurtosis);
+    d.add(mo.peak);
+    // Quality meter, with a non-finite sample, a flat run and a clipped stretch.
+    std::vector<float> q(x);
+    q[100] = std::numeric_limits<float>::quiet_NaN();
+    for (std::size_t i = 5000; i < 5100; ++i) q[i] = 0.25f;
+    for (std::size_t i = 9000; i < 9010; ++i) q[i] = 2.0f;
+    cavitas::dsp::QualityMeter qm(cavitas::dsp::QualityConfig{2.0, 0.999, 3, 64});
+    qm.process(std::span<float>(q.data(), 7777));
+    qm.process(std::span<float>(q.data() + 7777, n - 7777));
+    const auto qc = qm.counts();
+    d.add(qc.non_finite);
+    d.add(qc.at_full_scale);
+    d.add(qc.longest_flat_run);
+    d.add(qc.dropout_samples);
+    d.add(qc.zero_samples);
+    d.add(qc.max_abs);
+    d.add(qc.sum);
+    d.add(qc.sum_sq);
 #if defined(__x86_64__) && (defined(__GNUC__) || defined(__clang__))
     const int avx2 = __builtin_cpu_supports("avx2") ? 1 : 0;
 #else
