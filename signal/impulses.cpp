@@ -24,13 +24,44 @@ std::size_t ImpulseCounter::count(std::span<const double> sq) {
     if (sq.empty()) return 0;
     const std::size_t n = sq.size();
     // Median of |z|^2 is the square of the median of |z| (monotone map).
-    const double median_mag = std::sqrt(std::max(0.0, median_.select(sq, n / 2)));
+    // Segments of one record have similar medians: the last one is the hint
+    // (the median found is exact either way; see OrderSelector::select_near).
+    const double median_sq = median_.select_near(sq, n / 2, last_median_sq_);
+    last_median_sq_ = median_sq;
+    const double median_mag = std::sqrt(std::max(0.0, median_sq));
     threshold_ = factor_ * median_mag;
     if (!(threshold_ > 0.0)) return 0;
     const double thr2 = threshold_ * threshold_;
     std::size_t events = 0, below = rearm_samples_;
     bool armed = true;
-    for (std::size_t i = 0; i < n; ++i) {
+    // Most stretches of 16 samples stay under the threshold: then no event
+    // starts, and a disarmed counter counts them towards re-arming (the value
+    // of `below` while armed is never used: an event resets it).
+    constexpr std::size_t kChunk = 16;
+    std::size_t i = 0;
+    for (; i + kChunk <= n; i += kChunk) {
+        bool any = false;
+        for (std::size_t j = 0; j < kChunk; ++j) any |= sq[i + j] > thr2;
+        if (!any) {
+            if (!armed) {
+                below += kChunk;
+                if (below >= rearm_samples_) armed = true;
+            }
+            continue;
+        }
+        for (std::size_t j = i; j < i + kChunk; ++j) {
+            if (sq[j] > thr2) {
+                if (armed) {
+                    ++events;
+                    armed = false;
+                }
+                below = 0;
+            } else if (!armed) {
+                if (++below >= rearm_samples_) armed = true;
+            }
+        }
+    }
+    for (; i < n; ++i) {
         if (sq[i] > thr2) {
             if (armed) {
                 ++events;

@@ -40,6 +40,7 @@ private:
     double factor_;
     std::size_t rearm_samples_;
     OrderSelector median_;
+    double last_median_sq_ = 0.0;  // the previous segment's median |z|^2: a hint for the next
     double threshold_ = 0.0;
 };
 

@@ -83,6 +83,42 @@ double OrderSelector::select(std::span<const double> x, std::size_t k) {
     return nth(m, k - below);
 }
 
+namespace {
+
+struct WindowCounts {
+    std::size_t below = 0, above = 0;
+};
+
+// How many of x lie below lo and at or above hi (NaN in neither).
+CAVITAS_CLONED WindowCounts count_outside(const double* x, std::size_t n, double lo, double hi) {
+    std::uint64_t below = 0, above = 0;
+    for (std::size_t i = 0; i < n; ++i) {
+        below += x[i] < lo;
+        above += x[i] >= hi;
+    }
+    return {static_cast<std::size_t>(below), static_cast<std::size_t>(above)};
+}
+
+}  // namespace
+
+double OrderSelector::select_near(std::span<const double> x, std::size_t k, double near) {
+    if (x.size() > scratch_.size() || k >= x.size() || !(near > 0.0) || !std::isfinite(near)) return select(x, k);
+    const double lo = 0.9 * near, hi = 1.1 * near;
+    const WindowCounts c = count_outside(x.data(), x.size(), lo, hi);
+    const std::size_t inside = x.size() - c.below - c.above;
+    if (k < c.below || k >= c.below + inside) return select(x, k);
+    std::size_t m = 0;
+    for (const double v : x) {
+        scratch_[m] = v;
+        m += (v >= lo) & (v < hi);
+    }
+    // A NaN is in no count and no window: the window then holds fewer values.
+    if (m != inside) return select(x, k);
+    auto first = scratch_.begin(), mid = first + static_cast<std::ptrdiff_t>(k - c.below);
+    std::nth_element(first, mid, first + static_cast<std::ptrdiff_t>(m));
+    return *mid;
+}
+
 double normal_sf(double z) { return 0.5 * std::erfc(z / std::numbers::sqrt2); }
 
 namespace {

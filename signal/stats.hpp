@@ -60,6 +60,13 @@ class OrderSelector {
 public:
     explicit OrderSelector(std::size_t capacity);
     double select(std::span<const double> x, std::size_t k);
+    /// The same value, found faster when `near` is close to it (within 10 %;
+    /// e.g. the previous segment's answer): one counting pass finds how many
+    /// values lie below, inside and above [0.9 near, 1.1 near), and when rank k
+    /// falls inside, nth_element runs on that window's values alone. Otherwise
+    /// (or for near <= 0, or any NaN) it is select(x, k). The answer never
+    /// depends on `near`, only the time does.
+    double select_near(std::span<const double> x, std::size_t k, double near);
 
 private:
     static constexpr int kBucketShift = 49;  // 64 - sign bit - 11 exponent bits - 3 mantissa bits

@@ -136,3 +136,39 @@ TEST_CASE("An all-zero input counts no impulse", "[signal]") {
     env.process(silence);
     CHECK(counter.count(env.squared_envelope()) == 0);
 }
+
+TEST_CASE("The impulse count equals a sample-by-sample count with the same threshold and re-arming", "[signal]") {
+    // Squared envelopes of exponential noise with bursts of many lengths and
+    // gaps (so chunks of 16 are quiet, loud and mixed); the reference is the
+    // rule of impulses.hpp applied one sample at a time.
+    std::mt19937_64 rng(7);
+    std::exponential_distribution<double> e(1.0);
+    ImpulseCounter counter(ImpulseConfig{1e-6, 0.5e-3}, 48000.0, 48000);  // re-arm after 24 samples
+    for (int trial = 0; trial < 30; ++trial) {
+        std::vector<double> sq(48000 - static_cast<std::size_t>(trial) * 37);
+        for (auto& v : sq) v = e(rng);
+        for (int b = 0; b < 20 + trial * 5; ++b) {
+            const std::size_t at = rng() % sq.size(), len = 1 + rng() % 60;
+            for (std::size_t i = at; i < std::min(sq.size(), at + len); ++i) sq[i] = 40.0 + 40.0 * e(rng);
+        }
+        const std::size_t got = counter.count(sq);
+        const double thr2 = counter.last_threshold() * counter.last_threshold();
+        std::size_t events = 0, below = 24;
+        bool armed = true;
+        for (const double v : sq) {
+            if (v > thr2) {
+                if (armed) ++events;
+                armed = false;
+                below = 0;
+            } else if (!armed && ++below >= 24) {
+                armed = true;
+            }
+        }
+        REQUIRE(events > 0);
+        REQUIRE(got == events);
+        // The threshold is the factor times the exact median magnitude.
+        std::vector<double> copy(sq);
+        std::nth_element(copy.begin(), copy.begin() + static_cast<std::ptrdiff_t>(copy.size() / 2), copy.end());
+        REQUIRE(counter.last_threshold() == counter.factor() * std::sqrt(copy[copy.size() / 2]));
+    }
+}

@@ -220,8 +220,23 @@ TEST_CASE("OrderSelector returns exactly the k-th smallest value", "[signal]") {
             }
         }
         if (trial == 7) v[n / 2] = std::numeric_limits<double>::infinity();   // non-finite: fallback
-        for (const std::size_t k : {std::size_t{0}, n / 2, n - 1, static_cast<std::size_t>(rng() % n)})
-            REQUIRE(sel.select(v, k) == reference(v, k));
+        for (const std::size_t k : {std::size_t{0}, n / 2, n - 1, static_cast<std::size_t>(rng() % n)}) {
+            const double want = reference(v, k);
+            REQUIRE(sel.select(v, k) == want);
+            // With a hint: good (the answer itself), near, far off, useless: the same answer.
+            for (const double near : {want, want * 1.05, want * 0.5, want * 3.0, 0.0, -1.0,
+                                      std::numeric_limits<double>::quiet_NaN()})
+                REQUIRE(sel.select_near(v, k, near) == want);
+        }
+    }
+    {
+        // A NaN among the values: no window count can hold it, so the hinted
+        // search hands over to select(), which hands over to nth_element.
+        std::vector<double> v{4.0, 1.0, std::numeric_limits<double>::quiet_NaN(), 2.0, 3.0, 2.1, 1.9};
+        for (std::size_t k = 0; k < v.size(); ++k) {
+            const double a = sel.select_near(v, k, 2.0), b = sel.select(v, k);
+            REQUIRE((a == b || (std::isnan(a) && std::isnan(b))));
+        }
     }
     std::vector<double> big(5001, 1.0);
     REQUIRE_THROWS_AS(sel.select(big, 0), std::invalid_argument);
