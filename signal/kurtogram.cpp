@@ -347,37 +347,42 @@ CAVITAS_CLONED void ternary_pass(const std::array<Sample, 5>& t0, const std::arr
 // samples are single precision; the sums are in double, in fixed lanes
 // (signal/lanes.hpp), so the order of addition is fixed by hand.
 CAVITAS_CLONED double complex_kurtosis(const Sample* re, const Sample* im, std::size_t first, std::size_t n, double floor) {
-    using lanes::d2;
+    // Sums in four lanes (sample k in lane k mod 4), added pairwise at the end.
+    using lanes::d4;
     const std::size_t count = n - first;
     re += first;
     im += first;
-    d2 r0{0, 0}, r1{0, 0}, i0{0, 0}, i1{0, 0};
+    d4 r{0, 0, 0, 0}, i{0, 0, 0, 0};
     std::size_t k = 0;
     for (; k + 4 <= count; k += 4) {
-        r0 += lanes::load(re + k);
-        r1 += lanes::load(re + k + 2);
-        i0 += lanes::load(im + k);
-        i1 += lanes::load(im + k + 2);
+        d4 a, b;
+        lanes::load(re + k, a);
+        lanes::load(im + k, b);
+        r += a;
+        i += b;
     }
-    double sum_r = (r0[0] + r0[1]) + (r1[0] + r1[1]), sum_i = (i0[0] + i0[1]) + (i1[0] + i1[1]);
+    double sum_r = (r[0] + r[1]) + (r[2] + r[3]), sum_i = (i[0] + i[1]) + (i[2] + i[3]);
     for (std::size_t t = k; t < count; ++t) {
         sum_r += static_cast<double>(re[t]);
         sum_i += static_cast<double>(im[t]);
     }
     const double inv = 1.0 / static_cast<double>(count);
     const double mean_r = sum_r * inv, mean_i = sum_i * inv;
-    const d2 mr = lanes::splat(mean_r), mi = lanes::splat(mean_i);
-    d2 p2a{0, 0}, p2b{0, 0}, p4a{0, 0}, p4b{0, 0};
+    d4 mr, mi;
+    lanes::splat(mean_r, mr);
+    lanes::splat(mean_i, mi);
+    d4 p2{0, 0, 0, 0}, p4{0, 0, 0, 0};
     for (k = 0; k + 4 <= count; k += 4) {
-        const d2 a0 = lanes::load(re + k) - mr, b0 = lanes::load(im + k) - mi;
-        const d2 a1 = lanes::load(re + k + 2) - mr, b1 = lanes::load(im + k + 2) - mi;
-        const d2 q0 = a0 * a0 + b0 * b0, q1 = a1 * a1 + b1 * b1;
-        p2a += q0;
-        p2b += q1;
-        p4a += q0 * q0;
-        p4b += q1 * q1;
+        d4 a, b;
+        lanes::load(re + k, a);
+        lanes::load(im + k, b);
+        a -= mr;
+        b -= mi;
+        const d4 q = a * a + b * b;
+        p2 += q;
+        p4 += q * q;
     }
-    double s2 = (p2a[0] + p2a[1]) + (p2b[0] + p2b[1]), s4 = (p4a[0] + p4a[1]) + (p4b[0] + p4b[1]);
+    double s2 = (p2[0] + p2[1]) + (p2[2] + p2[3]), s4 = (p4[0] + p4[1]) + (p4[2] + p4[3]);
     for (std::size_t t = k; t < count; ++t) {
         const double a = static_cast<double>(re[t]) - mean_r, b = static_cast<double>(im[t]) - mean_i;
         const double q = a * a + b * b;

@@ -1,45 +1,47 @@
-// Two-lane double vectors for the streaming sums (GCC/Clang vector
-// extensions: SSE2 on any x86-64, NEON on ARM64). Sums over a record are kept
-// in 8 lanes, sample i in lane i mod 8, and the lanes are added in one fixed
-// order at the end: the result does not depend on how the record was cut into
-// blocks, and the loops vectorise without -ffast-math.
+// Double-precision vectors for the streaming sums (GCC/Clang vector
+// extensions: two SSE2 registers per four lanes on any x86-64, one AVX
+// register in the AVX2 versions of signal/clones.hpp, NEON on ARM64). Sums over
+// a record are kept in 8 lanes, sample i in lane i mod 8, and the lanes are
+// added in one fixed order at the end: the result does not depend on how the
+// record was cut into blocks, nor on the vector width the processor offers,
+// and the loops vectorise without -ffast-math.
 #pragma once
 
 #include <array>
 #include <cstddef>
 #include <cstring>
 
+#include "signal/clones.hpp"
+
 namespace cavitas::dsp::lanes {
 
-typedef float f2 __attribute__((vector_size(8)));
-typedef double d2 __attribute__((vector_size(16)));
+typedef float f4 __attribute__((vector_size(16)));
+typedef double d4 __attribute__((vector_size(32)));
 
 inline constexpr std::size_t kLanes = 8;
 
-/// Two samples from p (no alignment needed), widened to double.
-inline d2 load(const float* p) {
-    f2 v;
+/// Four samples from p (no alignment needed), widened to double.
+CAVITAS_ALWAYS_INLINE void load(const float* p, d4& out) {
+    f4 v;
     std::memcpy(&v, p, sizeof v);
-    return __builtin_convertvector(v, d2);
+    out = __builtin_convertvector(v, d4);
 }
-inline d2 load(const double* p) {
-    d2 v;
-    std::memcpy(&v, p, sizeof v);
-    return v;
-}
-inline d2 splat(double v) { return d2{v, v}; }
+CAVITAS_ALWAYS_INLINE void load(const double* p, d4& out) { std::memcpy(&out, p, sizeof out); }
+CAVITAS_ALWAYS_INLINE void splat(double v, d4& out) { out = d4{v, v, v, v}; }
 
-/// Eight lanes of doubles: lanes 2j and 2j+1 in v[j].
+/// Eight lanes of doubles: lanes 0-3 in lo, 4-7 in hi.
 struct Lanes8 {
-    d2 v[4] = {{0, 0}, {0, 0}, {0, 0}, {0, 0}};
+    d4 lo = {0, 0, 0, 0}, hi = {0, 0, 0, 0};
     std::array<double, kLanes> to_array() const {
         std::array<double, kLanes> a;
-        std::memcpy(a.data(), v, sizeof v);
+        std::memcpy(a.data(), &lo, sizeof lo);
+        std::memcpy(a.data() + 4, &hi, sizeof hi);
         return a;
     }
     static Lanes8 from_array(const std::array<double, kLanes>& a) {
         Lanes8 s;
-        std::memcpy(s.v, a.data(), sizeof s.v);
+        std::memcpy(&s.lo, a.data(), sizeof s.lo);
+        std::memcpy(&s.hi, a.data() + 4, sizeof s.hi);
         return s;
     }
 };
@@ -50,11 +52,16 @@ inline double total(const std::array<double, kLanes>& a) {
 }
 
 /// Sum of x[0 .. n) in lanes (x[i] in lane i mod 8), added in the fixed order.
-inline double sum(const double* x, std::size_t n) {
+CAVITAS_ALWAYS_INLINE double sum(const double* x, std::size_t n) {
     const std::size_t body = n - n % kLanes;
     Lanes8 s;
-    for (std::size_t i = 0; i < body; i += kLanes)
-        for (std::size_t j = 0; j < 4; ++j) s.v[j] += load(x + i + 2 * j);
+    for (std::size_t i = 0; i < body; i += kLanes) {
+        d4 a, b;
+        load(x + i, a);
+        load(x + i + 4, b);
+        s.lo += a;
+        s.hi += b;
+    }
     auto a = s.to_array();
     for (std::size_t i = body; i < n; ++i) a[i - body] += x[i];
     return total(a);
@@ -64,18 +71,24 @@ inline double sum(const double* x, std::size_t n) {
 struct PowerSums {
     double sum = 0.0, sum_sq = 0.0, max = 0.0;
 };
-inline PowerSums power_sums(const double* x, std::size_t n) {
+CAVITAS_ALWAYS_INLINE PowerSums power_sums(const double* x, std::size_t n) {
     const std::size_t body = n - n % kLanes;
     Lanes8 s, q, m;
-    if (n > 0)
-        for (auto& v : m.v) v = splat(x[0]);
-    for (std::size_t i = 0; i < body; i += kLanes)
-        for (std::size_t j = 0; j < 4; ++j) {
-            const d2 a = load(x + i + 2 * j);
-            s.v[j] += a;
-            q.v[j] += a * a;
-            m.v[j] = m.v[j] < a ? a : m.v[j];
-        }
+    if (n > 0) {
+        splat(x[0], m.lo);
+        splat(x[0], m.hi);
+    }
+    for (std::size_t i = 0; i < body; i += kLanes) {
+        d4 a, b;
+        load(x + i, a);
+        load(x + i + 4, b);
+        s.lo += a;
+        s.hi += b;
+        q.lo += a * a;
+        q.hi += b * b;
+        m.lo = m.lo < a ? a : m.lo;
+        m.hi = m.hi < b ? b : m.hi;
+    }
     auto sa = s.to_array(), qa = q.to_array();
     const auto ma = m.to_array();
     PowerSums r;

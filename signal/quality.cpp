@@ -62,12 +62,15 @@ CAVITAS_CLONED BitCounts count_bits(const float* x, std::size_t n, std::uint32_t
 // Sums and sums of squares of x[0 .. n) (n a multiple of 8) into the lanes,
 // sample i into lane i mod 8 (signal/lanes.hpp).
 CAVITAS_CLONED void add_lane_sums(const float* x, std::size_t n, lanes::Lanes8& s, lanes::Lanes8& q) {
-    for (std::size_t i = 0; i + lanes::kLanes <= n; i += lanes::kLanes)
-        for (std::size_t j = 0; j < 4; ++j) {
-            const lanes::d2 d = lanes::load(x + i + 2 * j);
-            s.v[j] += d;
-            q.v[j] += d * d;
-        }
+    for (std::size_t i = 0; i + lanes::kLanes <= n; i += lanes::kLanes) {
+        lanes::d4 a, b;
+        lanes::load(x + i, a);
+        lanes::load(x + i + 4, b);
+        s.lo += a;
+        s.hi += b;
+        q.lo += a * a;
+        q.hi += b * b;
+    }
 }
 
 }  // namespace

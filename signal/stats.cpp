@@ -123,7 +123,7 @@ double normal_sf(double z) { return 0.5 * std::erfc(z / std::numbers::sqrt2); }
 
 namespace {
 
-using lanes::d2;
+using lanes::d4;
 using lanes::kLanes;
 
 template <typename T>
@@ -134,15 +134,20 @@ CAVITAS_ALWAYS_INLINE Moments moments_impl(std::span<const T> x) {
     // 8 lanes (signal/lanes.hpp); the extremes in double lanes (exact for float).
     const double first = static_cast<double>(x[0]);
     lanes::Lanes8 s, lo_l, hi_l;
-    for (auto& v : lo_l.v) v = lanes::splat(first);
+    lanes::splat(first, lo_l.lo);
+    lanes::splat(first, lo_l.hi);
     hi_l = lo_l;
-    for (std::size_t i = 0; i < body; i += kLanes)
-        for (std::size_t j = 0; j < 4; ++j) {
-            const d2 a = lanes::load(x.data() + i + 2 * j);
-            s.v[j] += a;
-            lo_l.v[j] = a < lo_l.v[j] ? a : lo_l.v[j];
-            hi_l.v[j] = hi_l.v[j] < a ? a : hi_l.v[j];
-        }
+    for (std::size_t i = 0; i < body; i += kLanes) {
+        d4 a, b;
+        lanes::load(x.data() + i, a);
+        lanes::load(x.data() + i + 4, b);
+        s.lo += a;
+        s.hi += b;
+        lo_l.lo = a < lo_l.lo ? a : lo_l.lo;
+        lo_l.hi = b < lo_l.hi ? b : lo_l.hi;
+        hi_l.lo = hi_l.lo < a ? a : hi_l.lo;
+        hi_l.hi = hi_l.hi < b ? b : hi_l.hi;
+    }
     auto sums = s.to_array();
     const auto los = lo_l.to_array(), his = hi_l.to_array();
     double lo = *std::min_element(los.begin(), los.end()), hi = *std::max_element(his.begin(), his.end());
@@ -155,14 +160,20 @@ CAVITAS_ALWAYS_INLINE Moments moments_impl(std::span<const T> x) {
     const double n = static_cast<double>(count);
     const double mean = lanes::total(sums) / n;
     lanes::Lanes8 q2, q4;
-    const d2 mu = lanes::splat(mean);
-    for (std::size_t i = 0; i < body; i += kLanes)
-        for (std::size_t j = 0; j < 4; ++j) {
-            const d2 a = lanes::load(x.data() + i + 2 * j) - mu;
-            const d2 a2 = a * a;
-            q2.v[j] += a2;
-            q4.v[j] += a2 * a2;
-        }
+    d4 mu;
+    lanes::splat(mean, mu);
+    for (std::size_t i = 0; i < body; i += kLanes) {
+        d4 a, b;
+        lanes::load(x.data() + i, a);
+        lanes::load(x.data() + i + 4, b);
+        a -= mu;
+        b -= mu;
+        const d4 a2 = a * a, b2 = b * b;
+        q2.lo += a2;
+        q2.hi += b2;
+        q4.lo += a2 * a2;
+        q4.hi += b2 * b2;
+    }
     auto s2 = q2.to_array(), s4 = q4.to_array();
     for (std::size_t i = body; i < count; ++i) {
         const double d = static_cast<double>(x[i]) - mean;
