@@ -188,7 +188,7 @@ struct RecordingAnalyzer::Impl {
              s.fs_hz),
           sk_out(sk.bins()),
           kurtogram(dsp::KurtogramConfig{kurtogram_levels_for(n), s.hf.low_hz}, s.fs_hz, n),
-          ses_power_sum(envelope.envelope_spectrum().size(), 0.0),
+          ses_power_sum(envelope.envelope_bins(), 0.0),
           full_scale(fs_value) {
         for (auto& v : series.values) v.reserve(1024);
         make_profile_bands();
@@ -280,8 +280,7 @@ struct RecordingAnalyzer::Impl {
 
         series[SI::hf_kurtosis].push_back(envelope.band_kurtosis());
         series[SI::hf_crest].push_back(envelope.band_crest());
-        const auto ses = envelope.envelope_spectrum();
-        for (std::size_t k = 0; k < ses.size(); ++k) ses_power_sum[k] += ses[k] * ses[k];
+        envelope.add_envelope_power(ses_power_sum);
         mean_sq_env_sum += envelope.mean_squared_envelope();
         clock.lap(Stage::envelope);
         const std::size_t events = impulses.count(envelope.squared_envelope());

@@ -60,6 +60,13 @@ CAVITAS_CLONED void scaled_magnitudes(const std::complex<float>* S, double scale
         out[k] = std::sqrt(re * re + im * im) * scale;
     }
 }
+CAVITAS_CLONED void add_scaled_powers(const std::complex<float>* S, double scale2, double* acc, std::size_t count) {
+    const float* ss = reinterpret_cast<const float*>(S);
+    for (std::size_t k = 0; k < count; ++k) {
+        const double re = ss[2 * k], im = ss[2 * k + 1];
+        acc[k] += (re * re + im * im) * scale2;
+    }
+}
 
 }  // namespace
 
@@ -177,16 +184,41 @@ void EnvelopeAnalyzer::demodulate(BasicRealFft<T>& real, BasicComplexFft<T>& ana
     else
         for (std::size_t i = 0; i < m_; ++i) s[i] = static_cast<T>((sq_env_[i] - mean_sq_env_) * window_[i]);
     ses_fft.forward();
-    const auto S = ses_fft.spectrum();
-    if constexpr (std::is_same_v<T, float>) {
-        scaled_magnitudes(S.data(), ses_scale_, ses_.data(), ses_.size());
+    ses_current_ = false;  // amplitudes formed on demand (envelope_spectrum())
+}
+
+std::span<const double> EnvelopeAnalyzer::envelope_spectrum() const {
+    if (!ses_current_) {
+        if (config_.single_precision) {
+            scaled_magnitudes(ses_fft_f_->spectrum().data(), ses_scale_, ses_.data(), ses_.size());
+        } else {
+            const auto S = ses_fft_->spectrum();
+            for (std::size_t k = 0; k < ses_.size(); ++k) {
+                const double re = S[k].real(), im = S[k].imag();
+                ses_[k] = std::sqrt(re * re + im * im) * ses_scale_;
+            }
+        }
+        ses_[0] = 0.0;
+        ses_current_ = true;
+    }
+    return ses_;
+}
+
+void EnvelopeAnalyzer::add_envelope_power(std::span<double> acc) const {
+    assert(acc.size() == ses_.size());
+    const double s2 = ses_scale_ * ses_scale_;
+    // Bin 0 (the removed mean) is 0 by definition, as in envelope_spectrum().
+    if (ses_current_) {
+        for (std::size_t k = 1; k < ses_.size(); ++k) acc[k] += ses_[k] * ses_[k];
+    } else if (config_.single_precision) {
+        add_scaled_powers(ses_fft_f_->spectrum().data() + 1, s2, acc.data() + 1, ses_.size() - 1);
     } else {
-        for (std::size_t k = 0; k < ses_.size(); ++k) {
+        const auto S = ses_fft_->spectrum();
+        for (std::size_t k = 1; k < ses_.size(); ++k) {
             const double re = S[k].real(), im = S[k].imag();
-            ses_[k] = std::sqrt(re * re + im * im) * ses_scale_;
+            acc[k] += (re * re + im * im) * s2;
         }
     }
-    ses_[0] = 0.0;
 }
 
 LineMeasure measure_line(std::span<const double> spectrum, double bin_hz, double target_hz, double search_hz,

@@ -59,7 +59,13 @@ public:
     /// Squared envelope |z|^2: envelope_samples() values at envelope_rate_hz().
     std::span<const double> squared_envelope() const { return sq_env_; }
     /// SES amplitude, envelope_samples()/2 + 1 values, bin k at k * bin_hz(); DC set to 0.
-    std::span<const double> envelope_spectrum() const { return ses_; }
+    /// (Formed from the transform on the first call after process().)
+    std::span<const double> envelope_spectrum() const;
+    /// Number of SES bins: envelope_samples()/2 + 1.
+    std::size_t envelope_bins() const { return m_ / 2 + 1; }
+    /// acc[k] += SES(k)^2 for every bin (acc has envelope_bins() values): the
+    /// power average of many segments' SES without forming each amplitude.
+    void add_envelope_power(std::span<double> acc) const;
     /// The last segment's one-sided Hann PSD (segment_size/2 + 1 values, WelchPsd's
     /// conventions over exactly this segment), from the envelope's own DFT of it
     /// (hann_psd_from_spectrum): no transform of its own.
@@ -95,7 +101,9 @@ private:
     std::optional<RealFftF> ses_fft_f_;
     std::vector<double> window_;
     double ses_scale_;
-    std::vector<double> band_, sq_env_, ses_;
+    std::vector<double> band_, sq_env_;
+    mutable std::vector<double> ses_;
+    mutable bool ses_current_ = true;  // ses_ holds the last segment's SES
     double mean_sq_env_ = 0.0;
     double band_kurtosis_ = 0.0, band_crest_ = 0.0;
 };

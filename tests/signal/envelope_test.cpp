@@ -255,3 +255,25 @@ TEST_CASE("Band kurtosis and crest from the envelope match the real band signal'
     // burst, so the two crest factors agree only closely (0.05 % here; bound 2 %).
     CHECK_THAT(dec.band_crest(), WithinRel(full.band_crest(), 0.02));
 }
+
+TEST_CASE("The envelope power added per segment is the square of the envelope spectrum", "[signal]") {
+    // Both precisions, before and after the amplitudes were asked for.
+    for (const bool single : {false, true}) {
+        EnvelopeAnalyzer env(EnvelopeConfig{800.0, 1200.0, true, single}, kFs, kN);
+        std::vector<double> before(env.envelope_bins(), 0.0);
+        env.add_envelope_power(before);
+        for (double v : before) CHECK(v == 0.0);  // nothing processed yet
+        env.process(am_signal(0.4, 1000.0, 37.0));
+        std::vector<double> lazy(env.envelope_bins(), 1.0), formed(env.envelope_bins(), 1.0);
+        env.add_envelope_power(lazy);  // from the transform
+        const auto ses = env.envelope_spectrum();
+        REQUIRE(ses.size() == env.envelope_bins());
+        env.add_envelope_power(formed);  // from the amplitudes
+        CHECK(lazy[0] == 1.0);
+        for (std::size_t k = 1; k < ses.size(); ++k) {
+            CHECK_THAT(lazy[k], WithinRel(1.0 + ses[k] * ses[k], 1e-12));
+            CHECK_THAT(formed[k], WithinRel(1.0 + ses[k] * ses[k], 1e-12));
+        }
+        CHECK_THAT(lazy[37] - 1.0, WithinAbs(0.64, 2e-3));  // line 2m = 0.8 at fm, squared
+    }
+}
