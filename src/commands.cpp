@@ -111,16 +111,17 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
     if (r.info.duration_s() < use.segment_s)
         throw InputError(path + ": record of " + seconds_text(r.info.duration_s()) + " is shorter than one " +
                          seconds_text(use.segment_s) + " analysis segment");
-    const auto h0 = std::chrono::steady_clock::now();
-    r.sha256 = sha256_file(path);
-    if (const char* e = std::getenv("CAVITAS_STAGE_TIMES"); e && e[0] && e[0] != '0')
-        std::fprintf(stderr, "hash of %s: %.2f ms\n", path.c_str(),
-                     1e3 * std::chrono::duration<double>(std::chrono::steady_clock::now() - h0).count());
     try {
         r.analysis = analyze_source(source, use, machine, progress, fidelity);
     } catch (const std::invalid_argument& e) {
         throw InputError(path + ": cannot be analysed in these bands: " + e.what());
     }
+    // Hashed while decoding; the rest of the file (if any) now.
+    const auto h0 = std::chrono::steady_clock::now();
+    r.sha256 = source.sha256();
+    if (const char* e = std::getenv("CAVITAS_STAGE_TIMES"); e && e[0] && e[0] != '0')
+        std::fprintf(stderr, "rest of the hash of %s: %.2f ms\n", path.c_str(),
+                     1e3 * std::chrono::duration<double>(std::chrono::steady_clock::now() - h0).count());
     return r;
 }
 

@@ -1,7 +1,10 @@
 #include "src/recording.hpp"
 
+#include <fcntl.h>
 #include <openssl/evp.h>
 #include <sndfile.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include <algorithm>
 #include <cerrno>
@@ -80,6 +83,91 @@ sf_count_t mem_read(void* ptr, sf_count_t count, void* user) {
 sf_count_t mem_write(const void*, sf_count_t, void*) { return 0; }
 sf_count_t mem_tell(void* user) { return static_cast<SndfileSource::Memory*>(user)->pos; }
 
+std::string hex_of(const unsigned char* md, unsigned int len) {
+    static const char* hex = "0123456789abcdef";
+    std::string s;
+    for (unsigned int i = 0; i < len; ++i) {
+        s += hex[md[i] >> 4];
+        s += hex[md[i] & 15];
+    }
+    return s;
+}
+
+}  // namespace
+
+// The file behind a SndfileSource opened from a path, read through libsndfile's
+// virtual I/O so that every byte can be hashed in file order as it passes:
+// `hashed` is how far the hash has got; a read that starts beyond it first
+// hashes the gap, and bytes before it are not hashed again.
+struct SndfileSource::HashingFile {
+    int fd = -1;
+    sf_count_t size = 0, pos = 0, hashed = 0;
+    bool failed = false;  // a read error while hashing: reported by sha256()
+    std::string digest;   // hex, once final
+    std::unique_ptr<EVP_MD_CTX, decltype(&EVP_MD_CTX_free)> ctx{EVP_MD_CTX_new(), &EVP_MD_CTX_free};
+    ~HashingFile() {
+        if (fd >= 0) ::close(fd);
+    }
+    // pread until count bytes or the end; -1 on an error.
+    sf_count_t read_at(void* ptr, sf_count_t count, sf_count_t at) const {
+        sf_count_t done = 0;
+        while (done < count) {
+            const ssize_t got = ::pread(fd, static_cast<char*>(ptr) + done, static_cast<std::size_t>(count - done),
+                                        static_cast<off_t>(at + done));
+            if (got < 0) {
+                if (errno == EINTR) continue;
+                return -1;
+            }
+            if (got == 0) break;
+            done += got;
+        }
+        return done;
+    }
+    void hash_up_to(sf_count_t end) {
+        std::vector<unsigned char> buf(1 << 16);
+        while (!failed && hashed < end) {
+            const sf_count_t want = std::min<sf_count_t>(static_cast<sf_count_t>(buf.size()), end - hashed);
+            const sf_count_t got = read_at(buf.data(), want, hashed);
+            if (got <= 0) {
+                failed = true;
+                break;
+            }
+            EVP_DigestUpdate(ctx.get(), buf.data(), static_cast<std::size_t>(got));
+            hashed += got;
+        }
+    }
+};
+
+namespace {
+
+sf_count_t file_length(void* user) { return static_cast<SndfileSource::HashingFile*>(user)->size; }
+sf_count_t file_seek(sf_count_t offset, int whence, void* user) {
+    auto* h = static_cast<SndfileSource::HashingFile*>(user);
+    sf_count_t to = offset;
+    if (whence == SEEK_CUR) to = h->pos + offset;
+    if (whence == SEEK_END) to = h->size + offset;
+    if (to < 0) return -1;
+    h->pos = to;
+    return h->pos;
+}
+sf_count_t file_read(void* ptr, sf_count_t count, void* user) {
+    auto* h = static_cast<SndfileSource::HashingFile*>(user);
+    if (count <= 0) return 0;
+    if (h->pos > h->hashed) h->hash_up_to(std::min(h->pos, h->size));
+    const sf_count_t got = h->read_at(ptr, count, h->pos);
+    if (got < 0) return 0;  // libsndfile then reports a short read
+    const sf_count_t end = h->pos + got;
+    if (!h->failed && h->pos <= h->hashed && end > h->hashed) {
+        EVP_DigestUpdate(h->ctx.get(), static_cast<const unsigned char*>(ptr) + (h->hashed - h->pos),
+                         static_cast<std::size_t>(end - h->hashed));
+        h->hashed = end;
+    }
+    h->pos = end;
+    return got;
+}
+sf_count_t file_write(const void*, sf_count_t, void*) { return 0; }
+sf_count_t file_tell(void* user) { return static_cast<SndfileSource::HashingFile*>(user)->pos; }
+
 }  // namespace
 
 SndfileSource::SndfileSource(const std::string& path, int channel, const Calibration& calibration) {
@@ -91,13 +179,17 @@ SndfileSource::SndfileSource(const std::string& path, int channel, const Calibra
     if (std::filesystem::is_directory(st)) throw InputError(path + ": is a directory, not a recording");
     // A FIFO, socket or device would block or never end: only regular files are recordings.
     if (!std::filesystem::is_regular_file(st)) throw InputError(path + ": is not a regular file");
-    {
-        std::FILE* probe = std::fopen(path.c_str(), "rb");
-        if (!probe) throw InputError(path + ": cannot open: " + std::strerror(errno));
-        std::fclose(probe);
-    }
+    hashing_ = std::make_unique<HashingFile>();
+    hashing_->fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
+    if (hashing_->fd < 0) throw InputError(path + ": cannot open: " + std::strerror(errno));
+    struct stat fst {};
+    if (::fstat(hashing_->fd, &fst) != 0) throw InputError(path + ": cannot open: " + std::strerror(errno));
+    hashing_->size = static_cast<sf_count_t>(fst.st_size);
+    if (!hashing_->ctx || EVP_DigestInit_ex(hashing_->ctx.get(), EVP_sha256(), nullptr) != 1)
+        throw InputError(path + ": SHA-256 unavailable");
+    static SF_VIRTUAL_IO io{file_length, file_seek, file_read, file_write, file_tell};
     SF_INFO sfi{};
-    SNDFILE* f = sf_open(path.c_str(), SFM_READ, &sfi);
+    SNDFILE* f = sf_open_virtual(&io, SFM_READ, &sfi, hashing_.get());
     if (!f) throw InputError(path + ": not a readable recording (" + sf_strerror(nullptr) + ")");
     adopt(f, sfi, channel);
 }
@@ -192,6 +284,19 @@ std::size_t SndfileSource::read(std::span<float> out) {
     return written;
 }
 
+std::string SndfileSource::sha256() {
+    if (!hashing_) throw std::logic_error("SndfileSource::sha256: a source in memory has no file to hash");
+    HashingFile& h = *hashing_;
+    if (!h.digest.empty()) return h.digest;
+    h.hash_up_to(h.size);
+    if (h.failed) throw InputError(info_.path + ": read error while hashing");
+    unsigned char md[EVP_MAX_MD_SIZE];
+    unsigned int len = 0;
+    EVP_DigestFinal_ex(h.ctx.get(), md, &len);
+    h.digest = hex_of(md, len);
+    return h.digest;
+}
+
 MemorySource::MemorySource(std::vector<float> samples, double fs_hz, const Calibration& calibration)
     : samples_(std::move(samples)) {
     info_.path = "(memory)";
@@ -226,13 +331,7 @@ std::string sha256_file(const std::string& path) {
     unsigned char md[EVP_MAX_MD_SIZE];
     unsigned int len = 0;
     EVP_DigestFinal_ex(ctx.get(), md, &len);
-    static const char* hex = "0123456789abcdef";
-    std::string s;
-    for (unsigned int i = 0; i < len; ++i) {
-        s += hex[md[i] >> 4];
-        s += hex[md[i] & 15];
-    }
-    return s;
+    return hex_of(md, len);
 }
 
 }  // namespace cavitas::app

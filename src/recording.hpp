@@ -54,13 +54,20 @@ public:
     SndfileSource& operator=(const SndfileSource&) = delete;
     const RecordingInfo& info() const override { return info_; }
     std::size_t read(std::span<float> out) override;
+    /// SHA-256 of the whole file (hex), for a source opened from a path: the
+    /// bytes were hashed as the decoder read them, and what it skipped or had
+    /// not reached yet is read and hashed now, so the file is read about once.
+    /// Throws InputError on a read error, std::logic_error for a source in memory.
+    std::string sha256();
 
     struct Memory;
+    struct HashingFile;
 
 private:
     void adopt(void* handle, const ::SF_INFO& info, int channel);
     void* file_ = nullptr;  // SNDFILE*
     std::unique_ptr<Memory> memory_;
+    std::unique_ptr<HashingFile> hashing_;
     RecordingInfo info_;
     std::vector<float> interleaved_;
     std::size_t read_frames_ = 0;

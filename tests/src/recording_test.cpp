@@ -90,3 +90,30 @@ TEST_CASE("SHA-256 of a file matches the published test vector", "[src]") {
     std::ofstream(p, std::ios::binary) << "abc";
     CHECK(sha256_file(p.string()) == "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
 }
+
+TEST_CASE("A recording's SHA-256 hashed while decoding is the hash of the whole file", "[src]") {
+    // Against sha256_file (itself checked on FIPS 180-2's vector above): read
+    // to the end, read in part, not read at all; WAV with a chunk after the
+    // samples (libsndfile reads past and seeks back); FLAC (a compressed stream).
+    const auto wav = write("hash.wav", SF_FORMAT_WAV | SF_FORMAT_PCM_16, 2, 50000);
+    {
+        // A trailing chunk after the sample data.
+        std::ofstream(tmp("tail.wav"), std::ios::binary) << std::ifstream(wav, std::ios::binary).rdbuf();
+        std::ofstream t(tmp("tail.wav"), std::ios::binary | std::ios::app);
+        t.write("LIST\x0c\x00\x00\x00INFOabcdefgh", 20);
+    }
+    const auto flac = write("hash.flac", SF_FORMAT_FLAC | SF_FORMAT_PCM_16, 1, 30000);
+    std::vector<float> block(4096);
+    for (const fs::path& p : {wav, tmp("tail.wav"), flac}) {
+        const std::string want = sha256_file(p.string());
+        for (const int reads : {0, 1, 1000}) {
+            SndfileSource s(p.string(), 0, {});
+            for (int r = 0; r < reads && s.read(block) > 0; ++r) {
+            }
+            CHECK(s.sha256() == want);
+            CHECK(s.sha256() == want);  // asked again: the same
+            // Reading on after the hash is final still works.
+            if (reads == 1) CHECK(s.read(block) == block.size());
+        }
+    }
+}
