@@ -7,6 +7,7 @@
 #pragma once
 
 #include <cstddef>
+#include <cstdint>
 #include <memory>
 #include <span>
 #include <string>
@@ -70,6 +71,10 @@ private:
     std::unique_ptr<HashingFile> hashing_;
     RecordingInfo info_;
     std::vector<float> interleaved_;
+    // 16-bit PCM in a little-endian container (WAV): read as raw samples and
+    // scaled here, as libsndfile would (x / 32768), without its float buffer.
+    bool raw16_ = false;
+    std::vector<std::int16_t> raw_;
     std::size_t read_frames_ = 0;
 };
 

@@ -117,3 +117,42 @@ TEST_CASE("A recording's SHA-256 hashed while decoding is the hash of the whole 
         }
     }
 }
+
+TEST_CASE("16-bit WAV samples read raw are libsndfile's floats bit for bit", "[src]") {
+    // Every 16-bit value and some stereo interleaving: through SndfileSource
+    // (raw samples scaled by 1/32768, then the calibration) and through
+    // sf_readf_float (libsndfile's own conversion) times the same calibration.
+    for (const int channels : {1, 3}) {
+        const fs::path p = tmp("raw16-" + std::to_string(channels) + ".wav");
+        SF_INFO info{};
+        info.samplerate = 25600;
+        info.channels = channels;
+        info.format = SF_FORMAT_WAV | SF_FORMAT_PCM_16;
+        SNDFILE* w = sf_open(p.string().c_str(), SFM_WRITE, &info);
+        REQUIRE(w != nullptr);
+        const std::size_t frames = 65536 + 123;
+        std::vector<short> v(frames * static_cast<std::size_t>(channels));
+        for (std::size_t i = 0; i < v.size(); ++i) v[i] = static_cast<short>(static_cast<int>(i * 7919u % 65536u) - 32768);
+        REQUIRE(sf_writef_short(w, v.data(), static_cast<sf_count_t>(frames)) == static_cast<sf_count_t>(frames));
+        sf_close(w);
+        SF_INFO ri{};
+        SNDFILE* r = sf_open(p.string().c_str(), SFM_READ, &ri);
+        REQUIRE(r != nullptr);
+        std::vector<float> ref(frames * static_cast<std::size_t>(channels));
+        REQUIRE(sf_readf_float(r, ref.data(), static_cast<sf_count_t>(frames)) == static_cast<sf_count_t>(frames));
+        sf_close(r);
+        const int ch = channels - 1;
+        Calibration cal;
+        cal.full_scale = 49.03325;  // 5 g in m/s2, an awkward factor
+        cal.unit = "m/s2";
+        SndfileSource s(p.string(), ch, cal);
+        std::vector<float> got;
+        std::vector<float> block(10007);
+        for (std::size_t n; (n = s.read(block)) > 0;) got.insert(got.end(), block.begin(), block.begin() + static_cast<std::ptrdiff_t>(n));
+        REQUIRE(got.size() == frames);
+        std::size_t differ = 0;
+        for (std::size_t i = 0; i < frames; ++i)
+            differ += got[i] != ref[i * static_cast<std::size_t>(channels) + static_cast<std::size_t>(ch)] * static_cast<float>(cal.full_scale);
+        CHECK(differ == 0);
+    }
+}
