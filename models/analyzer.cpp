@@ -274,7 +274,7 @@ struct RecordingAnalyzer::Impl {
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.lf.low_hz, setup.lf.high_hz)));
         // Each profile band is a run of adjacent bins (band_first .. + band_count).
         for (std::size_t b = 0; b < band_first.size(); ++b) {
-            const double sum = dsp::lanes::sum(seg_psd_out.data() + band_first[b], static_cast<std::size_t>(band_count[b]));
+            const double sum = dsp::lanes::sum_of(seg_psd_out.data() + band_first[b], static_cast<std::size_t>(band_count[b]));
             profile_db.push_back(static_cast<float>(dsp::power_db(sum / band_count[b])));
         }
 

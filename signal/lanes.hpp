@@ -67,6 +67,11 @@ CAVITAS_ALWAYS_INLINE double sum(const double* x, std::size_t n) {
     return total(a);
 }
 
+/// sum(x, n) compiled out of line in the versions of signal/clones.hpp: for
+/// callers that are not themselves cloned (the four-wide halves need AVX to be
+/// fast; in baseline x86-64 code they are split and spilled).
+double sum_of(const double* x, std::size_t n);
+
 /// Sum, sum of squares and maximum of x (x non-empty), in lanes.
 struct PowerSums {
     double sum = 0.0, sum_sq = 0.0, max = 0.0;

@@ -148,7 +148,7 @@ double band_power(std::span<const double> psd, double bin_hz, double low_hz, dou
     if (k0 >= psd.size()) return 0.0;
     auto k1 = static_cast<std::size_t>(std::min(static_cast<double>(psd.size()), std::floor(high_hz / bin_hz) + 2.0));
     while (k1 > k0 && static_cast<double>(k1 - 1) * bin_hz > high_hz) --k1;
-    return k1 > k0 ? lanes::sum(psd.data() + k0, k1 - k0) * bin_hz : 0.0;
+    return k1 > k0 ? lanes::sum_of(psd.data() + k0, k1 - k0) * bin_hz : 0.0;
 }
 
 double band_rms(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {

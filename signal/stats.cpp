@@ -208,7 +208,9 @@ CAVITAS_ALWAYS_INLINE Moments moments_impl(std::span<const T> x) {
 
 // Sums in fixed lanes (the same in every version of the clones).
 CAVITAS_CLONED Moments moments(std::span<const float> x) { return moments_impl(x); }
-Moments moments(std::span<const double> x) { return moments_impl(x); }
+CAVITAS_CLONED Moments moments(std::span<const double> x) { return moments_impl(x); }
+
+CAVITAS_CLONED double lanes::sum_of(const double* x, std::size_t n) { return lanes::sum(x, n); }
 
 template <typename T>
 void MomentAccumulator::add_impl(std::span<const T> x) {
