@@ -134,9 +134,16 @@ void hann_psd_from_spectrum(std::span<const std::complex<double>> X, std::size_t
                             std::span<double> out) {
     hann_psd_from_spectrum_impl(X, n, fs_hz, out);
 }
-CAVITAS_CLONED void hann_psd_from_spectrum(std::span<const std::complex<float>> X, std::size_t n, double fs_hz,
-                                           std::span<double> out) {
+namespace {
+CAVITAS_CLONED void hann_psd_single(std::span<const std::complex<float>> X, std::size_t n, double fs_hz,
+                                   std::span<double> out) {
     hann_psd_from_spectrum_impl(X, n, fs_hz, out);
+}
+}  // namespace
+
+void hann_psd_from_spectrum(std::span<const std::complex<float>> X, std::size_t n, double fs_hz,
+                            std::span<double> out) {
+    hann_psd_single(X, n, fs_hz, out);
 }
 
 double band_power(std::span<const double> psd, double bin_hz, double low_hz, double high_hz) {

@@ -204,13 +204,20 @@ CAVITAS_ALWAYS_INLINE Moments moments_impl(std::span<const T> x) {
     return m;
 }
 
+// Sums in fixed lanes (the same in every version of the clones). The cloned
+// versions have internal names and the public functions call them: some
+// compilers want the attribute on every declaration of a multiversioned
+// function, and the header's stay plain.
+CAVITAS_CLONED Moments moments_of(std::span<const float> x) { return moments_impl(x); }
+CAVITAS_CLONED Moments moments_of(std::span<const double> x) { return moments_impl(x); }
+CAVITAS_CLONED double lane_sum(const double* x, std::size_t n) { return lanes::sum(x, n); }
+
 }  // namespace
 
-// Sums in fixed lanes (the same in every version of the clones).
-CAVITAS_CLONED Moments moments(std::span<const float> x) { return moments_impl(x); }
-CAVITAS_CLONED Moments moments(std::span<const double> x) { return moments_impl(x); }
+Moments moments(std::span<const float> x) { return moments_of(x); }
+Moments moments(std::span<const double> x) { return moments_of(x); }
+double lanes::sum_of(const double* x, std::size_t n) { return lane_sum(x, n); }
 
-CAVITAS_CLONED double lanes::sum_of(const double* x, std::size_t n) { return lanes::sum(x, n); }
 
 template <typename T>
 void MomentAccumulator::add_impl(std::span<const T> x) {
