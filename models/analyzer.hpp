@@ -75,7 +75,7 @@ struct MachineContext {
 /// (the segment's DFT, which also gives the segment PSD, the inverse and the
 /// envelope spectrum), the kurtogram on at most four segments spread over the
 /// record, spectral kurtosis at 50 % frame overlap, the fine spectrum from a
-/// single-precision decimator. `reference` is the plain
+/// single-precision decimator and single-precision frames. `reference` is the plain
 /// computation the fast one is checked against (tests/eval/fidelity_test.cpp): the
 /// full-rate analytic signal in double precision with the band statistics of
 /// the real band signal, the kurtogram on every segment, spectral kurtosis at

@@ -15,12 +15,16 @@
 namespace cavitas::dsp {
 
 WelchPsd::WelchPsd(const WelchConfig& config, double fs_hz)
-    : n_(config.segment_size), hop_(config.segment_size / 2), fs_hz_(fs_hz), fft_(std::max<std::size_t>(config.segment_size, 2), FftDirections::forward_only) {
+    : n_(config.segment_size), hop_(config.segment_size / 2), fs_hz_(fs_hz) {
     if (config.segment_size < 8)
         throw std::invalid_argument("WelchConfig.segment_size = " + std::to_string(config.segment_size) +
                                     " is below the minimum of 8");
     if (!(fs_hz > 0.0) || !std::isfinite(fs_hz))
         throw std::invalid_argument("WelchPsd sample rate = " + std::to_string(fs_hz) + " Hz must be > 0");
+    if (config.single_precision)
+        fft_f_.emplace(n_, FftDirections::forward_only);
+    else
+        fft_.emplace(n_, FftDirections::forward_only);
     window_ = hann_periodic(n_);
     scale_ = 1.0 / (fs_hz_ * window_power_sum(window_));
     buffer_.assign(n_, 0.0);
@@ -50,12 +54,23 @@ void WelchPsd::frame() {
     double mean = 0.0;
     for (double v : buffer_) mean += v;
     mean /= static_cast<double>(n_);
-    auto t = fft_.time();
-    for (std::size_t k = 0; k < n_; ++k) t[k] = (buffer_[k] - mean) * window_[k];
-    fft_.forward();
-    auto s = fft_.spectrum();
-    for (std::size_t k = 0; k < acc_.size(); ++k) acc_[k] += std::norm(s[k]);
+    if (fft_f_)
+        transform(*fft_f_, mean);
+    else
+        transform(*fft_, mean);
     ++frames_;
+}
+
+template <typename T>
+void WelchPsd::transform(BasicRealFft<T>& fft, double mean) {
+    auto t = fft.time();
+    for (std::size_t k = 0; k < n_; ++k) t[k] = static_cast<T>((buffer_[k] - mean) * window_[k]);
+    fft.forward();
+    auto s = fft.spectrum();
+    for (std::size_t k = 0; k < acc_.size(); ++k) {
+        const double re = s[k].real(), im = s[k].imag();
+        acc_[k] += re * re + im * im;
+    }
 }
 
 void WelchPsd::psd(std::span<double> out) const {

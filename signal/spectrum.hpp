@@ -13,6 +13,7 @@
 
 #include <complex>
 #include <cstddef>
+#include <optional>
 #include <span>
 #include <vector>
 
@@ -22,6 +23,9 @@ namespace cavitas::dsp {
 
 struct WelchConfig {
     std::size_t segment_size = 4096;  ///< frame length in samples (>= 8)
+    /// Frames transformed in single precision (the buffer, the mean, the
+    /// window and the averaged powers stay in double).
+    bool single_precision = false;
 };
 
 class WelchPsd {
@@ -51,7 +55,10 @@ private:
     double fs_hz_;
     std::vector<double> window_;
     double scale_;
-    RealFft fft_;
+    template <typename T>
+    void transform(BasicRealFft<T>& fft, double mean);
+    std::optional<RealFft> fft_;
+    std::optional<RealFftF> fft_f_;
     std::vector<double> buffer_;
     std::size_t fill_ = 0;
     std::vector<double> acc_;

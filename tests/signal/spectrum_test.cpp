@@ -220,3 +220,24 @@ TEST_CASE("A Hann PSD from a frame's DFT equals Welch over that one frame", "[si
         for (std::size_t k = 0; k < got.size(); ++k) CHECK_THAT(got[k], Catch::Matchers::WithinAbs(ref[k], 1e-12 * peak));
     }
 }
+
+TEST_CASE("Welch frames in single precision give the double-precision PSD", "[signal]") {
+    // Gaussian noise and a tone 60 dB above its floor: every bin within single-precision
+    // rounding of the double result relative to the largest bin (tolerance: our statement).
+    const double fs = 8000.0;
+    const std::size_t n = 4096;
+    auto x = gaussian_noise(40000, 11, 1e-3);
+    for (std::size_t i = 0; i < x.size(); ++i) x[i] += std::sin(2.0 * 3.141592653589793 * 400.0 * static_cast<double>(i) / fs);
+    WelchPsd d(WelchConfig{n}, fs);
+    WelchPsd f(WelchConfig{n, true}, fs);
+    d.push(std::span<const double>(x));
+    f.push(std::span<const double>(x));
+    REQUIRE(f.frames() == d.frames());
+    const auto a = d.psd(), b = f.psd();
+    const double top = *std::max_element(a.begin(), a.end());
+    for (std::size_t k = 0; k < a.size(); ++k) CHECK(std::abs(a[k] - b[k]) <= 1e-6 * top);
+    // The noise floor far from the tone, where single-precision rounding would show first.
+    REQUIRE(a.size() == n / 2 + 1);
+    CHECK(a[1500] > 0.0);
+    CHECK_THAT(b[1500], Catch::Matchers::WithinRel(a[1500], 1e-3));
+}
