@@ -34,6 +34,18 @@ std::size_t ImpulseCounter::count(std::span<const double> sq) {
     const double thr2 = threshold_ * threshold_;
     std::size_t events = 0, below = rearm_samples_;
     bool armed = true;
+    // The rule, one sample at a time.
+    const auto step = [&](double v) {
+        if (v > thr2) {
+            if (armed) {
+                ++events;
+                armed = false;
+            }
+            below = 0;
+        } else if (!armed) {
+            if (++below >= rearm_samples_) armed = true;
+        }
+    };
     // Most stretches of 16 samples stay under the threshold: then no event
     // starts, and a disarmed counter counts them towards re-arming (the value
     // of `below` while armed is never used: an event resets it).
@@ -49,29 +61,9 @@ std::size_t ImpulseCounter::count(std::span<const double> sq) {
             }
             continue;
         }
-        for (std::size_t j = i; j < i + kChunk; ++j) {
-            if (sq[j] > thr2) {
-                if (armed) {
-                    ++events;
-                    armed = false;
-                }
-                below = 0;
-            } else if (!armed) {
-                if (++below >= rearm_samples_) armed = true;
-            }
-        }
+        for (std::size_t j = i; j < i + kChunk; ++j) step(sq[j]);
     }
-    for (; i < n; ++i) {
-        if (sq[i] > thr2) {
-            if (armed) {
-                ++events;
-                armed = false;
-            }
-            below = 0;
-        } else if (!armed) {
-            if (++below >= rearm_samples_) armed = true;
-        }
-    }
+    for (; i < n; ++i) step(sq[i]);
     return events;
 }
 

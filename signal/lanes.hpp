@@ -28,6 +28,12 @@ CAVITAS_ALWAYS_INLINE void load(const float* p, d4& out) {
 }
 CAVITAS_ALWAYS_INLINE void load(const double* p, d4& out) { std::memcpy(&out, p, sizeof out); }
 CAVITAS_ALWAYS_INLINE void splat(double v, d4& out) { out = d4{v, v, v, v}; }
+/// Eight values from p: lanes 0-3 into lo, 4-7 into hi.
+template <typename T>
+CAVITAS_ALWAYS_INLINE void load8(const T* p, d4& lo, d4& hi) {
+    load(p, lo);
+    load(p + 4, hi);
+}
 
 /// Eight lanes of doubles: lanes 0-3 in lo, 4-7 in hi.
 struct Lanes8 {
@@ -57,8 +63,7 @@ CAVITAS_ALWAYS_INLINE double sum(const double* x, std::size_t n) {
     Lanes8 s;
     for (std::size_t i = 0; i < body; i += kLanes) {
         d4 a, b;
-        load(x + i, a);
-        load(x + i + 4, b);
+        load8(x + i, a, b);
         s.lo += a;
         s.hi += b;
     }
@@ -85,8 +90,7 @@ CAVITAS_ALWAYS_INLINE PowerSums power_sums(const double* x, std::size_t n) {
     }
     for (std::size_t i = 0; i < body; i += kLanes) {
         d4 a, b;
-        load(x + i, a);
-        load(x + i + 4, b);
+        load8(x + i, a, b);
         s.lo += a;
         s.hi += b;
         q.lo += a * a;
