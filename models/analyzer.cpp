@@ -389,18 +389,24 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     const std::vector<double> fine = m.fine_psd.psd();
     if (m.machine.rpm && *m.machine.rpm > 0.0) {
         r.rpm = *m.machine.rpm;
+        r.speed_confirmed = true;
     } else {
         double lo = 300.0, hi = 6000.0;
         if (m.machine.rpm_hint > 0.0) {
-            lo = 0.9 * m.machine.rpm_hint;
-            hi = 1.1 * m.machine.rpm_hint;
+            lo = m.machine.rpm_hint / kSpeedSearchMargin;
+            hi = std::max(m.machine.rpm_hint, m.machine.rpm_hint_high) * kSpeedSearchMargin;
         }
+        r.speed_search_low_rpm = lo;
+        r.speed_search_high_rpm = hi;
+        r.speed_how = "no line family stood out in the spectrum";
         if (m.fine_psd.frames() > 0) {
             if (auto est = estimate_speed(fine, m.fine_psd.bin_hz(), lo, hi, m.machine.vanes)) {
                 r.rpm = est->rpm;
                 r.rpm_estimated = true;
                 r.rpm_resolution = est->resolution_rpm;
                 r.speed_score_db = est->score;
+                r.speed_confirmed = est->confirmed;
+                r.speed_how = est->how;
             }
         }
     }

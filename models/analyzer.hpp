@@ -68,7 +68,13 @@ struct MachineContext {
     std::optional<double> rpm;  ///< speed given by the user for this recording
     int vanes = 0;              ///< impeller vanes / runner blades (0 = unknown)
     double rpm_hint = 0.0;      ///< speed to search near when rpm is not given (e.g. the baseline's)
+    double rpm_hint_high = 0.0; ///< top of the baseline's speed range when it covers several (0 = rpm_hint only)
 };
+
+/// The speed search covers the baseline's speeds and this factor around them
+/// (a record 25 % off is found and named as a speed change instead of the
+/// search locking on another line inside a narrower window). Our choice.
+constexpr double kSpeedSearchMargin = 1.25;
 
 /// How the analysis spends its work. `fast` is what cavitas runs: the envelope
 /// by decimated complex demodulation with its transforms in single precision
@@ -116,6 +122,9 @@ struct RecordingAnalysis {
     bool rpm_estimated = false;
     double rpm_resolution = 0.0;  ///< +- rpm of the estimate
     double speed_score_db = 0.0;
+    bool speed_confirmed = false;  ///< given, or estimated and confirmed by its lines (SpeedEstimate::confirmed)
+    std::string speed_how;         ///< how the estimate was confirmed, or why not (empty when given)
+    double speed_search_low_rpm = 0.0, speed_search_high_rpm = 0.0;
     int vanes = 0;
     std::vector<EnvelopePeak> envelope_peaks;  ///< strongest first
     double mains_hz = 0.0;                     ///< 50 or 60 when hum lines were found

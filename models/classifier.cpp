@@ -174,12 +174,9 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
         confidence_scale *= 0.85;
     }
     const double speed_change = a.rpm > 0.0 && b.rpm > 0.0 ? a.rpm / b.rpm - 1.0 : 0.0;
-    if (a.rpm <= 0.0) {
-        f.warnings.push_back("shaft speed unknown (not given and not found in the spectrum): envelope lines were not checked");
-        confidence_scale *= 0.8;
-    } else if (a.rpm_estimated) {
-        f.evidence.push_back(fmt("shaft speed %.1f rpm estimated from the spectrum (+-%.1f rpm; not given with --rpm)", a.rpm,
-                                 a.rpm_resolution));
+    if (a.rpm_estimated) {
+        f.evidence.push_back(fmt("shaft speed %.1f rpm estimated from the spectrum (+-%.1f rpm; not given with --rpm), %s",
+                                 a.rpm, a.rpm_resolution, a.speed_how.c_str()));
         confidence_scale *= 0.95;
     }
     if (b.sources.size() == 1) {

@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
+#include <string>
 #include <stdexcept>
 #include <vector>
 
@@ -56,6 +58,49 @@ private:
     std::vector<double> tmp_;
 };
 
+// Is the best speed the shaft's? Its own lines must be clear, and no other
+// family in the range may score nearly as well. Speeds at simple ratios of the
+// best (1/3 ... 3) share its lines and are not rivals.
+void confirm(SpeedEstimate& best, const std::vector<std::pair<double, double>>& scored, Prominence& prom, double nyq,
+             int vanes) {
+    const double f0 = best.rpm / 60.0;
+    std::string lines;
+    auto note = [&](const std::string& name, double f) {
+        if (f >= nyq * 0.9 || prom.at(f) < kClearLineDb) return false;
+        ++best.clear_lines;
+        lines += (lines.empty() ? "" : ", ") + name;
+        return true;
+    };
+    const bool one_x = note("1x", f0);
+    for (int h = 2; h <= 8; ++h)
+        if (!(vanes > 0 && h == vanes)) note(std::to_string(h) + "x", f0 * h);
+    const bool bpf = vanes > 0 && note("BPF", f0 * vanes);
+    best.fundamental_clear = one_x || bpf;
+    static constexpr double kRatios[] = {1.0, 0.5, 2.0, 1.0 / 3.0, 3.0, 2.0 / 3.0, 1.5};
+    for (const auto& [f, score] : scored) {
+        bool related = false;
+        for (double r : kRatios) related = related || std::abs(f / f0 - r) <= 0.03 * r;
+        if (!related) best.runner_up_score = std::max(best.runner_up_score, score);
+    }
+    const double lead = best.score - best.runner_up_score;
+    // 1x and BPF both clear is a family on its own: two lines at the vane count's ratio.
+    const bool family = (best.clear_lines >= kConfirmLines && best.fundamental_clear) || (one_x && bpf);
+    best.confirmed = family && lead >= kConfirmLeadDb;
+    char buf[200];
+    if (best.confirmed) {
+        std::snprintf(buf, sizeof buf, "; leads any other speed in the range by %.1f dB", lead);
+        best.how = "confirmed by " + std::to_string(best.clear_lines) + " clear lines (" + lines + ")" + buf;
+    } else if (!family) {
+        best.how = "not confirmed: " + std::to_string(best.clear_lines) + " clear line(s)" +
+                   (lines.empty() ? std::string() : " (" + lines + ")") + ", need " + std::to_string(kConfirmLines) +
+                   " including 1x or BPF, or both 1x and BPF";
+    } else {
+        std::snprintf(buf, sizeof buf, "not confirmed: another speed in the range scores within %.1f dB (lead %.1f dB)",
+                      kConfirmLeadDb, lead);
+        best.how = buf;
+    }
+}
+
 }  // namespace
 
 std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double bin_hz, double rpm_low,
@@ -66,9 +111,7 @@ std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double 
     // Step so that the 8th harmonic moves by less than half a bin per step.
     // At most 20 000 steps, whatever the range (a damaged baseline can ask for any).
     const double step_hz = std::max(bin_hz / 20.0, (rpm_high - rpm_low) / 60.0 / 20000.0);
-    SpeedEstimate best;
-    bool found = false;
-    for (double f = rpm_low / 60.0; f <= rpm_high / 60.0; f += step_hz) {
+    auto score_at = [&](double f) {
         double sum = 0.0;
         int used = 0;
         for (int h = 1; h <= 8; ++h) {
@@ -82,8 +125,15 @@ std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double 
             sum += std::max(0.0, prom.at(f * vanes));
             ++used;
         }
+        return std::pair<double, int>{used ? sum / used : 0.0, used};
+    };
+    SpeedEstimate best;
+    bool found = false;
+    std::vector<std::pair<double, double>> scored;  // (f, score), for the runner-up
+    for (double f = rpm_low / 60.0; f <= rpm_high / 60.0; f += step_hz) {
+        const auto [score, used] = score_at(f);
         if (used == 0) continue;
-        const double score = sum / used;
+        scored.emplace_back(f, score);
         if (!found || score > best.score) {
             best.score = score;
             best.rpm = f * 60.0;
@@ -102,6 +152,7 @@ std::optional<SpeedEstimate> estimate_speed(std::span<const double> psd, double 
             break;
         }
     best.resolution_rpm = 60.0 * bin_hz / (2.0 * top);
+    confirm(best, scored, prom, nyq, vanes);
     return best;
 }
 

@@ -180,6 +180,17 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
             "cannot be judged; mount the sensor as for the baseline or learn a baseline with this mount",
             b.setup.hf.low_hz / 1000.0, b.setup.hf.high_hz / 1000.0, ctx.sensor_max_hz / 1000.0)));
 
+    // A verdict compares levels at the baseline's speed and reads lines at
+    // orders of the shaft: a speed nobody gave and the spectrum did not confirm
+    // would make both a guess (machine.hpp: SpeedEstimate::confirmed).
+    const bool speed_unknown = a.rpm <= 0.0;
+    r.checks.push_back(yes_no(
+        "speed_confirmed", speed_unknown || (a.rpm_estimated && !a.speed_confirmed),
+        speed_unknown
+            ? fmt("shaft speed not given and not found in the spectrum (searched %.0f-%.0f rpm): give --rpm",
+                  a.speed_search_low_rpm, a.speed_search_high_rpm)
+            : fmt("shaft speed could not be confirmed (best guess %.0f rpm in %.0f-%.0f rpm, %s): give --rpm", a.rpm,
+                  a.speed_search_low_rpm, a.speed_search_high_rpm, a.speed_how.c_str())));
     if (a.rpm > 0.0 && b.rpm > 0.0) {
         const double change = a.rpm / b.rpm - 1.0;
         r.checks.push_back(graded(

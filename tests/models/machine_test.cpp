@@ -63,3 +63,53 @@ TEST_CASE("No speed is claimed from a spectrum without lines", "[models]") {
     std::vector<double> flat(4097, 1e-6);
     CHECK_FALSE(estimate_speed(flat, 1.0, 1000.0, 2000.0, 5).has_value());
 }
+
+namespace {
+// Noise plus lines at the given frequencies (Hz), amplitude a each; a PSD by Welch.
+std::vector<double> lines_psd(const std::vector<double>& hz, double a, double fs, double& bin_hz) {
+    const std::size_t n = 8 * 8192;
+    std::vector<double> x(n);
+    std::uint64_t s = 777;
+    for (std::size_t i = 0; i < n; ++i) {
+        s = s * 6364136223846793005ULL + 1442695040888963407ULL;
+        const double t = static_cast<double>(i) / fs;
+        x[i] = 0.2 * (static_cast<double>(s >> 11) / 9007199254740992.0 - 0.5);
+        for (std::size_t k = 0; k < hz.size(); ++k)
+            x[i] += a * std::sin(2 * std::numbers::pi * hz[k] * t + static_cast<double>(k));
+    }
+    cavitas::dsp::WelchPsd w({16384}, fs);
+    w.push(std::span<const double>(x));
+    bin_hz = w.bin_hz();
+    return w.psd();
+}
+}  // namespace
+
+// The confirmation rule of machine.hpp (kConfirmLines, kConfirmLeadDb): our
+// choices; the cases below are built so that the rule's answer is known.
+TEST_CASE("A speed estimate is confirmed only by a clear family that no other speed matches", "[models]") {
+    const double fs = 8192.0, fr = 1485.0 / 60.0;
+    double bin = 0.0;
+    SECTION("1x, 2x, 3x and BPF: confirmed, and the lines are named") {
+        const auto psd = lines_psd({fr, 2 * fr, 3 * fr, 7 * fr}, 0.05, fs, bin);
+        const auto est = estimate_speed(psd, bin, 1485.0 / 1.25, 1485.0 * 1.25, 7);
+        REQUIRE(est.has_value());
+        CHECK(est->confirmed);
+        CHECK(est->clear_lines >= 4);
+        CHECK(est->how.find("1x, 2x, 3x") != std::string::npos);
+    }
+    SECTION("a single line: a speed is found but not confirmed") {
+        const auto psd = lines_psd({3 * fr}, 0.05, fs, bin);
+        const auto est = estimate_speed(psd, bin, 1485.0 / 1.25, 1485.0 * 1.25, 7);
+        REQUIRE(est.has_value());
+        CHECK_FALSE(est->confirmed);
+        CHECK(est->how.find("not confirmed") != std::string::npos);
+    }
+    SECTION("two unrelated families of equal strength: the search cannot tell which is the shaft") {
+        const double fa = 1400.0 / 60.0, fb = 1700.0 / 60.0;  // ratio 1.214: not a simple ratio
+        const auto psd = lines_psd({fa, 2 * fa, 3 * fa, fb, 2 * fb, 3 * fb}, 0.05, fs, bin);
+        const auto est = estimate_speed(psd, bin, 1300.0, 1800.0, 0);
+        REQUIRE(est.has_value());
+        CHECK_FALSE(est->confirmed);
+        CHECK(est->runner_up_score > est->score - kConfirmLeadDb);
+    }
+}

@@ -50,9 +50,10 @@ models::Baseline learn(const std::vector<fs::path>& files, double rpm, int vanes
     return b;
 }
 
+// rpm 0: not given, so the speed is searched near the baseline's.
 Judged judge(const fs::path& f, const models::Baseline& b, double rpm, const app::Calibration& cal) {
     models::MachineContext m;
-    m.rpm = rpm;
+    if (rpm > 0.0) m.rpm = rpm;
     m.vanes = b.vanes;
     m.rpm_hint = b.rpm;
     auto r = app::analyze_file(f.string(), 0, cal, b.setup, 0.0, m);
@@ -150,6 +151,27 @@ TEST_CASE("Lab pump at 700 rpm: healthy is normal and no throttled run is worse 
         print(name, j);
         CHECK(j.finding.verdict != models::Verdict::indeterminate);
     }
+}
+
+TEST_CASE("Lab pump: a speed the tool could not confirm or the baseline does not cover carries no verdict",
+          "[realdata]") {
+    // Logged speeds 714 and 1208 rpm against a baseline at 1011 rpm (SOURCE.md table): whether the
+    // search finds the true speed (then 29 % or 19 % off the baseline) or cannot confirm any, no
+    // level may be read against a baseline taken at another speed.
+    const auto b = learn({pump() / "1000rpm_healthy_r1_ch0_acc.wav"}, 1011, kPumpVanes, kPumpCal);
+    for (const char* name : {"700rpm_healthy_r1_ch0_acc.wav", "700rpm_healthy_r2_ch0_acc.wav",
+                             "1200rpm_healthy_r1_ch0_acc.wav", "1200rpm_healthy_r2_ch0_acc.wav"}) {
+        const Judged j = judge(pump() / name, b, 0.0, kPumpCal);
+        print(name, j);
+        INFO(name);
+        CHECK(j.finding.verdict == models::Verdict::indeterminate);
+    }
+    // The repeat run at the baseline's own speed is found, confirmed and judged normal.
+    const Judged same = judge(pump() / "1000rpm_healthy_r2_ch0_acc.wav", b, 0.0, kPumpCal);
+    print("1000rpm_healthy_r2 (speed estimated)", same);
+    CHECK(same.analysis.speed_confirmed);
+    CHECK(std::abs(same.analysis.rpm - 1011.0) < 15.0);
+    CHECK(same.finding.verdict == models::Verdict::normal);
 }
 
 // CWRU labels: the CWRU file numbering and folder names; verified in SOURCE.md with a
