@@ -3,9 +3,11 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <optional>
 
 #include "models/machine.hpp"
 #include "models/text.hpp"
+#include "signal/envelope.hpp"
 
 namespace cavitas::models {
 
@@ -138,6 +140,33 @@ bool find_bearing_like(const RecordingAnalysis& a, double& order_out, double& hz
     return false;
 }
 
+// Prominence (dB over the local floor) of the averaged squared-envelope
+// spectrum at an integer order, measured as the analyzer measures 1x and BPF;
+// nullopt when the kept spectrum does not reach the line's floor window.
+std::optional<double> order_line_db(const RecordingAnalysis& a, int order) {
+    if (a.rpm <= 0.0 || a.envelope_bin_hz <= 0.0) return std::nullopt;
+    const double hz = order * shaft_hz(a.rpm);
+    const double floor_hz = std::max(10.0 * a.envelope_bin_hz, 0.1 * hz);
+    const double top_hz = a.envelope_bin_hz * static_cast<double>(a.envelope_spectrum.size());
+    if (hz + floor_hz >= top_hz) return std::nullopt;
+    const double rel = a.rpm_estimated ? 0.01 : 0.005;
+    return dsp::measure_line(a.envelope_spectrum, a.envelope_bin_hz, hz, std::max(a.envelope_bin_hz, rel * hz), floor_hz)
+        .prominence_db;
+}
+
+// The strongest envelope line at the shaft orders 1x .. 2Zx that are not
+// multiples of the vane count Z: the comb a load-zone (inner-race) or
+// looseness modulation puts at every order, against which a blade-pass line
+// must stand out before it can be read as blade-passage modulation.
+double shaft_comb_db(const RecordingAnalysis& a) {
+    double top = 0.0;
+    for (int k = 1; k <= 2 * std::max(a.vanes, 4); ++k) {
+        if (a.vanes > 0 && k % a.vanes == 0) continue;
+        if (const auto p = order_line_db(a, k)) top = std::max(top, *p);
+    }
+    return top;
+}
+
 }  // namespace
 
 Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::string& signal_unit,
@@ -208,12 +237,23 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
     f.bearing_order = b_order;
     // A line of the bearing family (up to its 6th harmonic) that happens to fall
     // on an integer order explains that line: it is not blade-pass modulation.
+    // An inner-race defect crosses the load zone once a revolution, so its
+    // impacts are modulated at the shaft rate: envelope lines at k x 1x as well
+    // as at BPFI and its f_r sidebands (methods review A4; Randall & Antoni 2011).
+    // With a bearing family present, an integer-order line is the bearing's
+    // unless it stands 3 dB (twice the power) above that comb (our choice).
+    const double comb_db = f.bearing_like ? shaft_comb_db(a) : 0.0;
     auto explained_by_bearing = [&](double hz) {
         if (!f.bearing_like) return false;
         // Slip smears bearing lines by 1-2 % (Randall & Antoni 2011), more at harmonics.
         const double tol = std::max(3.0 / a.setup.segment_s, 0.03 * hz);
         for (int k = 1; k <= 6; ++k)
             if (std::abs(k * b_hz - hz) <= tol) return true;
+        const double order = hz / shaft_hz(a.rpm);
+        if (std::abs(order - std::round(order)) < 0.02) {
+            const auto p = order_line_db(a, static_cast<int>(std::lround(order)));
+            return !p || *p < comb_db + 3.0;
+        }
         return false;
     };
 
