@@ -73,6 +73,7 @@ struct Finding {
     double lf_rise_db = 0.0;
     bool bearing_like = false;
     double bearing_order = 0.0;
+    bool hydraulic_only = false;             ///< cavitation said by the operating point alone (grade_with_margin)
 };
 
 /// context: the recording's unit token ("g", "m/s2", "Pa", "FS"; also used in the

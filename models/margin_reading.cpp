@@ -1,5 +1,7 @@
 #include "models/margin_reading.hpp"
 
+#include <algorithm>
+
 #include "models/text.hpp"
 
 namespace cavitas::models {
@@ -107,6 +109,30 @@ MarginReading read_margin(Verdict verdict, const Hydraulics& h, const MarginGuid
                           "this pump at this duty; raise the suction pressure or cut the flow, check the strainer and "
                           "suction valve, and confirm the NPSH3 value for this impeller");
     return r;
+}
+
+bool grade_with_margin(Finding& f, const Hydraulics& h) {
+    if (f.verdict == Verdict::indeterminate || !h.npsh) return false;
+    const double npsha = h.npsh->npsha_m;
+    const bool below_npsh3 = h.margin && h.margin->margin_class == MarginClass::below_npsh3;
+    const bool boiling = npsha < kNearBoilingNpshM;
+    if (!below_npsh3 && !boiling) return false;
+    const std::string why =
+        below_npsh3 ? fmt("NPSHa %.2f m is at or below NPSH3 %.2f m, the 3 %% head-drop point", npsha, h.margin->npsh3_m)
+                    : fmt("NPSHa %.2f m is within %.1f m of zero: the liquid at the impeller eye is at or near its "
+                          "boiling point",
+                          npsha, kNearBoilingNpshM);
+    f.evidence.push_back(why + ": the pump cavitates whatever the vibration shows");
+    if (f.verdict != Verdict::normal) return false;
+    f.verdict = below_npsh3 ? Verdict::developed : Verdict::incipient;
+    f.hydraulic_only = true;
+    f.confidence = std::min(f.confidence, 0.5);  // one line of evidence, and it contradicts the other
+    f.evidence.push_back("no acoustic sign of cavitation over the baseline: the verdict rests on the operating point "
+                         "alone");
+    f.warnings.push_back("the acoustic evidence is missing although the suction conditions say the pump cavitates: the "
+                         "baseline may itself have been recorded while cavitating, the sensor or its mount may not pass "
+                         "the collapse band, or the suction reading, temperature or NPSH3 may be wrong; check them");
+    return true;
 }
 
 void flag_operating_point_differences(Finding& f, const std::vector<std::string>& differences) {

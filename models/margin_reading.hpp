@@ -32,6 +32,22 @@ struct MarginReading {
 };
 MarginReading read_margin(Verdict verdict, const Hydraulics& h, const MarginGuidance& guidance = {});
 
+/// NPSHa this close to zero means the liquid at the impeller eye is at or near
+/// its boiling point whatever NPSH3 is: the suction head left is less than the
+/// pressure drop at the vane inlet of any ordinary impeller (our choice of
+/// "about a metre"; NPSH3 of small end-suction pumps is rarely under 1 m, from
+/// memory).
+constexpr double kNearBoilingNpshM = 1.0;
+
+/// The hydraulic side of the grade. When NPSHa is at or below NPSH3 (the 3 %
+/// head-drop point: cavitation developed by definition, ANSI/HI 14.6) or under
+/// kNearBoilingNpshM, the pump cavitates whatever the acoustics show, so the
+/// finding is never normal: a normal verdict becomes developed below NPSH3 and
+/// incipient near boiling, with the missing acoustic evidence said and the
+/// usual reasons for it. Indeterminate findings are left alone. Returns true
+/// when the verdict was raised.
+bool grade_with_margin(Finding& finding, const Hydraulics& h);
+
 /// Differences from the baseline's operating point lower the confidence like
 /// a quality warning (x 0.85 each) and are listed under the finding's warnings.
 void flag_operating_point_differences(Finding& finding, const std::vector<std::string>& differences);

@@ -311,6 +311,7 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     if (duty) {
         OperatingPointFinding of;
         of.resolved = std::move(*duty);
+        models::grade_with_margin(r.finding, of.resolved.hydraulics);
         of.reading = models::read_margin(r.finding.verdict, of.resolved.hydraulics);
         of.baseline_differences = models::compare_with_baseline(r.baseline.operating_point, of.resolved.op);
         models::flag_operating_point_differences(r.finding, of.baseline_differences);

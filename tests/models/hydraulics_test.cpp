@@ -267,3 +267,49 @@ TEST_CASE("A baseline learned at another flow is flagged", "[models][hydraulics]
     CHECK_THAT(f.confidence, WithinAbs(0.9 * 0.85, 1e-12));
     CHECK(f.warnings.size() == 1);
 }
+
+// grade_with_margin: NPSH3 is the 3 % head-drop point (ANSI/HI 14.6), so at or
+// below it the pump cavitates by definition; under kNearBoilingNpshM (our
+// choice, "about a metre") the liquid at the eye is near boiling.
+TEST_CASE("A pump at or near boiling at the impeller eye is never judged normal", "[models]") {
+    using namespace cavitas::models;
+    auto hydraulics = [](double npsha_m, double npsh3_m) {
+        Hydraulics h;
+        h.npsh = NpshAvailable{npsha_m, 0.0, 0.0, npsha_m};
+        if (npsh3_m > 0.0) h.margin = npsh_margin(npsha_m, npsh3_m);
+        return h;
+    };
+    auto normal = [] {
+        Finding f;
+        f.verdict = Verdict::normal;
+        f.confidence = 0.8;
+        return f;
+    };
+    SECTION("NPSHa 0.1 m, no NPSH3: incipient on the operating point alone, with the missing evidence said") {
+        Finding f = normal();
+        CHECK(grade_with_margin(f, hydraulics(0.1, 0.0)));
+        CHECK(f.verdict == Verdict::incipient);
+        CHECK(f.hydraulic_only);
+        CHECK(f.confidence <= 0.5);
+        REQUIRE_FALSE(f.warnings.empty());
+        CHECK(f.warnings.back().find("baseline may itself") != std::string::npos);
+    }
+    SECTION("NPSHa below NPSH3: developed") {
+        Finding f = normal();
+        CHECK(grade_with_margin(f, hydraulics(2.5, 3.0)));
+        CHECK(f.verdict == Verdict::developed);
+    }
+    SECTION("an ample margin, an acoustic verdict already made, or no verdict: left as they are") {
+        Finding f = normal();
+        CHECK_FALSE(grade_with_margin(f, hydraulics(8.0, 3.0)));
+        CHECK(f.verdict == Verdict::normal);
+        Finding d = normal();
+        d.verdict = Verdict::developed;
+        CHECK_FALSE(grade_with_margin(d, hydraulics(0.2, 0.0)));
+        CHECK(d.verdict == Verdict::developed);
+        CHECK_FALSE(d.evidence.empty());  // the margin is still printed as evidence
+        Finding i;
+        CHECK_FALSE(grade_with_margin(i, hydraulics(0.2, 0.0)));
+        CHECK(i.verdict == Verdict::indeterminate);
+    }
+}
