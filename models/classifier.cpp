@@ -67,7 +67,8 @@ struct Ctx {
 
 Comparison compare_segment(Ctx& x, SegmentIndicator i) {
     const IndicatorInfo& inf = info(i);
-    const RobustStat& s = x.b[i];
+    // At the recording's speed, with the spread of visits and re-mounts (Baseline::expected).
+    const RobustStat s = x.b.expected(i, x.a.rpm);
     Comparison cmp;
     cmp.key = std::string(inf.name) + "_" + (inf.unit == "signal" ? x.ukey : std::string(inf.unit));
     cmp.label = std::string(inf.label);
@@ -192,6 +193,7 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
     // --- Can the record be judged at all? ---
     f.quality = assess_quality(a, b, context, c.quality);
     f.reasons = f.quality.reasons();
+    f.baseline_warnings = b.warnings;
     if (!f.reasons.empty()) {
         f.verdict = Verdict::indeterminate;
         f.confidence = 0.0;
@@ -212,7 +214,7 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
         f.warnings.push_back("baseline learned from a single recording: its spread may be understated");
         confidence_scale *= 0.9;
     }
-    if (std::abs(speed_change) >= 0.01)
+    if (std::abs(speed_change) >= 0.01 && b.speed.speeds <= 1)
         f.other_findings.push_back(fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: a speed change, not "
                                        "cavitation; envelope lines compared in orders",
                                        a.rpm, 100.0 * speed_change, b.rpm));
@@ -368,6 +370,14 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
         if (impulsive || modulated) f.confidence -= 0.1;
     }
     f.confidence = std::clamp(f.confidence * confidence_scale, 0.05, 0.99);
+    // A yardstick with a known defect cannot give a sure reading (our choice of cap).
+    f.baseline_warnings = b.warnings;
+    if (!b.warnings.empty()) {
+        f.warnings.push_back(fmt("the baseline carries %zu warning(s) of its own (see baseline warnings): every "
+                                 "reading against it is less sure",
+                                 b.warnings.size()));
+        f.confidence = std::min(f.confidence, kBaselineWarningConfidenceCap);
+    }
     return f;
 }
 

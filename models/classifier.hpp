@@ -48,6 +48,9 @@ struct ClassifierConfig {
     QualityLimits quality;
 };
 
+/// Highest confidence of a finding against a baseline that carries warnings. Our choice.
+constexpr double kBaselineWarningConfidenceCap = 0.6;
+
 /// One indicator set beside the baseline.
 struct Comparison {
     std::string key;        ///< JSON name with its unit suffix
@@ -73,6 +76,7 @@ struct Finding {
     double lf_rise_db = 0.0;
     bool bearing_like = false;
     double bearing_order = 0.0;
+    std::vector<BaselineWarning> baseline_warnings;  ///< repeated from the baseline: they limit the confidence
     bool hydraulic_only = false;             ///< cavitation said by the operating point alone (grade_with_margin)
 };
 

@@ -191,16 +191,44 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
                   a.speed_search_low_rpm, a.speed_search_high_rpm)
             : fmt("shaft speed could not be confirmed (best guess %.0f rpm in %.0f-%.0f rpm, %s): give --rpm", a.rpm,
                   a.speed_search_low_rpm, a.speed_search_high_rpm, a.speed_how.c_str())));
-    if (a.rpm > 0.0 && b.rpm > 0.0) {
-        const double change = a.rpm / b.rpm - 1.0;
-        r.checks.push_back(graded(
-            "speed_change", "share", std::abs(change), L.speed_warn, L.speed_fail,
-            fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: levels shift with speed; compare with "
-                "care",
-                a.rpm, 100.0 * change, b.rpm),
-            fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm (limit %.0f %%): levels are not "
-                "comparable; use a baseline taken at this speed",
-                a.rpm, 100.0 * change, b.rpm, 100.0 * L.speed_fail)));
+    if (a.rpm > 0.0 && b.speed.rpm_ref > 0.0) {
+        // Outside the speeds the baseline covers, its levels cannot be brought
+        // to this speed; inside, a speed far from every visit's is said.
+        const SpeedModel& m = b.speed;
+        const bool outside = a.rpm < m.covered_low_rpm() || a.rpm > m.covered_high_rpm();
+        double nearest = 0.0;
+        for (const auto& v : b.sources)
+            if (v.rpm > 0.0 && (nearest == 0.0 || std::abs(v.rpm / a.rpm - 1.0) < std::abs(nearest / a.rpm - 1.0)))
+                nearest = v.rpm;
+        if (nearest == 0.0) nearest = m.rpm_ref;
+        const double off = std::abs(a.rpm / nearest - 1.0);
+        const std::string learned =
+            m.speeds > 1 ? fmt("learned at %d speeds, %.0f-%.0f rpm", m.speeds, m.rpm_low, m.rpm_high)
+                         : fmt("learned at %.0f rpm", m.rpm_ref);
+        const std::string scaling = m.fitted ? fmt("levels scaled by the fitted %.0f dB/decade (HF)", m.hf_slope_db_per_decade)
+                                             : fmt("levels scaled by an assumed %.0f dB/decade", kAssumedSlopeDbPerDecade);
+        QualityCheck c;
+        c.name = "speed_coverage";
+        c.unit = "share";
+        c.value = off;
+        c.warn_at = L.speed_warn;
+        c.fail_at = (m.fitted ? kCoverFitted : kCoverAssumed) - 1.0;
+        if (outside) {
+            c.status = CheckStatus::fail;
+            c.message = fmt("shaft speed %.0f rpm is outside the %.0f-%.0f rpm the baseline covers (%s): levels are not "
+                            "comparable; judge it against a baseline that covers this speed, or add a known-good "
+                            "recording at this speed (baseline --add-to)",
+                            a.rpm, m.covered_low_rpm(), m.covered_high_rpm(), learned.c_str());
+        } else if (off >= L.speed_warn && !m.fitted) {
+            c.status = CheckStatus::warn;
+            c.message = fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: %s; compare with care",
+                            a.rpm, 100.0 * (a.rpm / nearest - 1.0), nearest, scaling.c_str());
+        } else {
+            c.status = CheckStatus::pass;
+            c.message = fmt("shaft speed %.0f rpm within the %.0f-%.0f rpm the baseline covers (%s; %s)", a.rpm,
+                            m.covered_low_rpm(), m.covered_high_rpm(), learned.c_str(), scaling.c_str());
+        }
+        r.checks.push_back(c);
     }
     return r;
 }

@@ -62,8 +62,25 @@ json baseline_to_json(const Baseline& b) {
     for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i)
         rec[std::string(info(static_cast<RecordingIndicator>(i)).name)] = stat_json(b.recording[i]);
     json sources = json::array();
-    for (const auto& s : b.sources)
-        sources.push_back({{"file", s.file}, {"sha256", s.sha256}, {"duration_s", s.duration_s}, {"rpm", s.rpm}});
+    for (const auto& s : b.sources) {
+        json values = json::object();
+        for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i)
+            values[std::string(info(static_cast<SegmentIndicator>(i)).name)] = s.series.values[i];
+        json recv = json::object();
+        for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i)
+            recv[std::string(info(static_cast<RecordingIndicator>(i)).name)] = s.recording[i];
+        sources.push_back({{"file", s.file},
+                           {"sha256", s.sha256},
+                           {"duration_s", s.duration_s},
+                           {"rpm", s.rpm},
+                           {"segment_values", values},
+                           {"recording_values", recv},
+                           {"spectrum_median_db", s.spectrum_median_db}});
+    }
+    json warnings = json::array();
+    for (const auto& w : b.warnings)
+        warnings.push_back({{"check", w.check}, {"file", w.file}, {"time_s", w.time_s}, {"message", w.message}});
+    const SpeedModel& m = b.speed;
     return {
         {"schema", b.schema},
         {"cavitas_version", b.cavitas_version},
@@ -76,7 +93,19 @@ json baseline_to_json(const Baseline& b) {
           {"rpm_estimated", b.rpm_estimated},
           {"vanes", b.vanes},
           {"unit", b.unit},
-          {"full_scale", b.full_scale}}},
+          {"full_scale", b.full_scale},
+          {"mount", b.mount}}},
+        {"warnings", warnings},
+        {"speed_model",
+         {{"rpm_ref", m.rpm_ref},
+          {"rpm_low", m.rpm_low},
+          {"rpm_high", m.rpm_high},
+          {"speeds", m.speeds},
+          {"fitted", m.fitted},
+          {"hf_slope_db_per_decade", m.hf_slope_db_per_decade},
+          {"lf_slope_db_per_decade", m.lf_slope_db_per_decade},
+          {"covered_low_rpm", m.covered_low_rpm()},
+          {"covered_high_rpm", m.covered_high_rpm()}}},
         {"setup",
          {{"segment_s", b.setup.segment_s},
           {"hf_low_hz", b.setup.hf.low_hz},
@@ -125,6 +154,54 @@ void check_ranges(const Baseline& b, const std::string& origin) {
     in_range(b.setup.sensor_max_hz, 0.0, 1.0e6, "sensor_max_hz", ws);
 }
 
+std::string str(const json& j, const char* key, const std::string& where) {
+    if (!j.contains(key) || !j.at(key).is_string()) throw InputError(where + ": missing or non-text field '" + key + "'");
+    return j.at(key).get<std::string>();
+}
+
+std::vector<double> finite_array(const json& j, const std::string& where, std::size_t max) {
+    if (!j.is_array()) throw InputError(where + ": expected an array of numbers");
+    if (j.size() > max) throw InputError(where + ": more than " + std::to_string(max) + " values");
+    std::vector<double> v;
+    for (const auto& x : j) {
+        if (!x.is_number() || !std::isfinite(x.get<double>()))
+            throw InputError(where + ": holds a value that is not a finite number");
+        v.push_back(x.get<double>());
+    }
+    return v;
+}
+
+// One visit. Older baselines have file, sha256, duration and rpm only.
+BaselineSource source_from(const json& e, const std::string& origin) {
+    const std::string w = origin + " (sources)";
+    if (!e.is_object()) throw InputError(w + ": an entry is not an object");
+    BaselineSource src;
+    if (e.contains("file") && e["file"].is_string()) src.file = e["file"];
+    if (e.contains("sha256") && e["sha256"].is_string()) src.sha256 = e["sha256"];
+    if (e.contains("duration_s") && e["duration_s"].is_number()) src.duration_s = e["duration_s"];
+    if (e.contains("rpm")) src.rpm = in_range(num(e, "rpm", w), 0.0, 100000.0, "rpm", w);
+    if (!e.contains("segment_values")) return src;
+    const json& sv = e["segment_values"];
+    if (!sv.is_object()) throw InputError(w + ": 'segment_values' is not an object");
+    std::size_t n = 0;
+    for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) {
+        const std::string name(info(static_cast<SegmentIndicator>(i)).name);
+        if (!sv.contains(name)) throw InputError(w + ": segment values of '" + name + "' missing");
+        src.series.values[i] = finite_array(sv[name], w + " (" + name + ")", 1000000);
+        if (i > 0 && src.series.values[i].size() != n)
+            throw InputError(w + ": segment values of '" + name + "' differ in count from the others");
+        n = src.series.values[i].size();
+    }
+    const json& rv = e.contains("recording_values") ? e["recording_values"] : json::object();
+    if (!rv.is_object()) throw InputError(w + ": 'recording_values' is not an object");
+    for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i) {
+        const std::string name(info(static_cast<RecordingIndicator>(i)).name);
+        src.recording[i] = num(rv, name.c_str(), w);
+    }
+    if (e.contains("spectrum_median_db")) src.spectrum_median_db = finite_array(e["spectrum_median_db"], w, 10000);
+    return src;
+}
+
 }  // namespace
 
 Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) {
@@ -132,7 +209,7 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
     if (!j.contains("schema") || !j.at("schema").is_string())
         throw InputError(origin + ": not a cavitas baseline (no \"schema\" field)");
     const std::string schema = j.at("schema").get<std::string>();
-    if (schema != Baseline::kSchema) {
+    if (schema != Baseline::kSchema && schema != Baseline::kOlderSchema) {
         if (schema.rfind("cavitas.baseline/", 0) == 0)
             throw InputError(origin + ": baseline schema '" + schema + "' is not supported by this cavitas (reads '" +
                              Baseline::kSchema + "'); relearn the baseline or update cavitas");
@@ -170,15 +247,40 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
     b.setup.sensor_max_hz = num(s, "sensor_max_hz", ws);
     check_ranges(b, origin);
     b.segments = static_cast<std::size_t>(in_range(num(j, "segments", origin), 0, 1e9, "segments", origin));
-    if (j.contains("sources") && j["sources"].is_array())
-        for (const auto& e : j["sources"]) {
-            BaselineSource src;
-            if (e.contains("file") && e["file"].is_string()) src.file = e["file"];
-            if (e.contains("sha256") && e["sha256"].is_string()) src.sha256 = e["sha256"];
-            if (e.contains("duration_s") && e["duration_s"].is_number()) src.duration_s = e["duration_s"];
-            if (e.contains("rpm") && e["rpm"].is_number()) src.rpm = e["rpm"];
-            b.sources.push_back(src);
+    if (j.contains("sources") && j["sources"].is_array()) {
+        if (j["sources"].size() > 10000) throw InputError(origin + ": more than 10 000 sources");
+        for (const auto& e : j["sources"]) b.sources.push_back(source_from(e, origin));
+    }
+    if (c.contains("mount")) {
+        if (!c["mount"].is_string()) throw InputError(wc + ": 'mount' is not a string");
+        b.mount = c["mount"];
+    }
+    if (j.contains("warnings")) {
+        if (!j["warnings"].is_array()) throw InputError(origin + ": 'warnings' is not an array");
+        for (const auto& w : j["warnings"]) {
+            const std::string ww = origin + " (warnings)";
+            if (!w.is_object()) throw InputError(ww + ": an entry is not an object");
+            BaselineWarning bw;
+            bw.check = str(w, "check", ww);
+            bw.file = str(w, "file", ww);
+            bw.message = str(w, "message", ww);
+            bw.time_s = num(w, "time_s", ww);
+            b.warnings.push_back(bw);
         }
+    }
+    // The speed model follows from the visits; relearned rather than trusted from the file.
+    {
+        bool visits = !b.sources.empty();
+        for (const auto& v : b.sources) visits = visits && v.series.segments() > 0;
+        if (visits) {
+            std::vector<BaselineSource> copy = b.sources;
+            b.speed = learn_from_sources(std::move(copy), b.setup, b.vanes).speed;
+        } else {
+            // An older baseline: its sources carry no values; one speed, pooled statistics.
+            b.speed.rpm_ref = b.speed.rpm_low = b.speed.rpm_high = b.rpm;
+            b.speed.speeds = b.rpm > 0.0 ? 1 : 0;
+        }
+    }
     // Optional (older baselines have none): the operating point it was learned at.
     if (j.contains("operating_point")) {
         const json& o = j["operating_point"];

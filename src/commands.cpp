@@ -1,5 +1,7 @@
 #include "src/commands.hpp"
 
+#include "models/baseline_check.hpp"
+
 #include <unistd.h>
 
 #include <algorithm>
@@ -211,67 +213,75 @@ void refuse_overwriting_input(const std::string& out, const std::vector<std::str
 
 }  // namespace
 
-void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err) {
-    if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
-    if (o.output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
-    refuse_overwriting_input(o.output, o.recordings);
-    const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
-    const Calibration cal = calibration_of(o.full_scale);
-    models::MachineContext machine;
-    machine.rpm = o.rpm;
-    machine.vanes = o.vanes;
-    std::vector<models::RecordingAnalysis> analyses;
-    std::vector<models::BaselineSource> sources;
-    std::optional<models::AnalysisSetup> setup;
-    std::vector<std::pair<models::OperatingPoint, models::Hydraulics>> duties;
-    for (const auto& path : o.recordings) {
-        // The operating point first: a mistyped reading fails before minutes of analysis.
-        const auto duty = resolve_operating_point(o.operating, path);
-        models::MachineContext this_machine = machine;
-        if (!this_machine.rpm && duty && duty->op.rpm) this_machine.rpm = duty->op.rpm;
-        AnalyzedRecording r =
-            analyze_file(path, o.channel, cal, setup, sensor_max, this_machine, stderr_progress(path, err));
-        if (duty) duties.emplace_back(duty->op, duty->hydraulics);
-        if (setup && r.info.fs_hz != setup->fs_hz)
-            throw InputError(path + ": sample rate " + std::to_string(static_cast<int>(r.info.fs_hz)) +
-                             " Hz differs from the first recording's " + std::to_string(static_cast<int>(setup->fs_hz)) +
-                             " Hz; a baseline needs recordings made the same way");
-        if (!setup) setup = r.analysis.setup;
-        // A baseline must be learned from clean recordings: the checks that need
-        // no reference (NaN, a dead or stuck signal, clipping, dropouts, DC,
-        // ski slope, length) are run against the recording's own statistics.
-        {
-            models::Baseline self = models::learn_baseline({r.analysis});
-            self.unit = cal.unit;
-            self.full_scale = cal.full_scale;
-            self.channel = o.channel;
-            models::RecordingContext ctx;
-            ctx.unit = cal.unit;
-            ctx.channel = o.channel;
-            const auto reasons = models::assess_quality(r.analysis, self, ctx).reasons();
-            if (!reasons.empty()) throw InputError(path + ": cannot serve as a baseline: " + reasons.front());
+namespace {
+
+// One known-good recording analysed for a baseline, with its stated duty.
+struct LearnedSource {
+    models::BaselineSource source;
+    models::RecordingAnalysis analysis;
+    std::optional<ResolvedOperatingPoint> duty;
+};
+
+LearnedSource learn_source(const BaselineOptions& o, const std::string& path, const Calibration& cal,
+                           std::optional<models::AnalysisSetup>& setup, double sensor_max,
+                           models::MachineContext& machine, std::ostream& err) {
+    // The operating point first: a mistyped reading fails before minutes of analysis.
+    LearnedSource l;
+    l.duty = resolve_operating_point(o.operating, path);
+    models::MachineContext this_machine = machine;
+    if (!this_machine.rpm && l.duty && l.duty->op.rpm) this_machine.rpm = l.duty->op.rpm;
+    if (!setup) {
+        // The first recording fixes the bands and the segment length (--segment).
+        const SndfileSource probe(path, o.channel, cal);
+        try {
+            setup = models::choose_setup(probe.info().fs_hz, sensor_max, o.segment_s);
+        } catch (const std::invalid_argument& e) {
+            throw InputError(path + ": " + e.what());
         }
-        if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
-        sources.push_back({path, r.sha256, r.analysis.duration_s, r.analysis.rpm});
-        analyses.push_back(std::move(r.analysis));
     }
-    models::Baseline b = models::learn_baseline(analyses);
-    b.cavitas_version = kVersion;
-    b.created_utc = utc_now();
-    b.machine = o.machine;
-    b.channel = o.channel;
-    b.unit = cal.unit;
-    b.full_scale = cal.full_scale;
-    b.sources = sources;
-    b.operating_point = models::summarize(duties);
-    write_file_atomically(o.output, baseline_to_json(b).dump(2) + "\n");
-    out << "baseline written to " << o.output << "\n"
+    AnalyzedRecording r = analyze_file(path, o.channel, cal, setup, sensor_max, this_machine, stderr_progress(path, err));
+    if (r.info.fs_hz != setup->fs_hz)
+        throw InputError(path + ": sample rate " + std::to_string(static_cast<int>(r.info.fs_hz)) +
+                         " Hz differs from the baseline's " + std::to_string(static_cast<int>(setup->fs_hz)) +
+                         " Hz; a baseline needs recordings made the same way");
+    // A baseline must be learned from clean recordings: the checks that need
+    // no reference (NaN, a dead or stuck signal, clipping, dropouts, DC,
+    // ski slope, length) are run against the recording's own statistics.
+    models::Baseline self = models::learn_baseline({r.analysis});
+    self.unit = cal.unit;
+    self.full_scale = cal.full_scale;
+    self.channel = o.channel;
+    models::RecordingContext ctx;
+    ctx.unit = cal.unit;
+    ctx.channel = o.channel;
+    const auto reasons = models::assess_quality(r.analysis, self, ctx).reasons();
+    if (!reasons.empty()) throw InputError(path + ": cannot serve as a baseline: " + reasons.front());
+    if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
+    l.source = models::source_of(r.analysis);
+    l.source.file = path;
+    l.source.sha256 = r.sha256;
+    l.analysis = std::move(r.analysis);
+    return l;
+}
+
+void write_baseline_summary(std::ostream& out, const BaselineOptions& o, const std::string& path, const models::Baseline& b,
+                            std::size_t stated) {
+    out << "baseline written to " << path << "\n"
         << "  " << b.sources.size() << " recording(s), " << b.segments << " segments of " << b.setup.segment_s << " s at "
         << b.setup.fs_hz << " Hz, channel " << b.channel << ", unit " << b.unit << "\n"
         << "  HF band " << b.setup.hf.low_hz << "-" << b.setup.hf.high_hz << " Hz, LF band " << b.setup.lf.low_hz << "-"
         << b.setup.lf.high_hz << " Hz\n";
-    if (b.rpm > 0.0)
-        out << "  shaft speed " << b.rpm << " rpm"
+    const models::SpeedModel& m = b.speed;
+    if (m.speeds > 1)
+        out << "  shaft speeds " << m.rpm_low << "-" << m.rpm_high << " rpm (" << m.speeds << " speeds); band levels "
+            << (m.fitted ? "fitted against speed: HF " + std::to_string(static_cast<int>(std::lround(m.hf_slope_db_per_decade))) +
+                               " dB/decade, LF " + std::to_string(static_cast<int>(std::lround(m.lf_slope_db_per_decade))) +
+                               " dB/decade"
+                         : std::string("scaled by an assumed 40 dB/decade (not two speeds 15 % apart)"))
+            << "; judged from " << std::lround(m.covered_low_rpm()) << " to " << std::lround(m.covered_high_rpm()) << " rpm\n";
+    else if (b.rpm > 0.0)
+        out << "  shaft speed " << b.rpm << " rpm, judged from " << std::lround(m.covered_low_rpm()) << " to "
+            << std::lround(m.covered_high_rpm()) << " rpm"
             << (b.rpm_estimated ? " (estimated from the spectrum without a reference: a harmonic-series search can lock "
                                   "on twice or half the speed; give --rpm from a tachometer or the nameplate to be sure)"
                                 : "")
@@ -279,7 +289,94 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     else
         out << "  shaft speed unknown: give --rpm so that envelope lines can be checked\n";
     if (b.vanes > 0) out << "  " << b.vanes << " vanes, BPF " << models::blade_pass_hz(b.rpm, b.vanes) << " Hz\n";
-    write_operating_point_summary(out, b.operating_point, duties.size(), b.sources.size());
+    out << "  repeatability floor " << models::repeatability_floor_db(b.mount) << " dB ("
+        << (b.mount.empty() ? std::string("mount not stated: a magnet's") : b.mount) << ")\n";
+    write_operating_point_summary(out, b.operating_point, stated, b.sources.size());
+    if (b.warnings.empty()) {
+        out << "  checks: nothing found\n";
+    } else {
+        out << "  WARNINGS (" << b.warnings.size() << "): findings against this baseline will repeat them\n";
+        for (const auto& w : b.warnings) out << "    - " << w.message << "\n";
+    }
+    (void)o;
+}
+
+}  // namespace
+
+void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err) {
+    if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
+    const std::string output = !o.output.empty() ? o.output : o.add_to.value_or("");
+    if (output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
+    refuse_overwriting_input(output, o.recordings);
+    std::optional<models::Baseline> earlier;
+    if (o.add_to) earlier = read_baseline_file(*o.add_to);
+    const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
+    Calibration cal = calibration_of(o.full_scale);
+    if (earlier) {
+        if (o.full_scale && (cal.unit != earlier->unit || cal.full_scale != earlier->full_scale))
+            throw UsageError("--full-scale " + *o.full_scale + " differs from the calibration of " + *o.add_to +
+                             "; recordings added to a baseline must be calibrated as it is");
+        cal.unit = earlier->unit;
+        cal.full_scale = earlier->full_scale;
+        if (earlier->sources.empty() || earlier->sources.front().series.segments() == 0)
+            throw InputError(*o.add_to + ": made by an older cavitas, it keeps no per-recording values to add to; "
+                             "relearn it from its recordings");
+        if (o.channel != earlier->channel)
+            throw UsageError("--channel " + std::to_string(o.channel) + " differs from the channel " +
+                             std::to_string(earlier->channel) + " of " + *o.add_to);
+    }
+    models::MachineContext machine;
+    machine.rpm = o.rpm;
+    machine.vanes = earlier ? earlier->vanes : o.vanes;
+    if (earlier) machine.rpm_hint = earlier->rpm;
+    std::optional<models::AnalysisSetup> setup;
+    if (earlier) setup = earlier->setup;
+    std::vector<LearnedSource> learned;
+    for (const auto& path : o.recordings) learned.push_back(learn_source(o, path, cal, setup, sensor_max, machine, err));
+
+    std::vector<models::BaselineSource> sources = earlier ? earlier->sources : std::vector<models::BaselineSource>{};
+    std::vector<std::optional<models::Hydraulics>> duties(sources.size());
+    std::vector<std::pair<models::OperatingPoint, models::Hydraulics>> stated;
+    std::vector<models::RecordingAnalysis> analyses;
+    for (auto& l : learned) {
+        sources.push_back(l.source);
+        duties.push_back(l.duty ? std::optional<models::Hydraulics>(l.duty->hydraulics) : std::nullopt);
+        if (l.duty) stated.emplace_back(l.duty->op, l.duty->hydraulics);
+        analyses.push_back(std::move(l.analysis));
+    }
+    models::Baseline b;
+    if (earlier) {
+        b = models::learn_from_sources(std::move(sources), *setup, earlier->vanes);
+        b.spectrum = earlier->spectrum;  // the profile's spread is kept from the first learning
+        b.machine = earlier->machine;
+        b.mount = earlier->mount;
+        b.operating_point = earlier->operating_point;
+        b.rpm_estimated = earlier->rpm_estimated;
+    } else {
+        b = models::learn_baseline(analyses);
+        b.sources = std::move(sources);
+        b.machine = o.machine;
+        b.mount = o.mount;
+        b.operating_point = models::summarize(stated);
+    }
+    for (const auto& a : analyses) b.rpm_estimated = b.rpm_estimated || a.rpm_estimated;
+    b.cavitas_version = kVersion;
+    b.created_utc = utc_now();
+    b.channel = o.channel;
+    b.unit = cal.unit;
+    b.full_scale = cal.full_scale;
+    b.warnings = models::check_baseline(b, duties);
+    if (earlier)  // what only the first learning's operating points could show is kept
+        for (const auto& w : earlier->warnings)
+            if (w.check == "low_npsh" || w.check == "low_margin") b.warnings.push_back(w);
+    if (o.strict && !b.warnings.empty()) {
+        std::string all;
+        for (const auto& w : b.warnings) all += "\n  - " + w.message;
+        throw InputError("baseline not written (--strict): " + std::to_string(b.warnings.size()) +
+                         " problem(s) with the recordings:" + all);
+    }
+    write_file_atomically(output, baseline_to_json(b).dump(2) + "\n");
+    write_baseline_summary(out, o, output, b, stated.size());
 }
 
 AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {

@@ -80,6 +80,8 @@ struct BaselineOptions {
     std::string mount;
     double segment_s = 1.0;
     OperatingPointFlags operating;
+    bool strict = false;                 ///< refuse (InputError) instead of warning
+    std::optional<std::string> add_to;   ///< an existing baseline to add these recordings to
 };
 
 struct AnalyzeOptions {

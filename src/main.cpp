@@ -137,15 +137,30 @@ int main(int argc, char** argv) {
     BaselineOptions bo;
     auto* base = app.add_subcommand(
         "baseline",
-        "Learn a machine's known-good reference from one or more recordings of the same machine,\n"
-        "measurement point and operating point. Each recording is cut into 1 s segments and every\n"
-        "indicator's median and spread (1.4826 x MAD) over all segments is stored, with the bands\n"
-        "used, the speed, the vane count and the calibration. Use recordings made while the\n"
-        "machine was known to be healthy at its usual duty point; not just after a repair or a\n"
-        "start-up while it settles.");
+        "Learn a machine's known-good reference from one or more recordings of the same machine\n"
+        "and measurement point. Each recording (a visit) is cut into segments (1 s unless --segment)\n"
+        "and kept with every indicator's per-segment values; the baseline stores their medians and\n"
+        "spreads (1.4826 x MAD), the bands, the calibration and a speed model: recordings at two\n"
+        "or more speeds 15 % apart fit how the band levels follow speed, so a variable-speed pump is\n"
+        "judged at any speed in that range. Each recording's speed comes from --rpm, its sidecar\n"
+        "NAME.op.toml (speed = \"1200 rpm\") or the spectrum.\n"
+        "The recordings are checked and every problem is printed and stored under \"warnings\":\n"
+        "a level that steps or drifts inside a recording, recordings that disagree beyond re-mounting,\n"
+        "a pump already cavitating (impulsive HF at blade passage, or NPSHa under the guidance or\n"
+        "near zero), too little data. Findings against a baseline with warnings repeat them and\n"
+        "cannot reach high confidence; --strict refuses such a baseline instead (exit 1).\n"
+        "Use recordings made while the machine was known to be healthy; not just after a repair or a\n"
+        "start-up while it settles. --add-to B.json adds known-good visits to an existing baseline.");
     base->add_option("recordings", bo.recordings, "Known-good recordings (WAV, FLAC, ... any libsndfile format)")
         ->required();
-    base->add_option("-o,--output", bo.output, "Baseline file to write (JSON); written atomically")->required();
+    base->add_option("-o,--output", bo.output,
+                     "Baseline file to write (JSON); written atomically. With --add-to, default: that file");
+    base->add_option("--add-to", bo.add_to,
+                     "Existing baseline to add these known-good recordings to (same sample rate, channel and "
+                     "calibration); its bands, calibration and vane count are kept")
+        ->type_name("BASELINE.json");
+    base->add_flag("--strict", bo.strict,
+                   "Refuse (exit 1, nothing written) when the checks find anything, instead of warning");
     base->add_option("--machine", bo.machine,
                      "Tag of the machine and measurement point (e.g. OW-P101-NDE-H), stored in the baseline");
     base->add_option("--rpm", bo.rpm, "Shaft speed during the recordings, rpm; without it the speed is estimated "
@@ -163,7 +178,10 @@ int main(int argc, char** argv) {
     base->add_option("--mount", bo.mount,
                      "Sensor mounting, caps the HF band: handheld (2 kHz), magnet (5 kHz), adhesive (6 kHz), stud (7 kHz)")
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
-    base->add_option("--segment", bo.segment_s, "Analysis segment length, s (default 1)")->check(CLI::Range(0.25, 10.0));
+    base->add_option("--segment", bo.segment_s,
+                     "Analysis segment length, s (default 1); later analyses use it too, shorter only for short "
+                     "captures")
+        ->check(CLI::Range(0.25, 10.0));
     add_operating_point_flags(base, bo.operating, true);
 
     AnalyzeOptions ao;

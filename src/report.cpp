@@ -132,11 +132,22 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
         out << "  lowered confidence:\n";
         for (const auto& s : f.warnings) out << "    - " << s << "\n";
     }
+    if (!f.baseline_warnings.empty()) {
+        out << "  baseline warnings (from " << baseline_path << "):\n";
+        for (const auto& w : f.baseline_warnings) out << "    - " << w.message << "\n";
+    }
     if (r.operating) write_operating_point(out, *r.operating);
     if (cavitating(f.verdict)) {
         out << "  caution:\n";
         for (const auto& s : models::cavitation_cautions()) out << "    ! " << s << "\n";
     }
+}
+
+json baseline_warnings_json(const std::vector<models::BaselineWarning>& warnings) {
+    json a = json::array();
+    for (const auto& w : warnings)
+        a.push_back({{"check", w.check}, {"file", w.file}, {"time_s", w.time_s}, {"message", w.message}});
+    return a;
 }
 
 json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
@@ -207,6 +218,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"confidence", f.confidence},
         {"evidence", f.evidence},
         {"other_findings", f.other_findings},
+        {"baseline_warnings", baseline_warnings_json(f.baseline_warnings)},
         {"cautions", cavitating(f.verdict) ? json(models::cavitation_cautions()) : json::array()},
         {"indicators", indicators},
         {"bands",

@@ -31,6 +31,8 @@ Baseline base() {
     b.setup.fs_hz = 25600;
     b.setup.hf = {2560, 10240};
     b.rpm = 1485;
+    b.speed.rpm_ref = b.speed.rpm_low = b.speed.rpm_high = 1485;
+    b.speed.speeds = 1;
     b.unit = "g";
     b.full_scale = 50.0;
     return b;
@@ -170,16 +172,28 @@ TEST_CASE("Fewer than 3 segments fail and fewer than 5 warn", "[models]") {
     CHECK(check(a, "segments") == CheckStatus::pass);
 }
 
-TEST_CASE("A speed change warns from 5 % and fails beyond 10 %", "[models]") {
+TEST_CASE("A speed change warns from 5 % and fails outside what the baseline covers", "[models]") {
+    // One speed (assumed scaling): covered +-10 % (kCoverAssumed), warned from 5 %.
     auto a = clean();
     a.rpm = 1485 * 1.049;
-    CHECK(check(a, "speed_change") == CheckStatus::pass);
+    CHECK(check(a, "speed_coverage") == CheckStatus::pass);
     a.rpm = 1485 * 1.051;
-    CHECK(check(a, "speed_change") == CheckStatus::warn);
-    a.rpm = 1485 * 0.901;
-    CHECK(check(a, "speed_change") == CheckStatus::warn);
-    a.rpm = 1485 * 0.899;
-    CHECK(check(a, "speed_change") == CheckStatus::fail);
+    CHECK(check(a, "speed_coverage") == CheckStatus::warn);
+    a.rpm = 1485 / 1.099;
+    CHECK(check(a, "speed_coverage") == CheckStatus::warn);
+    a.rpm = 1485 / 1.101;
+    CHECK(check(a, "speed_coverage") == CheckStatus::fail);
+    // Three speeds 1000-1485 rpm with a fitted slope: covered 1000/1.05 .. 1485 x 1.05, no warning inside.
+    Baseline b = base();
+    b.speed.rpm_low = 1000;
+    b.speed.speeds = 3;
+    b.speed.fitted = true;
+    a.rpm = 1200;
+    CHECK(check(a, "speed_coverage", ctx(), b) == CheckStatus::pass);
+    a.rpm = 1000 / 1.049;
+    CHECK(check(a, "speed_coverage", ctx(), b) == CheckStatus::pass);
+    a.rpm = 1485 * 1.051;
+    CHECK(check(a, "speed_coverage", ctx(), b) == CheckStatus::fail);
 }
 
 TEST_CASE("A different rate, unit or channel from the baseline's fails", "[models]") {

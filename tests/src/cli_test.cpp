@@ -128,7 +128,8 @@ TEST_CASE("baseline then analyze gives a JSON finding with the contracted keys",
     REQUIRE(r.status == 0);
     REQUIRE(fs::exists(b));
     const auto base = nlohmann::json::parse(slurp(b));
-    CHECK(base["schema"] == "cavitas.baseline/2");
+    CHECK(base["schema"] == "cavitas.baseline/3");
+    CHECK(base["warnings"].is_array());
     CHECK(base["context"]["rpm"] == 1485.0);
     CHECK(base["context"]["vanes"] == 7);
     CHECK(base["context"]["unit"] == "g");
