@@ -509,3 +509,54 @@ TEST_CASE("FFT plans are kept in the cache folder and change no result; a damage
     CHECK(strip(j2) == strip(j0));
     CHECK(strip(j3) == strip(j0));
 }
+
+TEST_CASE("baseline checks what it is given: warnings stored and printed, --strict refuses, --add-to adds a visit",
+          "[cli]") {
+    const fs::path g1 = make_wav("chk1.wav", 31), g2 = make_wav("chk2.wav", 32), g3 = make_wav("chk3.wav", 33);
+    // The HF floor steps up 20 dB (x10 in amplitude) from 3 s on: a level step inside the record.
+    const fs::path stepped = make_spoiled("chk_step.wav", 34, [](std::vector<float>& x) {
+        std::uint64_t s = 99;
+        for (std::size_t i = 3 * 25600; i < x.size(); ++i) {
+            s = s * 6364136223846793005ULL + 1442695040888963407ULL;
+            x[i] += static_cast<float>(0.2 * (static_cast<double>(s >> 11) / 9007199254740992.0 - 0.5));
+        }
+    });
+    const fs::path clean = workdir() / "chk_clean.json", bad = workdir() / "chk_bad.json", strict = workdir() / "chk_strict.json";
+    Run r = run("baseline --rpm 1485 --vanes 7 --full-scale 50g -o " + q(clean) + " " + q(g1) + " " + q(g2));
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("checks: nothing found") != std::string::npos);
+    CHECK(nlohmann::json::parse(slurp(clean))["warnings"].empty());
+
+    r = run("baseline --rpm 1485 --vanes 7 --full-scale 50g -o " + q(bad) + " " + q(g1) + " " + q(stepped));
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("WARNINGS") != std::string::npos);
+    CHECK(r.out.find("chk_step.wav") != std::string::npos);
+    const auto w = nlohmann::json::parse(slurp(bad))["warnings"];
+    REQUIRE_FALSE(w.empty());
+    CHECK(w[0]["file"].get<std::string>().find("chk_step.wav") != std::string::npos);
+
+    r = run("baseline --strict --rpm 1485 --vanes 7 --full-scale 50g -o " + q(strict) + " " + q(g1) + " " + q(stepped));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("--strict") != std::string::npos);
+    CHECK_FALSE(fs::exists(strict));
+
+    // A finding against the warned baseline repeats the warnings.
+    const fs::path j = workdir() / "chk_finding.json";
+    r = run("analyze --baseline " + q(bad) + " --rpm 1485 --json " + q(j) + " " + q(g3));
+    REQUIRE(r.status == 0);
+    const auto f = nlohmann::json::parse(slurp(j));
+    CHECK(f["baseline_warnings"].size() == w.size());
+    CHECK(f["confidence"].get<double>() <= 0.6);
+
+    // --add-to: the clean baseline gains the third visit, written back to itself.
+    r = run("baseline --add-to " + q(clean) + " " + q(g3));
+    REQUIRE(r.status == 0);
+    const auto added = nlohmann::json::parse(slurp(clean));
+    CHECK(added["sources"].size() == 3);
+    CHECK(added["context"]["vanes"] == 7);
+    CHECK(added["segments"] == 18);
+    // Another calibration is refused, naming the option.
+    r = run("baseline --add-to " + q(clean) + " --full-scale 10g " + q(g3));
+    CHECK(r.status == 2);
+    CHECK(r.err.find("--full-scale") != std::string::npos);
+}
