@@ -26,6 +26,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "models/calibration.hpp"
 #include "models/rank_tests.hpp"
 #include "signal/decimate.hpp"
 #include "signal/envelope.hpp"
@@ -292,6 +293,26 @@ json run_trend(const std::string& name, const std::vector<double>& t, const std:
             {"p_two_sided", mk.p_two_sided},     {"exact", mk.exact}};
 }
 
+json run_reliability(const std::string& name, const std::vector<double>& conf, const std::vector<int>& correct,
+                     std::size_t bins) {
+    const auto r = cavitas::models::reliability(conf, correct, bins);
+    json b = json::array();
+    for (const auto& bin : r.bins)  // an empty bin's NaN means are written as null
+        b.push_back({{"low", bin.low}, {"high", bin.high}, {"count", bin.count},
+                     {"mean_confidence", bin.mean_confidence}, {"accuracy", bin.accuracy}});
+    return {{"name", name}, {"confidence", conf}, {"correct", correct}, {"nbins", bins}, {"bins", b},
+            {"ece", r.ece},  {"mce", r.mce},       {"brier", r.brier}};
+}
+
+json run_platt(const std::string& name, const std::vector<double>& score, const std::vector<int>& positive) {
+    const auto m = cavitas::models::fit_platt(score, positive);
+    return {{"name", name}, {"score", score}, {"positive", positive}, {"a", m.a}, {"b", m.b}};
+}
+
+json run_pav(const std::string& name, const std::vector<double>& y, const std::vector<double>& w) {
+    return {{"name", name}, {"y", y}, {"weight", w}, {"fit", cavitas::models::pav(y, w)}};
+}
+
 json build() {
     Gaussian g(kSeed);
 
@@ -376,6 +397,55 @@ json build() {
         run_trend("flat_9", days, flat),
         run_trend("tied_9", days, tied),
     });
+    // Calibration (models/calibration): reliability bins with values on every bin edge,
+    // Platt fits (overlapping and separable classes), PAV with and without weights.
+    {
+        Gaussian c(kSeed + 2);
+        std::vector<double> conf;
+        std::vector<int> correct;
+        for (int i = 0; i < 400; ++i) {
+            const double p = c.open_uniform();
+            conf.push_back(p);
+            correct.push_back(c.open_uniform() < p * p ? 1 : 0);  // overconfident on purpose
+        }
+        for (int k = 0; k <= 10; ++k) {  // the edges of 5 and 10 bins, as the doubles k/10
+            conf.push_back(static_cast<double>(k) / 10.0);
+            correct.push_back(k % 2);
+        }
+        for (int k = 0; k <= 7; ++k) {  // the edges of 7 bins
+            conf.push_back(static_cast<double>(k) / 7.0);
+            correct.push_back((k + 1) % 2);
+        }
+        j["reliability"] = json::array({run_reliability("uniform_bins5", conf, correct, 5),
+                                        run_reliability("uniform_bins7", conf, correct, 7),
+                                        run_reliability("uniform_bins10", conf, correct, 10)});
+        std::vector<double> score, sep_score;
+        std::vector<int> positive, sep_positive;
+        for (int i = 0; i < 300; ++i) {
+            score.push_back(-1.0 + c());
+            positive.push_back(0);
+        }
+        for (int i = 0; i < 200; ++i) {
+            score.push_back(0.8 + 1.2 * c());
+            positive.push_back(1);
+        }
+        for (int i = 0; i < 20; ++i) {
+            sep_score.push_back(-3.0 + 2.0 * c.open_uniform());
+            sep_positive.push_back(0);
+            sep_score.push_back(1.0 + 2.0 * c.open_uniform());
+            sep_positive.push_back(1);
+        }
+        j["platt"] = json::array({run_platt("overlapping_500", score, positive),
+                                  run_platt("separable_40", sep_score, sep_positive)});
+        std::vector<double> y, w;
+        for (int i = 0; i < 60; ++i) {
+            y.push_back(0.05 * i + c());
+            w.push_back(0.5 + 1.5 * c.open_uniform());
+        }
+        j["pav"] = json::array({run_pav("review_example", {1, 0, 1, 0, 0, 1}, {}),
+                                run_pav("trend_60", y, {}),
+                                run_pav("trend_60_weighted", y, w)});
+    }
     return j;
 }
 

@@ -36,7 +36,9 @@ import sys
 try:
     import numpy as np
     import scipy
+    import scipy.optimize
     import scipy.signal
+    import scipy.special
     import scipy.stats
 except ImportError as exc:  # pragma: no cover - depends on the machine
     print(f"SKIP: numpy/scipy cannot be imported by {sys.executable}: {exc}")
@@ -333,6 +335,97 @@ def check_trend(rep, entry):
               TOL_F64)
 
 
+def check_reliability(rep, entry):
+    """Reliability bins, ECE, MCE and Brier score (models/calibration), binned by numpy.digitize."""
+    name = entry["name"]
+    conf = np.asarray(entry["confidence"], dtype=np.float64)
+    correct = np.asarray(entry["correct"], dtype=np.float64)
+    nbins = int(entry["nbins"])
+    edges = np.arange(nbins + 1) / nbins  # the doubles k/B, as cavitas computes them
+    # right=False: edges[i-1] <= x < edges[i]; on the inner edges this gives bin b for
+    # [b/B, (b+1)/B), and 1.0 lands in the last bin.
+    idx = np.digitize(conf, edges[1:-1], right=False)
+    counts = np.bincount(idx, minlength=nbins)
+    bins = entry["bins"]
+    if not same_length(rep, f"reliability/{name}/bins", bins, counts):
+        return
+    got_counts = np.array([b["count"] for b in bins])
+    rep.check(f"reliability/{name}/counts", f"numpy.digitize right=False [{NUMPY}]",
+              float(np.max(np.abs(got_counts - counts))), TOL_EXACT)
+    rep.check(f"reliability/{name}/edges", f"numpy k/B [{NUMPY}]",
+              max(max(abs(b["low"] - edges[k]), abs(b["high"] - edges[k + 1])) for k, b in enumerate(bins)), TOL_EXACT)
+    ece, mce, err_means = 0.0, 0.0, 0.0
+    for k in range(nbins):
+        if counts[k] == 0:
+            if bins[k]["mean_confidence"] is not None or bins[k]["accuracy"] is not None:
+                rep.fail(f"reliability/{name}/empty bin {k}", "definition", "an empty bin must have no mean (null)")
+            continue
+        mc, acc = float(np.mean(conf[idx == k])), float(np.mean(correct[idx == k]))
+        err_means = max(err_means, abs(bins[k]["mean_confidence"] - mc), abs(bins[k]["accuracy"] - acc))
+        ece += counts[k] / conf.size * abs(acc - mc)
+        mce = max(mce, abs(acc - mc))
+    rep.check(f"reliability/{name}/bin means", f"numpy.mean per bin [{NUMPY}]", err_means, TOL_F64)
+    rep.check(f"reliability/{name}/ece", "Guo et al. 2017 definition, numpy", abs(entry["ece"] - ece), TOL_F64)
+    rep.check(f"reliability/{name}/mce", "Guo et al. 2017 definition, numpy", abs(entry["mce"] - mce), TOL_F64)
+    rep.check(f"reliability/{name}/brier", f"numpy mean squared error [{NUMPY}]",
+              abs(entry["brier"] - float(np.mean((conf - correct) ** 2))), TOL_F64)
+
+
+def check_platt(rep, entry):
+    """Platt scaling (models/calibration) against scipy.optimize.minimize on the same loss."""
+    name = entry["name"]
+    s = np.asarray(entry["score"], dtype=np.float64)
+    y = np.asarray(entry["positive"], dtype=np.int64)
+    n_pos = int(y.sum())
+    n_neg = y.size - n_pos
+    t = np.where(y == 1, (n_pos + 1) / (n_pos + 2), 1 / (n_neg + 2))  # Platt's smoothed targets
+
+    def loss(x):  # cross-entropy of p = 1/(1 + e^f) against t: log(1 + e^f) - (1 - t) f
+        f = x[0] * s + x[1]
+        return float(np.sum(np.logaddexp(0.0, f) - (1.0 - t) * f))
+
+    def grad(x):
+        p = scipy.special.expit(-(x[0] * s + x[1]))
+        return np.array([np.sum((t - p) * s), np.sum(t - p)])
+
+    def hess(x):
+        p = scipy.special.expit(-(x[0] * s + x[1]))
+        w = p * (1.0 - p)
+        return np.array([[np.sum(w * s * s), np.sum(w * s)], [np.sum(w * s), np.sum(w)]])
+
+    ref = scipy.optimize.minimize(loss, [0.0, math.log((n_neg + 1) / (n_pos + 1))], jac=grad, hess=hess,
+                                  method="trust-exact", options={"gtol": 1e-10})
+    # Both minimise the same strictly convex loss; each stops within ~1e-10 of a zero
+    # gradient, so the parameters agree to about that over the Hessian's smaller
+    # eigenvalue (2.0 and 60 on these data, measured): 1e-8 leaves room and still
+    # catches a wrong target or sign (errors of 1e-3 and more).
+    rep.check(f"platt/{name}/a", f"scipy.optimize.minimize trust-exact [{SCIPY}]", abs(entry["a"] - ref.x[0]), 1e-8)
+    rep.check(f"platt/{name}/b", f"scipy.optimize.minimize trust-exact [{SCIPY}]", abs(entry["b"] - ref.x[1]), 1e-8)
+    rep.check(f"platt/{name}/gradient", "numpy gradient of the same loss at cavitas' (a, b)",
+              float(np.max(np.abs(grad([entry["a"], entry["b"]])))), 1e-8)
+
+
+def check_pav(rep, entry):
+    """Pool-adjacent-violators (models/calibration) against bounded least squares."""
+    name = entry["name"]
+    y = np.asarray(entry["y"], dtype=np.float64)
+    w = np.asarray(entry["weight"], dtype=np.float64) if entry["weight"] else np.ones_like(y)
+    fit = np.asarray(entry["fit"], dtype=np.float64)
+    if not same_length(rep, f"pav/{name}/fit", fit, y):
+        return
+    # The monotone fit as f = C u (C lower triangular ones: f_i = u_0 + ... + u_i) with
+    # u_0 free and the increments u_1.. >= 0, minimising sum w (f - y)^2: an independent
+    # route to the same unique minimiser.
+    n = y.size
+    c = np.tril(np.ones((n, n)))
+    sw = np.sqrt(w)
+    lower = np.r_[-np.inf, np.zeros(n - 1)]
+    ref = scipy.optimize.lsq_linear(sw[:, None] * c, sw * y, bounds=(lower, np.full(n, np.inf)), method="bvls",
+                                    tol=1e-14)
+    # bvls solves the active set exactly (up to a least-squares solve in float64).
+    rep.check(f"pav/{name}/fit", f"scipy.optimize.lsq_linear bvls [{SCIPY}]", normwise(fit, c @ ref.x), TOL_F64)
+
+
 def main(argv):
     if len(argv) != 2:
         print("usage: scipy_check.py REFDUMP.json")
@@ -358,7 +451,8 @@ def main(argv):
             check_decimate(rep, entry, signals[entry["signal"]])
         if not doc.get("decimate"):
             rep.fail("structure/decimate", "refdump JSON", "section missing or empty")
-        for key, fn in {"rank_sum": check_rank_sum, "trend": check_trend}.items():
+        for key, fn in {"rank_sum": check_rank_sum, "trend": check_trend, "reliability": check_reliability,
+                        "platt": check_platt, "pav": check_pav}.items():
             entries = doc.get(key, [])
             if not entries:
                 rep.fail(f"structure/{key}", "refdump JSON", "section missing or empty")
