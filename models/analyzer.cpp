@@ -46,6 +46,22 @@ AnalysisSetup choose_setup(double fs_hz, double sensor_max_hz, double segment_s)
     return s;
 }
 
+namespace {
+double shortest_segment_s(double rpm) {
+    return std::max(kMinSegmentS, rpm > 0.0 ? kMinRevolutionsPerSegment * 60.0 / rpm : 0.0);
+}
+}  // namespace
+
+double segment_for_record(double duration_s, double segment_s, double rpm) {
+    if (duration_s >= static_cast<double>(kShortCaptureSegments) * segment_s) return segment_s;
+    const double wanted = duration_s / static_cast<double>(kShortCaptureSegments);
+    return std::min(segment_s, std::max(wanted, shortest_segment_s(rpm)));
+}
+
+double min_record_s(std::size_t segments, double rpm) {
+    return static_cast<double>(segments) * shortest_segment_s(rpm);
+}
+
 std::optional<double> mount_limit_hz(const std::string& mount) {
     if (mount == "handheld") return 2000.0;
     if (mount == "magnet") return 5000.0;

@@ -60,6 +60,23 @@ constexpr double kLfTopHz = 1000.0;
 ///   1.5 kHz (no HF band left to judge cavitation on).
 AnalysisSetup choose_setup(double fs_hz, double sensor_max_hz, double segment_s = 1.0);
 
+/// Short captures (a collector's 0.5-4 s): a record too short for
+/// kShortCaptureSegments segments of the baseline's length is cut into shorter
+/// segments, each at least kMinRevolutionsPerSegment shaft revolutions (the
+/// envelope's 1x line then sits 6 bins from 0 Hz and +-1x sidebands of BPF are
+/// resolved; methods review A11: +-f_r sidebands need about 3 revolutions; 6 is
+/// our choice) and kMinSegmentS long (the shortest segment the analyzer is
+/// tested at). Band levels and impulse rates do not depend on the segment
+/// length; envelope line prominences do (compare_recording corrects them).
+constexpr double kMinRevolutionsPerSegment = 6.0;
+constexpr double kMinSegmentS = 0.25;
+constexpr std::size_t kShortCaptureSegments = 5;
+/// The segment length for a record of duration_s (the baseline's segment_s
+/// when the record is long enough; rpm 0 = unknown: kMinSegmentS is the floor).
+double segment_for_record(double duration_s, double segment_s, double rpm);
+/// The shortest record that gives `segments` segments at rpm (rpm 0 = unknown).
+double min_record_s(std::size_t segments, double rpm);
+
 /// Sensor mounting limits (Hz) from trade practice: hand-held 2 kHz, magnet 5 kHz,
 /// adhesive 6 kHz, stud 7 kHz (power-mi.com "Sensor mounting techniques", Table 3.2).
 std::optional<double> mount_limit_hz(const std::string& mount);

@@ -83,13 +83,23 @@ Comparison compare_segment(Ctx& x, SegmentIndicator i) {
     return cmp;
 }
 
+bool is_line_prominence(RecordingIndicator i) {
+    return i == RecordingIndicator::ses_1x_prominence_db || i == RecordingIndicator::ses_bpf_prominence_db ||
+           i == RecordingIndicator::ses_2bpf_prominence_db;
+}
+
 Comparison compare_recording(Ctx& x, RecordingIndicator i) {
     const IndicatorInfo& inf = info(i);
-    const RobustStat& s = x.b[i];
+    RobustStat s = x.b[i];
     Comparison cmp;
     cmp.key = std::string(inf.name) + "_" + std::string(inf.unit);
     cmp.label = std::string(inf.label);
     cmp.value = cmp.p10 = cmp.p90 = x.a.recording[static_cast<std::size_t>(i)];
+    // Shorter segments than the baseline's (a short capture): a coherent line
+    // keeps its amplitude while the noise floor of an amplitude spectrum rises
+    // as 1/sqrt(N), so prominences read 10 log10(T_base / T) dB lower.
+    if (is_line_prominence(i) && x.a.setup.segment_s < x.b.setup.segment_s)
+        s.median -= 10.0 * std::log10(x.b.setup.segment_s / x.a.setup.segment_s);
     cmp.baseline_median = s.median;
     cmp.baseline_sigma = s.sigma;
     cmp.change = cmp.value - s.median;

@@ -154,11 +154,18 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
                      static_cast<double>(L.segments_fail), CheckStatus::pass, {}};
     if (a.series.segments() < L.segments_fail) {
         seg.status = CheckStatus::fail;
-        seg.message = fmt("only %zu analysis segment(s) of %.1f s: too short for the statistics; record at least %.0f s",
-                          a.series.segments(), a.setup.segment_s, static_cast<double>(L.segments_warn) * a.setup.segment_s);
+        const double need_s = min_record_s(L.segments_fail, a.rpm);
+        seg.message =
+            a.rpm > 0.0
+                ? fmt("only %zu analysis segment(s) of %.2f s: too short for the statistics; a verdict needs %zu segments "
+                      "of %.0f shaft revolutions or %.2f s, whichever is longer: record at least %.1f s at %.0f rpm",
+                      a.series.segments(), a.setup.segment_s, L.segments_fail, kMinRevolutionsPerSegment, kMinSegmentS,
+                      need_s, a.rpm)
+                : fmt("only %zu analysis segment(s) of %.2f s: too short for the statistics; record at least %.1f s",
+                      a.series.segments(), a.setup.segment_s, need_s);
     } else if (a.series.segments() < L.segments_warn) {
         seg.status = CheckStatus::warn;
-        seg.message = fmt("only %zu analysis segments: the spread of the indicators is poorly known; record %.0f s or more",
+        seg.message = fmt("only %zu analysis segments: the spread of the indicators is poorly known; record %.1f s or more",
                           a.series.segments(), static_cast<double>(L.segments_warn) * a.setup.segment_s);
     }
     r.checks.push_back(seg);

@@ -101,6 +101,9 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
     try {
         if (setup && setup->fs_hz == r.info.fs_hz) {
             use = *setup;
+            // A short capture is cut into shorter segments (models::segment_for_record).
+            const double rpm = machine.rpm ? *machine.rpm : machine.rpm_hint;
+            use.segment_s = models::segment_for_record(r.info.duration_s(), setup->segment_s, rpm);
         } else {
             // A different rate than the baseline's: analyse in this file's own
             // bands so the mismatch can be reported (the verdict is indeterminate).
@@ -110,9 +113,12 @@ AnalyzedRecording analyze_file(const std::string& path, int channel, const Calib
     } catch (const std::invalid_argument& e) {
         throw InputError(path + ": " + e.what());
     }
-    if (r.info.duration_s() < use.segment_s)
+    if (r.info.duration_s() < use.segment_s) {
+        const double rpm = machine.rpm ? *machine.rpm : machine.rpm_hint;
         throw InputError(path + ": record of " + seconds_text(r.info.duration_s()) + " is shorter than one " +
-                         seconds_text(use.segment_s) + " analysis segment");
+                         seconds_text(use.segment_s) + " analysis segment; a verdict needs at least " +
+                         seconds_text(models::min_record_s(3, rpm)) + (rpm > 0.0 ? " at this speed" : ""));
+    }
     try {
         r.analysis = analyze_source(source, use, machine, progress, fidelity);
     } catch (const std::invalid_argument& e) {

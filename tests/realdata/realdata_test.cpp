@@ -8,6 +8,7 @@
 
 #include <cstdio>
 #include <cstdlib>
+#include <sndfile.h>
 #include <fstream>
 #include <sstream>
 #include <unistd.h>
@@ -378,6 +379,55 @@ TEST_CASE("Lab pump: a baseline learned at 700 and 1000 rpm judges the speeds be
         else
             CHECK(r.finding.verdict == models::Verdict::normal);
     }
+    fs::remove_all(dir);
+}
+
+namespace {
+// The first `seconds` of a real recording, written to `to` as 32-bit float (values unchanged).
+fs::path cut(const fs::path& from, double seconds, const fs::path& to) {
+    SF_INFO info{};
+    SNDFILE* in = sf_open(from.string().c_str(), SFM_READ, &info);
+    REQUIRE(in != nullptr);
+    std::vector<float> x(static_cast<std::size_t>(seconds * info.samplerate) * static_cast<std::size_t>(info.channels));
+    const sf_count_t got = sf_readf_float(in, x.data(), static_cast<sf_count_t>(x.size() / static_cast<std::size_t>(info.channels)));
+    sf_close(in);
+    SF_INFO out_info = info;
+    out_info.format = SF_FORMAT_WAV | SF_FORMAT_FLOAT;
+    SNDFILE* out = sf_open(to.string().c_str(), SFM_WRITE, &out_info);
+    REQUIRE(out != nullptr);
+    sf_writef_float(out, x.data(), got);
+    sf_close(out);
+    return to;
+}
+}  // namespace
+
+TEST_CASE("Lab pump at 1000 rpm: 2 s captures are judged as the whole records are", "[realdata]") {
+    // A collector's high-frequency capture is often 2 s: at 1011 rpm that is 33 revolutions, cut
+    // into 5 segments of 0.4 s (at least 6 revolutions each). Labels as in the whole-record test.
+    const fs::path dir = fs::temp_directory_path() / ("cavitas_realdata_c_" + std::to_string(::getpid()));
+    fs::create_directories(dir);
+    const auto b = learn({pump() / "1000rpm_healthy_r1_ch0_acc.wav"}, 1011, kPumpVanes, kPumpCal);
+    for (int run = 1; run <= 2; ++run)
+        for (const auto& [cond, rpm] : {std::pair{"healthy", 1011.0}, std::pair{"cav025", 1014.0}, std::pair{"cav050", 1018.0},
+                                        std::pair{"cav075", 1023.0}, std::pair{"cav100", 1026.0}}) {
+            const std::string name = std::string("1000rpm_") + cond + "_r" + std::to_string(run) + "_ch0_acc.wav";
+            if (run == 1 && std::string(cond) == "healthy") continue;  // the baseline itself
+            const Judged j = judge(cut(pump() / name, 2.0, dir / name), b, rpm, kPumpCal);
+            print(name + " (first 2 s)", j);
+            INFO(name);
+            CHECK(j.analysis.series.segments() >= 5);
+            if (std::string(cond) == "healthy")
+                CHECK(j.finding.verdict == models::Verdict::normal);
+            else
+                CHECK(cavitating(j.finding.verdict));
+        }
+    // 1 s at 1011 rpm is 17 revolutions, under the 18 of three 6-revolution segments: indeterminate,
+    // saying how long a record is needed.
+    const std::string name = "1000rpm_cav025_r1_ch0_acc.wav";
+    const Judged j = judge(cut(pump() / name, 1.0, dir / "one_second.wav"), b, 1014, kPumpCal);
+    CHECK(j.finding.verdict == models::Verdict::indeterminate);
+    REQUIRE_FALSE(j.finding.reasons.empty());
+    CHECK(j.finding.reasons.front().find("record at least 1.1 s") != std::string::npos);
     fs::remove_all(dir);
 }
 
