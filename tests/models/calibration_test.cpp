@@ -49,7 +49,7 @@ TEST_CASE("Reliability: the methods review's worked example, 5 bins", "[models][
     }
 }
 
-TEST_CASE("Reliability: the edge convention [b/B, (b+1)/B), 1.0 in the last bin", "[models][calibration]") {
+TEST_CASE("Reliability: the edge convention, bin b holds b/B up to but not (b+1)/B and 1.0 is in the last bin", "[models][calibration]") {
     // 0.8 with 5 bins lies in [0.8, 1.0], not in (0.6, 0.8] as a right-closed rule would put it
     // (the convention stated in models/calibration.hpp, numpy.digitize's right=False).
     const auto bin_of = [](double c, std::size_t bins) {
@@ -76,7 +76,7 @@ TEST_CASE("Reliability: the edge convention [b/B, (b+1)/B), 1.0 in the last bin"
     CHECK_THAT(r.mce, WithinAbs(0.2, 1e-15));
 }
 
-TEST_CASE("Reliability: a calibrated bin has no error; the Brier score still counts the spread", "[models][calibration]") {
+TEST_CASE("Reliability: a calibrated bin has no error, the Brier score still counts the spread", "[models][calibration]") {
     // Four predictions at 0.75, three right: accuracy 0.75 = confidence, ECE = MCE = 0 (exact in binary).
     // Brier = (3 x 0.25^2 + 0.75^2) / 4 = (0.1875 + 0.5625) / 4 = 0.1875 (by hand).
     const CalibrationReport r = reliability(std::vector<double>{0.75, 0.75, 0.75, 0.75}, std::vector<int>{1, 1, 0, 1});

@@ -208,7 +208,7 @@ TEST_CASE("A different rate, unit or channel from the baseline's fails", "[model
     CHECK(check(clean(), "channel", c) == CheckStatus::fail);
 }
 
-TEST_CASE("An HF band above the sensor's stated range fails; one inside it passes", "[models]") {
+TEST_CASE("An HF band above the sensor's stated range fails, one inside it passes", "[models]") {
     auto c = ctx();
     c.sensor_max_hz = 5000;  // magnet mount; the baseline's band reaches 10.24 kHz
     const auto r = assess_quality(clean(), base(), c);

@@ -64,7 +64,7 @@ TEST_CASE("Mann-Kendall and Theil-Sen: exact values counted by hand", "[models][
     CHECK_THAT(theil_sen_slope(tt, yy), WithinAbs(2.0, 1e-12));
 }
 
-TEST_CASE("A slowly worsening point is flagged before it reaches the alert; a flat one is not", "[models][trend]") {
+TEST_CASE("A slowly worsening point is flagged before it reaches the alert, a flat one is not", "[models][trend]") {
     // Synthetic visits every 28 days, HF over baseline creeping up by about 0.4 dB a visit with
     // +-0.15 dB of scatter, all under the +3 dB alert (every verdict would be normal).
     const double rise[] = {0.0, 0.55, 0.7, 1.3, 1.45, 2.1};

@@ -473,7 +473,7 @@ TEST_CASE("report: without its renderer module beside the executable, a clear er
     CHECK(real.err.find("cavitas-report.so") == std::string::npos);
 }
 
-TEST_CASE("FFT plans are kept in the cache folder and change no result; a damaged cache is ignored", "[cli]") {
+TEST_CASE("FFT plans are kept in the cache folder and change no result, a damaged cache is ignored", "[cli]") {
     // src/plan_store.hpp: CAVITAS_CACHE_DIR names the folder (empty = no cache).
     const fs::path cache = workdir() / "plan-cache";
     fs::remove_all(cache);
