@@ -188,22 +188,249 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::strin
     return classify(a, b, ctx, c);
 }
 
+namespace {
+
+// ---- Step 2: what each piece of evidence says, before anyone claims it ----
+
+struct Signs {
+    Comparison hf, lf, kurt, rate;
+    bool hf_alert = false, hf_strong = false;
+    bool impulsive_kurt = false, impulsive_rate = false;
+    bool lf_alert = false;
+    bool modulated = false;      ///< an integer-order envelope line no look-alike explains
+    std::string modulation_text;
+    bool bearing = false;
+    double b_order = 0.0, b_hz = 0.0, b_prom = 0.0;
+    std::string b_family;
+    bool mains = false;
+    bool gain_change = false;    ///< every band up alike, tones included
+    double gain_db = 0.0, gain_spread_db = 0.0;
+    bool impulsive() const { return impulsive_kurt || impulsive_rate; }
+};
+
+// Every band of the spectrum profile shifted alike (median shift over the
+// bands, and their 10-90 % spread): a gain, sensitivity or mount change
+// moves tones and floors together, which no flow or bearing process does.
+void read_gain(const RecordingAnalysis& a, const Baseline& b, Signs& s) {
+    if (b.spectrum.empty() || a.spectrum.center_hz != b.spectrum.center_hz || b.speed.speeds > 1) return;
+    const std::vector<double> now = a.spectrum.mean_db();
+    std::vector<double> shift;
+    for (std::size_t k = 0; k < now.size(); ++k) shift.push_back(now[k] - b.spectrum.median_db[k]);
+    if (shift.empty()) return;
+    s.gain_db = median(shift);
+    s.gain_spread_db = quantile(shift, 0.9) - quantile(shift, 0.1);
+    // 3 dB: the alert level; spread 3 dB and HF within 2 dB of LF: "alike". Our choices.
+    s.gain_change = s.gain_db >= 3.0 && s.gain_spread_db <= 3.0 && std::abs(s.hf.change - s.lf.change) <= 2.0 &&
+                    !s.impulsive() && !s.modulated;
+}
+
+Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const ClassifierConfig& c, const Finding& f) {
+    using SI = SegmentIndicator;
+    using RI = RecordingIndicator;
+    auto seg = [&](SI i) { return f.comparisons[static_cast<std::size_t>(i)]; };
+    auto rec = [&](RI i) { return f.comparisons[kSegmentIndicatorCount + static_cast<std::size_t>(i)]; };
+    Signs s;
+    s.hf = seg(SI::hf_level_db);
+    s.lf = seg(SI::lf_level_db);
+    s.kurt = seg(SI::hf_kurtosis);
+    s.rate = seg(SI::impulse_rate);
+    s.hf_alert = s.hf.change >= c.hf_alert_db && s.hf.z >= c.z_alert;
+    s.hf_strong = s.hf_alert && s.hf.change >= c.hf_developed_db;
+    s.impulsive_kurt = s.kurt.change >= c.kurtosis_rise && s.kurt.z >= c.z_alert;
+    s.impulsive_rate = s.rate.value >= 3.0 * s.rate.baseline_median + 5.0 && s.rate.z >= c.z_alert;
+    s.lf_alert = s.lf.change >= c.lf_alert_db && s.lf.z >= c.z_alert;
+    s.mains = a.mains_hz > 0.0;
+    s.bearing = find_bearing_like(a, s.b_order, s.b_hz, s.b_prom, s.b_family);
+
+    // An inner-race defect crosses the load zone once a revolution, so its
+    // impacts are modulated at the shaft rate: envelope lines at k x 1x as well
+    // as at BPFI and its f_r sidebands (methods review A4; Randall & Antoni 2011).
+    // With a bearing family present, an integer-order line is the bearing's
+    // unless it stands 3 dB (twice the power) above that comb (our choice).
+    const double comb_db = s.bearing ? shaft_comb_db(a) : 0.0;
+    auto explained_by_bearing = [&](double hz) {
+        if (!s.bearing) return false;
+        // Slip smears bearing lines by 1-2 % (Randall & Antoni 2011), more at harmonics.
+        const double tol = std::max(3.0 / a.setup.segment_s, 0.03 * hz);
+        for (int k = 1; k <= 6; ++k)
+            if (std::abs(k * s.b_hz - hz) <= tol) return true;
+        const double order = hz / shaft_hz(a.rpm);
+        if (std::abs(order - std::round(order)) < 0.02) {
+            const auto p = order_line_db(a, static_cast<int>(std::lround(order)));
+            return !p || *p < comb_db + 3.0;
+        }
+        return false;
+    };
+    // Integer-order modulation: BPF (needs the vane count) or, failing that, 1x.
+    if (a.rpm > 0.0) {
+        auto check = [&](const Comparison& line, const char* name, double hz) {
+            if (line.value >= c.line_prominence_db && line.change >= c.line_rise_db && !explained_by_bearing(hz)) {
+                s.modulated = true;
+                if (s.modulation_text.empty())
+                    s.modulation_text = fmt("envelope line at %s %.1f Hz, %.1f dB above local floor (baseline %.1f dB)",
+                                            name, hz, line.value, line.baseline_median);
+            }
+        };
+        if (a.vanes > 0) {
+            const double bpf = blade_pass_hz(a.rpm, a.vanes);
+            check(rec(RI::ses_bpf_prominence_db), "BPF", bpf);
+            // Sparse collapses make a noisy envelope spectrum whose floor hides the
+            // line; the depth of modulation (line / mean squared envelope) still
+            // shows it. Count it when the depth is well over the baseline's and the
+            // line still stands a little over its floor.
+            const Comparison depth = rec(RI::modulation_bpf), prom = rec(RI::ses_bpf_prominence_db);
+            if (!s.modulated && depth.z >= c.z_alert && depth.value >= 2.0 * depth.baseline_median &&
+                prom.value >= c.weak_line_prominence_db && !explained_by_bearing(bpf)) {
+                s.modulated = true;
+                s.modulation_text = fmt("HF modulation depth at BPF %.1f Hz %.2f vs baseline %.2f (z = %.1f; envelope "
+                                        "line %.1f dB over its floor)",
+                                        bpf, depth.value, depth.baseline_median, depth.z, prom.value);
+            }
+            check(rec(RI::ses_2bpf_prominence_db), "2xBPF", 2.0 * bpf);
+        } else {
+            check(rec(RI::ses_1x_prominence_db), "1x", shaft_hz(a.rpm));
+        }
+    }
+    read_gain(a, b, s);
+    return s;
+}
+
+// ---- Step 3: which explanation wins, for each piece of evidence ----
+
+enum class Cause { none, cavitation, bearing, recirculation, gain_change };
+
+struct Attribution {
+    Cause hf_rise = Cause::none, impulses = Cause::none, lines = Cause::none;
+    bool lf_support = false;  ///< an LF rise beside a cavitation HF rise: lifts the grade
+};
+
+Attribution attribute(const Signs& s) {
+    Attribution at;
+    // A rise confined to the low band is flow turbulence or recirculation; the
+    // sparse impacts and blade-pass modulation that come with it at low flow are
+    // that recirculation's, not a separate cavitation (one cause, one finding).
+    const bool recirculation = s.lf_alert && !s.hf_alert && !s.mains;
+    // A bearing family claims the impacts and the HF rise unless blade passage
+    // itself (a line the bearing does not explain) is modulated.
+    const bool bearing_claims = s.bearing && !s.modulated;
+    if (s.modulated) at.lines = recirculation ? Cause::recirculation : Cause::cavitation;
+    if (s.impulsive())
+        at.impulses = bearing_claims ? Cause::bearing : recirculation ? Cause::recirculation : Cause::cavitation;
+    if (s.hf_alert)
+        at.hf_rise = s.gain_change ? Cause::gain_change : bearing_claims ? Cause::bearing : Cause::cavitation;
+    else if (s.gain_change)
+        at.hf_rise = Cause::gain_change;
+    at.lf_support = at.hf_rise == Cause::cavitation && s.lf.change >= 1.5;
+    return at;
+}
+
+// ---- Step 4: the grade, with every sign that lifts or lowers it printed ----
+
+void say_signs(const RecordingAnalysis& a, const Signs& s, const Attribution& at, const Finding& in, Finding& f) {
+    const std::string band = khz(a.setup.hf.low_hz) + "-" + khz(a.setup.hf.high_hz) + " kHz";
+    if (s.hf_alert)
+        f.evidence.push_back(fmt("HF band %s %+.1f dB over baseline (z = %.1f, spread %.1f dB)", band.c_str(), s.hf.change,
+                                 s.hf.z, s.hf.baseline_sigma));
+    else
+        f.evidence.push_back(fmt("HF band %s %+.1f dB against baseline (z = %.1f, spread %.1f dB): within the baseline's "
+                                 "range",
+                                 band.c_str(), s.hf.change, s.hf.z, s.hf.baseline_sigma));
+    if (s.impulsive_kurt)
+        f.evidence.push_back(fmt("HF band kurtosis %.1f vs baseline %.1f (z = %.1f): impulsive", s.kurt.value,
+                                 s.kurt.baseline_median, s.kurt.z));
+    if (s.impulsive_rate)
+        f.evidence.push_back(fmt("HF impulse rate %.0f /s vs baseline %.0f /s", s.rate.value, s.rate.baseline_median));
+    if (s.modulated) f.evidence.push_back(s.modulation_text);
+    if (s.impulsive() && a.kurtogram_band.bandwidth_hz > 0.0) {
+        const Comparison& k = in.comparisons[kSegmentIndicatorCount + static_cast<std::size_t>(RecordingIndicator::kurtogram_max)];
+        f.evidence.push_back(fmt("most impulsive band (fast kurtogram) %s-%s kHz, kurtosis %.1f vs baseline %.1f",
+                                 khz(a.kurtogram_band.low_hz()).c_str(), khz(a.kurtogram_band.high_hz()).c_str(), k.value,
+                                 k.baseline_median));
+    }
+    if (at.lf_support)
+        f.evidence.push_back(fmt("LF band %.0f-%.0f Hz %+.1f dB beside the HF rise: flow unsteadiness of attached cavities "
+                                 "(supports the grade)",
+                                 a.setup.lf.low_hz, a.setup.lf.high_hz, s.lf.change));
+    if (at.hf_rise == Cause::bearing && s.hf_alert)
+        f.evidence.push_back("HF rise explained by the bearing-like impacts (see other findings), not counted as cavitation");
+    if (at.impulses == Cause::recirculation || at.lines == Cause::recirculation)
+        f.evidence.push_back("impacts and blade-pass modulation without an HF rise, beside an LF rise: explained by "
+                             "recirculation (see other findings), not counted as cavitation");
+}
+
+void say_lookalikes(const RecordingAnalysis& a, const Signs& s, const Attribution& at, Finding& f) {
+    if (s.mains)
+        f.other_findings.push_back(fmt("mains hum at %.0f Hz with %d harmonic line(s): electrical pickup (check cable shield "
+                                       "and grounding), not cavitation",
+                                       a.mains_hz, a.mains_lines - 1));
+    if (s.bearing)
+        f.other_findings.push_back(
+            fmt("periodic impacts at %.2fx shaft speed (%.1f Hz, %.1f dB over the envelope floor) %s: bearing-like "
+                "(non-integer order)%s; check the bearings",
+                s.b_order, s.b_hz, s.b_prom, s.b_family.c_str(),
+                at.hf_rise == Cause::cavitation ? ", beside the cavitation: both are present" : ", not cavitation"));
+    if (s.lf_alert && !s.hf_alert && !s.mains) {
+        const bool claimed = at.impulses == Cause::recirculation || at.lines == Cause::recirculation;
+        f.other_findings.push_back(
+            fmt("LF band %.0f-%.0f Hz %+.1f dB with no HF rise: flow turbulence or recirculation%s; check the flow "
+                "against the pump's minimum continuous flow and the operating point",
+                a.setup.lf.low_hz, a.setup.lf.high_hz, s.lf.change,
+                claimed ? " at low flow, with impacts at blade passage (recirculation at the vane inlets can erode "
+                          "them if it persists)"
+                        : ""));
+    }
+}
+
+void grade(const Signs& s, const Attribution& at, const ClassifierConfig& c, Finding& f) {
+    const bool hf = at.hf_rise == Cause::cavitation;
+    const bool imp = at.impulses == Cause::cavitation;
+    const bool lines = at.lines == Cause::cavitation;
+    const int support = (lines ? 1 : 0) + (imp ? 1 : 0) + (at.lf_support ? 1 : 0);
+    if (hf && s.hf_strong && support >= 1) {
+        f.verdict = Verdict::developed;
+        f.confidence = std::min(0.97, 0.6 + 0.1 * support + std::min(0.15, (s.hf.change - c.hf_developed_db) / 40.0));
+    } else if (hf && s.hf_strong) {
+        // Strong HF rise with no cavitation signature at all: cavitation is the
+        // likeliest cause, but say how unsure that is.
+        f.verdict = Verdict::developed;
+        f.confidence = 0.5;
+        f.warnings.push_back("HF rise without impulsiveness or integer-order modulation: confirm with the operating point");
+    } else if (hf && (imp || lines)) {
+        f.verdict = Verdict::incipient;
+        f.confidence = std::min(0.95, 0.6 + 0.1 * support + std::min(0.1, (s.hf.change - c.hf_alert_db) / 30.0));
+    } else if (imp && lines) {
+        f.verdict = Verdict::incipient;
+        f.confidence = 0.6;
+        f.evidence.push_back("sparse collapses locked to blade passage before the HF level has risen");
+    } else if (hf) {
+        f.verdict = Verdict::incipient;
+        f.confidence = 0.45;
+        f.warnings.push_back("HF rise without impulsiveness or integer-order modulation: a changed mount or a new noise source "
+                             "can do this too; confirm with the operating point");
+    } else {
+        f.verdict = Verdict::normal;
+        // Closer to the alert level -> less sure; a sign that something else claimed is a doubt too.
+        const double margin = std::clamp((c.hf_alert_db - s.hf.change) / c.hf_alert_db, 0.0, 1.0);
+        f.confidence = at.hf_rise == Cause::bearing ? 0.75 : 0.6 + 0.3 * margin;
+        if (s.impulsive() || s.modulated) f.confidence -= 0.1;
+    }
+}
+
+}  // namespace
+
 Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingContext& context,
                  const ClassifierConfig& c) {
     Finding f;
     Ctx x{a, b, c, f, unit_key(context.unit)};
-    using SI = SegmentIndicator;
-    using RI = RecordingIndicator;
-    for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) f.comparisons.push_back(compare_segment(x, static_cast<SI>(i)));
+    for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i)
+        f.comparisons.push_back(compare_segment(x, static_cast<SegmentIndicator>(i)));
     for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i)
-        f.comparisons.push_back(compare_recording(x, static_cast<RI>(i)));
-    auto seg = [&](SI i) -> const Comparison& { return f.comparisons[static_cast<std::size_t>(i)]; };
-    auto rec = [&](RI i) -> const Comparison& { return f.comparisons[kSegmentIndicatorCount + static_cast<std::size_t>(i)]; };
+        f.comparisons.push_back(compare_recording(x, static_cast<RecordingIndicator>(i)));
+    f.baseline_warnings = b.warnings;
 
-    // --- Can the record be judged at all? ---
+    // Step 1: can the record be judged at all (quality, speed confirmed and covered, same chain)?
     f.quality = assess_quality(a, b, context, c.quality);
     f.reasons = f.quality.reasons();
-    f.baseline_warnings = b.warnings;
     if (!f.reasons.empty()) {
         f.verdict = Verdict::indeterminate;
         f.confidence = 0.0;
@@ -214,174 +441,43 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
         f.warnings.push_back(w);
         confidence_scale *= 0.85;
     }
-    const double speed_change = a.rpm > 0.0 && b.rpm > 0.0 ? a.rpm / b.rpm - 1.0 : 0.0;
     if (a.rpm_estimated) {
         f.evidence.push_back(fmt("shaft speed %.1f rpm estimated from the spectrum (+-%.1f rpm; not given with --rpm), %s",
                                  a.rpm, a.rpm_resolution, a.speed_how.c_str()));
         confidence_scale *= 0.95;
     }
     if (b.sources.size() == 1) {
-        f.warnings.push_back("baseline learned from a single recording: its spread may be understated");
+        f.warnings.push_back("baseline learned from a single recording: the spread between visits is not known, so the "
+                             "mount's repeatability floor stands in for it");
         confidence_scale *= 0.9;
     }
+    const double speed_change = a.rpm > 0.0 && b.rpm > 0.0 ? a.rpm / b.rpm - 1.0 : 0.0;
     if (std::abs(speed_change) >= 0.01 && b.speed.speeds <= 1)
-        f.other_findings.push_back(fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: a speed change, not "
-                                       "cavitation; envelope lines compared in orders",
+        f.other_findings.push_back(fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: levels brought to "
+                                       "this speed (a speed change, not cavitation), envelope lines compared in orders",
                                        a.rpm, 100.0 * speed_change, b.rpm));
 
-    // --- The indicators ---
-    const Comparison& hf = seg(SI::hf_level_db);
-    const Comparison& lf = seg(SI::lf_level_db);
-    const Comparison& kurt = seg(SI::hf_kurtosis);
-    const Comparison& rate = seg(SI::impulse_rate);
-    f.hf_rise_db = hf.change;
-    f.lf_rise_db = lf.change;
-    const std::string band = khz(a.setup.hf.low_hz) + "-" + khz(a.setup.hf.high_hz) + " kHz";
-    const bool hf_alert = hf.change >= c.hf_alert_db && hf.z >= c.z_alert;
-    const bool hf_strong = hf_alert && hf.change >= c.hf_developed_db;
-    const bool impulsive_kurt = kurt.change >= c.kurtosis_rise && kurt.z >= c.z_alert;
-    const bool impulsive_rate = rate.value >= 3.0 * rate.baseline_median + 5.0 && rate.z >= c.z_alert;
-    const bool impulsive = impulsive_kurt || impulsive_rate;
-
-    double b_order = 0.0, b_hz = 0.0, b_prom = 0.0;
-    std::string b_family;
-    f.bearing_like = find_bearing_like(a, b_order, b_hz, b_prom, b_family);
-    f.bearing_order = b_order;
-    // A line of the bearing family (up to its 6th harmonic) that happens to fall
-    // on an integer order explains that line: it is not blade-pass modulation.
-    // An inner-race defect crosses the load zone once a revolution, so its
-    // impacts are modulated at the shaft rate: envelope lines at k x 1x as well
-    // as at BPFI and its f_r sidebands (methods review A4; Randall & Antoni 2011).
-    // With a bearing family present, an integer-order line is the bearing's
-    // unless it stands 3 dB (twice the power) above that comb (our choice).
-    const double comb_db = f.bearing_like ? shaft_comb_db(a) : 0.0;
-    auto explained_by_bearing = [&](double hz) {
-        if (!f.bearing_like) return false;
-        // Slip smears bearing lines by 1-2 % (Randall & Antoni 2011), more at harmonics.
-        const double tol = std::max(3.0 / a.setup.segment_s, 0.03 * hz);
-        for (int k = 1; k <= 6; ++k)
-            if (std::abs(k * b_hz - hz) <= tol) return true;
-        const double order = hz / shaft_hz(a.rpm);
-        if (std::abs(order - std::round(order)) < 0.02) {
-            const auto p = order_line_db(a, static_cast<int>(std::lround(order)));
-            return !p || *p < comb_db + 3.0;
-        }
-        return false;
-    };
-
-    // Integer-order modulation: BPF (needs the vane count) or, failing that, 1x.
-    bool modulated = false;
-    std::string modulation_text;
-    if (a.rpm > 0.0) {
-        const double fr = shaft_hz(a.rpm);
-        auto check = [&](const Comparison& line, const char* name, double hz) {
-            if (line.value >= c.line_prominence_db && line.change >= c.line_rise_db && !explained_by_bearing(hz)) {
-                modulated = true;
-                if (modulation_text.empty())
-                    modulation_text = fmt("envelope line at %s %.1f Hz, %.1f dB above local floor (baseline %.1f dB)", name, hz,
-                                          line.value, line.baseline_median);
-            }
-        };
-        if (a.vanes > 0) {
-            const double bpf = blade_pass_hz(a.rpm, a.vanes);
-            check(rec(RI::ses_bpf_prominence_db), "BPF", bpf);
-            // Sparse collapses make a noisy envelope spectrum whose floor hides the
-            // line; the depth of modulation (line / mean squared envelope) still
-            // shows it. Count it when the depth is well over the baseline's and the
-            // line still stands a little over its floor.
-            const Comparison& depth = rec(RI::modulation_bpf);
-            const Comparison& prom = rec(RI::ses_bpf_prominence_db);
-            if (!modulated && depth.z >= c.z_alert && depth.value >= 2.0 * depth.baseline_median &&
-                prom.value >= c.weak_line_prominence_db && !explained_by_bearing(bpf)) {
-                modulated = true;
-                modulation_text = fmt("HF modulation depth at BPF %.1f Hz %.2f vs baseline %.2f (z = %.1f; envelope line "
-                                      "%.1f dB over its floor)",
-                                      bpf, depth.value, depth.baseline_median, depth.z, prom.value);
-            }
-            check(rec(RI::ses_2bpf_prominence_db), "2xBPF", 2.0 * blade_pass_hz(a.rpm, a.vanes));
-        }
-        check(rec(RI::ses_1x_prominence_db), "1x", fr);
+    // Steps 2-4: the signs, their causes, the grade.
+    const Signs s = read_signs(a, b, c, f);
+    const Attribution at = attribute(s);
+    f.hf_rise_db = s.hf.change;
+    f.lf_rise_db = s.lf.change;
+    f.bearing_like = s.bearing;
+    f.bearing_order = s.b_order;
+    if (at.hf_rise == Cause::gain_change) {
+        f.verdict = Verdict::indeterminate;
+        f.confidence = 0.0;
+        f.reasons.push_back(fmt("every band rose alike by %.1f dB (HF %+.1f dB, LF %+.1f dB, tones included; spread over "
+                                "the bands %.1f dB): a sensor, gain or calibration change, not a process; check the sensor, "
+                                "its mount and the --full-scale setting, then re-record",
+                                s.gain_db, s.hf.change, s.lf.change, s.gain_spread_db));
+        return f;
     }
-
-    // A bearing-like family only yields to cavitation when the blade-pass line
-    // itself (not 1x, which bearing faults also show) is modulated.
-    bool bpf_modulated = false;
-    if (a.vanes > 0 && a.rpm > 0.0) {
-        const Comparison& lb = rec(RI::ses_bpf_prominence_db);
-        bpf_modulated = lb.value >= c.line_prominence_db && lb.change >= c.line_rise_db &&
-                        !explained_by_bearing(blade_pass_hz(a.rpm, a.vanes));
-    }
-
-    if (hf_alert)
-        f.evidence.push_back(fmt("HF band %s %+.1f dB over baseline (z = %.1f)", band.c_str(), hf.change, hf.z));
-    else
-        f.evidence.push_back(fmt("HF band %s %+.1f dB against baseline (z = %.1f): within the baseline's range", band.c_str(),
-                                 hf.change, hf.z));
-    if (impulsive_kurt)
-        f.evidence.push_back(fmt("HF band kurtosis %.1f vs baseline %.1f (z = %.1f): impulsive", kurt.value,
-                                 kurt.baseline_median, kurt.z));
-    if (impulsive_rate)
-        f.evidence.push_back(fmt("HF impulse rate %.0f /s vs baseline %.0f /s", rate.value, rate.baseline_median));
-    if (modulated) f.evidence.push_back(modulation_text);
-    if (impulsive && a.kurtogram_band.bandwidth_hz > 0.0) {
-        const Comparison& k = rec(RI::kurtogram_max);
-        f.evidence.push_back(fmt("most impulsive band (fast kurtogram) %s-%s kHz, kurtosis %.1f vs baseline %.1f",
-                                 khz(a.kurtogram_band.low_hz()).c_str(), khz(a.kurtogram_band.high_hz()).c_str(), k.value,
-                                 k.baseline_median));
-    }
-
-    const bool mains = a.mains_hz > 0.0;
-    if (mains)
-        f.other_findings.push_back(fmt("mains hum at %.0f Hz with %d harmonic line(s): electrical pickup (check cable shield "
-                                       "and grounding), not cavitation",
-                                       a.mains_hz, a.mains_lines - 1));
-    if (f.bearing_like)
-        f.other_findings.push_back(fmt("periodic impacts at %.2fx shaft speed (%.1f Hz, %.1f dB over the envelope floor) %s: "
-                                       "bearing-like (non-integer order), not cavitation; check the bearings",
-                                       b_order, b_hz, b_prom, b_family.c_str()));
-    if (lf.change >= c.lf_alert_db && lf.z >= c.z_alert && !hf_alert && !mains)
-        f.other_findings.push_back(fmt("LF band %.0f-%.0f Hz %+.1f dB with no HF rise: flow turbulence or recirculation, "
-                                       "not cavitation; check the operating point",
-                                       a.setup.lf.low_hz, a.setup.lf.high_hz, lf.change));
-
-    // --- The verdict ---
-    const bool bearing_blocks = f.bearing_like && !bpf_modulated;
-    const int support = (modulated ? 1 : 0) + (impulsive ? 1 : 0) + (lf.change >= 1.5 ? 1 : 0);
-    if (bearing_blocks) {
-        f.verdict = Verdict::normal;
-        f.confidence = 0.75;
-        if (hf_alert) f.evidence.push_back("HF rise explained by the bearing-like impacts (see other findings)");
-    } else if (hf_strong && support >= 1) {
-        f.verdict = Verdict::developed;
-        f.confidence = std::min(0.97, 0.6 + 0.1 * support + std::min(0.15, (hf.change - c.hf_developed_db) / 40.0));
-    } else if (hf_strong) {
-        // Strong HF rise with no cavitation signature at all: cavitation is the
-        // likeliest cause, but say how unsure that is.
-        f.verdict = Verdict::developed;
-        f.confidence = 0.5;
-        f.warnings.push_back("HF rise without impulsiveness or integer-order modulation: confirm with the operating point");
-    } else if (hf_alert && (impulsive || modulated)) {
-        f.verdict = Verdict::incipient;
-        f.confidence = std::min(0.95, 0.6 + 0.1 * support + std::min(0.1, (hf.change - c.hf_alert_db) / 30.0));
-    } else if (impulsive && modulated) {
-        f.verdict = Verdict::incipient;
-        f.confidence = 0.6;
-        f.evidence.push_back("sparse collapses locked to blade passage before the HF level has risen");
-    } else if (hf_alert) {
-        f.verdict = Verdict::incipient;
-        f.confidence = 0.45;
-        f.warnings.push_back("HF rise without impulsiveness or integer-order modulation: a changed mount or a new noise source "
-                             "can do this too; confirm with the operating point");
-    } else {
-        f.verdict = Verdict::normal;
-        // Closer to the alert level -> less sure.
-        const double margin = std::clamp((c.hf_alert_db - hf.change) / c.hf_alert_db, 0.0, 1.0);
-        f.confidence = 0.6 + 0.3 * margin;
-        if (impulsive || modulated) f.confidence -= 0.1;
-    }
+    say_signs(a, s, at, f, f);
+    say_lookalikes(a, s, at, f);
+    grade(s, at, c, f);
     f.confidence = std::clamp(f.confidence * confidence_scale, 0.05, 0.99);
     // A yardstick with a known defect cannot give a sure reading (our choice of cap).
-    f.baseline_warnings = b.warnings;
     if (!b.warnings.empty()) {
         f.warnings.push_back(fmt("the baseline carries %zu warning(s) of its own (see baseline warnings): every "
                                  "reading against it is less sure",

@@ -3,6 +3,7 @@
 #include <catch2/catch.hpp>
 
 #include <algorithm>
+#include <cmath>
 
 #include "models/classifier.hpp"
 
@@ -180,4 +181,85 @@ TEST_CASE("Every cavitation caution names lock-out and deference to codes", "[mo
     CHECK(mentions(c, "lock out"));
     CHECK(mentions(c, "weaken"));
     CHECK(mentions(c, "local codes"));
+}
+
+// ---- Attribution: every piece of evidence has one cause, and no finding calls
+// the same evidence cavitation and not cavitation (rules: classifier.cpp, step 3).
+
+namespace {
+// A spectrum profile of 12 bands at -50 dB re 1 g^2/Hz in every segment, shifted by `by` dB.
+void profile(RecordingAnalysis& a, double by) {
+    a.spectrum.center_hz.clear();
+    for (int k = 0; k < 12; ++k) a.spectrum.center_hz.push_back(100.0 * std::pow(2.0, k / 2.0));
+    a.spectrum.segment_db.assign(12 * a.series.segments(), static_cast<float>(-50.0 + by));
+}
+Baseline base_with_profile() {
+    auto m = [] {
+        auto a = make();
+        profile(a, 0.0);
+        return a;
+    };
+    Baseline b = learn_baseline({m(), m(), m()});
+    b.sources.resize(3);
+    b.unit = "g";
+    return b;
+}
+}  // namespace
+
+TEST_CASE("Impacts at blade passage beside an LF rise with no HF rise are recirculation, said once", "[models]") {
+    // The shut-off case: LF +7.5 dB, sparse impacts, a BPF line; the HF level has not moved.
+    auto a = make();
+    shift(a, SI::lf_level_db, 7.5);
+    shift(a, SI::hf_kurtosis, 3.0);
+    set(a, RI::ses_bpf_prominence_db, 12.0);
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(mentions(f.other_findings, "recirculation"));
+    CHECK_FALSE(mentions(f.evidence, "sparse collapses"));
+    CHECK(mentions(f.evidence, "explained by recirculation"));
+}
+
+TEST_CASE("Every band up alike, tones included, is a gain change: no verdict", "[models]") {
+    auto a = make();
+    profile(a, 6.0);
+    shift(a, SI::hf_level_db, 6.0);
+    shift(a, SI::lf_level_db, 6.0);
+    const Finding f = classify(a, base_with_profile(), "g");
+    CHECK(f.verdict == Verdict::indeterminate);
+    CHECK(mentions(f.reasons, "gain"));
+    // The same HF rise with the LF band and the spectrum's low bands unmoved is not a gain change.
+    auto c = make();
+    profile(c, 0.0);
+    shift(c, SI::hf_level_db, 6.0);
+    shift(c, SI::hf_kurtosis, 3.0);
+    CHECK(classify(c, base_with_profile(), "g").verdict == Verdict::incipient);
+}
+
+TEST_CASE("The LF rise that lifts a developed grade is printed", "[models]") {
+    auto a = make();
+    shift(a, SI::hf_level_db, 15.0);
+    shift(a, SI::lf_level_db, 2.5);
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::developed);
+    CHECK(mentions(f.evidence, "LF band"));
+    CHECK(mentions(f.evidence, "supports the grade"));
+}
+
+TEST_CASE("A bearing family explains an HF rise, its impacts and the blade-pass line of its shaft comb", "[models]") {
+    // An inner-race family at 5.41x with f_r sidebands; the envelope spectrum carries the comb
+    // k x 1x at equal height, BPF (7x) among them: no line stands out, so nothing is cavitation.
+    auto a = make();
+    shift(a, SI::hf_level_db, 12.0);
+    shift(a, SI::hf_kurtosis, 5.0);
+    set(a, RI::ses_bpf_prominence_db, 10.0);
+    const double fr = 1485.0 / 60.0;
+    a.envelope_peaks = {{5.41 * fr, 5.41, 18.0}, {4.41 * fr, 4.41, 10.0}, {6.41 * fr, 6.41, 10.0}};
+    a.envelope_bin_hz = 0.25;
+    a.envelope_spectrum.assign(static_cast<std::size_t>(20 * fr / 0.25), 1.0);
+    for (int k = 1; k <= 16; ++k) a.envelope_spectrum[static_cast<std::size_t>(std::lround(k * fr / 0.25))] = 3.0;
+    const Finding f = classify(a, base(), "g");
+    CHECK(f.verdict == Verdict::normal);
+    CHECK(mentions(f.other_findings, "not cavitation"));
+    CHECK(mentions(f.evidence, "explained by the bearing"));
+    CHECK_FALSE(mentions(f.evidence, "envelope line at BPF"));
 }
