@@ -10,7 +10,9 @@
 #include <sndfile.h>
 #include <unistd.h>
 
+#include <bit>
 #include <cmath>
+#include <cstdint>
 #include <filesystem>
 #include <numbers>
 #include <set>
@@ -123,7 +125,7 @@ std::vector<float> read_back(const std::string& path, SF_INFO& info) {
 
 }  // namespace
 
-TEST_CASE("The same seed gives identical samples and another seed gives different ones", "[tools]") {
+TEST_CASE("synth: the same seed gives identical samples and another seed gives different ones", "[tools]") {
     const auto a = synth::synthesize(p101(synth::Kind::developed, 5, 2.0));
     const auto b = synth::synthesize(p101(synth::Kind::developed, 5, 2.0));
     const auto c = synth::synthesize(p101(synth::Kind::developed, 6, 2.0));
@@ -132,7 +134,7 @@ TEST_CASE("The same seed gives identical samples and another seed gives differen
     CHECK(a != c);
 }
 
-TEST_CASE("A healthy recording carries the shaft and blade-pass tones at their generated amplitudes", "[tools]") {
+TEST_CASE("synth: a healthy recording carries the shaft and blade-pass tones at their generated amplitudes", "[tools]") {
     const auto spec = p101(synth::Kind::healthy, 21);
     const auto rec = synth::synthesize_recording(spec);
     const double fs = spec.machine.fs_hz;
@@ -151,7 +153,7 @@ TEST_CASE("A healthy recording carries the shaft and blade-pass tones at their g
     CHECK(std::sqrt(m2 / static_cast<double>(rec.g.size())) == Approx(0.095).margin(0.02));
 }
 
-TEST_CASE("Cavitation raises the HF band over the healthy twin by the documented ranges", "[tools]") {
+TEST_CASE("synth: cavitation raises the HF band over the healthy twin by the documented ranges", "[tools]") {
     // Same seed: identical background and tones, so the difference is the cavitation.
     const auto spec_h = p101(synth::Kind::healthy, 33);
     const double fs = spec_h.machine.fs_hz;
@@ -181,7 +183,7 @@ TEST_CASE("Cavitation raises the HF band over the healthy twin by the documented
     CHECK(lf_rise < 4.5);
 }
 
-TEST_CASE("Every severity parameter can be set directly", "[tools]") {
+TEST_CASE("synth: every severity parameter can be set directly", "[tools]") {
     auto spec = p101(synth::Kind::incipient, 44, 2.0);
     synth::FaultParams p = synth::draw_params(synth::Kind::incipient, 0.5, 44);
     p.cavitation.collapse_rate_per_s = 40.0;
@@ -194,7 +196,7 @@ TEST_CASE("Every severity parameter can be set directly", "[tools]") {
     CHECK(rise == Approx(6.0).margin(1.5));
 }
 
-TEST_CASE("Bearing defect orders are at least 0.15 away from any integer", "[tools]") {
+TEST_CASE("synth: bearing defect orders are at least 0.15 away from any integer", "[tools]") {
     for (std::uint64_t seed = 1; seed <= 300; ++seed) {
         const double order = synth::draw_params(synth::Kind::bearing, 0.5, seed).bearing.order;
         INFO("seed " << seed << " order " << order);
@@ -212,7 +214,7 @@ TEST_CASE("Bearing defect orders are at least 0.15 away from any integer", "[too
     CHECK(b.kurtosis > 4.5);
 }
 
-TEST_CASE("The look-alikes change only what they are meant to change", "[tools]") {
+TEST_CASE("synth: the look-alikes change only what they are meant to change", "[tools]") {
     const auto spec_h = p101(synth::Kind::healthy, 66, 2.0);
     const double fs = spec_h.machine.fs_hz;
     const auto healthy = synth::synthesize(spec_h);
@@ -239,7 +241,7 @@ TEST_CASE("The look-alikes change only what they are meant to change", "[tools]"
         CHECK(synth::label_of(k) == "normal");
 }
 
-TEST_CASE("write_wav then reading back reproduces the values within the quantisation step", "[tools]") {
+TEST_CASE("synth: write_wav then reading back reproduces the values within the quantisation step", "[tools]") {
     const auto dir = scratch_dir();
     const auto rec = synth::synthesize_recording(p101(synth::Kind::developed, 77, 0.5));
     struct Case {
@@ -269,7 +271,7 @@ TEST_CASE("write_wav then reading back reproduces the values within the quantisa
     std::filesystem::remove_all(dir);
 }
 
-TEST_CASE("write_wav names the file when its folder cannot be written", "[tools]") {
+TEST_CASE("synth: write_wav names the file when its folder cannot be written", "[tools]") {
     const std::vector<float> g(100, 0.0f);
     const std::string path = (std::filesystem::temp_directory_path() / "cavitas-no-such-folder" / "sub" / "a.wav").string();
     try {
@@ -280,7 +282,7 @@ TEST_CASE("write_wav names the file when its folder cannot be written", "[tools]
     }
 }
 
-TEST_CASE("The demo and evaluation plans have the promised content", "[tools]") {
+TEST_CASE("synth: the demo and evaluation plans have the promised content", "[tools]") {
     const auto demo = synth::demo_plan();
     std::set<std::string> names;
     std::uintmax_t bytes = 0;
@@ -315,4 +317,78 @@ TEST_CASE("The demo and evaluation plans have the promised content", "[tools]") 
     CHECK(seeds.size() == eval.size());
     CHECK(baselines == 9);
     CHECK(developed == 6);
+}
+
+namespace {
+
+/// FNV-1a, 64 bit (Fowler/Noll/Vo, public domain): a plain, order-sensitive digest.
+struct Fnv1a {
+    std::uint64_t h = 0xcbf29ce484222325ULL;
+    void bytes(const void* p, std::size_t n) {
+        const auto* b = static_cast<const unsigned char*>(p);
+        for (std::size_t i = 0; i < n; ++i) {
+            h ^= b[i];
+            h *= 0x100000001b3ULL;
+        }
+    }
+    void text(const std::string& s) { bytes(s.data(), s.size() + 1); }  // with the terminator: "ab","c" != "a","bc"
+    void number(double v) {
+        const auto u = std::bit_cast<std::uint64_t>(v);
+        bytes(&u, sizeof u);
+    }
+    void samples(const std::vector<float>& g) {
+        for (float v : g) {
+            const auto u = std::bit_cast<std::uint32_t>(v);
+            bytes(&u, sizeof u);
+        }
+    }
+};
+
+void digest_plan_row(Fnv1a& d, const synth::PlannedRecording& r) {
+    d.text(r.file);
+    d.text(r.role);
+    d.text(r.point);
+    d.text(r.datetime);
+    d.text(r.spec.machine.tag);
+    d.text(synth::name_of(r.spec.kind));
+    d.text(synth::name_of(r.encoding));
+    d.text(r.sidecar_toml);
+    d.number(r.spec.duration_s);
+    d.number(r.spec.severity);
+    d.number(r.spec.rpm_override);
+    d.number(static_cast<double>(r.spec.seed));
+}
+
+}  // namespace
+
+TEST_CASE("synth: the evaluation and demo sets are unchanged by later additions to the generator", "[tools]") {
+    // The reference digests were computed with the generator as it stood before
+    // the field set and its CaseSpec fields were added (commit 0ebafe4), from
+    // eval_plan(6, 1) - the set `cavitas-synth eval` writes for ctest - and
+    // demo_plan(), whose recordings are committed in samples/. They cover every
+    // row of both plans and the samples of a few recordings of each set (the
+    // first of every kind of OW-P101's eval tests, a baseline of each machine,
+    // two demo recordings), bit for bit.
+    Fnv1a plans;
+    const auto eval = synth::eval_plan(6, 1);
+    for (const auto& r : eval) digest_plan_row(plans, r);
+    const auto demo = synth::demo_plan();
+    for (const auto& r : demo) digest_plan_row(plans, r);
+
+    Fnv1a samples;
+    std::set<std::string> kinds_done, machines_done;
+    for (const auto& r : eval) {
+        const bool first_baseline = r.role == "baseline" && machines_done.insert(r.spec.machine.tag).second;
+        const bool first_of_kind = r.role == "test" && r.spec.machine.tag == "OW-P101" &&
+                                   kinds_done.insert(synth::name_of(r.spec.kind)).second;
+        if (first_baseline || first_of_kind) samples.samples(synth::synthesize(r.spec));
+    }
+    CHECK(kinds_done.size() == synth::kAllKinds.size());
+    CHECK(machines_done.size() == 3);
+    samples.samples(synth::synthesize(demo[4].spec));  // OW-P101 developed
+    samples.samples(synth::synthesize(demo[12].spec));  // OW-P103 bearing
+    // Floating point as built here (x86-64, SSE2 without FMA, Debian 12's libm):
+    // another libm may round sin/exp/log differently and move the sample digest.
+    CHECK(plans.h == 0xfb0bc9e574693224ULL);
+    CHECK(samples.h == 0x5681ca1de3379658ULL);
 }
