@@ -74,6 +74,7 @@ enum Stream : std::uint64_t {
     kStreamEvents = 5,
     kStreamFaultNoise = 6,
     kStreamMains = 7,
+    kStreamStep = 8,
 };
 
 // ---------------------------------------------------------------------------
@@ -130,6 +131,31 @@ struct Chain {
     double gain = 1.0;
     std::vector<Biquad> sections;
 };
+
+/// Sections whose gain rises by tilt_db_per_decade * log10(f / f_ref) dB:
+/// first-order shelves every quarter decade, centred from 5 Hz to 0.3 fs, each
+/// stepping a quarter of the tilt (their transitions, about a decade wide,
+/// blend into a straight line in dB against log f). Centres end at 0.3 fs, not
+/// at the top, because the bilinear transform finishes a shelf near Nyquist
+/// sooner than its analog prototype; with this span the line holds within 4 %
+/// of the tilt from 20 Hz to 0.45 fs at 8..96 kHz sampling (computed from the
+/// responses in the design; our choice of spacing and span).
+Chain tilt_chain(double tilt_db_per_decade, double f_ref_hz, double fs_hz) {
+    constexpr double kLowestCentreHz = 5.0, kTopCentreOfFs = 0.3, kSpacingDecades = 0.25;
+    const double span_decades = std::log10(kTopCentreOfFs * fs_hz / kLowestCentreHz);
+    const int steps = static_cast<int>(std::ceil(span_decades / kSpacingDecades));
+    const double spacing = span_decades / steps;
+    const double half_ratio = std::pow(10.0, tilt_db_per_decade * spacing / 40.0);  // sqrt(pole / zero)
+    Chain c;
+    for (int k = 0; k < steps; ++k) {
+        const double centre_hz = kLowestCentreHz * std::pow(10.0, (k + 0.5) * spacing);
+        c.sections.push_back(shelf1(centre_hz * half_ratio, centre_hz / half_ratio, fs_hz));
+    }
+    std::complex<double> at_ref = 1.0;
+    for (const auto& sec : c.sections) at_ref *= sec.response(f_ref_hz / fs_hz);
+    c.gain = 1.0 / std::abs(at_ref);
+    return c;
+}
 
 /// Parallel sum of cascades: y = sum_i gain_i * (sections_i applied to x).
 struct Path {
@@ -307,6 +333,14 @@ void validate(const CaseSpec& spec) {
     if (m.vanes < 1 || m.vanes > 40) fail("vanes must be within 1..40");
     if (!(spec.rpm_override >= 0.0 && spec.rpm_override <= 60000.0)) fail("rpm_override must be 0 or up to 60 000");
     if (!(spec.severity >= 0.0 && spec.severity <= 1.0)) fail("severity must be within 0..1");
+    if (!(spec.level_speed_exponent_hf >= 0.0 && spec.level_speed_exponent_hf <= 4.0) ||
+        !(spec.level_speed_exponent_lf >= 0.0 && spec.level_speed_exponent_lf <= 4.0))
+        fail("level_speed_exponent_hf and _lf must be within 0..4");
+    if (!(spec.gain_db >= -40.0 && spec.gain_db <= 40.0)) fail("gain_db must be within -40..40 dB");
+    if (!(spec.tilt_db_per_decade >= -6.0 && spec.tilt_db_per_decade <= 6.0))
+        fail("tilt_db_per_decade must be within -6..6 dB/decade");
+    if (!(spec.step_db >= 0.0 && spec.step_db <= 40.0)) fail("step_db must be within 0..40 dB");
+    if (!(spec.step_at_s >= 0.0 && spec.step_at_s <= spec.duration_s)) fail("step_at_s must be within 0..duration_s");
     for (const auto& mode : m.modes) {
         if (!(mode.fraction_of_fs > 0.0 && mode.fraction_of_fs < 0.4)) fail("each mode must lie below 0.4 fs");
         if (!(mode.damping_ratio > 0.0 && mode.damping_ratio < 0.5)) fail("mode damping ratio must be within (0, 0.5)");
@@ -484,6 +518,14 @@ Recording synthesize_recording(const CaseSpec& spec) {
             if (f < 0.45 * fs) tones.push_back({f, amp, phase});
         }
     }
+    // Speed scaling of levels (1 unless an exponent is set: x * 1.0 is exact, so
+    // a spec without it keeps its samples bit for bit).
+    const double speed_ratio = rec.rpm / m.rpm;
+    const double hf_speed_gain =
+        spec.level_speed_exponent_hf != 0.0 ? std::pow(speed_ratio, spec.level_speed_exponent_hf) : 1.0;
+    const double lf_speed_gain =
+        spec.level_speed_exponent_lf != 0.0 ? std::pow(speed_ratio, spec.level_speed_exponent_lf) : 1.0;
+    for (auto& tone : tones) tone.amplitude_g *= lf_speed_gain;
     const std::size_t machine_tones = tones.size();
     if (spec.kind == Kind::mains) {
         // Pickup at the grid frequency; odd harmonics (magnetic) stronger than even.
@@ -496,8 +538,10 @@ Recording synthesize_recording(const CaseSpec& spec) {
     }
 
     // Background levels and the fault-free band powers (expected, g^2).
-    const double sigma_floor = kFloorRmsG / std::sqrt(noise_band_power(st.floor_path, {0.0, 0.5 * fs}, fs));
-    const double sigma_pink = kPinkRmsG / std::sqrt(noise_band_power(st.pink_path, {0.0, 0.5 * fs}, fs));
+    const double sigma_floor =
+        hf_speed_gain * kFloorRmsG / std::sqrt(noise_band_power(st.floor_path, {0.0, 0.5 * fs}, fs));
+    const double sigma_pink =
+        lf_speed_gain * kPinkRmsG / std::sqrt(noise_band_power(st.pink_path, {0.0, 0.5 * fs}, fs));
     double tone_lf = 0.0;  // only the shaft/vane tones: the mains "fault" is not part of the reference
     for (std::size_t i = 0; i < machine_tones; ++i)
         if (tones[i].f_hz <= lf.high_hz) tone_lf += 0.5 * tones[i].amplitude_g * tones[i].amplitude_g;
@@ -516,6 +560,20 @@ Recording synthesize_recording(const CaseSpec& spec) {
     {
         Rng rng(derive_seed(spec.seed, kStreamPink));
         add_white_through(st.pink_path, sigma_pink, rng, x);
+    }
+    if (spec.step_db > 0.0) {
+        // More of the same floor from step_at_s on, kept above 1 kHz by a 4th-order
+        // high-pass: independent noise adds power, so its variance is set for
+        // exactly step_db more in hf_band() (the pink part there is negligible).
+        Path extra = st.floor_path;
+        for (auto& b : extra.branches)
+            for (const auto& sec : butterworth(true, 4, 1000.0, fs)) b.sections.push_back(sec);
+        const double var = bg_hf * (db_to_power_ratio(spec.step_db) - 1.0) / noise_band_power(extra, hf, fs);
+        const auto first = n_pre + static_cast<std::size_t>(std::llround(spec.step_at_s * fs));
+        Rng rng(derive_seed(spec.seed, kStreamStep));
+        std::vector<double> w(n_all, 0.0);
+        for (std::size_t n = first; n < n_all; ++n) w[n] = std::sqrt(var) * rng.gaussian();
+        extra.apply_add(w, x);
     }
 
     if (spec.kind == Kind::incipient || spec.kind == Kind::developed) {
@@ -595,12 +653,28 @@ Recording synthesize_recording(const CaseSpec& spec) {
     }
 
     rec.g.resize(n_out);
-    for (std::size_t n = 0; n < n_out; ++n) {
-        const double t = static_cast<double>(n) / fs;
-        double v = x[n + n_pre];
-        for (const auto& tone : tones) v += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
-        rec.g[n] = static_cast<float>(v);
+    if (spec.tilt_db_per_decade == 0.0 && spec.gain_db == 0.0) {
+        for (std::size_t n = 0; n < n_out; ++n) {
+            const double t = static_cast<double>(n) / fs;
+            double v = x[n + n_pre];
+            for (const auto& tone : tones) v += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
+            rec.g[n] = static_cast<float>(v);
+        }
+        return rec;
     }
+    // A re-mount changes what the sensor sees of everything: the tones join the
+    // rest over the pre-roll too, so the tilt's sections have settled by sample 0.
+    for (std::size_t i = 0; i < n_all; ++i) {
+        const double t = (static_cast<double>(i) - static_cast<double>(n_pre)) / fs;
+        for (const auto& tone : tones) x[i] += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
+    }
+    Path mount;
+    if (spec.tilt_db_per_decade != 0.0) mount.branches.push_back(tilt_chain(spec.tilt_db_per_decade, 1000.0, fs));
+    else mount.branches.push_back({1.0, {}});
+    mount.branches[0].gain *= std::pow(10.0, spec.gain_db / 20.0);
+    std::vector<double> y(n_all, 0.0);
+    mount.apply_add(x, y);
+    for (std::size_t n = 0; n < n_out; ++n) rec.g[n] = static_cast<float>(y[n + n_pre]);
     return rec;
 }
 

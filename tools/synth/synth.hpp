@@ -153,6 +153,34 @@ struct CaseSpec {
     double severity = 0.5;    ///< 0..1 across the kind's range (see draw_params)
     double rpm_override = 0;  ///< > 0: the true shaft speed (else nominal, or nominal +- offset for speed)
     std::optional<FaultParams> params{};  ///< set: used as given instead of draw_params
+
+    // Field conditions. Each defaults to "no effect": at 0 the samples are
+    // bit-identical to a spec without these fields (the demo and evaluation sets
+    // never set them).
+
+    /// Speed scaling of levels for a pump whose speed varies (a drive): the
+    /// background and the machine tones scale in amplitude as
+    /// (true rpm / machine.rpm)^exponent. The HF exponent acts on the flat floor
+    /// and its resonances (nearly all of the HF band), the LF one on the pink
+    /// part below 1 kHz and the shaft/blade-pass tones; mains pickup does not
+    /// scale. Faults keep their rise over the scaled background. Within 0..4.
+    /// The field set uses 2.5 (HF) and 2 (LF), our choice from the affinity
+    /// laws: hydraulic forces go as n^2, flow-noise power as U^4..U^6, so
+    /// amplitude exponents 2..3 - a lead, not a value measured on a pump.
+    double level_speed_exponent_hf = 0;
+    double level_speed_exponent_lf = 0;
+    /// A re-mounted magnet: the whole recording (faults, tones, pickup) scaled
+    /// by gain_db, and tilted by tilt_db_per_decade about 1 kHz (gain
+    /// tilt * log10(f / 1 kHz) dB from 10 Hz to 0.45 fs, flat outside; a mount
+    /// resonance that moved). Within -40..40 dB and -6..6 dB/decade.
+    double gain_db = 0;
+    double tilt_db_per_decade = 0;
+    /// A level step inside the record (a baseline hazard): from step_at_s on,
+    /// the broadband background at and above 1 kHz rises by step_db (its power
+    /// in hf_band() by exactly that in expectation); the signal is stationary
+    /// on either side. step_db within 0..40, step_at_s within 0..duration_s.
+    double step_at_s = 0;
+    double step_db = 0;
 };
 
 struct Recording {
@@ -163,7 +191,8 @@ struct Recording {
     /// Median collapse amplitude (cavitation) or mean impact amplitude (bearing),
     /// in g summed over the few samples of one pulse; 0 for other kinds.
     double pulse_amplitude_g = 0;
-    /// Expected rms of the fault-free signal in hf_band() and lf_band().
+    /// Expected rms of the fault-free signal in hf_band() and lf_band() (after
+    /// speed scaling; before a level step and a re-mount).
     double healthy_hf_rms_g = 0;
     double healthy_lf_rms_g = 0;
 };
