@@ -50,7 +50,10 @@ int main(int argc, char** argv) {
                  "  bearing     outer-race defect impacts at a non-integer shaft order (label normal)\n"
                  "  turbulence  extra flow noise in 20..800 Hz, +6..12 dB below 1 kHz (label normal)\n"
                  "  mains       50 Hz electrical pickup and its harmonics (label normal)\n"
-                 "  speed       shaft speed 2..4 % off nominal, otherwise healthy (label normal)\n\n"
+                 "  speed       shaft speed 2..4 % off nominal, otherwise healthy (label normal)\n"
+                 "  inner_race  inner-race defect impacts at a non-integer order (4.6..6.4), their strength\n"
+                 "              swept by the shaft's load zone once a revolution: HF +6..15 dB, envelope\n"
+                 "              lines at 1x and BPFI +- 1x (label normal; field set and 'one' only)\n\n"
                  "Scenario (invented): Lowmere Water Trust, Orrin Weir pumping station. Machines:" +
                  machine_list() +
                  "\n\nFiles are 16-bit PCM WAV unless told otherwise, full scale 50 g (sample = g / 50).\n"
@@ -106,7 +109,7 @@ int main(int argc, char** argv) {
         "--seconds 60 --fs 96000 --seed 7 -o FILE.wav");
     std::vector<std::string> tags, kinds;
     for (const auto& m : synth::scenario_machines()) tags.push_back(m.tag);
-    for (auto k : synth::kAllKinds) kinds.push_back(synth::name_of(k));
+    for (auto k : synth::kEveryKind) kinds.push_back(synth::name_of(k));
     one->add_option("--machine", tag, "Machine tag")->check(CLI::IsMember(tags))->capture_default_str();
     one->add_option("--kind", kind_name, "Condition to synthesize (see cavitas-synth --help)")
         ->check(CLI::IsMember(kinds))

@@ -322,6 +322,17 @@ Structure make_structure(const Machine& m) {
     return s;
 }
 
+/// Where a bearing impact goes: it rings one resonance, and a little reaches the
+/// sensor directly.
+Path impact_path(const Structure& st, const Machine& m, int mode_index) {
+    const double fs = m.fs_hz;
+    const Mode& mode = m.modes[static_cast<std::size_t>(mode_index)];
+    Path path;
+    path.branches.push_back({mode.gain, {bandpass2(mode.fraction_of_fs * fs, fs, 1.0 / (2.0 * mode.damping_ratio))}});
+    path.branches.push_back({0.15, st.pulse_path.branches[0].sections});
+    return path;
+}
+
 void validate(const CaseSpec& spec) {
     const Machine& m = spec.machine;
     auto fail = [&](const std::string& what) {
@@ -367,6 +378,16 @@ void check_params(const FaultParams& p, Kind kind) {
         if (!(b.hf_rise_db > 0.0 && b.hf_rise_db <= 60.0)) fail("bearing hf_rise_db must be within (0, 60]");
         if (!(b.amplitude_spread >= 0.0 && b.amplitude_spread <= 1.0)) fail("bearing amplitude_spread must be within 0..1");
     }
+    if (kind == Kind::inner_race) {
+        const auto& b = p.inner_race;
+        if (!(b.order >= 0.5 && b.order <= 50.0)) fail("inner-race order must be within 0.5..50");
+        if (!(b.slip_frac >= 0.0 && b.slip_frac <= 0.2)) fail("inner-race slip_frac must be within 0..0.2");
+        if (!(b.load_depth >= 0.0 && b.load_depth <= 1.0) || !(b.load_depth_2x >= 0.0 && b.load_depth_2x <= 1.0))
+            fail("inner-race load depths must be within 0..1");
+        if (b.mode_index < 0 || b.mode_index > 2) fail("inner-race mode_index must be 0, 1 or 2");
+        if (!(b.hf_rise_db > 0.0 && b.hf_rise_db <= 60.0)) fail("inner-race hf_rise_db must be within (0, 60]");
+        if (!(b.amplitude_spread >= 0.0 && b.amplitude_spread <= 1.0)) fail("inner-race amplitude_spread must be within 0..1");
+    }
     if (kind == Kind::turbulence) {
         const auto& t = p.turbulence;
         if (!(t.lf_rise_db > 0.0 && t.lf_rise_db <= 40.0)) fail("turbulence lf_rise_db must be within (0, 40]");
@@ -399,15 +420,16 @@ std::string name_of(Kind kind) {
         case Kind::turbulence: return "turbulence";
         case Kind::mains: return "mains";
         case Kind::speed: return "speed";
+        case Kind::inner_race: return "inner_race";
     }
     return "healthy";
 }
 
 Kind kind_from_name(std::string_view name) {
-    for (Kind k : kAllKinds)
+    for (Kind k : kEveryKind)
         if (name_of(k) == name) return k;
     throw std::invalid_argument("unknown kind '" + std::string(name) +
-                                "' (healthy, incipient, developed, bearing, turbulence, mains, speed)");
+                                "' (healthy, incipient, developed, bearing, turbulence, mains, speed, inner_race)");
 }
 
 const std::vector<Machine>& scenario_machines() {
@@ -462,6 +484,18 @@ FaultParams draw_params(Kind kind, double severity, std::uint64_t seed) {
     p.bearing.mode_index = rng.uniform() < 1.0 / 3.0 ? 1 : 2;
     p.mains.mains_hz = 50.0 + rng.uniform(-0.05, 0.05);
     const double speed_sign = rng.uniform() < 0.5 ? -1.0 : 1.0;
+    {
+        // Inner-race order (BPFI / f_r) in 4.6..6.4, at least 0.15 from any integer:
+        // [4.6, 4.85] u [5.15, 5.85] u [6.15, 6.4] (total length 1.2). A typical
+        // rolling bearing of 8..12 elements has BPFI 4.9..7.4 f_r (from the
+        // kinematics, 0.5 n (1 + d/D cos alpha)); our range sits inside it.
+        const double u = rng.uniform(0.0, 1.2);
+        p.inner_race.order = u < 0.25 ? 4.6 + u : (u < 0.95 ? 5.15 + (u - 0.25) : 6.15 + (u - 0.95));
+    }
+    p.inner_race.slip_frac = rng.uniform(0.01, 0.02);
+    p.inner_race.load_depth = rng.uniform(0.5, 0.9);
+    p.inner_race.load_depth_2x = p.inner_race.load_depth * rng.uniform(0.2, 0.4);
+    p.inner_race.mode_index = rng.uniform() < 1.0 / 3.0 ? 1 : 2;
 
     if (kind == Kind::developed) {
         p.cavitation.collapse_rate_per_s = 2000.0 * std::pow(10.0, s);
@@ -473,6 +507,7 @@ FaultParams draw_params(Kind kind, double severity, std::uint64_t seed) {
         p.cavitation.lf_rise_db = 0.0;
     }
     p.bearing.hf_rise_db = 6.0 + 9.0 * s;
+    p.inner_race.hf_rise_db = 6.0 + 9.0 * s;
     p.turbulence.lf_rise_db = 6.0 + 6.0 * s;
     p.mains.amplitude_g = 0.1 + 0.3 * s;
     p.speed.offset_frac = speed_sign * (0.02 + 0.02 * s);
@@ -623,10 +658,7 @@ Recording synthesize_recording(const CaseSpec& spec) {
         add_white_through(unsteady, std::sqrt(unsteady_var), noise, x);
     } else if (spec.kind == Kind::bearing) {
         const BearingParams& b = fp.bearing;
-        const Mode& mode = m.modes[static_cast<std::size_t>(b.mode_index)];
-        Path path;  // the impact rings one resonance; a little reaches the sensor directly
-        path.branches.push_back({mode.gain, {bandpass2(mode.fraction_of_fs * fs, fs, 1.0 / (2.0 * mode.damping_ratio))}});
-        path.branches.push_back({0.15, st.pulse_path.branches[0].sections});
+        const Path path = impact_path(st, m, b.mode_index);
         const double rate_per_s = b.order * f1_hz;
         const double mean_sq = 1.0 + b.amplitude_spread * b.amplitude_spread;
         const double per_impact = (rate_per_s / fs) * mean_sq * pulse_band_power(path, hf, fs);
@@ -638,6 +670,37 @@ Recording synthesize_recording(const CaseSpec& spec) {
         for (double t = t_start_s + rng.uniform() * interval_s; t < t_end_s;
              t += interval_s * std::max(0.5, 1.0 + b.slip_frac * rng.gaussian())) {
             const double a = amp_g * std::max(0.2, 1.0 + b.amplitude_spread * rng.gaussian());
+            add_pulse(e, (t - t_start_s) * fs, a);
+        }
+        path.apply_add(e, x);
+    } else if (spec.kind == Kind::inner_race) {
+        const InnerRaceParams& b = fp.inner_race;
+        const Path path = impact_path(st, m, b.mode_index);
+        Rng rng(derive_seed(spec.seed, kStreamEvents));
+        const double phi = rng.uniform(0.0, kTwoPi), phi2 = rng.uniform(0.0, kTwoPi);
+        auto load = [&](double t) {
+            return std::max(0.0, 1.0 + b.load_depth * std::cos(kTwoPi * f1_hz * t + phi) +
+                                     b.load_depth_2x * std::cos(2.0 * kTwoPi * f1_hz * t + phi2));
+        };
+        // At a non-integer order the impacts meet every angle of the shaft alike,
+        // so E[A^2] takes the mean of a^2 over one revolution (midpoint rule on
+        // 3600 angles: a is smooth but for its clipped zero, well resolved).
+        double load_sq = 0.0;
+        constexpr int kAngles = 3600;
+        for (int i = 0; i < kAngles; ++i) {
+            const double a = load((i + 0.5) / (kAngles * f1_hz));
+            load_sq += a * a / kAngles;
+        }
+        const double rate_per_s = b.order * f1_hz;
+        const double mean_sq = load_sq * (1.0 + b.amplitude_spread * b.amplitude_spread);
+        const double per_impact = (rate_per_s / fs) * mean_sq * pulse_band_power(path, hf, fs);
+        const double amp_g = std::sqrt(bg_hf * (db_to_power_ratio(b.hf_rise_db) - 1.0) / per_impact);
+        rec.pulse_amplitude_g = amp_g;
+        const double interval_s = 1.0 / rate_per_s;
+        std::vector<double> e(n_all, 0.0);
+        for (double t = t_start_s + rng.uniform() * interval_s; t < t_end_s;
+             t += interval_s * std::max(0.5, 1.0 + b.slip_frac * rng.gaussian())) {
+            const double a = amp_g * load(t) * std::max(0.2, 1.0 + b.amplitude_spread * rng.gaussian());
             add_pulse(e, (t - t_start_s) * fs, a);
         }
         path.apply_add(e, x);

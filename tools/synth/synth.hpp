@@ -39,10 +39,17 @@ inline constexpr std::string_view kSite = "Orrin Weir pumping station";
 /// Full scale of the written files: sample value 1.0 == 50 g.
 inline constexpr double kFullScaleG = 50.0;
 
-enum class Kind { healthy, incipient, developed, bearing, turbulence, mains, speed };
+enum class Kind { healthy, incipient, developed, bearing, turbulence, mains, speed, inner_race };
+/// The kinds of the evaluation set (eval_plan); unchanged since that set was
+/// fixed, so the set stays the same.
 inline constexpr std::array<Kind, 7> kAllKinds{Kind::healthy,    Kind::incipient, Kind::developed,
                                                Kind::bearing,    Kind::turbulence, Kind::mains,
                                                Kind::speed};
+/// Every kind the generator makes: kAllKinds and the inner-race look-alike
+/// (used by the field set and `cavitas-synth one`).
+inline constexpr std::array<Kind, 8> kEveryKind{Kind::healthy,    Kind::incipient, Kind::developed,
+                                                Kind::bearing,    Kind::turbulence, Kind::mains,
+                                                Kind::speed,      Kind::inner_race};
 
 /// "normal", "incipient" or "developed": the truth a detector must report.
 std::string label_of(Kind kind);
@@ -105,6 +112,23 @@ struct BearingParams {
     double amplitude_spread = 0.15;  ///< relative standard deviation of impact amplitude
 };
 
+/// Inner-race defect impacts (a look-alike, label normal). The defect turns with
+/// the shaft and passes through the load zone once a revolution, so the
+/// impacts are amplitude-modulated at the shaft rate f_r:
+///   a(t) = max(0, 1 + q cos(2 pi f_r t + phi) + q2 cos(4 pi f_r t + phi2)),
+/// and the squared envelope shows lines at f_r, 2 f_r, BPFI and BPFI +- f_r
+/// (Randall & Antoni, "Rolling element bearing diagnostics - a tutorial",
+/// MSSP 25 (2011) 485-520, section 2).
+struct InnerRaceParams {
+    double order = 5.4;             ///< BPFI / f_r, 4.6..6.4, >= 0.15 from any integer
+    double slip_frac = 0.015;       ///< standard deviation of each interval / mean interval
+    double load_depth = 0.7;        ///< q, 0.5..0.9
+    double load_depth_2x = 0.2;     ///< q2, 0.2..0.4 of q
+    int mode_index = 2;             ///< which structural resonance the impacts ring
+    double hf_rise_db = 10;         ///< rise of the HF band power
+    double amplitude_spread = 0.15; ///< relative standard deviation of impact amplitude (besides a(t))
+};
+
 /// Hydraulic turbulence/recirculation noise in 20..800 Hz (a look-alike).
 struct TurbulenceParams {
     double lf_rise_db = 9;  ///< rise of the 0..1 kHz band power
@@ -130,6 +154,7 @@ struct FaultParams {
     TurbulenceParams turbulence;
     MainsParams mains;
     SpeedParams speed;
+    InnerRaceParams inner_race;
 };
 
 /// Parameters of `kind` at `severity` (0..1 across the kind's documented range):
@@ -140,9 +165,13 @@ struct FaultParams {
 ///   turbulence 0..1 kHz rise 6 + 6 s dB
 ///   mains      0.1 + 0.3 s g at 50 Hz (+-0.05 Hz)
 ///   speed      |offset| 2 + 2 s %, sign from the seed
+///   inner_race HF rise 6 + 9 s dB (order, slip, load zone and ringing mode from the seed)
 /// Drawn from the seed: blade-pass depth m in [0.4, 0.9] (developed: [0.4, 0.7],
 /// as attached cavities persist through the passage), 1x depth m1 in [0.1, 0.3],
-/// bearing order, slip 1..2 % and ringing mode, mains 50 +- 0.05 Hz, speed sign.
+/// bearing order, slip 1..2 % and ringing mode, mains 50 +- 0.05 Hz, speed sign,
+/// then (after all of those, so that they are as before the kind was added)
+/// the inner-race order 4.6..6.4 (>= 0.15 from an integer), slip 1..2 %,
+/// load-zone depth q 0.5..0.9 and q2 0.2..0.4 q, ringing mode.
 FaultParams draw_params(Kind kind, double severity, std::uint64_t seed);
 
 struct CaseSpec {
