@@ -15,12 +15,17 @@
 #include <cmath>
 #include <cstdint>
 #include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <map>
 #include <numbers>
 #include <set>
 #include <stdexcept>
 #include <string>
 #include <vector>
 
+#include "models/operating_point.hpp"
+#include "src/operating_point_io.hpp"
 #include "tools/synth/synth.hpp"
 
 namespace synth = cavitas::synth;
@@ -641,4 +646,261 @@ TEST_CASE("synth: inner-race impacts sit at a non-integer order, ring the HF ban
     CHECK(line_over_floor_db(s_outer, outer.params.bearing.order * f_r) > 10.0);
     CHECK(line_over_floor_db(s_outer, f_r) < 6.0);
     CHECK(line_over_floor_db(s_healthy, bpfi) < 6.0);
+}
+
+namespace {
+
+const std::set<std::string> kHazards{"none", "step", "cavitating", "low_npsh", "short"};
+
+struct FieldGroup {
+    std::vector<const synth::PlannedRecording*> baselines, tests;
+};
+
+std::map<std::string, FieldGroup> groups_of(const std::vector<synth::PlannedRecording>& plan) {
+    std::map<std::string, FieldGroup> groups;
+    for (const auto& r : plan) (r.role == "baseline" ? groups[r.group].baselines : groups[r.group].tests).push_back(&r);
+    return groups;
+}
+
+}  // namespace
+
+TEST_CASE("synth: the field plan covers every hazard, every kind, and speeds a baseline does not cover", "[tools]") {
+    const auto plan = synth::field_plan();
+    const auto groups = groups_of(plan);
+    const double drive_rpm = synth::drive_machine().rpm;
+
+    // Deterministic, and every file and seed its own.
+    Fnv1a first, again, other;
+    for (const auto& r : plan) digest_plan_row(first, r);
+    for (const auto& r : synth::field_plan()) digest_plan_row(again, r);
+    for (const auto& r : synth::field_plan(7)) digest_plan_row(other, r);
+    CHECK(first.h == again.h);
+    CHECK(first.h != other.h);
+    std::set<std::string> files;
+    std::set<std::uint64_t> seeds;
+    std::set<std::string> encodings;
+    double bytes = 0;
+    for (const auto& r : plan) {
+        files.insert(r.file);
+        seeds.insert(r.spec.seed);
+        encodings.insert(synth::name_of(r.encoding));
+        const double bytes_per_sample = r.encoding == synth::Encoding::pcm24     ? 3
+                                        : r.encoding == synth::Encoding::float32 ? 4
+                                                                                 : 2;  // flac16 at most pcm16's
+        bytes += bytes_per_sample * r.spec.duration_s * r.spec.machine.fs_hz;
+    }
+    CHECK(files.size() == plan.size());
+    CHECK(seeds.size() == plan.size());
+    CHECK(encodings.size() == 4);
+    CHECK(plan.size() >= 150);
+    CHECK(bytes < 150e6);  // the brief's budget for the set
+
+    // Every group has a baseline of one machine; its tests are of that machine.
+    std::map<std::string, std::set<std::string>> hazard_groups;  // hazard -> groups showing it
+    std::map<std::string, std::set<std::string>> hazard_machines;
+    for (const auto& [name, g] : groups) {
+        INFO("group " << name);
+        REQUIRE_FALSE(g.baselines.empty());
+        CHECK_FALSE(g.tests.empty());
+        const std::string tag = g.baselines.front()->spec.machine.tag;
+        for (const auto* r : g.baselines) CHECK(r->spec.machine.tag == tag);
+        for (const auto* r : g.tests) CHECK(r->spec.machine.tag == tag);
+        for (const auto* r : g.baselines) {
+            CHECK(kHazards.count(r->hazard) == 1);
+            hazard_groups[r->hazard].insert(name);
+            hazard_machines[r->hazard].insert(tag);
+            if (r->hazard == "short") {
+                CHECK(g.baselines.size() == 1);
+                CHECK(r->spec.duration_s < 3.0);
+            } else {
+                CHECK(r->spec.duration_s == 10.0);
+            }
+            if (r->hazard == "step") {
+                CHECK(r->spec.step_db >= 8.0);
+                CHECK(r->spec.step_db <= 20.0);
+                CHECK(r->spec.step_at_s >= 0.4 * r->spec.duration_s);
+                CHECK(r->spec.step_at_s <= 0.7 * r->spec.duration_s);
+            } else {
+                CHECK(r->spec.step_db == 0.0);
+            }
+            CHECK((r->hazard == "cavitating") ==
+                  (r->spec.kind == synth::Kind::incipient || r->spec.kind == synth::Kind::developed));
+            CHECK((r->hazard == "low_npsh") == (r->sidecar_npsha_m > 0.0 && r->sidecar_npsha_m < 1.0));
+        }
+        for (const auto* r : g.tests) CHECK(r->hazard == "none");
+    }
+    // Each hazard several times, on each of the three fixed-speed pumps; clean groups too.
+    for (const std::string h : {"step", "cavitating", "low_npsh", "short"}) {
+        INFO("hazard " << h);
+        CHECK(hazard_groups[h].size() >= 4);
+        CHECK(hazard_machines[h] == std::set<std::string>{"OW-P101", "OW-P102", "OW-P103"});
+    }
+    int clean_groups = 0;
+    for (const auto& [name, g] : groups) {
+        bool clean = g.baselines.size() >= 2;
+        for (const auto* r : g.baselines) clean = clean && r->hazard == "none" && !r->sidecar_toml.empty();
+        clean_groups += clean;
+    }
+    CHECK(clean_groups >= 4);
+
+    // Expectations: the label, or indeterminate; every kind is tested; the speed
+    // is withheld from some; short captures of every kind.
+    std::set<synth::Kind> kinds, short_kinds;
+    std::set<std::string> inner_race_machines;
+    int indeterminate = 0, speed_withheld = 0;
+    for (const auto& r : plan) {
+        INFO(r.file);
+        CHECK((r.expect == synth::label_of(r.spec.kind) || r.expect == "indeterminate"));
+        if (r.role != "test") continue;
+        kinds.insert(r.spec.kind);
+        indeterminate += r.expect == "indeterminate";
+        speed_withheld += !r.rpm_given;
+        if (r.spec.duration_s >= 1.0 && r.spec.duration_s <= 2.0) short_kinds.insert(r.spec.kind);
+        if (r.spec.kind == synth::Kind::inner_race) {
+            CHECK(r.expect == "normal");
+            bool normal_baseline = true;
+            for (const auto* b : groups.at(r.group).baselines)
+                normal_baseline = normal_baseline && b->hazard == "none" && b->spec.kind == synth::Kind::healthy;
+            if (normal_baseline) inner_race_machines.insert(r.spec.machine.tag);
+        }
+    }
+    CHECK(kinds == std::set<synth::Kind>(synth::kEveryKind.begin(), synth::kEveryKind.end()));
+    CHECK(short_kinds == kinds);
+    CHECK(inner_race_machines == std::set<std::string>{"OW-P101", "OW-P102", "OW-P103", "OW-P104"});
+    CHECK(indeterminate >= 1);
+    CHECK(speed_withheld >= 10);
+
+    // The variable-speed pump: levels scaled with speed; baselines at 0.70,
+    // 0.85 and 1.00 x; tests between (a speed look-alike 2..4 % off its set
+    // speed), or at 0.50 / 1.25 x and indeterminate.
+    for (const auto& r : plan) {
+        if (r.spec.machine.tag != "OW-P104") continue;
+        INFO(r.file);
+        CHECK(r.spec.level_speed_exponent_hf == 2.5);
+        CHECK(r.spec.level_speed_exponent_lf == 2.0);
+    }
+    const auto& vsd = groups.at("P104-vsd");
+    std::multiset<double> baseline_fracs;
+    for (const auto* r : vsd.baselines) baseline_fracs.insert(std::round(100 * r->spec.rpm_override / drive_rpm) / 100);
+    CHECK(baseline_fracs == std::multiset<double>{0.70, 0.70, 0.85, 0.85, 1.00, 1.00});
+    std::set<synth::Kind> vsd_kinds;
+    for (const auto* r : vsd.tests) {
+        INFO(r->file);
+        const double frac = r->spec.rpm_override / drive_rpm;
+        if (r->expect == "indeterminate") {
+            CHECK((std::abs(frac - 0.50) < 1e-9 || std::abs(frac - 1.25) < 1e-9));
+        } else {
+            vsd_kinds.insert(r->spec.kind);
+            CHECK(frac >= 0.75 * (r->spec.kind == synth::Kind::speed ? 0.96 : 1.0));
+            CHECK(frac <= 0.95 * (r->spec.kind == synth::Kind::speed ? 1.04 : 1.0));
+        }
+    }
+    CHECK(vsd_kinds.size() == synth::kEveryKind.size());
+    // The drive held at one speed, then jumps of 15..25 % the tool must notice.
+    const auto& held = groups.at("P104-fixed");
+    const double held_rpm = held.baselines.front()->spec.rpm_override;
+    int jumps = 0;
+    for (const auto* r : held.tests) {
+        INFO(r->file);
+        CHECK_FALSE(r->rpm_given);
+        const double jump = std::abs(r->spec.rpm_override / held_rpm - 1.0);
+        if (r->expect == "indeterminate") {
+            ++jumps;
+            CHECK(jump >= 0.15 - 1e-3);
+            CHECK(jump <= 0.25 + 1e-3);
+        } else {
+            CHECK(jump < 1e-9);
+        }
+    }
+    CHECK(jumps == 4);
+
+    // Baselines over four visits, the magnet re-mounted at each (one mount a visit).
+    const auto& visits = groups.at("P101-visits");
+    std::map<std::string, std::set<std::pair<double, double>>> mounts;  // date -> (gain, tilt)
+    for (const auto* r : visits.baselines) {
+        CHECK(std::abs(r->spec.gain_db) <= 2.5);
+        CHECK(std::abs(r->spec.tilt_db_per_decade) <= 1.0);
+        mounts[r->datetime.substr(0, 10)].insert({r->spec.gain_db, r->spec.tilt_db_per_decade});
+    }
+    CHECK(mounts.size() == 4);
+    std::set<std::pair<double, double>> distinct;
+    for (const auto& [date, m] : mounts) {
+        CHECK(m.size() == 1);
+        distinct.insert(*m.begin());
+    }
+    CHECK(distinct.size() == 4);
+    for (const auto* r : visits.tests) {
+        CHECK(std::abs(r->spec.gain_db) <= 3.0);
+        CHECK(std::abs(r->spec.tilt_db_per_decade) <= 1.0);
+        CHECK(r->spec.gain_db != 0.0);
+    }
+}
+
+TEST_CASE("synth: each field sidecar states the NPSHa cavitas computes from it; low ones 0.1..0.8 m", "[tools]") {
+    int sidecars = 0, low = 0;
+    for (const auto& r : synth::field_plan()) {
+        if (r.sidecar_toml.empty()) continue;
+        INFO(r.file << "\n" << r.sidecar_toml);
+        ++sidecars;
+        // Read as `cavitas analyze` reads NAME.op.toml, evaluated as it is.
+        const auto op = cavitas::app::parse_operating_point_toml(r.sidecar_toml, r.file, ".");
+        const auto h = cavitas::models::evaluate_operating_point(op);
+        REQUIRE(h.npsh.has_value());
+        CHECK(h.npsh->npsha_m == Approx(r.sidecar_npsha_m).margin(1e-6));
+        CHECK_FALSE(op.rpm.has_value());  // a sidecar must not give away the speed
+        CHECK(h.margin.has_value());
+        // No liquid flashing at the gauge (the static pressure stays above the vapour pressure).
+        CHECK(*h.absolute_suction_pa > h.liquid->vapour_pressure_pa);
+        if (r.hazard == "low_npsh") {
+            ++low;
+            CHECK(h.npsh->npsha_m >= 0.1 - 0.01);
+            CHECK(h.npsh->npsha_m <= 0.8 + 0.01);
+        } else {
+            CHECK(h.npsh->npsha_m >= 7.0 - 0.01);
+        }
+    }
+    CHECK(sidecars >= 20);
+    CHECK(low >= 4);
+}
+
+TEST_CASE("synth: a field set's manifests carry group, rpm_given, expect and hazard; other sets' columns stay", "[tools]") {
+    const auto dir = scratch_dir() / "field";
+    // A baseline with a low-NPSH sidecar and a test whose speed is withheld,
+    // shortened to keep the test quick.
+    std::vector<synth::PlannedRecording> plan;
+    for (const auto& r : synth::field_plan()) {
+        if ((r.hazard == "low_npsh" && plan.empty()) || (!plan.empty() && plan.size() < 2 && !r.rpm_given)) {
+            plan.push_back(r);
+            plan.back().spec.duration_s = 0.5;
+        }
+    }
+    REQUIRE(plan.size() == 2);
+    synth::write_set(dir, plan, nullptr, std::cerr, {}, synth::SetColumns::field);
+    auto lines = [](const std::filesystem::path& p) {
+        std::ifstream in(p);
+        std::vector<std::string> v;
+        for (std::string line; std::getline(in, line);) v.push_back(line);
+        return v;
+    };
+    const auto manifest = lines(dir / "manifest.csv");
+    REQUIRE(manifest.size() == 3);
+    CHECK(manifest[0] ==
+          "file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed,"
+          "group,rpm_given,expect,hazard");
+    const std::string g0 = plan[0].group, g1 = plan[1].group;
+    CHECK(manifest[1].ends_with("," + g0 + ",1,normal,low_npsh"));
+    CHECK(manifest[2].ends_with("," + g1 + ",0," + plan[1].expect + ",none"));
+    CHECK(std::filesystem::exists(dir / (std::filesystem::path(plan[0].file).stem().string() + ".op.toml")));
+    const auto truth = lines(dir / "truth.csv");
+    REQUIRE(truth.size() == 3);
+    CHECK(truth[0].ends_with(",step_at_s,step_db,sidecar_npsha_m"));
+
+    // The standard columns, as the demo and evaluation sets have always had them.
+    const auto std_dir = scratch_dir() / "standard";
+    synth::write_set(std_dir, {plan[1]}, nullptr, std::cerr);
+    const auto standard = lines(std_dir / "manifest.csv");
+    REQUIRE(standard.size() == 2);
+    CHECK(standard[0] == "file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed");
+    CHECK(lines(std_dir / "truth.csv")[0].ends_with(",speed_offset_pct,pulse_amplitude_g"));
+    std::filesystem::remove_all(scratch_dir());
 }

@@ -10,11 +10,14 @@
 
 #include <sndfile.h>
 
+#include "models/operating_point.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <complex>
 #include <cstdio>
 #include <fstream>
+#include <map>
 #include <memory>
 #include <numbers>
 #include <ostream>
@@ -441,10 +444,27 @@ const std::vector<Machine>& scenario_machines() {
     return machines;
 }
 
+const Machine& drive_machine() {
+    // Our invention: a clear-well transfer pump on a variable-speed drive, its
+    // three modes placed apart from the other pumps'.
+    static const Machine machine{"OW-P104", 1780.0, 5, 25600.0, "clear-well transfer pump (variable-speed drive)",
+                                 {{{0.108, 0.028, 5.0}, {0.219, 0.024, 6.0}, {0.366, 0.036, 4.5}}}};
+    return machine;
+}
+
+const std::vector<Machine>& every_machine() {
+    static const std::vector<Machine> machines = [] {
+        std::vector<Machine> v = scenario_machines();
+        v.push_back(drive_machine());
+        return v;
+    }();
+    return machines;
+}
+
 const Machine& machine_by_tag(std::string_view tag) {
-    for (const auto& m : scenario_machines())
+    for (const auto& m : every_machine())
         if (m.tag == tag) return m;
-    throw std::invalid_argument("unknown machine '" + std::string(tag) + "' (OW-P101, OW-P102, OW-P103)");
+    throw std::invalid_argument("unknown machine '" + std::string(tag) + "' (OW-P101, OW-P102, OW-P103, OW-P104)");
 }
 
 Band hf_band(double fs_hz) { return {0.2 * fs_hz, 0.45 * fs_hz}; }
@@ -1017,9 +1037,391 @@ std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed) {
     return plan;
 }
 
+// ---------------------------------------------------------------------------
+// The field set (see synth.hpp for its groups).
+namespace {
+
+/// ISO 8601 date and time, `days` after 2026-01-01 and `minutes` after midnight.
+std::string field_datetime(int days, int minutes) {
+    auto leap = [](int y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; };
+    int year = 2026;
+    while (days >= (leap(year) ? 366 : 365)) {
+        days -= leap(year) ? 366 : 365;
+        ++year;
+    }
+    static constexpr std::array<int, 12> kMonthDays{31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+    std::size_t month = 0;
+    for (;; ++month) {
+        const int length = kMonthDays[month] + (month == 1 && leap(year) ? 1 : 0);
+        if (days < length) break;
+        days -= length;
+    }
+    char buf[48];
+    std::snprintf(buf, sizeof buf, "%04d-%02zu-%02dT%02d:%02d:00", year, month + 1, days + 1, minutes / 60, minutes % 60);
+    return buf;
+}
+
+double round_to(double v, double step) { return std::round(v / step) * step; }
+
+/// The Orrin Weir duty of a fixed-speed pump as the field sidecars state it
+/// (invented, near the demo's): liquid temperature, flow range, suction bore,
+/// NPSH3 at that flow (the demo's curves of OW-P101 and OW-P102 near 400 and
+/// 160 m3/h, OW-P103's stated 2.8 m), and the NPSHa of sound suction conditions.
+struct FieldDuty {
+    double temperature_c;
+    double flow_low_m3h, flow_high_m3h;
+    double bore_mm;
+    double npsh3_m;
+    double npsha_low_m, npsha_high_m;
+};
+
+FieldDuty field_duty(std::string_view tag) {
+    if (tag == "OW-P101") return {14.0, 395.0, 420.0, 300.0, 3.1, 7.0, 10.0};  // raw water from the weir sump
+    if (tag == "OW-P102") return {12.0, 150.0, 165.0, 150.0, 2.5, 20.0, 26.0};  // from a flooded clear-water tank
+    return {12.0, 590.0, 610.0, 350.0, 2.8, 10.0, 14.0};                        // OW-P103 backwash
+}
+
+constexpr double kFieldElevationM = 62.0;
+// Below the impeller-eye datum (our choice for the field sidecars): with the
+// gauge above it, a low NPSHa would need a static pressure under the vapour
+// pressure at the gauge, i.e. a flashing liquid.
+constexpr double kFieldGaugeHeightM = -0.6;
+
+struct Sidecar {
+    std::string toml;
+    double npsha_m = 0;
+};
+
+/// A sidecar stating suction conditions that give `npsha_m` (within 0.01 m: the
+/// gauge reading is written to 0.1 kPa). The reading is solved with the
+/// project's own hydraulics (models/operating_point: IAPWS-IF97 water, ISO 2533
+/// atmosphere), so the NPSHa stated is the one cavitas computes from the file.
+Sidecar field_sidecar(const std::string& file, std::string_view tag, double temperature_c, double flow_m3h,
+                      double npsha_m, const std::string& note) {
+    const FieldDuty duty = field_duty(tag);
+    models::OperatingPoint op;
+    op.pressure_reference = models::PressureReference::gauge;
+    op.elevation_m = kFieldElevationM;
+    op.temperature_k = temperature_c + 273.15;
+    op.gauge_height_m = kFieldGaugeHeightM;
+    op.flow_m3_s = flow_m3h / 3600.0;
+    op.bore_m = duty.bore_mm / 1000.0;
+    auto evaluate = [&](double gauge_kpa) {
+        op.suction_pressure_pa = gauge_kpa * 1000.0;
+        return models::evaluate_operating_point(op);
+    };
+    // NPSHa is linear in the pressure but for the density's slight dependence on
+    // it: Newton steps from 0 kPa converge at once.
+    double gauge_kpa = 0.0;
+    for (int i = 0; i < 3; ++i) {
+        const auto h = evaluate(gauge_kpa);
+        gauge_kpa += (npsha_m - h.npsh->npsha_m) * h.liquid->density_kg_m3 * models::kStandardGravityM_s2 / 1000.0;
+    }
+    gauge_kpa = round_to(gauge_kpa, 0.1);
+    Sidecar sc;
+    sc.npsha_m = evaluate(gauge_kpa).npsh->npsha_m;
+    std::ostringstream t;
+    t << "# operating point of " << file << " (invented field duty)\n"
+      << "suction_pressure = \"" << fmt_number(gauge_kpa, 1) << " kPa\"\n"
+      << "pressure_ref = \"gauge\"\n"
+      << "temperature = \"" << fmt_number(temperature_c, 1) << " C\"\n"
+      << "elevation = \"" << fmt_number(kFieldElevationM, 0) << " m\"\n"
+      << "gauge_height = \"" << fmt_number(kFieldGaugeHeightM, 2) << " m\"\n"
+      << "flow = \"" << fmt_number(flow_m3h, 0) << " m3/h\"\n"
+      << "bore = \"" << fmt_number(duty.bore_mm, 0) << " mm\"\n"
+      << "npsh3 = \"" << fmt_number(duty.npsh3_m, 1) << " m\"\n";
+    if (!note.empty()) t << "note = \"" << note << "\"\n";
+    sc.toml = t.str();
+    return sc;
+}
+
+enum class Suction { none, sound, low };
+
+/// One recording of a field group, before it gets its name, seed and time.
+struct FieldRow {
+    Kind kind = Kind::healthy;
+    double severity = 0.0;
+    double speed_frac = 0.0;  ///< true speed / the machine's nominal; 0 = nominal (fixed speed)
+    double duration_s = 10.0;
+    bool rpm_given = true;
+    bool indeterminate = false;  ///< the verdict due is indeterminate, whatever the label
+    std::string hazard = "none";
+    double gain_db = 0.0, tilt_db_per_decade = 0.0;
+    double step_at_s = 0.0, step_db = 0.0;
+    Suction suction = Suction::none;
+    int day = 0;  ///< baselines: days after the group's first
+};
+
+FieldRow row(Kind kind, double severity) {
+    FieldRow r;
+    r.kind = kind;
+    r.severity = severity;
+    return r;
+}
+
+class FieldPlanner {
+public:
+    explicit FieldPlanner(std::uint64_t seed) : seed_(seed) {}
+
+    /// The random draws of the next group (its speeds, severities, mounts, sidecars).
+    Rng next_group_rng() const { return Rng(derive_seed(seed_, 4000000 + groups_)); }
+
+    /// Severity i of n, one in each 1/n slice of 0..1 (on a 0.001 grid, so that
+    /// truth.csv prints it exactly).
+    static double stratified(int i, int n, Rng& rng) {
+        return std::clamp(round_to((i + rng.uniform()) / n, 0.001), 0.0, 1.0);
+    }
+
+    void add_group(const std::string& name, const Machine& machine, const std::vector<FieldRow>& baselines,
+                   std::vector<FieldRow> tests, Rng& rng) {
+        const std::uint64_t gi = groups_++;
+        // Each group of a machine gets its own half year from 2026-01-05, so the
+        // recordings of one machine never share a time and each group's run in order.
+        const int first_day = 4 + 183 * machine_groups_[machine.tag]++;
+        Rng shuffle(derive_seed(seed_, 3000000 + gi));
+        std::vector<std::uint64_t> test_ids(tests.size());
+        for (std::size_t i = 0; i < tests.size(); ++i) test_ids[i] = 100 + i;
+        for (std::size_t i = tests.size(); i-- > 1;) {
+            const auto j = std::min(i, static_cast<std::size_t>(shuffle.uniform() * static_cast<double>(i + 1)));
+            std::swap(tests[i], tests[j]);
+            std::swap(test_ids[i], test_ids[j]);
+        }
+        int last_day = 0, minutes = 9 * 60;
+        for (std::size_t j = 0; j < baselines.size(); ++j) {
+            const FieldRow& b = baselines[j];
+            minutes = j > 0 && b.day == last_day ? minutes + 15 : 9 * 60;
+            last_day = b.day;
+            add(name, machine, b, "baseline", name + "_baseline_" + std::to_string(j + 1),
+                field_datetime(first_day + b.day, minutes), derive_seed(seed_, gi * 1000 + j), rng);
+        }
+        for (std::size_t i = 0; i < tests.size(); ++i) {
+            char num[32];
+            std::snprintf(num, sizeof num, "%02zu", i + 1);
+            add(name, machine, tests[i], "test", name + "_test_" + num,
+                field_datetime(first_day + last_day + 1 + static_cast<int>(i), 10 * 60),
+                derive_seed(seed_, gi * 1000 + test_ids[i]), rng);
+        }
+    }
+
+    std::vector<PlannedRecording> take() { return std::move(plan_); }
+
+private:
+    void add(const std::string& group, const Machine& machine, const FieldRow& f, const char* role,
+             const std::string& stem, const std::string& datetime, std::uint64_t seed, Rng& rng) {
+        // The evaluation set's cycle: mostly 16-bit PCM, every other encoding in each share.
+        constexpr std::array<Encoding, 6> kCycle{Encoding::pcm16, Encoding::pcm24,   Encoding::pcm16,
+                                                 Encoding::float32, Encoding::pcm16, Encoding::flac16};
+        PlannedRecording r;
+        r.encoding = kCycle[plan_.size() % kCycle.size()];
+        r.file = stem + extension_of(r.encoding);
+        r.role = role;
+        r.datetime = datetime;
+        r.group = group;
+        r.rpm_given = f.rpm_given;
+        r.hazard = r.role == "baseline" ? f.hazard : "none";
+        r.expect = f.indeterminate ? "indeterminate" : label_of(f.kind);
+        r.spec.machine = machine;
+        r.spec.kind = f.kind;
+        r.spec.severity = f.severity;
+        r.spec.duration_s = f.duration_s;
+        r.spec.seed = seed;
+        if (f.speed_frac > 0.0) {
+            // The speed look-alike is 2..4 % off the speed the drive was set to.
+            const double off = f.kind == Kind::speed ? draw_params(f.kind, f.severity, seed).speed.offset_frac : 0.0;
+            r.spec.rpm_override = machine.rpm * f.speed_frac * (1.0 + off);
+        }
+        if (machine.tag == drive_machine().tag) {
+            r.spec.level_speed_exponent_hf = 2.5;  // our choice (see CaseSpec)
+            r.spec.level_speed_exponent_lf = 2.0;
+        }
+        r.spec.gain_db = f.gain_db;
+        r.spec.tilt_db_per_decade = f.tilt_db_per_decade;
+        r.spec.step_at_s = f.step_at_s;
+        r.spec.step_db = f.step_db;
+        if (f.suction != Suction::none) {
+            const FieldDuty duty = field_duty(machine.tag);
+            const bool low = f.suction == Suction::low;
+            // Low NPSHa: the water may be warmer than usual too (a summer day).
+            const double temperature_c =
+                low ? duty.temperature_c + round_to(rng.uniform(0.0, 16.0), 0.5) : duty.temperature_c;
+            const double flow_m3h = std::round(rng.uniform(duty.flow_low_m3h, duty.flow_high_m3h));
+            const double npsha_m =
+                low ? rng.uniform(0.1, 0.8) : rng.uniform(duty.npsha_low_m, duty.npsha_high_m);
+            const Sidecar sc = field_sidecar(r.file, machine.tag, temperature_c, flow_m3h, npsha_m,
+                                             low ? "suction level low" : "");
+            r.sidecar_toml = sc.toml;
+            r.sidecar_npsha_m = sc.npsha_m;
+        }
+        plan_.push_back(std::move(r));
+    }
+
+    std::uint64_t seed_;
+    std::uint64_t groups_ = 0;
+    std::map<std::string, int> machine_groups_;
+    std::vector<PlannedRecording> plan_;
+};
+
+}  // namespace
+
+std::vector<PlannedRecording> field_plan(std::uint64_t seed) {
+    FieldPlanner planner(seed);
+    const Machine& drive = drive_machine();
+    const auto& fixed = scenario_machines();
+    auto short_tag = [](const Machine& m) { return m.tag.substr(3); };  // "OW-P101" -> "P101"
+
+    {  // a. The variable-speed pump against a baseline at three speeds.
+        Rng rng = planner.next_group_rng();
+        std::vector<FieldRow> baselines, tests;
+        for (const double frac : {0.70, 0.85, 1.00})
+            for (int k = 0; k < 2; ++k) {
+                FieldRow b = row(Kind::healthy, 0.0);
+                b.speed_frac = frac;
+                baselines.push_back(b);
+            }
+        for (const Kind kind : kEveryKind)
+            for (int i = 0; i < 2; ++i) {
+                FieldRow t = row(kind, FieldPlanner::stratified(i, 2, rng));
+                t.speed_frac = round_to(rng.uniform(0.75, 0.95), 0.001);
+                tests.push_back(t);
+            }
+        // Outside the covered 0.70..1.00: nothing learned says what is normal there.
+        for (const double frac : {0.50, 1.25})
+            for (const Kind kind : {Kind::healthy, Kind::developed}) {
+                FieldRow t = row(kind, kind == Kind::developed ? round_to(rng.uniform(0.3, 1.0), 0.001) : 0.0);
+                t.speed_frac = frac;
+                t.indeterminate = true;
+                tests.push_back(t);
+            }
+        planner.add_group("P104-vsd", drive, baselines, tests, rng);
+    }
+
+    {  // b. Four visits of OW-P101, the magnet re-mounted at each.
+        Rng rng = planner.next_group_rng();
+        std::vector<FieldRow> baselines, tests;
+        for (int visit = 0; visit < 4; ++visit) {
+            const double gain_db = round_to(rng.uniform(-2.5, 2.5), 0.01);
+            const double tilt = round_to(rng.uniform(-1.0, 1.0), 0.01);
+            for (int k = 0; k < 2; ++k) {
+                FieldRow b = row(Kind::healthy, 0.0);
+                b.gain_db = gain_db;
+                b.tilt_db_per_decade = tilt;
+                b.day = 28 * visit;
+                baselines.push_back(b);
+            }
+        }
+        auto remounted = [&](FieldRow t) {
+            t.gain_db = round_to(rng.uniform(-3.0, 3.0), 0.01);
+            t.tilt_db_per_decade = round_to(rng.uniform(-1.0, 1.0), 0.01);
+            return t;
+        };
+        for (int i = 0; i < 6; ++i) tests.push_back(remounted(row(Kind::healthy, 0.0)));
+        // Incipient from a quarter of its range up: at the bottom, +3.5 dB against a
+        // +-3 dB mount would ask for more than the HF level can say.
+        for (int i = 0; i < 3; ++i)
+            tests.push_back(remounted(row(Kind::incipient, round_to(0.25 + 0.75 * FieldPlanner::stratified(i, 3, rng), 0.001))));
+        for (int i = 0; i < 3; ++i) tests.push_back(remounted(row(Kind::developed, FieldPlanner::stratified(i, 3, rng))));
+        planner.add_group("P101-visits", fixed[0], baselines, tests, rng);
+    }
+
+    // c. Spoiled baselines, four groups of each hazard, and clean controls.
+    const std::array<std::string, 5> hazards{"step", "cavitating", "low_npsh", "short", "none"};
+    for (std::size_t h = 0; h < hazards.size(); ++h) {
+        const std::string& hazard = hazards[h];
+        for (std::size_t g = 0; g < 4; ++g) {
+            const Machine& m = fixed[g < 3 ? g : h % 3];
+            const std::string name = short_tag(m) + "-" + (hazard == "none" ? std::string("clean") : hazard) +
+                                     (g < 3 ? "" : "-2");
+            Rng rng = planner.next_group_rng();
+            // Two recordings in groups 0 and 2 (a short baseline is one by definition,
+            // a control always two), one in groups 1 and 3.
+            const std::size_t count = hazard == "short" ? 1 : hazard == "none" || g % 2 == 0 ? 2 : 1;
+            std::vector<FieldRow> baselines;
+            for (std::size_t k = 0; k < count; ++k) {
+                FieldRow b = row(Kind::healthy, 0.0);
+                b.suction = Suction::sound;
+                // Which of two is spoiled: in group 0 both for cavitation and suction
+                // (a condition of that whole day) and the second for a step; in
+                // group 2 one (the first for a step, else the second).
+                bool spoiled = false;
+                if (hazard == "none") spoiled = false;
+                else if (count == 1) spoiled = true;
+                else if (g == 0) spoiled = hazard != "step" || k == 1;
+                else spoiled = hazard == "step" ? k == 0 : k == 1;
+                if (spoiled) {
+                    b.hazard = hazard;
+                    if (hazard == "step") {
+                        b.step_db = round_to(rng.uniform(8.0, 20.0), 0.1);
+                        b.step_at_s = round_to(b.duration_s * rng.uniform(0.4, 0.7), 0.01);
+                    } else if (hazard == "cavitating") {
+                        const bool developed = g >= 2;
+                        b.kind = developed ? Kind::developed : Kind::incipient;
+                        b.severity = round_to(developed ? rng.uniform(0.0, 1.0) : rng.uniform(0.3, 1.0), 0.001);
+                    } else if (hazard == "low_npsh") {
+                        b.suction = Suction::low;
+                    } else if (hazard == "short") {
+                        b.duration_s = 2.0;
+                    }
+                }
+                baselines.push_back(b);
+            }
+            std::vector<FieldRow> tests{row(Kind::healthy, 0.0)};
+            if (g % 2 == 1) tests.push_back(row(Kind::healthy, 0.0));
+            tests.push_back(row(Kind::developed, round_to(rng.uniform(0.0, 1.0), 0.001)));
+            planner.add_group(name, m, baselines, tests, rng);
+        }
+    }
+
+    // d, e, f. Sound baselines of each fixed-speed pump, against which: inner-race
+    // faults, speeds to be found, short captures.
+    const std::array<Kind, 3> rotating_lookalike{Kind::bearing, Kind::inner_race, Kind::mains};
+    for (std::size_t mi = 0; mi < fixed.size(); ++mi) {
+        Rng rng = planner.next_group_rng();
+        const std::vector<FieldRow> baselines(3, row(Kind::healthy, 0.0));
+        std::vector<FieldRow> tests;
+        for (int i = 0; i < 3; ++i) tests.push_back(row(Kind::inner_race, FieldPlanner::stratified(i, 3, rng)));
+        for (const Kind kind : {Kind::healthy, Kind::incipient, Kind::developed, Kind::speed, rotating_lookalike[mi]}) {
+            FieldRow t = row(kind, kind == Kind::healthy ? 0.0 : round_to(rng.uniform(0.0, 1.0), 0.001));
+            t.rpm_given = false;
+            tests.push_back(t);
+        }
+        // Captures c = 0..15: kind c / 2 of kEveryKind, on machine c % 3, so each
+        // kind is captured on two machines.
+        for (std::size_t c = mi; c < 2 * kEveryKind.size(); c += 3) {
+            FieldRow t = row(kEveryKind[c / 2], FieldPlanner::stratified(static_cast<int>(c % 2), 2, rng));
+            t.duration_s = round_to(rng.uniform(1.0, 2.0), 0.1);
+            tests.push_back(t);
+        }
+        planner.add_group(short_tag(fixed[mi]) + "-ref", fixed[mi], baselines, tests, rng);
+    }
+
+    {  // e. The drive held at one speed, then jumps the tool must notice.
+        Rng rng = planner.next_group_rng();
+        constexpr double kHeldFrac = 0.90;
+        std::vector<FieldRow> baselines(2, row(Kind::healthy, 0.0));
+        for (auto& b : baselines) b.speed_frac = kHeldFrac;
+        std::vector<FieldRow> tests;
+        for (const Kind kind : {Kind::healthy, Kind::developed}) {
+            FieldRow t = row(kind, kind == Kind::developed ? round_to(rng.uniform(0.3, 1.0), 0.001) : 0.0);
+            t.speed_frac = kHeldFrac;
+            t.rpm_given = false;
+            tests.push_back(t);
+            for (const double sign : {-1.0, 1.0}) {
+                FieldRow j = row(kind, kind == Kind::developed ? round_to(rng.uniform(0.3, 1.0), 0.001) : 0.0);
+                j.speed_frac = round_to(kHeldFrac * (1.0 + sign * rng.uniform(0.15, 0.25)), 0.001);
+                j.rpm_given = false;
+                j.indeterminate = true;
+                tests.push_back(j);
+            }
+        }
+        planner.add_group("P104-fixed", drive, baselines, tests, rng);
+    }
+    return planner.take();
+}
+
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
-                     const std::vector<SetFile>& files) {
+                     const std::vector<SetFile>& files, SetColumns columns) {
+    const bool field = columns == SetColumns::field;
     std::error_code ec;
     std::filesystem::create_directories(folder, ec);
     if (ec || !std::filesystem::is_directory(folder))
@@ -1028,13 +1430,18 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
     // Route-manifest form (see README: file, machine, point, channel, datetime, rpm,
     // vanes, then optional columns); manifest.csv holds every recording,
     // baselines.csv and route.csv the known-good ones and the ones to judge.
-    const char* header = "file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed\n";
+    const std::string header = std::string("file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,"
+                                           "fs_hz,duration_s,seed") +
+                               (field ? ",group,rpm_given,expect,hazard\n" : "\n");
     std::ostringstream manifest, baselines, route, truth;
     manifest << header;
     baselines << header;
     route << header;
     truth << "file,kind,severity,collapse_rate_per_s,bpf_depth,shaft_depth,hf_rise_db,lf_rise_db,"
-             "bearing_order,bearing_slip,turbulence_lf_rise_db,mains_hz,mains_g,speed_offset_pct,pulse_amplitude_g\n";
+             "bearing_order,bearing_slip,turbulence_lf_rise_db,mains_hz,mains_g,speed_offset_pct,pulse_amplitude_g"
+          << (field ? ",inner_race_order,inner_race_slip,load_depth,load_depth_2x,level_speed_exponent_hf,"
+                      "level_speed_exponent_lf,gain_db,tilt_db_per_decade,step_at_s,step_db,sidecar_npsha_m\n"
+                    : "\n");
     SetSummary summary;
     for (std::size_t i = 0; i < plan.size(); ++i) {
         const PlannedRecording& r = plan[i];
@@ -1054,7 +1461,9 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         row << r.file << ',' << r.spec.machine.tag << ',' << r.point << ",0," << r.datetime << ','
             << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ',' << fmt_number(kFullScaleG, 3) << "g,"
             << r.role << ',' << label_of(k) << ',' << name_of(k) << ',' << fmt_number(rec.fs_hz, 3) << ','
-            << fmt_number(r.spec.duration_s, 6) << ',' << r.spec.seed << '\n';
+            << fmt_number(r.spec.duration_s, 6) << ',' << r.spec.seed;
+        if (field) row << ',' << r.group << ',' << (r.rpm_given ? 1 : 0) << ',' << r.expect << ',' << r.hazard;
+        row << '\n';
         manifest << row.str();
         (r.role == "baseline" ? baselines : route) << row.str();
         const FaultParams& p = rec.params;
@@ -1063,13 +1472,27 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         truth << r.file << ',' << name_of(k) << ',' << col(k != Kind::healthy, r.spec.severity, 3) << ','
               << col(cav, p.cavitation.collapse_rate_per_s, 2) << ',' << col(cav, p.cavitation.bpf_depth, 4) << ','
               << col(cav, p.cavitation.shaft_depth, 4) << ','
-              << (cav ? fmt_number(p.cavitation.hf_rise_db, 3) : k == Kind::bearing ? fmt_number(p.bearing.hf_rise_db, 3) : "")
+              << (cav                     ? fmt_number(p.cavitation.hf_rise_db, 3)
+                  : k == Kind::bearing    ? fmt_number(p.bearing.hf_rise_db, 3)
+                  : k == Kind::inner_race ? fmt_number(p.inner_race.hf_rise_db, 3)
+                                          : "")
               << ',' << col(k == Kind::developed, p.cavitation.lf_rise_db, 3) << ','
               << col(k == Kind::bearing, p.bearing.order, 4) << ',' << col(k == Kind::bearing, p.bearing.slip_frac, 4) << ','
               << col(k == Kind::turbulence, p.turbulence.lf_rise_db, 3) << ',' << col(k == Kind::mains, p.mains.mains_hz, 3)
               << ',' << col(k == Kind::mains, p.mains.amplitude_g, 4) << ','
               << col(k == Kind::speed, 100.0 * p.speed.offset_frac, 3) << ','
-              << col(cav || k == Kind::bearing, rec.pulse_amplitude_g, 6) << '\n';
+              << col(cav || k == Kind::bearing || k == Kind::inner_race, rec.pulse_amplitude_g, 6);
+        if (field) {
+            const bool inner = k == Kind::inner_race;
+            const CaseSpec& c = r.spec;
+            truth << ',' << col(inner, p.inner_race.order, 4) << ',' << col(inner, p.inner_race.slip_frac, 4) << ','
+                  << col(inner, p.inner_race.load_depth, 4) << ',' << col(inner, p.inner_race.load_depth_2x, 4) << ','
+                  << fmt_number(c.level_speed_exponent_hf, 3) << ',' << fmt_number(c.level_speed_exponent_lf, 3) << ','
+                  << fmt_number(c.gain_db, 3) << ',' << fmt_number(c.tilt_db_per_decade, 3) << ','
+                  << col(c.step_db > 0.0, c.step_at_s, 3) << ',' << col(c.step_db > 0.0, c.step_db, 3) << ','
+                  << col(r.sidecar_npsha_m > 0.0, r.sidecar_npsha_m, 3);
+        }
+        truth << '\n';
         if (!r.sidecar_toml.empty())
             write_text_atomically(folder / (path.stem().string() + ".op.toml"), r.sidecar_toml);
         if (progress) progress(i + 1, plan.size());

@@ -78,9 +78,16 @@ struct Machine {
 };
 
 /// The three Orrin Weir pumps (P101 raw-water lift, P102 treated-water booster,
-/// P103 backwash).
+/// P103 backwash): the machines of the demo and evaluation sets.
 const std::vector<Machine>& scenario_machines();
-/// Throws std::invalid_argument naming the known tags.
+/// OW-P104, the clear-well transfer pump on a variable-speed drive (1780 rpm
+/// at full speed, 5 vanes, recorded at 25 600 Hz): the field set's fourth
+/// machine, kept out of scenario_machines() so that the evaluation set stays
+/// as it was.
+const Machine& drive_machine();
+/// scenario_machines() and drive_machine(), in that order.
+const std::vector<Machine>& every_machine();
+/// Any of every_machine(); throws std::invalid_argument naming the known tags.
 const Machine& machine_by_tag(std::string_view tag);
 
 /// A frequency band in Hz.
@@ -259,6 +266,14 @@ struct PlannedRecording {
     /// `cavitas analyze`'s operating-point flags); written beside the recording
     /// as NAME.op.toml when not empty.
     std::string sidecar_toml;
+
+    // The field set's columns (empty or default elsewhere; see field_plan).
+    std::string group;      ///< the baseline this recording belongs to or is judged against
+    bool rpm_given = true;  ///< the evaluator passes the true rpm to the analysis
+    std::string expect;     ///< normal / incipient / developed / indeterminate
+    std::string hazard;     ///< baseline rows: none / step / cavitating / low_npsh / short
+    /// NPSHa the sidecar states (computed by models/ from its own text); 0 = no sidecar.
+    double sidecar_npsha_m = 0;
 };
 
 /// Further text files of a set (NPSH3 curves): name and contents.
@@ -284,21 +299,69 @@ std::vector<SetFile> demo_files();
 /// names (OW-P101_test_017.wav), encodings cycling pcm16/pcm24/float/flac16.
 std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed);
 
+/// The field set: what a route meets that the evaluation set does not - a
+/// variable-speed pump, baselines gathered over several visits with the sensor
+/// re-mounted each time, spoiled baselines, a look-alike at a bearing, speeds
+/// the tool must find itself, short captures. Recordings belong to groups (one
+/// baseline each, named like P104-vsd or P101-step); every recording is 10 s
+/// unless said, tests of a group have blind names in shuffled order
+/// (P101-visits_test_07.wav), encodings cycle as in the evaluation set.
+///   P104-vsd     OW-P104 (drive_machine()): baselines at 0.70, 0.85, 1.00 x
+///                1780 rpm (2 each, healthy); tests at 0.75..0.95 x of every
+///                kind (kEveryKind, 2 each; expect = label), and at 0.50 x and
+///                1.25 x, healthy and developed, outside the speeds the baseline
+///                covers (expect indeterminate). Every OW-P104 recording has
+///                the speed exponents 2.5 (HF) and 2 (LF).
+///   P101-visits  4 visits of OW-P101 on different dates, 2 recordings each,
+///                the magnet re-mounted at each visit (gain within +-2.5 dB,
+///                tilt within +-1 dB/decade); tests re-mounted again (gain
+///                within +-3 dB): 6 healthy, 3 incipient, 3 developed.
+///   P10x-step, -cavitating, -low_npsh, -short (4 groups each over OW-P101..
+///                P103; "-2" when a machine has two): spoiled baselines of one
+///                or two recordings - a level step of 8..20 dB at 40..70 % of a
+///                record; an incipient or developed recording; a sidecar whose
+///                suction pressure and temperature give NPSHa 0.1..0.8 m; a
+///                single recording of 2 s. P10x-clean (4 groups): two healthy
+///                recordings and sound sidecars (hazard none, no warning due).
+///                Each has 2..3 tests (healthy, developed; expect = label).
+///                Every baseline of these groups has a sidecar NAME.op.toml
+///                (the demo's keys without speed; NPSHa 7..26 m unless low).
+///   P10x-ref     3 healthy baselines of each of OW-P101..P103, against which:
+///                inner-race tests (3 a machine, expect normal); tests whose
+///                rpm the tool must find itself (rpm_given 0: healthy,
+///                incipient, developed, speed and a bearing, inner-race or
+///                mains look-alike a machine; expect = label); captures of
+///                1..2 s of every kind (16; expect = label).
+///   P104-fixed   OW-P104 held at 0.90 x (2 baselines); rpm_given 0 tests at
+///                that speed (healthy, developed; expect = label) and after a
+///                drive-speed jump of 15..25 % up or down (healthy, developed
+///                twice each; expect indeterminate).
+/// 183 recordings, about 113 MB; about 11 s to write on one core.
+std::vector<PlannedRecording> field_plan(std::uint64_t seed = 20260301);
+
 struct SetSummary {
     std::size_t files = 0;
     std::uintmax_t bytes = 0;  ///< recordings only
     std::size_t clipped_files = 0;
 };
 
+/// Which columns the manifests and truth.csv of a set have.
+enum class SetColumns {
+    standard,  ///< the demo and evaluation sets'
+    field,     ///< and the field set's: manifests + group,rpm_given,expect,hazard;
+               ///< truth.csv + the inner-race, speed-scaling, re-mount, step and sidecar NPSHa values
+};
+
 /// Synthesizes and writes every planned recording into `folder` (created if
 /// missing), then route manifests - manifest.csv (all), baselines.csv (role
 /// baseline), route.csv (role test), header file,machine,point,channel,datetime,
-/// rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed - and truth.csv
+/// rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed (with
+/// SetColumns::field also group,rpm_given,expect,hazard) - and truth.csv
 /// (the fault parameters).
 /// `progress(done, total)` is called after each file; clipping warnings go to `warn`.
 /// Sidecars of the plan and `files` are written too.
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
-                     const std::vector<SetFile>& files = {});
+                     const std::vector<SetFile>& files = {}, SetColumns columns = SetColumns::standard);
 
 }  // namespace cavitas::synth
