@@ -506,9 +506,10 @@ FaultParams draw_params(Kind kind, double severity, std::uint64_t seed) {
     const double speed_sign = rng.uniform() < 0.5 ? -1.0 : 1.0;
     {
         // Inner-race order (BPFI / f_r) in 4.6..6.4, at least 0.15 from any integer:
-        // [4.6, 4.85] u [5.15, 5.85] u [6.15, 6.4] (total length 1.2). A typical
-        // rolling bearing of 8..12 elements has BPFI 4.9..7.4 f_r (from the
-        // kinematics, 0.5 n (1 + d/D cos alpha)); our range sits inside it.
+        // [4.6, 4.85] u [5.15, 5.85] u [6.15, 6.4] (total length 1.2). BPFI =
+        // 0.5 n (1 + d/D cos alpha) f_r (the kinematic formula, from memory): about
+        // 4.8..7.5 f_r for 8..12 rolling elements with d/D 0.2..0.25; the range
+        // and the load-zone depths are our choice.
         const double u = rng.uniform(0.0, 1.2);
         p.inner_race.order = u < 0.25 ? 4.6 + u : (u < 0.95 ? 5.15 + (u - 0.25) : 6.15 + (u - 0.95));
     }
@@ -618,8 +619,8 @@ Recording synthesize_recording(const CaseSpec& spec) {
     }
     if (spec.step_db > 0.0) {
         // More of the same floor from step_at_s on, kept above 1 kHz by a 4th-order
-        // high-pass: independent noise adds power, so its variance is set for
-        // exactly step_db more in hf_band() (the pink part there is negligible).
+        // high-pass (our choice): independent noise adds power, so its variance is
+        // set for exactly step_db more in hf_band() (the pink part there is negligible).
         Path extra = st.floor_path;
         for (auto& b : extra.branches)
             for (const auto& sec : butterworth(true, 4, 1000.0, fs)) b.sections.push_back(sec);

@@ -2,14 +2,17 @@
 // demo set in samples/, the labelled evaluation set and the benchmarks.
 //
 // The scenario is invented: utility "Lowmere Water Trust", site "Orrin Weir
-// pumping station", three pumps OW-P101..OW-P103. A recording is a sum of
+// pumping station", three pumps OW-P101..OW-P103, and for the field set
+// OW-P104 on a variable-speed drive. A recording is a sum of
 //   * shaft tones 1x, 2x, 3x and blade-pass tones BPF, 2xBPF (random phases,
 //     +-10 % amplitude per recording),
 //   * a coloured broadband background: a pink-ish (-10 dB/decade) part below
 //     about 1 kHz and a flat floor that also drives the machine's three lightly
 //     damped structural resonances,
 //   * the fault of the recording's Kind (cavitation, or a look-alike that is
-//     labelled normal).
+//     labelled normal),
+//   * and, only where a CaseSpec asks for them, field conditions: levels scaled
+//     with speed, a re-mounted sensor's gain and tilt, a level step.
 // Every amplitude is in g. A fault's strength is set by the band-power rise it
 // causes over the same recording without the fault (computed exactly from the
 // filter responses, so "incipient raises the HF band by 5 dB" holds in
@@ -270,7 +273,7 @@ struct PlannedRecording {
     // The field set's columns (empty or default elsewhere; see field_plan).
     std::string group;      ///< the baseline this recording belongs to or is judged against
     bool rpm_given = true;  ///< the evaluator passes the true rpm to the analysis
-    std::string expect;     ///< normal / incipient / developed / indeterminate
+    std::string expect;     ///< normal / incipient / developed / indeterminate (baselines: their label)
     std::string hazard;     ///< baseline rows: none / step / cavitating / low_npsh / short
     /// NPSHa the sidecar states (computed by models/ from its own text); 0 = no sidecar.
     double sidecar_npsha_m = 0;
