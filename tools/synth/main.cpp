@@ -20,13 +20,13 @@ namespace {
 
 std::string machine_list() {
     std::string s;
-    for (const auto& m : synth::scenario_machines()) {
-        char line[160];
+    for (const auto& m : synth::every_machine()) {
+        char line[200];
         std::snprintf(line, sizeof line, "\n  %s  %-22s %5.0f rpm, %d vanes, recorded at %.0f Hz", m.tag.c_str(),
                       m.duty.c_str(), m.rpm, m.vanes, m.fs_hz);
         s += line;
     }
-    return s;
+    return s + "\n  (OW-P104 is in the field set only; its speed varies, nominal shown)";
 }
 
 void print_summary(const char* what, const std::filesystem::path& dir, const synth::SetSummary& s) {
@@ -50,7 +50,10 @@ int main(int argc, char** argv) {
                  "  bearing     outer-race defect impacts at a non-integer shaft order (label normal)\n"
                  "  turbulence  extra flow noise in 20..800 Hz, +6..12 dB below 1 kHz (label normal)\n"
                  "  mains       50 Hz electrical pickup and its harmonics (label normal)\n"
-                 "  speed       shaft speed 2..4 % off nominal, otherwise healthy (label normal)\n\n"
+                 "  speed       shaft speed 2..4 % off nominal, otherwise healthy (label normal)\n"
+                 "  inner_race  inner-race defect impacts at a non-integer order (4.6..6.4), their strength\n"
+                 "              swept by the shaft's load zone once a revolution: HF +6..15 dB, envelope\n"
+                 "              lines at 1x and BPFI +- 1x (label normal; field set and 'one' only)\n\n"
                  "Scenario (invented): Lowmere Water Trust, Orrin Weir pumping station. Machines:" +
                  machine_list() +
                  "\n\nFiles are 16-bit PCM WAV unless told otherwise, full scale 50 g (sample = g / 50).\n"
@@ -96,6 +99,38 @@ int main(int argc, char** argv) {
         ->capture_default_str();
     eval->add_option("--seed", eval_seed, "Master seed of the set")->capture_default_str();
 
+    // field
+    std::string field_dir;
+    std::uint64_t field_seed = 20260301;  // field_plan()'s default
+    auto* field = app.add_subcommand(
+        "field",
+        "Write the field set (183 recordings, about 113 MB, some 11 s on one core): what a route meets beyond the evaluation set. Groups, "
+        "each judged against its own baseline: P104-vsd (OW-P104 on a variable-speed drive: baselines at 0.70, "
+        "0.85 and 1.00 x 1780 rpm; tests of every kind, inner_race included, at 0.75..0.95 x; and at 0.50 x and "
+        "1.25 x, outside what the baseline covers: indeterminate due); P101-visits (4 baseline visits, the magnet "
+        "re-mounted each time: gain +-2.5 dB, tilt +-1 dB/decade about 1 kHz; tests re-mounted again); spoiled "
+        "baselines of one or two recordings on OW-P101..P103, four groups of each hazard - step (the HF background "
+        "rises 8..20 dB at 40..70 % of the record), cavitating (the known-good recording is incipient or "
+        "developed), low_npsh (its sidecar NAME.op.toml states suction conditions with NPSHa 0.1..0.8 m), short "
+        "(a single 2 s recording) - and clean control groups (none: no warning due); P101/P102/P103-ref (3 sound "
+        "baselines each) with inner-race tests, tests whose speed the tool must find itself, and 1..2 s captures "
+        "of every kind; P104-fixed (the drive held at 0.90 x, tests without the speed, some after a 15..25 % "
+        "speed jump: indeterminate due). Every OW-P104 recording scales its levels with speed: (rpm / 1780)^2.5 "
+        "in the HF band, ^2 below 1 kHz and for the tones. Recordings are 10 s unless said; tests have blind "
+        "names (P101-visits_test_07.wav); encodings cycle as in the eval set.");
+    field->footer(
+        "The manifests have the columns of the demo and eval sets, then: group (the baseline a recording belongs "
+        "to, role baseline, or is judged against, role test), rpm_given (1: the evaluator gives the analysis the "
+        "true rpm; 0: the tool must find the speed itself - the rpm column still holds the true speed), expect "
+        "(the verdict a correct tool gives: normal, incipient, developed or indeterminate; for baselines, their "
+        "label) and hazard (baselines: what a correct baseline check warns about - none, step, cavitating, "
+        "low_npsh or short; tests: none). truth.csv adds the inner-race parameters, the speed exponents, the "
+        "re-mount's gain and tilt, the step, and the NPSHa each sidecar states (computed as cavitas does: IAPWS-IF97 "
+        "water, ISO 2533 atmosphere). `cavitas-synth one` reproduces a recording without a re-mount, a step or "
+        "speed scaling (--rpm for the true speed); the others are CaseSpec values of the library.");
+    field->add_option("OUTDIR", field_dir, "Folder to write into (created if missing)")->required();
+    field->add_option("--seed", field_seed, "Master seed of the set")->capture_default_str();
+
     // one
     std::string tag = "OW-P101", kind_name = "healthy", out_file, encoding_name;
     double seconds = 10.0, fs_hz = 0.0, severity = 0.5, rpm = 0.0;
@@ -105,8 +140,8 @@ int main(int argc, char** argv) {
         "Write one recording, e.g. for benchmarks: cavitas-synth one --machine OW-P101 --kind developed "
         "--seconds 60 --fs 96000 --seed 7 -o FILE.wav");
     std::vector<std::string> tags, kinds;
-    for (const auto& m : synth::scenario_machines()) tags.push_back(m.tag);
-    for (auto k : synth::kAllKinds) kinds.push_back(synth::name_of(k));
+    for (const auto& m : synth::every_machine()) tags.push_back(m.tag);
+    for (auto k : synth::kEveryKind) kinds.push_back(synth::name_of(k));
     one->add_option("--machine", tag, "Machine tag")->check(CLI::IsMember(tags))->capture_default_str();
     one->add_option("--kind", kind_name, "Condition to synthesize (see cavitas-synth --help)")
         ->check(CLI::IsMember(kinds))
@@ -145,6 +180,17 @@ int main(int argc, char** argv) {
                 },
                 std::cerr);
             print_summary("eval", eval_dir, summary);
+        } else if (*field) {
+            const auto plan = synth::field_plan(field_seed);
+            const bool tty = isatty(STDERR_FILENO) != 0;
+            const auto summary = synth::write_set(
+                field_dir, plan,
+                [tty](std::size_t done, std::size_t total) {
+                    std::cerr << "field: " << done << '/' << total << " recordings"
+                              << (tty && done < total ? "\r" : "\n") << std::flush;
+                },
+                std::cerr, {}, synth::SetColumns::field);
+            print_summary("field", field_dir, summary);
         } else if (*one) {
             synth::CaseSpec spec;
             spec.machine = synth::machine_by_tag(tag);

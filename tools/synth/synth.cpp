@@ -10,11 +10,14 @@
 
 #include <sndfile.h>
 
+#include "models/operating_point.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <complex>
 #include <cstdio>
 #include <fstream>
+#include <map>
 #include <memory>
 #include <numbers>
 #include <ostream>
@@ -74,6 +77,7 @@ enum Stream : std::uint64_t {
     kStreamEvents = 5,
     kStreamFaultNoise = 6,
     kStreamMains = 7,
+    kStreamStep = 8,
 };
 
 // ---------------------------------------------------------------------------
@@ -130,6 +134,31 @@ struct Chain {
     double gain = 1.0;
     std::vector<Biquad> sections;
 };
+
+/// Sections whose gain rises by tilt_db_per_decade * log10(f / f_ref) dB:
+/// first-order shelves every quarter decade, centred from 5 Hz to 0.3 fs, each
+/// stepping a quarter of the tilt (their transitions, about a decade wide,
+/// blend into a straight line in dB against log f). Centres end at 0.3 fs, not
+/// at the top, because the bilinear transform finishes a shelf near Nyquist
+/// sooner than its analog prototype; with this span the line holds within 4 %
+/// of the tilt from 20 Hz to 0.45 fs at 8..96 kHz sampling (computed from the
+/// responses in the design; our choice of spacing and span).
+Chain tilt_chain(double tilt_db_per_decade, double f_ref_hz, double fs_hz) {
+    constexpr double kLowestCentreHz = 5.0, kTopCentreOfFs = 0.3, kSpacingDecades = 0.25;
+    const double span_decades = std::log10(kTopCentreOfFs * fs_hz / kLowestCentreHz);
+    const int steps = static_cast<int>(std::ceil(span_decades / kSpacingDecades));
+    const double spacing = span_decades / steps;
+    const double half_ratio = std::pow(10.0, tilt_db_per_decade * spacing / 40.0);  // sqrt(pole / zero)
+    Chain c;
+    for (int k = 0; k < steps; ++k) {
+        const double centre_hz = kLowestCentreHz * std::pow(10.0, (k + 0.5) * spacing);
+        c.sections.push_back(shelf1(centre_hz * half_ratio, centre_hz / half_ratio, fs_hz));
+    }
+    std::complex<double> at_ref = 1.0;
+    for (const auto& sec : c.sections) at_ref *= sec.response(f_ref_hz / fs_hz);
+    c.gain = 1.0 / std::abs(at_ref);
+    return c;
+}
 
 /// Parallel sum of cascades: y = sum_i gain_i * (sections_i applied to x).
 struct Path {
@@ -296,6 +325,17 @@ Structure make_structure(const Machine& m) {
     return s;
 }
 
+/// Where a bearing impact goes: it rings one resonance, and a little reaches the
+/// sensor directly.
+Path impact_path(const Structure& st, const Machine& m, int mode_index) {
+    const double fs = m.fs_hz;
+    const Mode& mode = m.modes[static_cast<std::size_t>(mode_index)];
+    Path path;
+    path.branches.push_back({mode.gain, {bandpass2(mode.fraction_of_fs * fs, fs, 1.0 / (2.0 * mode.damping_ratio))}});
+    path.branches.push_back({0.15, st.pulse_path.branches[0].sections});
+    return path;
+}
+
 void validate(const CaseSpec& spec) {
     const Machine& m = spec.machine;
     auto fail = [&](const std::string& what) {
@@ -307,6 +347,14 @@ void validate(const CaseSpec& spec) {
     if (m.vanes < 1 || m.vanes > 40) fail("vanes must be within 1..40");
     if (!(spec.rpm_override >= 0.0 && spec.rpm_override <= 60000.0)) fail("rpm_override must be 0 or up to 60 000");
     if (!(spec.severity >= 0.0 && spec.severity <= 1.0)) fail("severity must be within 0..1");
+    if (!(spec.level_speed_exponent_hf >= 0.0 && spec.level_speed_exponent_hf <= 4.0) ||
+        !(spec.level_speed_exponent_lf >= 0.0 && spec.level_speed_exponent_lf <= 4.0))
+        fail("level_speed_exponent_hf and _lf must be within 0..4");
+    if (!(spec.gain_db >= -40.0 && spec.gain_db <= 40.0)) fail("gain_db must be within -40..40 dB");
+    if (!(spec.tilt_db_per_decade >= -6.0 && spec.tilt_db_per_decade <= 6.0))
+        fail("tilt_db_per_decade must be within -6..6 dB/decade");
+    if (!(spec.step_db >= 0.0 && spec.step_db <= 40.0)) fail("step_db must be within 0..40 dB");
+    if (!(spec.step_at_s >= 0.0 && spec.step_at_s <= spec.duration_s)) fail("step_at_s must be within 0..duration_s");
     for (const auto& mode : m.modes) {
         if (!(mode.fraction_of_fs > 0.0 && mode.fraction_of_fs < 0.4)) fail("each mode must lie below 0.4 fs");
         if (!(mode.damping_ratio > 0.0 && mode.damping_ratio < 0.5)) fail("mode damping ratio must be within (0, 0.5)");
@@ -332,6 +380,16 @@ void check_params(const FaultParams& p, Kind kind) {
         if (b.mode_index < 0 || b.mode_index > 2) fail("bearing mode_index must be 0, 1 or 2");
         if (!(b.hf_rise_db > 0.0 && b.hf_rise_db <= 60.0)) fail("bearing hf_rise_db must be within (0, 60]");
         if (!(b.amplitude_spread >= 0.0 && b.amplitude_spread <= 1.0)) fail("bearing amplitude_spread must be within 0..1");
+    }
+    if (kind == Kind::inner_race) {
+        const auto& b = p.inner_race;
+        if (!(b.order >= 0.5 && b.order <= 50.0)) fail("inner-race order must be within 0.5..50");
+        if (!(b.slip_frac >= 0.0 && b.slip_frac <= 0.2)) fail("inner-race slip_frac must be within 0..0.2");
+        if (!(b.load_depth >= 0.0 && b.load_depth <= 1.0) || !(b.load_depth_2x >= 0.0 && b.load_depth_2x <= 1.0))
+            fail("inner-race load depths must be within 0..1");
+        if (b.mode_index < 0 || b.mode_index > 2) fail("inner-race mode_index must be 0, 1 or 2");
+        if (!(b.hf_rise_db > 0.0 && b.hf_rise_db <= 60.0)) fail("inner-race hf_rise_db must be within (0, 60]");
+        if (!(b.amplitude_spread >= 0.0 && b.amplitude_spread <= 1.0)) fail("inner-race amplitude_spread must be within 0..1");
     }
     if (kind == Kind::turbulence) {
         const auto& t = p.turbulence;
@@ -365,15 +423,16 @@ std::string name_of(Kind kind) {
         case Kind::turbulence: return "turbulence";
         case Kind::mains: return "mains";
         case Kind::speed: return "speed";
+        case Kind::inner_race: return "inner_race";
     }
     return "healthy";
 }
 
 Kind kind_from_name(std::string_view name) {
-    for (Kind k : kAllKinds)
+    for (Kind k : kEveryKind)
         if (name_of(k) == name) return k;
     throw std::invalid_argument("unknown kind '" + std::string(name) +
-                                "' (healthy, incipient, developed, bearing, turbulence, mains, speed)");
+                                "' (healthy, incipient, developed, bearing, turbulence, mains, speed, inner_race)");
 }
 
 const std::vector<Machine>& scenario_machines() {
@@ -385,10 +444,27 @@ const std::vector<Machine>& scenario_machines() {
     return machines;
 }
 
+const Machine& drive_machine() {
+    // Our invention: a clear-well transfer pump on a variable-speed drive, its
+    // three modes placed apart from the other pumps'.
+    static const Machine machine{"OW-P104", 1780.0, 5, 25600.0, "clear-well transfer pump (variable-speed drive)",
+                                 {{{0.108, 0.028, 5.0}, {0.219, 0.024, 6.0}, {0.366, 0.036, 4.5}}}};
+    return machine;
+}
+
+const std::vector<Machine>& every_machine() {
+    static const std::vector<Machine> machines = [] {
+        std::vector<Machine> v = scenario_machines();
+        v.push_back(drive_machine());
+        return v;
+    }();
+    return machines;
+}
+
 const Machine& machine_by_tag(std::string_view tag) {
-    for (const auto& m : scenario_machines())
+    for (const auto& m : every_machine())
         if (m.tag == tag) return m;
-    throw std::invalid_argument("unknown machine '" + std::string(tag) + "' (OW-P101, OW-P102, OW-P103)");
+    throw std::invalid_argument("unknown machine '" + std::string(tag) + "' (OW-P101, OW-P102, OW-P103, OW-P104)");
 }
 
 Band hf_band(double fs_hz) { return {0.2 * fs_hz, 0.45 * fs_hz}; }
@@ -428,6 +504,19 @@ FaultParams draw_params(Kind kind, double severity, std::uint64_t seed) {
     p.bearing.mode_index = rng.uniform() < 1.0 / 3.0 ? 1 : 2;
     p.mains.mains_hz = 50.0 + rng.uniform(-0.05, 0.05);
     const double speed_sign = rng.uniform() < 0.5 ? -1.0 : 1.0;
+    {
+        // Inner-race order (BPFI / f_r) in 4.6..6.4, at least 0.15 from any integer:
+        // [4.6, 4.85] u [5.15, 5.85] u [6.15, 6.4] (total length 1.2). BPFI =
+        // 0.5 n (1 + d/D cos alpha) f_r (the kinematic formula, from memory): about
+        // 4.8..7.5 f_r for 8..12 rolling elements with d/D 0.2..0.25; the range
+        // and the load-zone depths are our choice.
+        const double u = rng.uniform(0.0, 1.2);
+        p.inner_race.order = u < 0.25 ? 4.6 + u : (u < 0.95 ? 5.15 + (u - 0.25) : 6.15 + (u - 0.95));
+    }
+    p.inner_race.slip_frac = rng.uniform(0.01, 0.02);
+    p.inner_race.load_depth = rng.uniform(0.5, 0.9);
+    p.inner_race.load_depth_2x = p.inner_race.load_depth * rng.uniform(0.2, 0.4);
+    p.inner_race.mode_index = rng.uniform() < 1.0 / 3.0 ? 1 : 2;
 
     if (kind == Kind::developed) {
         p.cavitation.collapse_rate_per_s = 2000.0 * std::pow(10.0, s);
@@ -439,6 +528,7 @@ FaultParams draw_params(Kind kind, double severity, std::uint64_t seed) {
         p.cavitation.lf_rise_db = 0.0;
     }
     p.bearing.hf_rise_db = 6.0 + 9.0 * s;
+    p.inner_race.hf_rise_db = 6.0 + 9.0 * s;
     p.turbulence.lf_rise_db = 6.0 + 6.0 * s;
     p.mains.amplitude_g = 0.1 + 0.3 * s;
     p.speed.offset_frac = speed_sign * (0.02 + 0.02 * s);
@@ -484,6 +574,14 @@ Recording synthesize_recording(const CaseSpec& spec) {
             if (f < 0.45 * fs) tones.push_back({f, amp, phase});
         }
     }
+    // Speed scaling of levels (1 unless an exponent is set: x * 1.0 is exact, so
+    // a spec without it keeps its samples bit for bit).
+    const double speed_ratio = rec.rpm / m.rpm;
+    const double hf_speed_gain =
+        spec.level_speed_exponent_hf != 0.0 ? std::pow(speed_ratio, spec.level_speed_exponent_hf) : 1.0;
+    const double lf_speed_gain =
+        spec.level_speed_exponent_lf != 0.0 ? std::pow(speed_ratio, spec.level_speed_exponent_lf) : 1.0;
+    for (auto& tone : tones) tone.amplitude_g *= lf_speed_gain;
     const std::size_t machine_tones = tones.size();
     if (spec.kind == Kind::mains) {
         // Pickup at the grid frequency; odd harmonics (magnetic) stronger than even.
@@ -496,8 +594,10 @@ Recording synthesize_recording(const CaseSpec& spec) {
     }
 
     // Background levels and the fault-free band powers (expected, g^2).
-    const double sigma_floor = kFloorRmsG / std::sqrt(noise_band_power(st.floor_path, {0.0, 0.5 * fs}, fs));
-    const double sigma_pink = kPinkRmsG / std::sqrt(noise_band_power(st.pink_path, {0.0, 0.5 * fs}, fs));
+    const double sigma_floor =
+        hf_speed_gain * kFloorRmsG / std::sqrt(noise_band_power(st.floor_path, {0.0, 0.5 * fs}, fs));
+    const double sigma_pink =
+        lf_speed_gain * kPinkRmsG / std::sqrt(noise_band_power(st.pink_path, {0.0, 0.5 * fs}, fs));
     double tone_lf = 0.0;  // only the shaft/vane tones: the mains "fault" is not part of the reference
     for (std::size_t i = 0; i < machine_tones; ++i)
         if (tones[i].f_hz <= lf.high_hz) tone_lf += 0.5 * tones[i].amplitude_g * tones[i].amplitude_g;
@@ -516,6 +616,20 @@ Recording synthesize_recording(const CaseSpec& spec) {
     {
         Rng rng(derive_seed(spec.seed, kStreamPink));
         add_white_through(st.pink_path, sigma_pink, rng, x);
+    }
+    if (spec.step_db > 0.0) {
+        // More of the same floor from step_at_s on, kept above 1 kHz by a 4th-order
+        // high-pass (our choice): independent noise adds power, so its variance is
+        // set for exactly step_db more in hf_band() (the pink part there is negligible).
+        Path extra = st.floor_path;
+        for (auto& b : extra.branches)
+            for (const auto& sec : butterworth(true, 4, 1000.0, fs)) b.sections.push_back(sec);
+        const double var = bg_hf * (db_to_power_ratio(spec.step_db) - 1.0) / noise_band_power(extra, hf, fs);
+        const auto first = n_pre + static_cast<std::size_t>(std::llround(spec.step_at_s * fs));
+        Rng rng(derive_seed(spec.seed, kStreamStep));
+        std::vector<double> w(n_all, 0.0);
+        for (std::size_t n = first; n < n_all; ++n) w[n] = std::sqrt(var) * rng.gaussian();
+        extra.apply_add(w, x);
     }
 
     if (spec.kind == Kind::incipient || spec.kind == Kind::developed) {
@@ -565,10 +679,7 @@ Recording synthesize_recording(const CaseSpec& spec) {
         add_white_through(unsteady, std::sqrt(unsteady_var), noise, x);
     } else if (spec.kind == Kind::bearing) {
         const BearingParams& b = fp.bearing;
-        const Mode& mode = m.modes[static_cast<std::size_t>(b.mode_index)];
-        Path path;  // the impact rings one resonance; a little reaches the sensor directly
-        path.branches.push_back({mode.gain, {bandpass2(mode.fraction_of_fs * fs, fs, 1.0 / (2.0 * mode.damping_ratio))}});
-        path.branches.push_back({0.15, st.pulse_path.branches[0].sections});
+        const Path path = impact_path(st, m, b.mode_index);
         const double rate_per_s = b.order * f1_hz;
         const double mean_sq = 1.0 + b.amplitude_spread * b.amplitude_spread;
         const double per_impact = (rate_per_s / fs) * mean_sq * pulse_band_power(path, hf, fs);
@@ -580,6 +691,37 @@ Recording synthesize_recording(const CaseSpec& spec) {
         for (double t = t_start_s + rng.uniform() * interval_s; t < t_end_s;
              t += interval_s * std::max(0.5, 1.0 + b.slip_frac * rng.gaussian())) {
             const double a = amp_g * std::max(0.2, 1.0 + b.amplitude_spread * rng.gaussian());
+            add_pulse(e, (t - t_start_s) * fs, a);
+        }
+        path.apply_add(e, x);
+    } else if (spec.kind == Kind::inner_race) {
+        const InnerRaceParams& b = fp.inner_race;
+        const Path path = impact_path(st, m, b.mode_index);
+        Rng rng(derive_seed(spec.seed, kStreamEvents));
+        const double phi = rng.uniform(0.0, kTwoPi), phi2 = rng.uniform(0.0, kTwoPi);
+        auto load = [&](double t) {
+            return std::max(0.0, 1.0 + b.load_depth * std::cos(kTwoPi * f1_hz * t + phi) +
+                                     b.load_depth_2x * std::cos(2.0 * kTwoPi * f1_hz * t + phi2));
+        };
+        // At a non-integer order the impacts meet every angle of the shaft alike,
+        // so E[A^2] takes the mean of a^2 over one revolution (midpoint rule on
+        // 3600 angles: a is smooth but for its clipped zero, well resolved).
+        double load_sq = 0.0;
+        constexpr int kAngles = 3600;
+        for (int i = 0; i < kAngles; ++i) {
+            const double a = load((i + 0.5) / (kAngles * f1_hz));
+            load_sq += a * a / kAngles;
+        }
+        const double rate_per_s = b.order * f1_hz;
+        const double mean_sq = load_sq * (1.0 + b.amplitude_spread * b.amplitude_spread);
+        const double per_impact = (rate_per_s / fs) * mean_sq * pulse_band_power(path, hf, fs);
+        const double amp_g = std::sqrt(bg_hf * (db_to_power_ratio(b.hf_rise_db) - 1.0) / per_impact);
+        rec.pulse_amplitude_g = amp_g;
+        const double interval_s = 1.0 / rate_per_s;
+        std::vector<double> e(n_all, 0.0);
+        for (double t = t_start_s + rng.uniform() * interval_s; t < t_end_s;
+             t += interval_s * std::max(0.5, 1.0 + b.slip_frac * rng.gaussian())) {
+            const double a = amp_g * load(t) * std::max(0.2, 1.0 + b.amplitude_spread * rng.gaussian());
             add_pulse(e, (t - t_start_s) * fs, a);
         }
         path.apply_add(e, x);
@@ -595,12 +737,28 @@ Recording synthesize_recording(const CaseSpec& spec) {
     }
 
     rec.g.resize(n_out);
-    for (std::size_t n = 0; n < n_out; ++n) {
-        const double t = static_cast<double>(n) / fs;
-        double v = x[n + n_pre];
-        for (const auto& tone : tones) v += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
-        rec.g[n] = static_cast<float>(v);
+    if (spec.tilt_db_per_decade == 0.0 && spec.gain_db == 0.0) {
+        for (std::size_t n = 0; n < n_out; ++n) {
+            const double t = static_cast<double>(n) / fs;
+            double v = x[n + n_pre];
+            for (const auto& tone : tones) v += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
+            rec.g[n] = static_cast<float>(v);
+        }
+        return rec;
     }
+    // A re-mount changes what the sensor sees of everything: the tones join the
+    // rest over the pre-roll too, so the tilt's sections have settled by sample 0.
+    for (std::size_t i = 0; i < n_all; ++i) {
+        const double t = (static_cast<double>(i) - static_cast<double>(n_pre)) / fs;
+        for (const auto& tone : tones) x[i] += tone.amplitude_g * std::sin(kTwoPi * tone.f_hz * t + tone.phase_rad);
+    }
+    Path mount;
+    if (spec.tilt_db_per_decade != 0.0) mount.branches.push_back(tilt_chain(spec.tilt_db_per_decade, 1000.0, fs));
+    else mount.branches.push_back({1.0, {}});
+    mount.branches[0].gain *= std::pow(10.0, spec.gain_db / 20.0);
+    std::vector<double> y(n_all, 0.0);
+    mount.apply_add(x, y);
+    for (std::size_t n = 0; n < n_out; ++n) rec.g[n] = static_cast<float>(y[n + n_pre]);
     return rec;
 }
 
@@ -880,9 +1038,391 @@ std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed) {
     return plan;
 }
 
+// ---------------------------------------------------------------------------
+// The field set (see synth.hpp for its groups).
+namespace {
+
+/// ISO 8601 date and time, `days` after 2026-01-01 and `minutes` after midnight.
+std::string field_datetime(int days, int minutes) {
+    auto leap = [](int y) { return (y % 4 == 0 && y % 100 != 0) || y % 400 == 0; };
+    int year = 2026;
+    while (days >= (leap(year) ? 366 : 365)) {
+        days -= leap(year) ? 366 : 365;
+        ++year;
+    }
+    static constexpr std::array<int, 12> kMonthDays{31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+    std::size_t month = 0;
+    for (;; ++month) {
+        const int length = kMonthDays[month] + (month == 1 && leap(year) ? 1 : 0);
+        if (days < length) break;
+        days -= length;
+    }
+    char buf[48];
+    std::snprintf(buf, sizeof buf, "%04d-%02zu-%02dT%02d:%02d:00", year, month + 1, days + 1, minutes / 60, minutes % 60);
+    return buf;
+}
+
+double round_to(double v, double step) { return std::round(v / step) * step; }
+
+/// The Orrin Weir duty of a fixed-speed pump as the field sidecars state it
+/// (invented, near the demo's): liquid temperature, flow range, suction bore,
+/// NPSH3 at that flow (the demo's curves of OW-P101 and OW-P102 near 400 and
+/// 160 m3/h, OW-P103's stated 2.8 m), and the NPSHa of sound suction conditions.
+struct FieldDuty {
+    double temperature_c;
+    double flow_low_m3h, flow_high_m3h;
+    double bore_mm;
+    double npsh3_m;
+    double npsha_low_m, npsha_high_m;
+};
+
+FieldDuty field_duty(std::string_view tag) {
+    if (tag == "OW-P101") return {14.0, 395.0, 420.0, 300.0, 3.1, 7.0, 10.0};  // raw water from the weir sump
+    if (tag == "OW-P102") return {12.0, 150.0, 165.0, 150.0, 2.5, 20.0, 26.0};  // from a flooded clear-water tank
+    return {12.0, 590.0, 610.0, 350.0, 2.8, 10.0, 14.0};                        // OW-P103 backwash
+}
+
+constexpr double kFieldElevationM = 62.0;
+// Below the impeller-eye datum (our choice for the field sidecars): with the
+// gauge above it, a low NPSHa would need a static pressure under the vapour
+// pressure at the gauge, i.e. a flashing liquid.
+constexpr double kFieldGaugeHeightM = -0.6;
+
+struct Sidecar {
+    std::string toml;
+    double npsha_m = 0;
+};
+
+/// A sidecar stating suction conditions that give `npsha_m` (within 0.01 m: the
+/// gauge reading is written to 0.1 kPa). The reading is solved with the
+/// project's own hydraulics (models/operating_point: IAPWS-IF97 water, ISO 2533
+/// atmosphere), so the NPSHa stated is the one cavitas computes from the file.
+Sidecar field_sidecar(const std::string& file, std::string_view tag, double temperature_c, double flow_m3h,
+                      double npsha_m, const std::string& note) {
+    const FieldDuty duty = field_duty(tag);
+    models::OperatingPoint op;
+    op.pressure_reference = models::PressureReference::gauge;
+    op.elevation_m = kFieldElevationM;
+    op.temperature_k = temperature_c + 273.15;
+    op.gauge_height_m = kFieldGaugeHeightM;
+    op.flow_m3_s = flow_m3h / 3600.0;
+    op.bore_m = duty.bore_mm / 1000.0;
+    auto evaluate = [&](double gauge_kpa) {
+        op.suction_pressure_pa = gauge_kpa * 1000.0;
+        return models::evaluate_operating_point(op);
+    };
+    // NPSHa is linear in the pressure but for the density's slight dependence on
+    // it: Newton steps from 0 kPa converge at once.
+    double gauge_kpa = 0.0;
+    for (int i = 0; i < 3; ++i) {
+        const auto h = evaluate(gauge_kpa);
+        gauge_kpa += (npsha_m - h.npsh->npsha_m) * h.liquid->density_kg_m3 * models::kStandardGravityM_s2 / 1000.0;
+    }
+    gauge_kpa = round_to(gauge_kpa, 0.1);
+    Sidecar sc;
+    sc.npsha_m = evaluate(gauge_kpa).npsh->npsha_m;
+    std::ostringstream t;
+    t << "# operating point of " << file << " (invented field duty)\n"
+      << "suction_pressure = \"" << fmt_number(gauge_kpa, 1) << " kPa\"\n"
+      << "pressure_ref = \"gauge\"\n"
+      << "temperature = \"" << fmt_number(temperature_c, 1) << " C\"\n"
+      << "elevation = \"" << fmt_number(kFieldElevationM, 0) << " m\"\n"
+      << "gauge_height = \"" << fmt_number(kFieldGaugeHeightM, 2) << " m\"\n"
+      << "flow = \"" << fmt_number(flow_m3h, 0) << " m3/h\"\n"
+      << "bore = \"" << fmt_number(duty.bore_mm, 0) << " mm\"\n"
+      << "npsh3 = \"" << fmt_number(duty.npsh3_m, 1) << " m\"\n";
+    if (!note.empty()) t << "note = \"" << note << "\"\n";
+    sc.toml = t.str();
+    return sc;
+}
+
+enum class Suction { none, sound, low };
+
+/// One recording of a field group, before it gets its name, seed and time.
+struct FieldRow {
+    Kind kind = Kind::healthy;
+    double severity = 0.0;
+    double speed_frac = 0.0;  ///< true speed / the machine's nominal; 0 = nominal (fixed speed)
+    double duration_s = 10.0;
+    bool rpm_given = true;
+    bool indeterminate = false;  ///< the verdict due is indeterminate, whatever the label
+    std::string hazard = "none";
+    double gain_db = 0.0, tilt_db_per_decade = 0.0;
+    double step_at_s = 0.0, step_db = 0.0;
+    Suction suction = Suction::none;
+    int day = 0;  ///< baselines: days after the group's first
+};
+
+FieldRow row(Kind kind, double severity) {
+    FieldRow r;
+    r.kind = kind;
+    r.severity = severity;
+    return r;
+}
+
+class FieldPlanner {
+public:
+    explicit FieldPlanner(std::uint64_t seed) : seed_(seed) {}
+
+    /// The random draws of the next group (its speeds, severities, mounts, sidecars).
+    Rng next_group_rng() const { return Rng(derive_seed(seed_, 4000000 + groups_)); }
+
+    /// Severity i of n, one in each 1/n slice of 0..1 (on a 0.001 grid, so that
+    /// truth.csv prints it exactly).
+    static double stratified(int i, int n, Rng& rng) {
+        return std::clamp(round_to((i + rng.uniform()) / n, 0.001), 0.0, 1.0);
+    }
+
+    void add_group(const std::string& name, const Machine& machine, const std::vector<FieldRow>& baselines,
+                   std::vector<FieldRow> tests, Rng& rng) {
+        const std::uint64_t gi = groups_++;
+        // Each group of a machine gets its own half year from 2026-01-05, so the
+        // recordings of one machine never share a time and each group's run in order.
+        const int first_day = 4 + 183 * machine_groups_[machine.tag]++;
+        Rng shuffle(derive_seed(seed_, 3000000 + gi));
+        std::vector<std::uint64_t> test_ids(tests.size());
+        for (std::size_t i = 0; i < tests.size(); ++i) test_ids[i] = 100 + i;
+        for (std::size_t i = tests.size(); i-- > 1;) {
+            const auto j = std::min(i, static_cast<std::size_t>(shuffle.uniform() * static_cast<double>(i + 1)));
+            std::swap(tests[i], tests[j]);
+            std::swap(test_ids[i], test_ids[j]);
+        }
+        int last_day = 0, minutes = 9 * 60;
+        for (std::size_t j = 0; j < baselines.size(); ++j) {
+            const FieldRow& b = baselines[j];
+            minutes = j > 0 && b.day == last_day ? minutes + 15 : 9 * 60;
+            last_day = b.day;
+            add(name, machine, b, "baseline", name + "_baseline_" + std::to_string(j + 1),
+                field_datetime(first_day + b.day, minutes), derive_seed(seed_, gi * 1000 + j), rng);
+        }
+        for (std::size_t i = 0; i < tests.size(); ++i) {
+            char num[32];
+            std::snprintf(num, sizeof num, "%02zu", i + 1);
+            add(name, machine, tests[i], "test", name + "_test_" + num,
+                field_datetime(first_day + last_day + 1 + static_cast<int>(i), 10 * 60),
+                derive_seed(seed_, gi * 1000 + test_ids[i]), rng);
+        }
+    }
+
+    std::vector<PlannedRecording> take() { return std::move(plan_); }
+
+private:
+    void add(const std::string& group, const Machine& machine, const FieldRow& f, const char* role,
+             const std::string& stem, const std::string& datetime, std::uint64_t seed, Rng& rng) {
+        // The evaluation set's cycle: mostly 16-bit PCM, every other encoding in each share.
+        constexpr std::array<Encoding, 6> kCycle{Encoding::pcm16, Encoding::pcm24,   Encoding::pcm16,
+                                                 Encoding::float32, Encoding::pcm16, Encoding::flac16};
+        PlannedRecording r;
+        r.encoding = kCycle[plan_.size() % kCycle.size()];
+        r.file = stem + extension_of(r.encoding);
+        r.role = role;
+        r.datetime = datetime;
+        r.group = group;
+        r.rpm_given = f.rpm_given;
+        r.hazard = r.role == "baseline" ? f.hazard : "none";
+        r.expect = f.indeterminate ? "indeterminate" : label_of(f.kind);
+        r.spec.machine = machine;
+        r.spec.kind = f.kind;
+        r.spec.severity = f.severity;
+        r.spec.duration_s = f.duration_s;
+        r.spec.seed = seed;
+        if (f.speed_frac > 0.0) {
+            // The speed look-alike is 2..4 % off the speed the drive was set to.
+            const double off = f.kind == Kind::speed ? draw_params(f.kind, f.severity, seed).speed.offset_frac : 0.0;
+            r.spec.rpm_override = machine.rpm * f.speed_frac * (1.0 + off);
+        }
+        if (machine.tag == drive_machine().tag) {
+            r.spec.level_speed_exponent_hf = 2.5;  // our choice (see CaseSpec)
+            r.spec.level_speed_exponent_lf = 2.0;
+        }
+        r.spec.gain_db = f.gain_db;
+        r.spec.tilt_db_per_decade = f.tilt_db_per_decade;
+        r.spec.step_at_s = f.step_at_s;
+        r.spec.step_db = f.step_db;
+        if (f.suction != Suction::none) {
+            const FieldDuty duty = field_duty(machine.tag);
+            const bool low = f.suction == Suction::low;
+            // Low NPSHa: the water may be warmer than usual too (a summer day).
+            const double temperature_c =
+                low ? duty.temperature_c + round_to(rng.uniform(0.0, 16.0), 0.5) : duty.temperature_c;
+            const double flow_m3h = std::round(rng.uniform(duty.flow_low_m3h, duty.flow_high_m3h));
+            const double npsha_m =
+                low ? rng.uniform(0.1, 0.8) : rng.uniform(duty.npsha_low_m, duty.npsha_high_m);
+            const Sidecar sc = field_sidecar(r.file, machine.tag, temperature_c, flow_m3h, npsha_m,
+                                             low ? "suction level low" : "");
+            r.sidecar_toml = sc.toml;
+            r.sidecar_npsha_m = sc.npsha_m;
+        }
+        plan_.push_back(std::move(r));
+    }
+
+    std::uint64_t seed_;
+    std::uint64_t groups_ = 0;
+    std::map<std::string, int> machine_groups_;
+    std::vector<PlannedRecording> plan_;
+};
+
+}  // namespace
+
+std::vector<PlannedRecording> field_plan(std::uint64_t seed) {
+    FieldPlanner planner(seed);
+    const Machine& drive = drive_machine();
+    const auto& fixed = scenario_machines();
+    auto short_tag = [](const Machine& m) { return m.tag.substr(3); };  // "OW-P101" -> "P101"
+
+    {  // a. The variable-speed pump against a baseline at three speeds.
+        Rng rng = planner.next_group_rng();
+        std::vector<FieldRow> baselines, tests;
+        for (const double frac : {0.70, 0.85, 1.00})
+            for (int k = 0; k < 2; ++k) {
+                FieldRow b = row(Kind::healthy, 0.0);
+                b.speed_frac = frac;
+                baselines.push_back(b);
+            }
+        for (const Kind kind : kEveryKind)
+            for (int i = 0; i < 2; ++i) {
+                FieldRow t = row(kind, FieldPlanner::stratified(i, 2, rng));
+                t.speed_frac = round_to(rng.uniform(0.75, 0.95), 0.001);
+                tests.push_back(t);
+            }
+        // Outside the covered 0.70..1.00: nothing learned says what is normal there.
+        for (const double frac : {0.50, 1.25})
+            for (const Kind kind : {Kind::healthy, Kind::developed}) {
+                FieldRow t = row(kind, kind == Kind::developed ? round_to(rng.uniform(0.3, 1.0), 0.001) : 0.0);
+                t.speed_frac = frac;
+                t.indeterminate = true;
+                tests.push_back(t);
+            }
+        planner.add_group("P104-vsd", drive, baselines, tests, rng);
+    }
+
+    {  // b. Four visits of OW-P101, the magnet re-mounted at each.
+        Rng rng = planner.next_group_rng();
+        std::vector<FieldRow> baselines, tests;
+        for (int visit = 0; visit < 4; ++visit) {
+            const double gain_db = round_to(rng.uniform(-2.5, 2.5), 0.01);
+            const double tilt = round_to(rng.uniform(-1.0, 1.0), 0.01);
+            for (int k = 0; k < 2; ++k) {
+                FieldRow b = row(Kind::healthy, 0.0);
+                b.gain_db = gain_db;
+                b.tilt_db_per_decade = tilt;
+                b.day = 28 * visit;
+                baselines.push_back(b);
+            }
+        }
+        auto remounted = [&](FieldRow t) {
+            t.gain_db = round_to(rng.uniform(-3.0, 3.0), 0.01);
+            t.tilt_db_per_decade = round_to(rng.uniform(-1.0, 1.0), 0.01);
+            return t;
+        };
+        for (int i = 0; i < 6; ++i) tests.push_back(remounted(row(Kind::healthy, 0.0)));
+        // Incipient from a quarter of its range up: at the bottom, +3.5 dB against a
+        // +-3 dB mount would ask for more than the HF level can say.
+        for (int i = 0; i < 3; ++i)
+            tests.push_back(remounted(row(Kind::incipient, round_to(0.25 + 0.75 * FieldPlanner::stratified(i, 3, rng), 0.001))));
+        for (int i = 0; i < 3; ++i) tests.push_back(remounted(row(Kind::developed, FieldPlanner::stratified(i, 3, rng))));
+        planner.add_group("P101-visits", fixed[0], baselines, tests, rng);
+    }
+
+    // c. Spoiled baselines, four groups of each hazard, and clean controls.
+    const std::array<std::string, 5> hazards{"step", "cavitating", "low_npsh", "short", "none"};
+    for (std::size_t h = 0; h < hazards.size(); ++h) {
+        const std::string& hazard = hazards[h];
+        for (std::size_t g = 0; g < 4; ++g) {
+            const Machine& m = fixed[g < 3 ? g : h % 3];
+            const std::string name = short_tag(m) + "-" + (hazard == "none" ? std::string("clean") : hazard) +
+                                     (g < 3 ? "" : "-2");
+            Rng rng = planner.next_group_rng();
+            // Two recordings in groups 0 and 2 (a short baseline is one by definition,
+            // a control always two), one in groups 1 and 3.
+            const std::size_t count = hazard == "short" ? 1 : hazard == "none" || g % 2 == 0 ? 2 : 1;
+            std::vector<FieldRow> baselines;
+            for (std::size_t k = 0; k < count; ++k) {
+                FieldRow b = row(Kind::healthy, 0.0);
+                b.suction = Suction::sound;
+                // Which of two is spoiled: in group 0 both for cavitation and suction
+                // (a condition of that whole day) and the second for a step; in
+                // group 2 one (the first for a step, else the second).
+                bool spoiled = false;
+                if (hazard == "none") spoiled = false;
+                else if (count == 1) spoiled = true;
+                else if (g == 0) spoiled = hazard != "step" || k == 1;
+                else spoiled = hazard == "step" ? k == 0 : k == 1;
+                if (spoiled) {
+                    b.hazard = hazard;
+                    if (hazard == "step") {
+                        b.step_db = round_to(rng.uniform(8.0, 20.0), 0.1);
+                        b.step_at_s = round_to(b.duration_s * rng.uniform(0.4, 0.7), 0.01);
+                    } else if (hazard == "cavitating") {
+                        const bool developed = g >= 2;
+                        b.kind = developed ? Kind::developed : Kind::incipient;
+                        b.severity = round_to(developed ? rng.uniform(0.0, 1.0) : rng.uniform(0.3, 1.0), 0.001);
+                    } else if (hazard == "low_npsh") {
+                        b.suction = Suction::low;
+                    } else if (hazard == "short") {
+                        b.duration_s = 2.0;
+                    }
+                }
+                baselines.push_back(b);
+            }
+            std::vector<FieldRow> tests{row(Kind::healthy, 0.0)};
+            if (g % 2 == 1) tests.push_back(row(Kind::healthy, 0.0));
+            tests.push_back(row(Kind::developed, round_to(rng.uniform(0.0, 1.0), 0.001)));
+            planner.add_group(name, m, baselines, tests, rng);
+        }
+    }
+
+    // d, e, f. Sound baselines of each fixed-speed pump, against which: inner-race
+    // faults, speeds to be found, short captures.
+    const std::array<Kind, 3> rotating_lookalike{Kind::bearing, Kind::inner_race, Kind::mains};
+    for (std::size_t mi = 0; mi < fixed.size(); ++mi) {
+        Rng rng = planner.next_group_rng();
+        const std::vector<FieldRow> baselines(3, row(Kind::healthy, 0.0));
+        std::vector<FieldRow> tests;
+        for (int i = 0; i < 3; ++i) tests.push_back(row(Kind::inner_race, FieldPlanner::stratified(i, 3, rng)));
+        for (const Kind kind : {Kind::healthy, Kind::incipient, Kind::developed, Kind::speed, rotating_lookalike[mi]}) {
+            FieldRow t = row(kind, kind == Kind::healthy ? 0.0 : round_to(rng.uniform(0.0, 1.0), 0.001));
+            t.rpm_given = false;
+            tests.push_back(t);
+        }
+        // Captures c = 0..15: kind c / 2 of kEveryKind, on machine c % 3, so each
+        // kind is captured on two machines.
+        for (std::size_t c = mi; c < 2 * kEveryKind.size(); c += 3) {
+            FieldRow t = row(kEveryKind[c / 2], FieldPlanner::stratified(static_cast<int>(c % 2), 2, rng));
+            t.duration_s = round_to(rng.uniform(1.0, 2.0), 0.1);
+            tests.push_back(t);
+        }
+        planner.add_group(short_tag(fixed[mi]) + "-ref", fixed[mi], baselines, tests, rng);
+    }
+
+    {  // e. The drive held at one speed, then jumps the tool must notice.
+        Rng rng = planner.next_group_rng();
+        constexpr double kHeldFrac = 0.90;
+        std::vector<FieldRow> baselines(2, row(Kind::healthy, 0.0));
+        for (auto& b : baselines) b.speed_frac = kHeldFrac;
+        std::vector<FieldRow> tests;
+        for (const Kind kind : {Kind::healthy, Kind::developed}) {
+            FieldRow t = row(kind, kind == Kind::developed ? round_to(rng.uniform(0.3, 1.0), 0.001) : 0.0);
+            t.speed_frac = kHeldFrac;
+            t.rpm_given = false;
+            tests.push_back(t);
+            for (const double sign : {-1.0, 1.0}) {
+                FieldRow j = row(kind, kind == Kind::developed ? round_to(rng.uniform(0.3, 1.0), 0.001) : 0.0);
+                j.speed_frac = round_to(kHeldFrac * (1.0 + sign * rng.uniform(0.15, 0.25)), 0.001);
+                j.rpm_given = false;
+                j.indeterminate = true;
+                tests.push_back(j);
+            }
+        }
+        planner.add_group("P104-fixed", drive, baselines, tests, rng);
+    }
+    return planner.take();
+}
+
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
-                     const std::vector<SetFile>& files) {
+                     const std::vector<SetFile>& files, SetColumns columns) {
+    const bool field = columns == SetColumns::field;
     std::error_code ec;
     std::filesystem::create_directories(folder, ec);
     if (ec || !std::filesystem::is_directory(folder))
@@ -891,13 +1431,18 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
     // Route-manifest form (see README: file, machine, point, channel, datetime, rpm,
     // vanes, then optional columns); manifest.csv holds every recording,
     // baselines.csv and route.csv the known-good ones and the ones to judge.
-    const char* header = "file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed\n";
+    const std::string header = std::string("file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,"
+                                           "fs_hz,duration_s,seed") +
+                               (field ? ",group,rpm_given,expect,hazard\n" : "\n");
     std::ostringstream manifest, baselines, route, truth;
     manifest << header;
     baselines << header;
     route << header;
     truth << "file,kind,severity,collapse_rate_per_s,bpf_depth,shaft_depth,hf_rise_db,lf_rise_db,"
-             "bearing_order,bearing_slip,turbulence_lf_rise_db,mains_hz,mains_g,speed_offset_pct,pulse_amplitude_g\n";
+             "bearing_order,bearing_slip,turbulence_lf_rise_db,mains_hz,mains_g,speed_offset_pct,pulse_amplitude_g"
+          << (field ? ",inner_race_order,inner_race_slip,load_depth,load_depth_2x,level_speed_exponent_hf,"
+                      "level_speed_exponent_lf,gain_db,tilt_db_per_decade,step_at_s,step_db,sidecar_npsha_m\n"
+                    : "\n");
     SetSummary summary;
     for (std::size_t i = 0; i < plan.size(); ++i) {
         const PlannedRecording& r = plan[i];
@@ -917,7 +1462,9 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         row << r.file << ',' << r.spec.machine.tag << ',' << r.point << ",0," << r.datetime << ','
             << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ',' << fmt_number(kFullScaleG, 3) << "g,"
             << r.role << ',' << label_of(k) << ',' << name_of(k) << ',' << fmt_number(rec.fs_hz, 3) << ','
-            << fmt_number(r.spec.duration_s, 6) << ',' << r.spec.seed << '\n';
+            << fmt_number(r.spec.duration_s, 6) << ',' << r.spec.seed;
+        if (field) row << ',' << r.group << ',' << (r.rpm_given ? 1 : 0) << ',' << r.expect << ',' << r.hazard;
+        row << '\n';
         manifest << row.str();
         (r.role == "baseline" ? baselines : route) << row.str();
         const FaultParams& p = rec.params;
@@ -926,13 +1473,27 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         truth << r.file << ',' << name_of(k) << ',' << col(k != Kind::healthy, r.spec.severity, 3) << ','
               << col(cav, p.cavitation.collapse_rate_per_s, 2) << ',' << col(cav, p.cavitation.bpf_depth, 4) << ','
               << col(cav, p.cavitation.shaft_depth, 4) << ','
-              << (cav ? fmt_number(p.cavitation.hf_rise_db, 3) : k == Kind::bearing ? fmt_number(p.bearing.hf_rise_db, 3) : "")
+              << (cav                     ? fmt_number(p.cavitation.hf_rise_db, 3)
+                  : k == Kind::bearing    ? fmt_number(p.bearing.hf_rise_db, 3)
+                  : k == Kind::inner_race ? fmt_number(p.inner_race.hf_rise_db, 3)
+                                          : "")
               << ',' << col(k == Kind::developed, p.cavitation.lf_rise_db, 3) << ','
               << col(k == Kind::bearing, p.bearing.order, 4) << ',' << col(k == Kind::bearing, p.bearing.slip_frac, 4) << ','
               << col(k == Kind::turbulence, p.turbulence.lf_rise_db, 3) << ',' << col(k == Kind::mains, p.mains.mains_hz, 3)
               << ',' << col(k == Kind::mains, p.mains.amplitude_g, 4) << ','
               << col(k == Kind::speed, 100.0 * p.speed.offset_frac, 3) << ','
-              << col(cav || k == Kind::bearing, rec.pulse_amplitude_g, 6) << '\n';
+              << col(cav || k == Kind::bearing || k == Kind::inner_race, rec.pulse_amplitude_g, 6);
+        if (field) {
+            const bool inner = k == Kind::inner_race;
+            const CaseSpec& c = r.spec;
+            truth << ',' << col(inner, p.inner_race.order, 4) << ',' << col(inner, p.inner_race.slip_frac, 4) << ','
+                  << col(inner, p.inner_race.load_depth, 4) << ',' << col(inner, p.inner_race.load_depth_2x, 4) << ','
+                  << fmt_number(c.level_speed_exponent_hf, 3) << ',' << fmt_number(c.level_speed_exponent_lf, 3) << ','
+                  << fmt_number(c.gain_db, 3) << ',' << fmt_number(c.tilt_db_per_decade, 3) << ','
+                  << col(c.step_db > 0.0, c.step_at_s, 3) << ',' << col(c.step_db > 0.0, c.step_db, 3) << ','
+                  << col(r.sidecar_npsha_m > 0.0, r.sidecar_npsha_m, 3);
+        }
+        truth << '\n';
         if (!r.sidecar_toml.empty())
             write_text_atomically(folder / (path.stem().string() + ".op.toml"), r.sidecar_toml);
         if (progress) progress(i + 1, plan.size());

@@ -2,14 +2,17 @@
 // demo set in samples/, the labelled evaluation set and the benchmarks.
 //
 // The scenario is invented: utility "Lowmere Water Trust", site "Orrin Weir
-// pumping station", three pumps OW-P101..OW-P103. A recording is a sum of
+// pumping station", three pumps OW-P101..OW-P103, and for the field set
+// OW-P104 on a variable-speed drive. A recording is a sum of
 //   * shaft tones 1x, 2x, 3x and blade-pass tones BPF, 2xBPF (random phases,
 //     +-10 % amplitude per recording),
 //   * a coloured broadband background: a pink-ish (-10 dB/decade) part below
 //     about 1 kHz and a flat floor that also drives the machine's three lightly
 //     damped structural resonances,
 //   * the fault of the recording's Kind (cavitation, or a look-alike that is
-//     labelled normal).
+//     labelled normal),
+//   * and, only where a CaseSpec asks for them, field conditions: levels scaled
+//     with speed, a re-mounted sensor's gain and tilt, a level step.
 // Every amplitude is in g. A fault's strength is set by the band-power rise it
 // causes over the same recording without the fault (computed exactly from the
 // filter responses, so "incipient raises the HF band by 5 dB" holds in
@@ -39,10 +42,17 @@ inline constexpr std::string_view kSite = "Orrin Weir pumping station";
 /// Full scale of the written files: sample value 1.0 == 50 g.
 inline constexpr double kFullScaleG = 50.0;
 
-enum class Kind { healthy, incipient, developed, bearing, turbulence, mains, speed };
+enum class Kind { healthy, incipient, developed, bearing, turbulence, mains, speed, inner_race };
+/// The kinds of the evaluation set (eval_plan); unchanged since that set was
+/// fixed, so the set stays the same.
 inline constexpr std::array<Kind, 7> kAllKinds{Kind::healthy,    Kind::incipient, Kind::developed,
                                                Kind::bearing,    Kind::turbulence, Kind::mains,
                                                Kind::speed};
+/// Every kind the generator makes: kAllKinds and the inner-race look-alike
+/// (used by the field set and `cavitas-synth one`).
+inline constexpr std::array<Kind, 8> kEveryKind{Kind::healthy,    Kind::incipient, Kind::developed,
+                                                Kind::bearing,    Kind::turbulence, Kind::mains,
+                                                Kind::speed,      Kind::inner_race};
 
 /// "normal", "incipient" or "developed": the truth a detector must report.
 std::string label_of(Kind kind);
@@ -71,9 +81,16 @@ struct Machine {
 };
 
 /// The three Orrin Weir pumps (P101 raw-water lift, P102 treated-water booster,
-/// P103 backwash).
+/// P103 backwash): the machines of the demo and evaluation sets.
 const std::vector<Machine>& scenario_machines();
-/// Throws std::invalid_argument naming the known tags.
+/// OW-P104, the clear-well transfer pump on a variable-speed drive (1780 rpm
+/// at full speed, 5 vanes, recorded at 25 600 Hz): the field set's fourth
+/// machine, kept out of scenario_machines() so that the evaluation set stays
+/// as it was.
+const Machine& drive_machine();
+/// scenario_machines() and drive_machine(), in that order.
+const std::vector<Machine>& every_machine();
+/// Any of every_machine(); throws std::invalid_argument naming the known tags.
 const Machine& machine_by_tag(std::string_view tag);
 
 /// A frequency band in Hz.
@@ -105,6 +122,23 @@ struct BearingParams {
     double amplitude_spread = 0.15;  ///< relative standard deviation of impact amplitude
 };
 
+/// Inner-race defect impacts (a look-alike, label normal). The defect turns with
+/// the shaft and passes through the load zone once a revolution, so the
+/// impacts are amplitude-modulated at the shaft rate f_r:
+///   a(t) = max(0, 1 + q cos(2 pi f_r t + phi) + q2 cos(4 pi f_r t + phi2)),
+/// and the squared envelope shows lines at f_r, 2 f_r, BPFI and BPFI +- f_r
+/// (Randall & Antoni, "Rolling element bearing diagnostics - a tutorial",
+/// MSSP 25 (2011) 485-520, section 2).
+struct InnerRaceParams {
+    double order = 5.4;             ///< BPFI / f_r, 4.6..6.4, >= 0.15 from any integer
+    double slip_frac = 0.015;       ///< standard deviation of each interval / mean interval
+    double load_depth = 0.7;        ///< q, 0.5..0.9
+    double load_depth_2x = 0.2;     ///< q2, 0.2..0.4 of q
+    int mode_index = 2;             ///< which structural resonance the impacts ring
+    double hf_rise_db = 10;         ///< rise of the HF band power
+    double amplitude_spread = 0.15; ///< relative standard deviation of impact amplitude (besides a(t))
+};
+
 /// Hydraulic turbulence/recirculation noise in 20..800 Hz (a look-alike).
 struct TurbulenceParams {
     double lf_rise_db = 9;  ///< rise of the 0..1 kHz band power
@@ -130,6 +164,7 @@ struct FaultParams {
     TurbulenceParams turbulence;
     MainsParams mains;
     SpeedParams speed;
+    InnerRaceParams inner_race;
 };
 
 /// Parameters of `kind` at `severity` (0..1 across the kind's documented range):
@@ -140,9 +175,13 @@ struct FaultParams {
 ///   turbulence 0..1 kHz rise 6 + 6 s dB
 ///   mains      0.1 + 0.3 s g at 50 Hz (+-0.05 Hz)
 ///   speed      |offset| 2 + 2 s %, sign from the seed
+///   inner_race HF rise 6 + 9 s dB (order, slip, load zone and ringing mode from the seed)
 /// Drawn from the seed: blade-pass depth m in [0.4, 0.9] (developed: [0.4, 0.7],
 /// as attached cavities persist through the passage), 1x depth m1 in [0.1, 0.3],
-/// bearing order, slip 1..2 % and ringing mode, mains 50 +- 0.05 Hz, speed sign.
+/// bearing order, slip 1..2 % and ringing mode, mains 50 +- 0.05 Hz, speed sign,
+/// then (after all of those, so that they are as before the kind was added)
+/// the inner-race order 4.6..6.4 (>= 0.15 from an integer), slip 1..2 %,
+/// load-zone depth q 0.5..0.9 and q2 0.2..0.4 q, ringing mode.
 FaultParams draw_params(Kind kind, double severity, std::uint64_t seed);
 
 struct CaseSpec {
@@ -153,6 +192,34 @@ struct CaseSpec {
     double severity = 0.5;    ///< 0..1 across the kind's range (see draw_params)
     double rpm_override = 0;  ///< > 0: the true shaft speed (else nominal, or nominal +- offset for speed)
     std::optional<FaultParams> params{};  ///< set: used as given instead of draw_params
+
+    // Field conditions. Each defaults to "no effect": at 0 the samples are
+    // bit-identical to a spec without these fields (the demo and evaluation sets
+    // never set them).
+
+    /// Speed scaling of levels for a pump whose speed varies (a drive): the
+    /// background and the machine tones scale in amplitude as
+    /// (true rpm / machine.rpm)^exponent. The HF exponent acts on the flat floor
+    /// and its resonances (nearly all of the HF band), the LF one on the pink
+    /// part below 1 kHz and the shaft/blade-pass tones; mains pickup does not
+    /// scale. Faults keep their rise over the scaled background. Within 0..4.
+    /// The field set uses 2.5 (HF) and 2 (LF), our choice from the affinity
+    /// laws: hydraulic forces go as n^2, flow-noise power as U^4..U^6, so
+    /// amplitude exponents 2..3 - a lead, not a value measured on a pump.
+    double level_speed_exponent_hf = 0;
+    double level_speed_exponent_lf = 0;
+    /// A re-mounted magnet: the whole recording (faults, tones, pickup) scaled
+    /// by gain_db, and tilted by tilt_db_per_decade about 1 kHz (gain
+    /// tilt * log10(f / 1 kHz) dB from 10 Hz to 0.45 fs, flat outside; a mount
+    /// resonance that moved). Within -40..40 dB and -6..6 dB/decade.
+    double gain_db = 0;
+    double tilt_db_per_decade = 0;
+    /// A level step inside the record (a baseline hazard): from step_at_s on,
+    /// the broadband background at and above 1 kHz rises by step_db (its power
+    /// in hf_band() by exactly that in expectation); the signal is stationary
+    /// on either side. step_db within 0..40, step_at_s within 0..duration_s.
+    double step_at_s = 0;
+    double step_db = 0;
 };
 
 struct Recording {
@@ -163,7 +230,8 @@ struct Recording {
     /// Median collapse amplitude (cavitation) or mean impact amplitude (bearing),
     /// in g summed over the few samples of one pulse; 0 for other kinds.
     double pulse_amplitude_g = 0;
-    /// Expected rms of the fault-free signal in hf_band() and lf_band().
+    /// Expected rms of the fault-free signal in hf_band() and lf_band() (after
+    /// speed scaling; before a level step and a re-mount).
     double healthy_hf_rms_g = 0;
     double healthy_lf_rms_g = 0;
 };
@@ -201,6 +269,14 @@ struct PlannedRecording {
     /// `cavitas analyze`'s operating-point flags); written beside the recording
     /// as NAME.op.toml when not empty.
     std::string sidecar_toml;
+
+    // The field set's columns (empty or default elsewhere; see field_plan).
+    std::string group;      ///< the baseline this recording belongs to or is judged against
+    bool rpm_given = true;  ///< the evaluator passes the true rpm to the analysis
+    std::string expect;     ///< normal / incipient / developed / indeterminate (baselines: their label)
+    std::string hazard;     ///< baseline rows: none / step / cavitating / low_npsh / short
+    /// NPSHa the sidecar states (computed by models/ from its own text); 0 = no sidecar.
+    double sidecar_npsha_m = 0;
 };
 
 /// Further text files of a set (NPSH3 curves): name and contents.
@@ -226,21 +302,69 @@ std::vector<SetFile> demo_files();
 /// names (OW-P101_test_017.wav), encodings cycling pcm16/pcm24/float/flac16.
 std::vector<PlannedRecording> eval_plan(int per_kind, std::uint64_t seed);
 
+/// The field set: what a route meets that the evaluation set does not - a
+/// variable-speed pump, baselines gathered over several visits with the sensor
+/// re-mounted each time, spoiled baselines, a look-alike at a bearing, speeds
+/// the tool must find itself, short captures. Recordings belong to groups (one
+/// baseline each, named like P104-vsd or P101-step); every recording is 10 s
+/// unless said, tests of a group have blind names in shuffled order
+/// (P101-visits_test_07.wav), encodings cycle as in the evaluation set.
+///   P104-vsd     OW-P104 (drive_machine()): baselines at 0.70, 0.85, 1.00 x
+///                1780 rpm (2 each, healthy); tests at 0.75..0.95 x of every
+///                kind (kEveryKind, 2 each; expect = label), and at 0.50 x and
+///                1.25 x, healthy and developed, outside the speeds the baseline
+///                covers (expect indeterminate). Every OW-P104 recording has
+///                the speed exponents 2.5 (HF) and 2 (LF).
+///   P101-visits  4 visits of OW-P101 on different dates, 2 recordings each,
+///                the magnet re-mounted at each visit (gain within +-2.5 dB,
+///                tilt within +-1 dB/decade); tests re-mounted again (gain
+///                within +-3 dB): 6 healthy, 3 incipient, 3 developed.
+///   P10x-step, -cavitating, -low_npsh, -short (4 groups each over OW-P101..
+///                P103; "-2" when a machine has two): spoiled baselines of one
+///                or two recordings - a level step of 8..20 dB at 40..70 % of a
+///                record; an incipient or developed recording; a sidecar whose
+///                suction pressure and temperature give NPSHa 0.1..0.8 m; a
+///                single recording of 2 s. P10x-clean (4 groups): two healthy
+///                recordings and sound sidecars (hazard none, no warning due).
+///                Each has 2..3 tests (healthy, developed; expect = label).
+///                Every baseline of these groups has a sidecar NAME.op.toml
+///                (the demo's keys without speed; NPSHa 7..26 m unless low).
+///   P10x-ref     3 healthy baselines of each of OW-P101..P103, against which:
+///                inner-race tests (3 a machine, expect normal); tests whose
+///                rpm the tool must find itself (rpm_given 0: healthy,
+///                incipient, developed, speed and a bearing, inner-race or
+///                mains look-alike a machine; expect = label); captures of
+///                1..2 s of every kind (16; expect = label).
+///   P104-fixed   OW-P104 held at 0.90 x (2 baselines); rpm_given 0 tests at
+///                that speed (healthy, developed; expect = label) and after a
+///                drive-speed jump of 15..25 % up or down (healthy, developed
+///                twice each; expect indeterminate).
+/// 183 recordings, about 113 MB; about 11 s to write on one core.
+std::vector<PlannedRecording> field_plan(std::uint64_t seed = 20260301);
+
 struct SetSummary {
     std::size_t files = 0;
     std::uintmax_t bytes = 0;  ///< recordings only
     std::size_t clipped_files = 0;
 };
 
+/// Which columns the manifests and truth.csv of a set have.
+enum class SetColumns {
+    standard,  ///< the demo and evaluation sets'
+    field,     ///< and the field set's: manifests + group,rpm_given,expect,hazard;
+               ///< truth.csv + the inner-race, speed-scaling, re-mount, step and sidecar NPSHa values
+};
+
 /// Synthesizes and writes every planned recording into `folder` (created if
 /// missing), then route manifests - manifest.csv (all), baselines.csv (role
 /// baseline), route.csv (role test), header file,machine,point,channel,datetime,
-/// rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed - and truth.csv
+/// rpm,vanes,full_scale,role,label,kind,fs_hz,duration_s,seed (with
+/// SetColumns::field also group,rpm_given,expect,hazard) - and truth.csv
 /// (the fault parameters).
 /// `progress(done, total)` is called after each file; clipping warnings go to `warn`.
 /// Sidecars of the plan and `files` are written too.
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
-                     const std::vector<SetFile>& files = {});
+                     const std::vector<SetFile>& files = {}, SetColumns columns = SetColumns::standard);
 
 }  // namespace cavitas::synth
