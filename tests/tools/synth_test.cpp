@@ -836,7 +836,7 @@ TEST_CASE("synth: the field plan covers every hazard, every kind, and speeds a b
     }
 }
 
-TEST_CASE("synth: each field sidecar states the NPSHa cavitas computes from it; low ones 0.1..0.8 m", "[tools]") {
+TEST_CASE("synth: each field sidecar states the NPSHa cavitas computes from it, low ones 0.1..0.8 m", "[tools]") {
     int sidecars = 0, low = 0;
     for (const auto& r : synth::field_plan()) {
         if (r.sidecar_toml.empty()) continue;
@@ -863,7 +863,7 @@ TEST_CASE("synth: each field sidecar states the NPSHa cavitas computes from it; 
     CHECK(low >= 4);
 }
 
-TEST_CASE("synth: a field set's manifests carry group, rpm_given, expect and hazard; other sets' columns stay", "[tools]") {
+TEST_CASE("synth: a field set's manifests carry group, rpm_given, expect and hazard, other sets' columns stay", "[tools]") {
     const auto dir = scratch_dir() / "field";
     // A baseline with a low-NPSH sidecar and a test whose speed is withheld,
     // shortened to keep the test quick.
