@@ -488,7 +488,15 @@ RecordingAnalysis RecordingAnalyzer::finish() {
             const long half = std::max(10L, static_cast<long>(std::lround(0.05 * static_cast<double>(k))));
             const double p = amplitude_prominence_db(ses, k, half, tmp);
             if (p < 6.0) continue;
-            const double hz = static_cast<double>(k) * ses_bin;
+            // The line's frequency between bins: a parabola through the log
+            // amplitudes of the peak bin and its neighbours (common practice, no
+            // source); short captures have coarse bins, and telling a bearing
+            // order from an integer one needs the line's place within the bin.
+            const auto at = [&](long j) { return std::log(std::max(ses[static_cast<std::size_t>(j)], 1e-300)); };
+            const double l = at(k - 1), c = at(k), rr = at(k + 1);
+            const double den = l - 2.0 * c + rr;
+            const double delta = den < 0.0 ? std::clamp(0.5 * (l - rr) / den, -0.5, 0.5) : 0.0;
+            const double hz = (static_cast<double>(k) + delta) * ses_bin;
             r.envelope_peaks.push_back({hz, hz / fr, p});
         }
         std::sort(r.envelope_peaks.begin(), r.envelope_peaks.end(),

@@ -112,12 +112,15 @@ void check_cavitating(const Baseline& b, const std::vector<std::optional<Hydraul
         const auto& s = b.sources[k];
         const double kurt = median(s.series[SegmentIndicator::hf_kurtosis]);
         const double bpf_db = s.recording[static_cast<std::size_t>(RecordingIndicator::ses_bpf_prominence_db)];
-        if (b.vanes > 0 && kurt >= L.cavitating_kurtosis && bpf_db >= L.cavitating_bpf_line_db)
+        const double depth = s.recording[static_cast<std::size_t>(RecordingIndicator::modulation_bpf)];
+        const bool locked_line = kurt >= L.cavitating_kurtosis && bpf_db >= L.cavitating_bpf_line_db;
+        const bool locked_depth = kurt >= L.strongly_impulsive_kurtosis && depth >= L.cavitating_bpf_depth;
+        if (b.vanes > 0 && (locked_line || locked_depth))
             out.push_back({"cavitating", s.file, -1.0,
                            fmt("%s: impulsive HF (kurtosis %.1f) modulated at blade passage (envelope line %.1f dB "
-                               "over its floor): the pump may already be cavitating in this \"known-good\" "
-                               "recording; every later finding would call that state normal",
-                               s.file.c_str(), kurt, bpf_db)});
+                               "over its floor, depth %.2f): the pump may already be cavitating in this \"known-good\" "
+                               "recording (or a bearing is failing); every later finding would call that state normal",
+                               s.file.c_str(), kurt, bpf_db, depth)});
         if (k >= duties.size() || !duties[k] || !duties[k]->npsh) continue;
         const Hydraulics& h = *duties[k];
         if (h.margin && (h.margin->margin_class == MarginClass::below_npsh3 || h.margin->margin_class == MarginClass::thin))
@@ -149,6 +152,36 @@ void check_amount(const Baseline& b, const BaselineCheckLimits& L, std::vector<B
 }
 
 }  // namespace
+
+double keep_quieter_part(BaselineSource& s, double segment_s, const BaselineCheckLimits& L) {
+    const auto& hf = s.series[SegmentIndicator::hf_level_db];
+    const Split sp = best_split(hf);
+    if (sp.at == 0 || std::abs(sp.change_db) < std::max(L.step_db, L.step_spreads * std::max(sp.within_db, 0.1)))
+        return -1.0;
+    const bool keep_before = sp.change_db > 0.0;
+    for (auto& v : s.series.values) {
+        if (keep_before) v.resize(sp.at);
+        else v.erase(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(sp.at));
+    }
+    return static_cast<double>(sp.at) * segment_s;
+}
+
+std::vector<std::size_t> louder_visits(const Baseline& b, const BaselineCheckLimits& L) {
+    std::vector<std::size_t> out;
+    if (b.sources.size() < 2) return out;
+    const double limit = std::max(L.disagree_min_db, 3.0 * std::sqrt(2.0) * repeatability_floor_db(b.mount));
+    const SegmentIndicator hf = SegmentIndicator::hf_level_db;
+    std::vector<double> at_ref;
+    for (const auto& s : b.sources) at_ref.push_back(median(s.series[hf]) - b.speed.shift_db(hf, s.rpm));
+    if (b.sources.size() == 2) {
+        if (std::abs(at_ref[1] - at_ref[0]) > limit) out.push_back(at_ref[1] > at_ref[0] ? 1 : 0);
+        return out;
+    }
+    const double mid = median(at_ref);
+    for (std::size_t k = 0; k < at_ref.size(); ++k)
+        if (at_ref[k] - mid > limit) out.push_back(k);
+    return out;
+}
 
 std::vector<BaselineWarning> check_baseline(const Baseline& b, const std::vector<std::optional<Hydraulics>>& duties,
                                             const BaselineCheckLimits& L) {

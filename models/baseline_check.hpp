@@ -40,12 +40,31 @@ struct BaselineCheckLimits {
     /// 6 dB before a baseline is suspected on its own. Our choice.
     double cavitating_kurtosis = 4.0;
     double cavitating_bpf_line_db = 10.0;
+    /// Or strongly impulsive HF (median segment kurtosis 10 or more: the real
+    /// healthy records reach 7.8) whose envelope is modulated at blade passage
+    /// by a quarter or more (line / mean squared envelope): sparse collapses
+    /// leave a noisy envelope floor that hides the line itself (the
+    /// classifier's weak-line rule). Our choices.
+    double strongly_impulsive_kurtosis = 10.0;
+    double cavitating_bpf_depth = 0.25;
     /// Too little: fewer segments than this in all, or one recording shorter
     /// than short_recording_s. Our choices (5 segments: the quality gate's
     /// warning level for a recording; 3 s: three 1 s segments).
     std::size_t min_segments = 5;
     double short_recording_s = 3.0;
 };
+
+/// A recording whose HF level steps (check "level_step") is cut to the part on
+/// the lower side of the step, where the machine was quieter: the part that
+/// can still be known-good. Returns the time of the cut (s from the start) or
+/// a negative number when the recording is steady.
+double keep_quieter_part(BaselineSource& source, double segment_s, const BaselineCheckLimits& limits = {});
+
+/// Visits whose HF level (brought to one speed) stands above the others by
+/// more than re-mounting explains (the "visits_disagree" limit): louder is the
+/// suspect side, as for a step. With two visits, the louder one of a pair
+/// that disagrees. Indices into baseline.sources, never all of them.
+std::vector<std::size_t> louder_visits(const Baseline& baseline, const BaselineCheckLimits& limits = {});
 
 /// The checks, on a learned baseline (its sources carry the per-segment
 /// values) and the operating point stated for each source (same order; empty

@@ -35,6 +35,17 @@ struct ClassifierConfig {
     double hf_developed_db = 9.0;
     /// Kurtosis rise of the HF band that counts as impulsive.
     double kurtosis_rise = 1.0;
+    /// A level rise short of z_alert still counts from this z when the HF band
+    /// has also turned impulsive: a gain or mount change moves levels but not
+    /// kurtosis (a ratio of moments), so the two together are not a re-mount.
+    /// Our choice.
+    double z_alert_with_impulses = 2.0;
+    /// HF kurtosis from which collapses are sparse: an HF rise past
+    /// hf_developed_db made of sparse collapses, with no LF rise beside it, is
+    /// incipient; dense developed cavitation is nearly Gaussian (kurtosis 3.6-7
+    /// in the generated developed cases, 18-75 in the incipient ones; the real
+    /// throttled runs at 1000 rpm read 3.3-3.6). Our choice.
+    double sparse_kurtosis = 10.0;
     /// Envelope line at an integer order that counts as modulation: 6 dB over
     /// the local floor (twice the floor amplitude) and 3 dB over the baseline's line.
     double line_prominence_db = 6.0;
@@ -48,8 +59,34 @@ struct ClassifierConfig {
     QualityLimits quality;
 };
 
-/// Highest confidence of a finding against a baseline that carries warnings. Our choice.
+/// Highest raw score of a finding against a baseline that carries warnings. Our choice.
 constexpr double kBaselineWarningConfidenceCap = 0.6;
+
+struct Finding;
+
+/// How sure a finding is, in words, with what lowered it.
+enum class ConfidenceGrade { high, moderate, low };
+const char* to_string(ConfidenceGrade g);
+
+/// The confidence is calibrated: the classifier's raw score s (its rules'
+/// own 0-1 measure) is mapped by Platt scaling,
+///   confidence = 1 / (1 + exp(A logit(s) + B)),
+/// with A and B fitted (models/calibration.hpp, fit_platt) on the verdicts of
+/// generated calibration sets made with other seeds than the sets the tests
+/// evaluate (`cavitas_field_eval --fit`; DEVELOPERS.md says how to refit).
+/// On real machines the evidence is less clean than on generated ones: the
+/// grade, not the number, carries that (ConfidenceGrade).
+struct ConfidenceCalibration {
+    double a = -1.0, b = 0.0;  ///< identity: confidence = raw score
+};
+extern const ConfidenceCalibration kConfidenceCalibration;
+double calibrated_confidence(double raw_score, const ConfidenceCalibration& c = kConfidenceCalibration);
+/// high: confidence >= 0.85 with nothing that lowered it; low: under 0.6, or
+/// a verdict resting on the operating point alone, or a baseline with
+/// warnings and another doubt; moderate otherwise. A baseline with warnings
+/// never allows high. Sets grade and reasons from the finding's warnings and
+/// baseline warnings.
+void assign_grade(Finding& finding);
 
 /// One indicator set beside the baseline.
 struct Comparison {
@@ -65,7 +102,10 @@ struct Comparison {
 
 struct Finding {
     Verdict verdict = Verdict::indeterminate;
-    double confidence = 0.0;
+    double confidence = 0.0;                 ///< calibrated (calibrated_confidence of raw_score)
+    double raw_score = 0.0;                  ///< the rules' own measure, before calibration
+    ConfidenceGrade grade = ConfidenceGrade::low;
+    std::vector<std::string> grade_reasons;  ///< why not high
     std::vector<std::string> evidence;
     std::vector<std::string> other_findings;
     std::vector<std::string> warnings;       ///< things that lowered the confidence

@@ -126,20 +126,27 @@ bool grade_with_margin(Finding& f, const Hydraulics& h) {
     if (f.verdict != Verdict::normal) return false;
     f.verdict = below_npsh3 ? Verdict::developed : Verdict::incipient;
     f.hydraulic_only = true;
-    f.confidence = std::min(f.confidence, 0.5);  // one line of evidence, and it contradicts the other
+    // One line of evidence, and it contradicts the other: no calibrated rule
+    // covers this case, so the confidence is a plain even chance (our choice).
+    f.raw_score = std::min(f.raw_score, 0.5);
+    f.confidence = std::min(f.confidence, 0.5);
     f.evidence.push_back("no acoustic sign of cavitation over the baseline: the verdict rests on the operating point "
                          "alone");
     f.warnings.push_back("the acoustic evidence is missing although the suction conditions say the pump cavitates: the "
                          "baseline may itself have been recorded while cavitating, the sensor or its mount may not pass "
                          "the collapse band, or the suction reading, temperature or NPSH3 may be wrong; check them");
+    assign_grade(f);
     return true;
 }
 
 void flag_operating_point_differences(Finding& f, const std::vector<std::string>& differences) {
     for (const auto& d : differences) {
         f.warnings.push_back(d);
-        f.confidence *= 0.85;
+        f.raw_score *= 0.85;
     }
+    if (differences.empty() || f.verdict == Verdict::indeterminate) return;
+    f.confidence = calibrated_confidence(f.raw_score);
+    assign_grade(f);
 }
 
 }  // namespace cavitas::models

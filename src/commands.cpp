@@ -228,13 +228,15 @@ struct LearnedSource {
     std::optional<ResolvedOperatingPoint> duty;
 };
 
-LearnedSource learn_source(const BaselineOptions& o, const std::string& path, const Calibration& cal,
+LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Calibration& cal,
                            std::optional<models::AnalysisSetup>& setup, double sensor_max,
                            models::MachineContext& machine, std::ostream& err) {
     // The operating point first: a mistyped reading fails before minutes of analysis.
+    const std::string& path = o.recordings[index];
     LearnedSource l;
     l.duty = resolve_operating_point(o.operating, path);
     models::MachineContext this_machine = machine;
+    if (!o.rpms.empty()) this_machine.rpm = o.rpms[index];
     if (!this_machine.rpm && l.duty && l.duty->op.rpm) this_machine.rpm = l.duty->op.rpm;
     if (!setup) {
         // The first recording fixes the bands and the segment length (--segment).
@@ -338,7 +340,11 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     std::optional<models::AnalysisSetup> setup;
     if (earlier) setup = earlier->setup;
     std::vector<LearnedSource> learned;
-    for (const auto& path : o.recordings) learned.push_back(learn_source(o, path, cal, setup, sensor_max, machine, err));
+    if (!o.rpms.empty() && o.rpms.size() != o.recordings.size())
+        throw UsageError("--rpm: " + std::to_string(o.rpms.size()) + " speeds for " + std::to_string(o.recordings.size()) +
+                         " recordings; give one speed for all or one per recording, in order");
+    for (std::size_t k = 0; k < o.recordings.size(); ++k)
+        learned.push_back(learn_source(o, k, cal, setup, sensor_max, machine, err));
 
     std::vector<models::BaselineSource> sources = earlier ? earlier->sources : std::vector<models::BaselineSource>{};
     std::vector<std::optional<models::Hydraulics>> duties(sources.size());
@@ -372,6 +378,33 @@ void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err
     b.unit = cal.unit;
     b.full_scale = cal.full_scale;
     b.warnings = models::check_baseline(b, duties);
+    // A level step: learn from the quieter side of it, and say so in the warning.
+    bool cut = false;
+    for (auto& w : b.warnings)
+        if (w.check == "level_step")
+            for (auto& src : b.sources)
+                if (src.file == w.file) {
+                    const double at = models::keep_quieter_part(src, b.setup.segment_s);
+                    if (at < 0.0) continue;
+                    w.message += "; the baseline keeps only the quieter side of the step";
+                    cut = true;
+                }
+    // Visits louder than re-mounting explains are left out of the statistics (the warning names them).
+    const auto louder = models::louder_visits(b);
+    for (auto k = louder.rbegin(); k != louder.rend(); ++k) {
+        for (auto& w : b.warnings)
+            if (w.check == "visits_disagree" && (w.file == b.sources[*k].file || b.sources.size() == 2))
+                w.message += "; the baseline leaves " + b.sources[*k].file + " (the louder) out of its statistics";
+        b.sources.erase(b.sources.begin() + static_cast<std::ptrdiff_t>(*k));
+        cut = true;
+    }
+    if (cut) {
+        models::Baseline relearned = models::learn_from_sources(b.sources, b.setup, b.vanes);
+        b.segment = relearned.segment;
+        b.recording = relearned.recording;
+        b.segments = relearned.segments;
+        b.speed = relearned.speed;
+    }
     if (earlier)  // what only the first learning's operating points could show is kept
         for (const auto& w : earlier->warnings)
             if (w.check == "low_npsh" || w.check == "low_margin") b.warnings.push_back(w);

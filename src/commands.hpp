@@ -73,7 +73,8 @@ struct BaselineOptions {
     std::vector<std::string> recordings;
     std::string output;
     int channel = 0;
-    std::optional<double> rpm;
+    std::optional<double> rpm;        ///< speed of every recording
+    std::vector<double> rpms;         ///< or one speed per recording, in order (overrides rpm)
     int vanes = 0;
     std::optional<std::string> full_scale;
     double sensor_max_hz = 0.0;

@@ -163,8 +163,11 @@ int main(int argc, char** argv) {
                    "Refuse (exit 1, nothing written) when the checks find anything, instead of warning");
     base->add_option("--machine", bo.machine,
                      "Tag of the machine and measurement point (e.g. OW-P101-NDE-H), stored in the baseline");
-    base->add_option("--rpm", bo.rpm, "Shaft speed during the recordings, rpm; without it the speed is estimated "
-                                      "from the spectrum")
+    base->add_option("--rpm", bo.rpms,
+                     "Shaft speed during the recordings, rpm: one for all, or one per recording in order, comma "
+                     "separated (--rpm 714,1011,1208 for a variable-speed pump); without it each recording's sidecar "
+                     "speed, else the speed estimated from the spectrum")
+        ->delimiter(',')
         ->check(CLI::Range(1.0, 100000.0));
     base->add_option("--vanes", bo.vanes, "Impeller vanes (runner blades): blade-pass frequency = vanes x rpm / 60")
         ->check(CLI::Range(0, 200));
@@ -317,7 +320,13 @@ int main(int argc, char** argv) {
         ~SavePlans() { save_fft_plans(); }
     } save_plans;
     try {
-        if (*base) run_baseline(bo, std::cout, std::cerr);
+        if (*base) {
+            if (bo.rpms.size() == 1) {  // one speed for every recording
+                bo.rpm = bo.rpms.front();
+                bo.rpms.clear();
+            }
+            run_baseline(bo, std::cout, std::cerr);
+        }
         if (*an) run_analyze(ao, std::cout, std::cerr);
         if (*np) run_npsh(no, std::cout);
         if (*rt) return run_route(ro, std::cout, std::cerr);

@@ -115,7 +115,10 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
         << " s, " << a.series.segments() << " segments)\n";
     out << "  against " << baseline_path << "\n";
     out << "  verdict     " << verdict_words(f.verdict) << "\n";
-    out << "  confidence  " << fixed(f.confidence, 2) << "\n";
+    if (f.verdict != models::Verdict::indeterminate) {
+        out << "  confidence  " << models::to_string(f.grade) << "\n";
+        for (const auto& why : f.grade_reasons) out << "    because " << why << "\n";
+    }
     if (!f.reasons.empty()) {
         out << "  why indeterminate:\n";
         for (const auto& s : f.reasons) out << "    - " << s << "\n";
@@ -127,10 +130,6 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
     if (!f.other_findings.empty()) {
         out << "  other findings:\n";
         for (const auto& s : f.other_findings) out << "    - " << s << "\n";
-    }
-    if (!f.warnings.empty()) {
-        out << "  lowered confidence:\n";
-        for (const auto& s : f.warnings) out << "    - " << s << "\n";
     }
     if (!f.baseline_warnings.empty()) {
         out << "  baseline warnings (from " << baseline_path << "):\n";
@@ -216,6 +215,9 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"created_utc", utc_now()},
         {"verdict", models::to_string(f.verdict)},
         {"confidence", f.confidence},
+        {"raw_score", f.raw_score},
+        {"confidence_grade", models::to_string(f.grade)},
+        {"confidence_reasons", f.grade_reasons},
         {"evidence", f.evidence},
         {"other_findings", f.other_findings},
         {"baseline_warnings", baseline_warnings_json(f.baseline_warnings)},

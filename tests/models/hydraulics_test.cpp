@@ -262,10 +262,14 @@ TEST_CASE("A baseline learned at another flow is flagged", "[models][hydraulics]
     now.flow_m3_s.reset();  // not stated now: nothing to compare
     CHECK(compare_with_baseline(s, now).empty());
     Finding f;
-    f.confidence = 0.9;
+    f.verdict = Verdict::normal;
+    f.raw_score = 0.9;
     flag_operating_point_differences(f, d);
-    CHECK_THAT(f.confidence, WithinAbs(0.9 * 0.85, 1e-12));
+    // The raw score takes the 0.85; the confidence is its calibration (classifier.hpp).
+    CHECK_THAT(f.raw_score, WithinAbs(0.9 * 0.85, 1e-12));
+    CHECK_THAT(f.confidence, WithinAbs(calibrated_confidence(0.9 * 0.85), 1e-12));
     CHECK(f.warnings.size() == 1);
+    CHECK(f.grade != ConfidenceGrade::high);
 }
 
 // grade_with_margin: NPSH3 is the 3 % head-drop point (ANSI/HI 14.6), so at or
@@ -291,6 +295,7 @@ TEST_CASE("A pump at or near boiling at the impeller eye is never judged normal"
         CHECK(f.verdict == Verdict::incipient);
         CHECK(f.hydraulic_only);
         CHECK(f.confidence <= 0.5);
+        CHECK(f.grade == ConfidenceGrade::low);
         REQUIRE_FALSE(f.warnings.empty());
         CHECK(f.warnings.back().find("baseline may itself") != std::string::npos);
     }

@@ -16,6 +16,11 @@ struct EvalRow {
     double rpm = 0;
     int vanes = 0;
     double full_scale_g = 50;
+    // The field set's columns (cavitas-synth field); defaults elsewhere.
+    std::string group;          ///< the baseline a row belongs to or is judged against
+    bool rpm_given = true;      ///< whether the evaluator passes the true speed
+    std::string expect;         ///< the verdict due (label when absent)
+    std::string hazard = "none";
 };
 
 inline std::vector<EvalRow> read_eval_manifest(const std::string& path) {
@@ -52,6 +57,15 @@ inline std::vector<EvalRow> read_eval_manifest(const std::string& path) {
         r.rpm = std::stod(f[c_rpm]);
         r.vanes = std::stoi(f[c_vanes]);
         r.full_scale_g = std::stod(f[c_fs]);  // "50g": stod stops at the unit
+        r.expect = r.label;
+        auto optional = [&](const char* name, auto set) {
+            const auto it = std::find(header.begin(), header.end(), name);
+            if (it != header.end()) set(f[static_cast<std::size_t>(it - header.begin())]);
+        };
+        optional("group", [&](const std::string& v) { r.group = v; });
+        optional("rpm_given", [&](const std::string& v) { r.rpm_given = v == "1"; });
+        optional("expect", [&](const std::string& v) { r.expect = v; });
+        optional("hazard", [&](const std::string& v) { r.hazard = v; });
         rows.push_back(r);
     }
     return rows;
