@@ -62,8 +62,8 @@ std::string headline(const std::string& verdict) {
     return "Not analysed";
 }
 
-std::string plain_detail(const std::string& verdict, double confidence) {
-    const std::string sure = confidence >= 0.85 ? "high" : confidence >= 0.6 ? "moderate" : "low";
+// grade: the finding's confidence_grade (high / moderate / low; empty = not known).
+std::string plain_detail(const std::string& verdict, const std::string& grade) {
     std::string s;
     if (verdict == "developed")
         s = "Dense vapour-bubble collapse on the impeller or runner: pitting damage is likely if it goes on.";
@@ -74,7 +74,7 @@ std::string plain_detail(const std::string& verdict, double confidence) {
             "known-good baseline.";
     else
         s = "The data quality check failed; re-record before judging this machine.";
-    if (verdict != "indeterminate" && verdict != "error") s += " Confidence " + fixed(confidence, 2) + " (" + sure + ").";
+    if (verdict != "indeterminate" && verdict != "error" && !grade.empty()) s += " Confidence: " + grade + ".";
     return s;
 }
 
@@ -357,7 +357,7 @@ void add_finding_sections(Document& d, const json& f, bool full) {
     const std::string verdict = str(f, "verdict");
     const json op = f.contains("operating_point") ? f["operating_point"] : json::object();
     const std::string agreement = str(op, "agreement");
-    d.blocks.push_back(verdict_block(verdict, headline(verdict), plain_detail(verdict, num(f, "confidence"))));
+    d.blocks.push_back(verdict_block(verdict, headline(verdict), plain_detail(verdict, str(f, "confidence_grade"))));
     const auto evidence = strs(f, "evidence");
     const auto reasons = strs(f["quality"], "reasons");
     if (!reasons.empty()) {
@@ -404,6 +404,15 @@ void add_finding_sections(Document& d, const json& f, bool full) {
     if (!warnings.empty()) {
         d.paragraph("What lowered the confidence:");
         d.bullets(warnings);
+    }
+    const auto base_warnings = f.contains("baseline_warnings") && f["baseline_warnings"].is_array() ? f["baseline_warnings"]
+                                                                                                     : json::array();
+    if (!base_warnings.empty()) {
+        std::vector<std::string> lines;
+        for (const auto& w : base_warnings)
+            if (w.is_object() && w.contains("message") && w["message"].is_string()) lines.push_back(w["message"]);
+        d.paragraph("The baseline itself carries warnings (every reading against it is less sure):");
+        d.bullets(lines);
     }
 }
 
@@ -656,7 +665,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     if (!latest.empty()) {
         const SummaryRow& w = *latest.front();
         const bool act = w.verdict == "developed" || w.verdict == "incipient" || w.failed() || w.agreement == "at_risk";
-        std::string detail = act ? plain_detail(w.verdict, w.confidence) : "No machine point needs attention for cavitation.";
+        std::string detail = act ? plain_detail(w.verdict, w.confidence_grade) : "No machine point needs attention for cavitation.";
         if (act && w.agreement == "unexplained_by_margin")
             detail += " The NPSH margin is large" + (w.margin_ratio ? " (" + fixed(*w.margin_ratio, 1) + " x NPSH3)" : std::string()) +
                       ", so suction pressure alone does not explain it: look for suction recirculation at low flow, "
@@ -692,7 +701,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
         std::string when = r->datetime.substr(0, 16);
         if (when.size() > 10) when[10] = ' ';
         t.rows.push_back({r->machine, r->point, when, r->verdict,
-                          r->failed() ? "-" : fixed(r->confidence, 2),
+                          r->failed() ? "-" : (r->confidence_grade.empty() ? fixed(r->confidence, 2) : r->confidence_grade),
                           r->hf_rise_db ? signed_fixed(*r->hf_rise_db, 1) : "-",
                           r->margin_ratio ? fixed(*r->margin_ratio, 2) : "-", since, note});
         t.row_verdict.push_back(r->verdict);

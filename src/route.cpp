@@ -63,6 +63,7 @@ json SummaryRow::to_json() const {
     j["verdict"] = verdict;
     j["reason"] = reason;
     j["confidence"] = confidence;
+    if (!confidence_grade.empty()) j["confidence_grade"] = confidence_grade;
     put_opt(j, "hf_rise_db", hf_rise_db);
     put_opt(j, "hf_kurtosis", hf_kurtosis);
     put_opt(j, "impulse_rate_per_s", impulse_rate_per_s);
@@ -107,6 +108,11 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
         if (!verdicts.count(r.verdict)) throw std::invalid_argument("'verdict' is not one cavitas writes");
         r.reason = get_str(j, "reason");
         r.confidence = get_opt(j, "confidence").value_or(0.0);
+        if (j.contains("confidence_grade")) {
+            r.confidence_grade = get_str(j, "confidence_grade");
+            if (r.confidence_grade != "high" && r.confidence_grade != "moderate" && r.confidence_grade != "low")
+                throw std::invalid_argument("'confidence_grade' is not high, moderate or low");
+        }
         r.hf_rise_db = get_opt(j, "hf_rise_db");
         r.hf_kurtosis = get_opt(j, "hf_kurtosis");
         r.impulse_rate_per_s = get_opt(j, "impulse_rate_per_s");
@@ -259,6 +265,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         const auto& f = r.finding;
         row.verdict = models::to_string(f.verdict);
         row.confidence = f.confidence;
+        if (f.verdict != models::Verdict::indeterminate) row.confidence_grade = models::to_string(f.grade);
         if (f.verdict == models::Verdict::indeterminate) row.reason = join(f.reasons, "; ");
         row.hf_rise_db = comparison(f, "hf_band_level_db", true);
         row.hf_kurtosis = comparison(f, "hf_kurtosis_ratio", false);
@@ -307,7 +314,7 @@ std::string state_words(const SummaryRow& r) {
     if (r.failed()) return "FAILED: " + r.reason;
     std::string s = r.verdict == "developed" ? "DEVELOPED cavitation" : r.verdict == "incipient" ? "INCIPIENT cavitation"
                                                                       : r.verdict;
-    s += " (confidence " + fixed(r.confidence, 2) + ")";
+    if (!r.confidence_grade.empty()) s += " (" + r.confidence_grade + " confidence)";
     if (r.hf_rise_db) s += ", HF " + (*r.hf_rise_db >= 0 ? std::string("+") : std::string()) + fixed(*r.hf_rise_db, 1) + " dB";
     if (r.margin_ratio) s += ", NPSHa/NPSH3 " + fixed(*r.margin_ratio, 2);
     if (!r.agreement.empty() && r.agreement != "consistent" && r.agreement != "margin_unknown")

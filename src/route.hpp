@@ -32,6 +32,7 @@ struct SummaryRow {
     std::string verdict;           ///< normal, incipient, developed, indeterminate, or error
     std::string reason;            ///< error: what went wrong; indeterminate: why
     double confidence = 0.0;
+    std::string confidence_grade;  ///< high / moderate / low (empty: an error row or an older summary)
     std::optional<double> hf_rise_db, hf_kurtosis, impulse_rate_per_s, lf_rise_db, bpf_modulation;
     std::optional<double> npsha_m, margin_ratio;
     std::string agreement;         ///< margin reading, empty without an operating point
