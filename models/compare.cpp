@@ -45,6 +45,22 @@ std::vector<double> pooled(const std::vector<RecordingSide>& side, SegmentIndica
     return v;
 }
 
+// One value per usable recording: its median (the recording, a visit, as the unit).
+std::vector<double> medians(const std::vector<RecordingSide>& side, SegmentIndicator i) {
+    std::vector<double> v;
+    for (const auto& r : side) {
+        if (r.finding->verdict == Verdict::indeterminate || r.analysis->series[i].empty()) continue;
+        v.push_back(median(r.analysis->series[i]));
+    }
+    return v;
+}
+
+std::size_t usable(const std::vector<RecordingSide>& side) {
+    std::size_t n = 0;
+    for (const auto& r : side) n += r.finding->verdict == Verdict::indeterminate ? 0 : 1;
+    return n;
+}
+
 }  // namespace
 
 BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const std::vector<RecordingSide>& after,
@@ -58,8 +74,9 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
     const SegmentIndicator keys[] = {SegmentIndicator::hf_level_db, SegmentIndicator::hf_kurtosis,
                                      SegmentIndicator::impulse_rate, SegmentIndicator::lf_level_db,
                                      SegmentIndicator::hf_spectral_kurtosis, SegmentIndicator::overall_rms};
+    const bool visits = usable(before) >= c.min_visits && usable(after) >= c.min_visits;
     for (SegmentIndicator k : keys) {
-        const auto a = pooled(before, k), b = pooled(after, k);
+        const auto a = visits ? medians(before, k) : pooled(before, k), b = visits ? medians(after, k) : pooled(after, k);
         if (a.empty() || b.empty()) continue;
         const IndicatorInfo& inf = info(k);
         IndicatorChange ic;
@@ -78,6 +95,17 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
         ic.exact = u.exact;
         ic.cliffs_delta = cliffs_delta(a, b);
         ic.significant = ic.p_value <= c.alpha;
+        ic.units = visits ? "recordings" : "segments";
+        if (k == SegmentIndicator::hf_level_db) {
+            if (!visits) {
+                ic.widened_db = 1.96 * std::sqrt(2.0) * c.repeatability_db;
+                ic.ci_low -= ic.widened_db;
+                ic.ci_high += ic.widened_db;
+            }
+            // Visits: a few recordings cannot reach a small p; the interval clear of zero decides.
+            const bool clear = ic.ci_low > 0.0 || ic.ci_high < 0.0;
+            ic.significant = visits ? clear : ic.significant && clear;
+        }
         out.indicators.push_back(ic);
     }
     const IndicatorChange& hf = out.indicators.front();
@@ -88,10 +116,16 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
     const bool verdict_worse = out.after_severity > out.before_severity;
 
     const std::string hf_text =
-        fmt("HF band level %+.1f dB (%.0f %% interval %+.1f .. %+.1f dB; Mann-Whitney p = %.2g, Cliff's delta %+.2f; "
-            "%zu segments before, %zu after)",
-            hf.shift, 100.0 * c.confidence, hf.ci_low, hf.ci_high, hf.p_value, hf.cliffs_delta, hf.before_segments,
-            hf.after_segments);
+        visits ? fmt("HF band level %+.1f dB (%.0f %% interval %+.1f .. %+.1f dB over the medians of %zu recordings before "
+                     "and %zu after, each recording a unit; Mann-Whitney p = %.2g, Cliff's delta %+.2f)",
+                     hf.shift, 100.0 * c.confidence, hf.ci_low, hf.ci_high, hf.before_segments, hf.after_segments,
+                     hf.p_value, hf.cliffs_delta)
+               : fmt("HF band level %+.1f dB (%.0f %% interval %+.1f .. %+.1f dB: the %zu and %zu segments of fewer than "
+                     "%zu recordings a side share a mount and a duty, so the segment interval is widened by +-%.1f dB "
+                     "for re-mounting (%.1f dB repeatability); segment-level Mann-Whitney p = %.2g, Cliff's delta "
+                     "%+.2f)",
+                     hf.shift, 100.0 * c.confidence, hf.ci_low, hf.ci_high, hf.before_segments, hf.after_segments,
+                     c.min_visits, hf.widened_db, c.repeatability_db, hf.p_value, hf.cliffs_delta);
     const std::string verdicts =
         fmt("worst verdict before: %s, after: %s", severity_word(out.before_severity), severity_word(out.after_severity));
     if (material_down || (verdict_better && hf_down)) {

@@ -28,6 +28,16 @@ struct CompareConfig {
     double alpha = 0.01;        ///< per-indicator two-sided significance level
     double material_db = 3.0;   ///< HF change that matters on its own
     double confidence = 0.95;   ///< of the shift interval
+    /// Re-mount repeatability of a band level (1 sigma, dB; the baseline's
+    /// mount: repeatability_floor_db). With fewer than `min_visits` recordings
+    /// a side, the units are one recording's segments, which share a mount and
+    /// a duty: the HF interval is widened by 1.96 sqrt(2) x this, and a change
+    /// needs the widened interval clear of zero.
+    double repeatability_db = 1.0;
+    /// Recordings a side from which the recordings (visits), not the segments,
+    /// are the units of the HF statistics. Our choice: 3 (the fewest for which
+    /// a median and a rank interval mean anything).
+    std::size_t min_visits = 3;
 };
 
 enum class Change { improved, unchanged, worse };
@@ -42,7 +52,9 @@ struct IndicatorChange {
     double p_value = 1.0;       ///< Mann-Whitney U, two-sided
     bool exact = false;
     double cliffs_delta = 0.0;  ///< P(after > before) - P(after < before)
-    bool significant = false;   ///< p <= alpha
+    bool significant = false;   ///< p <= alpha (HF: and the interval clear of zero)
+    std::string units;          ///< "recordings" or "segments": what the statistics counted
+    double widened_db = 0.0;    ///< added each side of the interval for re-mounting (segments as units)
 };
 
 struct RecordingSide {

@@ -178,7 +178,9 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
     const std::string unit = models::unit_key(before.results.front().recording.info.calibration.unit);
     models::BeforeAfter ba;
     try {
-        ba = models::compare_before_after(b, a, unit);
+        models::CompareConfig cc;
+        cc.repeatability_db = models::repeatability_floor_db(before.results.front().baseline.mount);
+        ba = models::compare_before_after(b, a, unit, cc);
     } catch (const std::invalid_argument& e) {
         std::string reasons;
         for (const auto* side : {&before, &after})
@@ -252,6 +254,8 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
             e["exact"] = ic.exact;
             e["cliffs_delta"] = ic.cliffs_delta;
             e["significant"] = ic.significant;
+            e["units"] = ic.units;
+            e["widened_db"] = ic.widened_db;
             e["before_segments"] = ic.before_segments;
             e["after_segments"] = ic.after_segments;
             inds.push_back(e);

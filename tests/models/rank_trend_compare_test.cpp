@@ -136,10 +136,23 @@ TEST_CASE("Before/after: improved, worse and unchanged by the stated rule", "[mo
     const BeforeAfter same = run(healthy, healthy2);
     CHECK(same.change == Change::unchanged);
     CHECK_THAT(same.evidence.front(), Contains("no significant change"));
-    // Significant but under 3 dB and no verdict change: unchanged, and said why.
+    // +1.5 dB with one recording a side: the segments share a mount, so the interval is widened by
+    // 1.96 sqrt(2) x the 1.0 dB floor = 2.77 dB each side and takes in zero (CompareConfig).
     const BeforeAfter small = run(healthy, slightly_up);
     CHECK(small.change == Change::unchanged);
-    CHECK(small.indicators.front().significant);
+    CHECK_FALSE(small.indicators.front().significant);
+    CHECK(small.indicators.front().units == "segments");
+    CHECK_THAT(small.indicators.front().widened_db, WithinAbs(1.96 * std::sqrt(2.0), 1e-12));
+    CHECK_THAT(small.evidence.front(), Contains("widened"));
+    // Three recordings a side: each recording is a unit, and the interval is over their medians.
+    const FakeRecording h3(around(-38.2, 8, 0.4), Verdict::normal), c2(around(-20.5, 8, 0.4), Verdict::developed),
+        c3(around(-19.6, 8, 0.4), Verdict::developed);
+    const BeforeAfter visits =
+        compare_before_after({cavitating.side(), c2.side(), c3.side()}, {healthy.side(), healthy2.side(), h3.side()}, "g");
+    CHECK(visits.indicators.front().units == "recordings");
+    CHECK(visits.indicators.front().before_segments == 3);
+    CHECK(visits.change == Change::improved);
+    CHECK_THAT(visits.evidence.front(), Contains("each recording a unit"));
     // A side with nothing usable cannot be compared.
     const FakeRecording bad(around(-38.0, 8, 0.4), Verdict::indeterminate);
     CHECK_THROWS_AS(run(bad, healthy), std::invalid_argument);
