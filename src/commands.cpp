@@ -19,6 +19,7 @@
 #include "src/baseline_io.hpp"
 #include "src/plan_store.hpp"
 #include "src/report.hpp"
+#include "src/store.hpp"
 
 #ifndef CAVITAS_VERSION
 #define CAVITAS_VERSION "0.0.0"
@@ -265,6 +266,9 @@ LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Ca
     const auto reasons = models::assess_quality(r.analysis, self, ctx).reasons();
     if (!reasons.empty()) throw InputError(path + ": cannot serve as a baseline: " + reasons.front());
     if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
+    if (index < o.expected_sha256.size() && o.expected_sha256[index] != r.sha256)
+        throw InputError(path + ": changed since the results store recorded it (SHA-256 " + r.sha256.substr(0, 12) +
+                         "... now, " + o.expected_sha256[index].substr(0, 12) + "... then); it cannot stand for that visit");
     l.source = models::source_of(r.analysis);
     l.source.file = path;
     l.source.sha256 = r.sha256;
@@ -309,9 +313,59 @@ void write_baseline_summary(std::ostream& out, const BaselineOptions& o, const s
     (void)o;
 }
 
+// The store's normal visits of a point, newest last: their recordings, speeds and hashes.
+BaselineOptions with_store_visits(BaselineOptions o) {
+    namespace fs = std::filesystem;
+    if (!o.recordings.empty()) throw UsageError("--from-store: give no recordings; they come from the store");
+    if (o.machine.empty() || o.point.empty()) throw UsageError("--from-store needs --machine and --point");
+    std::error_code ec;
+    if (!fs::is_regular_file(*o.from_store, ec)) throw InputError(*o.from_store + ": no such results store");
+    const HistoryStore store(*o.from_store);
+    std::vector<Measurement> normal;
+    for (const auto& m : store.history(o.machine, o.point))
+        // A normal verdict at a thin margin is not known-good (margin reading "at_risk").
+        if (m.verdict == "normal" && m.agreement != "at_risk") normal.push_back(m);
+    if (normal.empty())
+        throw InputError(*o.from_store + ": no normal visit of " + o.machine + " " + o.point + " to learn from");
+    if (normal.size() > o.last_visits) normal.erase(normal.begin(), normal.end() - static_cast<std::ptrdiff_t>(o.last_visits));
+    o.rpms.clear();
+    for (const auto& m : normal) {
+        const auto f = nlohmann::json::parse(m.finding_json, nullptr, false);
+        std::string path = m.file;
+        double rpm = 0.0;
+        if (!f.is_discarded() && f.contains("input") && f["input"].contains("path") && f["input"]["path"].is_string())
+            path = f["input"]["path"].get<std::string>();
+        if (!f.is_discarded() && f.contains("speed") && f["speed"].contains("rpm") && f["speed"]["rpm"].is_number())
+            rpm = f["speed"]["rpm"].get<double>();
+        o.recordings.push_back(path);
+        o.rpms.push_back(rpm > 0.0 ? rpm : 0.0);
+        o.expected_sha256.push_back(m.sha256);
+        o.channel = m.channel;
+    }
+    // Calibration, vane count and mount as the baseline those visits were judged against, unless given.
+    std::error_code ec2;
+    if (fs::is_regular_file(normal.back().baseline, ec2)) {
+        const models::Baseline used = read_baseline_file(normal.back().baseline);
+        if (!o.full_scale && used.unit != "FS") {
+            char text[64];
+            std::snprintf(text, sizeof text, "%.17g%s", used.full_scale, used.unit.c_str());
+            o.full_scale = text;
+        }
+        if (o.vanes == 0) o.vanes = used.vanes;
+        if (o.mount.empty()) o.mount = used.mount;
+    }
+    // A speed unknown for one visit: let every visit's speed come from its sidecar or the spectrum.
+    if (std::find(o.rpms.begin(), o.rpms.end(), 0.0) != o.rpms.end()) o.rpms.clear();
+    return o;
+}
+
 }  // namespace
 
-void run_baseline(const BaselineOptions& o, std::ostream& out, std::ostream& err) {
+void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream& err) {
+    const BaselineOptions o = given.from_store ? with_store_visits(given) : given;
+    if (given.from_store)
+        out << "learning from " << o.recordings.size() << " normal visit(s) of " << o.machine << " " << o.point << " in "
+            << *given.from_store << "\n";
     if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
     const std::string output = !o.output.empty() ? o.output : o.add_to.value_or("");
     if (output.empty()) throw UsageError("baseline: -o BASELINE.json is required");

@@ -83,6 +83,12 @@ struct BaselineOptions {
     OperatingPointFlags operating;
     bool strict = false;                 ///< refuse (InputError) instead of warning
     std::optional<std::string> add_to;   ///< an existing baseline to add these recordings to
+    /// Learn from the results store's normal visits of machine/point instead of
+    /// listed recordings (the newest `last_visits`; each file must still hash as stored).
+    std::optional<std::string> from_store;
+    std::string point;
+    std::size_t last_visits = 8;
+    std::vector<std::string> expected_sha256;  ///< per recording (from the store); empty = not checked
 };
 
 struct AnalyzeOptions {

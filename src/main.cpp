@@ -151,14 +151,22 @@ int main(int argc, char** argv) {
         "cannot reach high confidence; --strict refuses such a baseline instead (exit 1).\n"
         "Use recordings made while the machine was known to be healthy; not just after a repair or a\n"
         "start-up while it settles. --add-to B.json adds known-good visits to an existing baseline.");
-    base->add_option("recordings", bo.recordings, "Known-good recordings (WAV, FLAC, ... any libsndfile format)")
-        ->required();
+    base->add_option("recordings", bo.recordings,
+                     "Known-good recordings (WAV, FLAC, ... any libsndfile format); none with --from-store");
     base->add_option("-o,--output", bo.output,
                      "Baseline file to write (JSON); written atomically. With --add-to, default: that file");
     base->add_option("--add-to", bo.add_to,
                      "Existing baseline to add these known-good recordings to (same sample rate, channel and "
                      "calibration); its bands, calibration and vane count are kept")
         ->type_name("BASELINE.json");
+    base->add_option("--from-store", bo.from_store,
+                     "Learn from the normal visits of --machine and --point in this results store (route's "
+                     "history.sqlite) instead of listed recordings: the newest --last of them whose margin reading was "
+                     "not at risk; each recording must still be where the route read it, unchanged (SHA-256)")
+        ->type_name("STORE");
+    base->add_option("--point", bo.point, "Measurement point, with --from-store");
+    base->add_option("--last", bo.last_visits, "With --from-store: how many of the newest normal visits (default 8)")
+        ->check(CLI::Range(1, 1000));
     base->add_flag("--strict", bo.strict,
                    "Refuse (exit 1, nothing written) when the checks find anything, instead of warning");
     base->add_option("--machine", bo.machine,

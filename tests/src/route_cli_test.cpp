@@ -229,6 +229,20 @@ TEST_CASE("history: importing a route twice adds no rows, and trend reads it", "
     CHECK(t.out.find("trend:") != std::string::npos);
     CHECK(run("trend OW-P999 --store " + q(store)).status == 1);
     CHECK(run("trend OW-P101").status == 2);  // no store named
+
+    // A baseline learned from the store's normal visits of the point (OW-P101 DE-H: 2 of its 4
+    // visits are normal), with the calibration and vanes of the baseline the route used.
+    const fs::path learned = workdir() / "from-store.json";
+    const Run b = run("baseline --from-store " + q(store) + " --machine OW-P101 --point DE-H -o " + q(learned));
+    INFO(b.err);
+    REQUIRE(b.status == 0);
+    CHECK(b.out.find("learning from 2 normal visit(s)") != std::string::npos);
+    const json base = json::parse(slurp(learned));
+    CHECK(base["sources"].size() == 2);
+    CHECK(base["context"]["unit"] == "g");
+    CHECK(base["context"]["vanes"] == 7);
+    CHECK(run("baseline --from-store " + q(store) + " --machine OW-P999 --point DE-H -o " + q(learned)).status == 1);
+    CHECK(run("baseline --from-store " + q(store) + " --machine OW-P101 -o " + q(learned)).status == 2);
 }
 
 TEST_CASE("trend: a slowly worsening point is flagged before it crosses into incipient", "[route]") {
