@@ -90,14 +90,18 @@ double SpeedModel::shift_db(SegmentIndicator i, double rpm) const {
     return 0.0;
 }
 
-double Baseline::between_visit_sigma(SegmentIndicator i) const {
-    if (sources.size() < 2) return 0.0;
+std::vector<double> Baseline::visit_levels_at_ref(SegmentIndicator i) const {
     std::vector<double> at_ref;
     for (const auto& s : sources) {
-        if (s.series[i].empty()) return 0.0;  // an older baseline: no visit data
+        if (s.series[i].empty()) return {};
         at_ref.push_back(median(s.series[i]) - speed.shift_db(i, s.rpm));
     }
-    return robust_stat(at_ref).sigma;
+    return at_ref;
+}
+
+double Baseline::between_visit_sigma(SegmentIndicator i) const {
+    const std::vector<double> at_ref = visit_levels_at_ref(i);
+    return at_ref.size() < 2 ? 0.0 : robust_stat(at_ref).sigma;
 }
 
 RobustStat Baseline::expected(SegmentIndicator i, double rpm_now) const {
@@ -110,14 +114,10 @@ RobustStat Baseline::expected(SegmentIndicator i, double rpm_now) const {
     // rpm_ref is the median of the visits' medians brought to rpm_ref.
     double at_ref = s.median;
     double within = s.sigma;
-    bool visits = !sources.empty();
-    for (const auto& v : sources) visits = visits && !v.series[i].empty();
-    if (visits && speed.rpm_ref > 0.0) {
-        std::vector<double> levels, within_sigmas;
-        for (const auto& v : sources) {
-            levels.push_back(median(v.series[i]) - speed.shift_db(i, v.rpm));
-            within_sigmas.push_back(robust_stat(v.series[i]).sigma);
-        }
+    const std::vector<double> levels = visit_levels_at_ref(i);
+    if (!levels.empty() && speed.rpm_ref > 0.0) {
+        std::vector<double> within_sigmas;
+        for (const auto& v : sources) within_sigmas.push_back(robust_stat(v.series[i]).sigma);
         at_ref = median(levels);
         within = median(within_sigmas);
     }

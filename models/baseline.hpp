@@ -130,6 +130,9 @@ struct Baseline {
     /// Between-visit spread of an indicator's visit medians after the speed
     /// model (0 with one visit).
     double between_visit_sigma(SegmentIndicator i) const;
+    /// Each visit's median of an indicator brought to the speed model's
+    /// reference speed (empty when a visit carries no values: an older baseline).
+    std::vector<double> visit_levels_at_ref(SegmentIndicator i) const;
 };
 
 /// Learn from analyses of known-good recordings (all with the same setup).

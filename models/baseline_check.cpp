@@ -83,12 +83,18 @@ void check_steps(const Baseline& b, const BaselineCheckLimits& L, std::vector<Ba
         }
 }
 
+// How far two visits' levels may lie apart from re-mounting alone: a 3-sigma
+// difference of two readings, each with the mount's repeatability.
+double disagree_limit_db(const Baseline& b, const BaselineCheckLimits& L) {
+    return std::max(L.disagree_min_db, 3.0 * std::sqrt(2.0) * repeatability_floor_db(b.mount));
+}
+
 void check_disagreement(const Baseline& b, const BaselineCheckLimits& L, std::vector<BaselineWarning>& out) {
     if (b.sources.size() < 2) return;
-    const double limit = std::max(L.disagree_min_db, 3.0 * std::sqrt(2.0) * repeatability_floor_db(b.mount));
+    const double limit = disagree_limit_db(b, L);
     for (const auto& lv : kLevels) {
-        std::vector<double> at_ref;
-        for (const auto& s : b.sources) at_ref.push_back(median(s.series[lv.indicator]) - b.speed.shift_db(lv.indicator, s.rpm));
+        const std::vector<double> at_ref = b.visit_levels_at_ref(lv.indicator);
+        if (at_ref.size() < 2) return;  // visits without values (an older baseline)
         // Two visits: their difference; more: each against the median of all.
         const double mid = median(at_ref);
         for (std::size_t k = 0; k < at_ref.size(); ++k) {
@@ -169,10 +175,9 @@ double keep_quieter_part(BaselineSource& s, double segment_s, const BaselineChec
 std::vector<std::size_t> louder_visits(const Baseline& b, const BaselineCheckLimits& L) {
     std::vector<std::size_t> out;
     if (b.sources.size() < 2) return out;
-    const double limit = std::max(L.disagree_min_db, 3.0 * std::sqrt(2.0) * repeatability_floor_db(b.mount));
-    const SegmentIndicator hf = SegmentIndicator::hf_level_db;
-    std::vector<double> at_ref;
-    for (const auto& s : b.sources) at_ref.push_back(median(s.series[hf]) - b.speed.shift_db(hf, s.rpm));
+    const double limit = disagree_limit_db(b, L);
+    const std::vector<double> at_ref = b.visit_levels_at_ref(SegmentIndicator::hf_level_db);
+    if (at_ref.size() < 2) return out;
     if (b.sources.size() == 2) {
         if (std::abs(at_ref[1] - at_ref[0]) > limit) out.push_back(at_ref[1] > at_ref[0] ? 1 : 0);
         return out;
