@@ -36,6 +36,14 @@ std::string lpad(std::string s, std::size_t n) {
 
 json opt(const std::optional<double>& v) { return v ? json(*v) : json(nullptr); }
 
+// The confidence grade a stored finding carries ("-" for findings of older cavitas or no verdict).
+std::string grade_of(const Measurement& m) {
+    const auto f = json::parse(m.finding_json, nullptr, false);
+    if (f.is_discarded() || !f.is_object() || !f.contains("confidence_grade") || !f["confidence_grade"].is_string())
+        return "-";
+    return f["confidence_grade"].get<std::string>();
+}
+
 std::string store_path_of(const std::optional<std::string>& store, const std::optional<std::string>& baselines,
                           const char* command) {
     if (store) return *store;
@@ -79,7 +87,7 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
         if (ms.empty()) continue;
         out << o.machine << "  " << point << "  (" << ms.size() << " measurement" << (ms.size() == 1 ? "" : "s") << ", "
             << ms.front().measured_at.substr(0, 10) << " .. " << ms.back().measured_at.substr(0, 10) << ")\n";
-        out << "  " << pad("when", 17) << pad("verdict", 14) << lpad("conf", 5) << lpad("HF over baseline", 18)
+        out << "  " << pad("when", 17) << pad("verdict", 14) << pad("confidence", 11) << lpad("HF over baseline", 18)
             << lpad("HF kurtosis", 13) << lpad("impulses", 11) << lpad("NPSHa/NPSH3", 13) << "\n";
         std::vector<models::TrendPoint> tp;
         ordered_json list = json::array();
@@ -87,7 +95,7 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
             const std::string hf = m.hf_rise_db ? signed_fixed(*m.hf_rise_db, 1) + " dB" : "-";
             // A bar of the HF rise, one mark a dB, for reading the run of visits at a glance.
             const int marks = m.hf_rise_db ? static_cast<int>(std::clamp(std::lround(*m.hf_rise_db), 0L, 30L)) : 0;
-            out << "  " << pad(m.measured_at.substr(0, 16), 17) << pad(m.verdict, 14) << lpad(fixed(m.confidence, 2), 5)
+            out << "  " << pad(m.measured_at.substr(0, 16), 17) << pad(m.verdict, 14) << pad(grade_of(m), 11)
                 << lpad(hf, 18) << lpad(m.hf_kurtosis ? fixed(*m.hf_kurtosis, 1) : "-", 13)
                 << lpad(m.impulse_rate_per_s ? fixed(*m.impulse_rate_per_s, 0) + " /s" : "-", 11)
                 << lpad(m.margin_ratio ? fixed(*m.margin_ratio, 2) : "-", 13) << "  " << std::string(marks, '|') << "\n";
@@ -198,7 +206,11 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
     for (const auto* side : {&before, &after})
         for (const auto& r : side->results)
             out << "  " << (side == &before ? "before" : "after ") << "  " << r.recording.info.path << "  "
-                << models::to_string(r.finding.verdict) << " (confidence " << fixed(r.finding.confidence, 2) << ")\n";
+                << models::to_string(r.finding.verdict)
+                << (r.finding.verdict == models::Verdict::indeterminate
+                        ? std::string()
+                        : std::string(" (") + models::to_string(r.finding.grade) + " confidence)")
+                << "\n";
     out << "  change   " << words << "\n  evidence:\n";
     for (const auto& e : ba.evidence) out << "    - " << e << "\n";
     out << "  indicators (after - before: Hodges-Lehmann shift [95 % interval], Mann-Whitney p, Cliff's delta):\n";
