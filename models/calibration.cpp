@@ -120,7 +120,9 @@ PlattScaling fit_platt(std::span<const double> score, std::span<const int> posit
     std::size_t n_pos = 0;
     for (int p : positive) n_pos += static_cast<std::size_t>(p);
     const std::size_t n_neg = positive.size() - n_pos;
-    const auto [t_pos, t_neg] = platt_targets(n_pos, n_neg);
+    // Plain names, not a structured binding: clang 14 cannot capture one in a lambda.
+    const std::pair<double, double> targets = platt_targets(n_pos, n_neg);
+    const double t_pos = targets.first, t_neg = targets.second;
     const auto target = [&](std::size_t i) { return positive[i] ? t_pos : t_neg; };
 
     // The line search compares losses that differ by ~|g|^2 / (Hessian) near the
