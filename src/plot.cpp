@@ -213,8 +213,9 @@ std::string date_text(double days) {
 
 std::vector<double> ticks(const Axis& a) {
     std::vector<double> t;
-    if (!(a.hi > a.lo)) return t;
+    if (!(a.hi > a.lo) || !std::isfinite(a.lo) || !std::isfinite(a.hi)) return t;
     if (a.log) {
+        if (!(a.lo > 0.0) || a.hi / a.lo > 1e40) return t;  // no log axis through 0, nor over 40 decades
         const int d0 = static_cast<int>(std::floor(std::log10(a.lo))), d1 = static_cast<int>(std::ceil(std::log10(a.hi)));
         const bool sparse = d1 - d0 > 3;
         for (int d = d0; d <= d1; ++d)
@@ -239,7 +240,8 @@ std::vector<double> ticks(const Axis& a) {
         return t;
     }
     const double step = nice_step(a.hi - a.lo, 6);
-    for (double v = std::ceil(a.lo / step - 1e-9) * step; v <= a.hi + 1e-9 * step; v += step)
+    if (!(step > 0.0) || !std::isfinite(step)) return t;
+    for (double v = std::ceil(a.lo / step - 1e-9) * step; v <= a.hi + 1e-9 * step && t.size() < 64; v += step)
         t.push_back(std::abs(v) < 1e-12 * step ? 0.0 : v);
     return t;
 }
@@ -259,7 +261,61 @@ std::string tick_label(const Axis& a, double v) {
     return b;
 }
 
-void draw_chart(cairo_t* cr, double width, double height, const Chart& c) {
+namespace {
+
+// What can be drawn of a chart: every series and band cut to its shortest
+// array, points that are not finite (or not above 0 on a log axis) left out,
+// and axes that a log scale or a span can stand on. Charts come from files a
+// user may have edited; drawing must not read past an array or loop on a
+// range of -inf .. inf.
+bool drawable_x(const Axis& a, double v) { return std::isfinite(v) && (!a.log || v > 0.0); }
+
+Axis drawable_axis(Axis a) {
+    if (!std::isfinite(a.lo) || !std::isfinite(a.hi)) a.lo = 0.0, a.hi = 1.0;
+    if (a.log && !(a.lo > 0.0)) a.lo = a.hi > 0.0 ? a.hi / 1000.0 : 1.0;
+    if (!(a.hi > a.lo)) a.hi = a.log ? a.lo * 10.0 : a.lo + 1.0;
+    return a;
+}
+
+Chart drawable(const Chart& in) {
+    Chart c = in;
+    c.x = drawable_axis(c.x);
+    c.y = drawable_axis(c.y);
+    for (auto& s : c.series) {
+        Series kept = s;
+        kept.x.clear();
+        kept.y.clear();
+        kept.point_verdicts.clear();
+        const std::size_t n = std::min(s.x.size(), s.y.size());
+        for (std::size_t i = 0; i < n; ++i)
+            if (drawable_x(c.x, s.x[i]) && drawable_x(c.y, s.y[i])) {
+                kept.x.push_back(s.x[i]);
+                kept.y.push_back(s.y[i]);
+                if (i < s.point_verdicts.size()) kept.point_verdicts.push_back(s.point_verdicts[i]);
+            }
+        s = std::move(kept);
+    }
+    for (auto& b : c.bands) {
+        Band kept = b;
+        kept.x.clear();
+        kept.lo.clear();
+        kept.hi.clear();
+        const std::size_t n = std::min({b.x.size(), b.lo.size(), b.hi.size()});
+        for (std::size_t i = 0; i < n; ++i)
+            if (drawable_x(c.x, b.x[i]) && std::isfinite(b.lo[i]) && std::isfinite(b.hi[i])) {
+                kept.x.push_back(b.x[i]);
+                kept.lo.push_back(b.lo[i]);
+                kept.hi.push_back(b.hi[i]);
+            }
+        b = std::move(kept);
+    }
+    return c;
+}
+
+}  // namespace
+
+void draw_chart(cairo_t* cr, double width, double height, const Chart& chart) {
+    const Chart c = drawable(chart);
     set(cr, {1, 1, 1});
     cairo_rectangle(cr, 0, 0, width, height);
     cairo_fill(cr);
@@ -386,10 +442,20 @@ void draw_heatmap(cairo_t* cr, double width, double height, const HeatMap& m) {
     for (std::size_t r = 0; r < m.rows.size(); ++r) {
         const auto& row = m.rows[r];
         const double y = f.y0 + static_cast<double>(r) * row_h;
-        const double cell = (row.x1 - row.x0) / static_cast<double>(std::max<std::size_t>(1, row.values.size()));
-        for (std::size_t b = 0; b < row.values.size(); ++b) {
+        // At most 1024 cells a row are drawn (each the largest of the values it
+        // covers): a chart is a few hundred points wide, and a file may hold more.
+        const std::size_t per = (row.values.size() + 1023) / 1024;
+        const std::vector<double> shown = per <= 1 ? row.values : [&] {
+            std::vector<double> v;
+            for (std::size_t k = 0; k < row.values.size(); k += per)
+                v.push_back(*std::max_element(row.values.begin() + static_cast<std::ptrdiff_t>(k),
+                                              row.values.begin() + static_cast<std::ptrdiff_t>(std::min(k + per, row.values.size()))));
+            return v;
+        }();
+        const double cell = (row.x1 - row.x0) / static_cast<double>(std::max<std::size_t>(1, shown.size()));
+        for (std::size_t b = 0; b < shown.size(); ++b) {
             const double xa = f.px(row.x0 + cell * static_cast<double>(b)), xb = f.px(row.x0 + cell * static_cast<double>(b + 1));
-            set(cr, colour(row.values[b] / vmax));
+            set(cr, colour(shown[b] / vmax));
             cairo_rectangle(cr, xa, y, xb - xa + 0.3, row_h + 0.3);
             cairo_fill(cr);
         }

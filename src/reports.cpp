@@ -5,6 +5,7 @@
 #include <filesystem>
 #include <map>
 #include <ostream>
+#include <set>
 #include <sstream>
 
 #include "models/classifier.hpp"
@@ -30,6 +31,15 @@ using doc::Kind;
 namespace {
 
 // ---- reading JSON without surprises -------------------------------------------------------
+
+// A member of an object, or null when absent: operator[] on a const json with a
+// missing key is undefined behaviour, and a report's input is any file.
+const json& field(const json& j, const char* key) {
+    static const json none;
+    if (!j.is_object()) return none;
+    const auto it = j.find(key);
+    return it == j.end() ? none : *it;
+}
 
 double num(const json& j, const char* key, double fallback = 0.0) {
     return j.is_object() && j.contains(key) && j[key].is_number() ? j[key].get<double>() : fallback;
@@ -248,9 +258,9 @@ Figure kurtogram_figure(const json& kg) {
         m.value_label = "kurtosis";
         m.x.label = "frequency, Hz";
         double fmax = 0.0;
-        const json rows = kg.contains("rows") && kg["rows"].is_array() ? kg["rows"] : json::array();
-        const double chosen_c = num(kg["chosen"], "center_hz"), chosen_w = num(kg["chosen"], "bandwidth_hz"),
-                     chosen_l = num(kg["chosen"], "level", -1);
+        const json rows = kg.contains("rows") && field(kg, "rows").is_array() ? field(kg, "rows") : json::array();
+        const double chosen_c = num(field(kg, "chosen"), "center_hz"), chosen_w = num(field(kg, "chosen"), "bandwidth_hz"),
+                     chosen_l = num(field(kg, "chosen"), "level", -1);
         for (std::size_t r = 0; r < rows.size(); ++r) {
             const auto& row = rows[r];
             plot::HeatRow hr;
@@ -328,7 +338,7 @@ doc::Table indicator_table(const json& finding) {
     t.header = {"indicator", "value", "baseline (median +- spread)", "change", "threshold"};
     t.widths = {2.1, 1.0, 1.6, 1.0, 2.4};
     t.numeric = {false, true, true, true, false};
-    const json& ind = finding["indicators"];
+    const json& ind = field(finding, "indicators");
     if (!ind.is_object()) return t;
     const std::vector<std::string> order = {
         "hf_band_level_db",         "hf_kurtosis_ratio",           "impulse_rate_per_s",  "envelope_bpf_prominence_db",
@@ -355,11 +365,11 @@ doc::Table indicator_table(const json& finding) {
 
 void add_finding_sections(Document& d, const json& f, bool full) {
     const std::string verdict = str(f, "verdict");
-    const json op = f.contains("operating_point") ? f["operating_point"] : json::object();
+    const json op = f.contains("operating_point") ? field(f, "operating_point") : json::object();
     const std::string agreement = str(op, "agreement");
     d.blocks.push_back(verdict_block(verdict, headline(verdict), plain_detail(verdict, str(f, "confidence_grade"))));
     const auto evidence = strs(f, "evidence");
-    const auto reasons = strs(f["quality"], "reasons");
+    const auto reasons = strs(field(f, "quality"), "reasons");
     if (!reasons.empty()) {
         d.paragraph("Why no verdict:");
         d.bullets(reasons);
@@ -379,16 +389,16 @@ void add_finding_sections(Document& d, const json& f, bool full) {
     d.bullets(next_steps(verdict, agreement));
     d.blocks.push_back(cautions_block());
     if (!full) return;
-    const json plots = f.contains("plots") ? f["plots"] : json::object();
+    const json plots = f.contains("plots") ? field(f, "plots") : json::object();
     d.heading("Evidence");
-    if (plots.contains("spectrum") && plots["spectrum"].contains("center_hz"))
-        d.blocks.push_back(doc::figures_block({spectrum_figure(plots["spectrum"], "Spectrum against the baseline",
+    if (plots.contains("spectrum") && field(plots, "spectrum").contains("center_hz"))
+        d.blocks.push_back(doc::figures_block({spectrum_figure(field(plots, "spectrum"), "Spectrum against the baseline",
                                              "Power spectral density of this recording (mean over its 1 s segments) "
                                              "against the baseline's median and the 10-90 % range of its segments; "
                                              "the shaded band is the HF band the verdict is judged on.")}));
     if (plots.contains("envelope_spectrum") && plots.contains("kurtogram")) {
-        d.blocks.push_back(doc::figures_block({envelope_figure(plots["envelope_spectrum"])}));
-        d.blocks.push_back(doc::figures_block({kurtogram_figure(plots["kurtogram"])}));
+        d.blocks.push_back(doc::figures_block({envelope_figure(field(plots, "envelope_spectrum"))}));
+        d.blocks.push_back(doc::figures_block({kurtogram_figure(field(plots, "kurtogram"))}));
     }
     Block tb = doc::make(Kind::table);
     tb.table = indicator_table(f);
@@ -396,7 +406,7 @@ void add_finding_sections(Document& d, const json& f, bool full) {
                 "(1.4826 x MAD), the change, and the threshold the verdict uses.");
     d.blocks.push_back(tb);
     const auto others = strs(f, "other_findings");
-    const auto warnings = strs(f["quality"], "warnings");
+    const auto warnings = strs(field(f, "quality"), "warnings");
     if (!others.empty()) {
         d.paragraph("Other findings (look-alikes that do not change the verdict):");
         d.bullets(others);
@@ -405,20 +415,20 @@ void add_finding_sections(Document& d, const json& f, bool full) {
         d.paragraph("What lowered the confidence:");
         d.bullets(warnings);
     }
-    const auto base_warnings = f.contains("baseline_warnings") && f["baseline_warnings"].is_array() ? f["baseline_warnings"]
+    const auto base_warnings = f.contains("baseline_warnings") && field(f, "baseline_warnings").is_array() ? field(f, "baseline_warnings")
                                                                                                      : json::array();
     if (!base_warnings.empty()) {
         std::vector<std::string> lines;
         for (const auto& w : base_warnings)
-            if (w.is_object() && w.contains("message") && w["message"].is_string()) lines.push_back(w["message"]);
+            if (w.is_object() && w.contains("message") && field(w, "message").is_string()) lines.push_back(field(w, "message"));
         d.paragraph("The baseline itself carries warnings (every reading against it is less sure):");
         d.bullets(lines);
     }
 }
 
 std::vector<Field> finding_provenance(const json& f) {
-    const json& in = f["input"];
-    const json& b = f["baseline"];
+    const json& in = field(f, "input");
+    const json& b = field(f, "baseline");
     return {{"Recording", str(in, "path")},
             {"SHA-256", str(in, "sha256")},
             {"Format", str(in, "format") + ", " + fixed(num(in, "sample_rate_hz"), 0) + " Hz, " +
@@ -448,7 +458,7 @@ int rank(const std::string& verdict, const std::string& agreement) {
 
 Document finding_document(const json& f, const ReportOptions& o) {
     Document d;
-    const std::string machine = str(f["baseline"], "machine");
+    const std::string machine = str(field(f, "baseline"), "machine");
     d.title = "Cavitation finding" + (machine.empty() ? std::string() : " - " + (o.machine.empty() ? machine : o.machine));
     d.header = header_fields(o, machine, "", "");
     add_finding_sections(d, f, true);
@@ -456,13 +466,13 @@ Document finding_document(const json& f, const ReportOptions& o) {
     Block pv = doc::make(Kind::fields);
     pv.fields = finding_provenance(f);
     d.blocks.push_back(pv);
-    d.footer = "cavitas finding report. Generated from " + str(f["input"], "path") + ".";
+    d.footer = "cavitas finding report. Generated from " + str(field(f, "input"), "path") + ".";
     return d;
 }
 
 Document compare_document(const json& c, const ReportOptions& o) {
     Document d;
-    const std::string machine = str(c["baseline"], "machine");
+    const std::string machine = str(field(c, "baseline"), "machine");
     d.title = "Before and after" + (machine.empty() ? std::string() : " - " + (o.machine.empty() ? machine : o.machine));
     d.header = header_fields(o, machine, "", "");
     const std::string change = str(c, "change");
@@ -470,7 +480,7 @@ Document compare_document(const json& c, const ReportOptions& o) {
     const std::string head = change == "improved" ? "Improved: the change worked"
                              : change == "worse"  ? "Worse after the change"
                                                   : "No significant change";
-    const json hf = c["indicators"].is_array() && !c["indicators"].empty() ? c["indicators"][0] : json::object();
+    const json hf = field(c, "indicators").is_array() && !field(c, "indicators").empty() ? field(c, "indicators")[0] : json::object();
     d.blocks.push_back(verdict_block(colour, head,
                                      "HF band level " + signed_fixed(num(hf, "shift"), 1) + " dB (95 % interval " +
                                          signed_fixed(num(hf, "ci_low"), 1) + " .. " + signed_fixed(num(hf, "ci_high"), 1) +
@@ -500,8 +510,8 @@ Document compare_document(const json& c, const ReportOptions& o) {
     ind.header = {"indicator", "before", "after", "change [95 % interval]", "p", "Cliff's delta"};
     ind.widths = {2.2, 1.0, 1.0, 2.2, 0.8, 0.9};
     ind.numeric = {false, true, true, true, true, true};
-    if (c["indicators"].is_array())
-        for (const auto& i : c["indicators"])
+    if (field(c, "indicators").is_array())
+        for (const auto& i : field(c, "indicators"))
             ind.rows.push_back({str(i, "key"), fixed(num(i, "before_median"), 3), fixed(num(i, "after_median"), 3),
                                 signed_fixed(num(i, "shift"), 3) + " [" + signed_fixed(num(i, "ci_low"), 3) + ", " +
                                     signed_fixed(num(i, "ci_high"), 3) + "]",
@@ -511,7 +521,7 @@ Document compare_document(const json& c, const ReportOptions& o) {
     d.paragraph("Medians over the 1 s segments of each side; the change is the Hodges-Lehmann shift with its 95 % "
                 "interval, p from the two-sided Mann-Whitney U test, Cliff's delta the effect size (-1 .. 1).");
     d.blocks.push_back(ib);
-    const json plots = c.contains("plots") ? c["plots"] : json::object();
+    const json plots = c.contains("plots") ? field(c, "plots") : json::object();
     if (plots.contains("center_hz")) {
         Figure sp;
         sp.caption = "Spectra before and after (mean over each side's segments) against the baseline's median and "
@@ -549,7 +559,7 @@ Document compare_document(const json& c, const ReportOptions& o) {
         seg.aspect = 0.75;
         seg.width_pt = 320.0;
         seg.draw = [plots](cairo_t* cr, double w, double h) {
-            const auto b = nums(plots["hf_segments_db"], "before"), a = nums(plots["hf_segments_db"], "after");
+            const auto b = nums(field(plots, "hf_segments_db"), "before"), a = nums(field(plots, "hf_segments_db"), "after");
             plot::Chart ch;
             ch.title = "HF level of each segment";
             double lo = 1e9, hi = -1e9;
@@ -603,9 +613,9 @@ Document compare_document(const json& c, const ReportOptions& o) {
     d.blocks.push_back(cautions_block());
     d.heading("Where this comes from");
     Block pv = doc::make(Kind::fields);
-    pv.fields = {{"Baseline", str(c["baseline"], "path")},
+    pv.fields = {{"Baseline", str(field(c, "baseline"), "path")},
                  {"Compared", str(c, "created_utc") + " by cavitas " + str(c, "cavitas_version")},
-                 {"Method", str(c["method"], "test")},
+                 {"Method", str(field(c, "method"), "test")},
                  {"Report", utc_now() + " by cavitas " + std::string(kVersion)}};
     for (const char* side : {"before", "after"})
         if (c.contains(side) && c[side].is_array())
@@ -750,14 +760,14 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
         const json f = read_json_file((fs::path(folder) / r->finding).string(), "finding file");
         d.blocks.push_back(doc::make(Kind::page_break));
         d.heading("Evidence: " + r->machine + " " + r->point + ", " + r->datetime.substr(0, 16));
-        const json plots = f.contains("plots") ? f["plots"] : json::object();
+        const json plots = f.contains("plots") ? field(f, "plots") : json::object();
         d.bullets(strs(f, "evidence"));
-        if (plots.contains("spectrum") && plots["spectrum"].contains("center_hz"))
-            d.blocks.push_back(doc::figures_block({spectrum_figure(plots["spectrum"], "Spectrum against the baseline",
+        if (plots.contains("spectrum") && field(plots, "spectrum").contains("center_hz"))
+            d.blocks.push_back(doc::figures_block({spectrum_figure(field(plots, "spectrum"), "Spectrum against the baseline",
                                                  "This recording against its point's baseline; the shaded band is the "
                                                  "HF band judged.")}));
         if (plots.contains("envelope_spectrum"))
-            d.blocks.push_back(doc::figures_block({envelope_figure(plots["envelope_spectrum"])}));
+            d.blocks.push_back(doc::figures_block({envelope_figure(field(plots, "envelope_spectrum"))}));
     }
     d.heading("Where this comes from");
     Block pv = doc::make(Kind::fields);
@@ -780,6 +790,111 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     return d;
 }
 
+namespace {
+
+// ---- what a report reads, checked before anything is drawn -----------------------------
+// A finding or a comparison may have been edited or cut short: every field the
+// report reads is checked for its type, every array for its length against its
+// partner and a limit, every frequency for being finite and positive, and the
+// first problem is named with the file and the field.
+
+constexpr std::size_t kMaxPlotPoints = 65536;   // more than any analysis writes (our limit)
+constexpr std::size_t kMaxKurtogramRows = 64;
+
+[[noreturn]] void bad(const std::string& origin, const std::string& field_name, const std::string& problem) {
+    throw InputError(origin + ": field '" + field_name + "' " + problem);
+}
+
+std::size_t number_array(const json& j, const char* key, const std::string& origin, const std::string& where,
+                         bool positive = false, bool required = true) {
+    const json& a = field(j, key);
+    const std::string name = where + "." + key;
+    if (a.is_null() && !required) return 0;
+    if (!a.is_array()) bad(origin, name, "is missing or not an array");
+    if (a.size() > kMaxPlotPoints) bad(origin, name, "has " + std::to_string(a.size()) + " values (at most 65536)");
+    for (const auto& x : a) {
+        if (!x.is_number() || !std::isfinite(x.get<double>())) bad(origin, name, "holds a value that is not a finite number");
+        if (positive && !(x.get<double>() > 0.0)) bad(origin, name, "holds a frequency that is not above 0 Hz");
+    }
+    return a.size();
+}
+
+// m values for n frequencies; an optional array may be absent (m = 0), a required one may not.
+void same_length(std::size_t n, std::size_t m, const std::string& origin, const std::string& name,
+                 bool required = false) {
+    if ((required || m != 0) && m != n) bad(origin, name, "has " + std::to_string(m) + " values for " + std::to_string(n) + " frequencies");
+}
+
+void check_sentences(const json& j, const char* key, const std::string& origin) {
+    const json& a = field(j, key);
+    if (!a.is_array()) bad(origin, key, "is missing or not an array of sentences");
+    for (const auto& x : a)
+        if (!x.is_string()) bad(origin, key, "holds an entry that is not text");
+}
+
+const json& checked_finding(const json& f, const std::string& origin) {
+    static const std::set<std::string> verdicts{"normal", "incipient", "developed", "indeterminate"};
+    if (!field(f, "verdict").is_string() || !verdicts.count(field(f, "verdict").get<std::string>()))
+        bad(origin, "verdict", "is missing or not one of normal, incipient, developed, indeterminate");
+    for (const char* k : {"evidence", "other_findings", "cautions"}) check_sentences(f, k, origin);
+    if (!field(field(f, "input"), "path").is_string()) bad(origin, "input.path", "is missing or not text");
+    if (!field(f, "quality").is_object()) bad(origin, "quality", "is missing or not an object");
+    const json& plots = field(f, "plots");
+    if (plots.is_null()) return f;
+    if (!plots.is_object()) bad(origin, "plots", "is not an object");
+    const json& sp = field(plots, "spectrum");
+    if (sp.is_object() && sp.contains("center_hz")) {
+        const std::size_t n = number_array(sp, "center_hz", origin, "plots.spectrum", true);
+        same_length(n, number_array(sp, "level_db", origin, "plots.spectrum"), origin, "plots.spectrum.level_db", true);
+        for (const char* k : {"p10_db", "p90_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"})
+            same_length(n, number_array(sp, k, origin, "plots.spectrum", false, false), origin,
+                        std::string("plots.spectrum.") + k);
+    }
+    const json& es = field(plots, "envelope_spectrum");
+    if (es.is_object()) {
+        const std::size_t n = number_array(es, "amplitude", origin, "plots.envelope_spectrum");
+        const double bin = num(es, "bin_hz", -1.0);
+        if (n > 0 && !(bin > 0.0 && std::isfinite(bin)))
+            bad(origin, "plots.envelope_spectrum.bin_hz", "is not a positive number");
+    }
+    const json& rows = field(field(plots, "kurtogram"), "rows");
+    if (!rows.is_null()) {
+        if (!rows.is_array() || rows.size() > kMaxKurtogramRows)
+            bad(origin, "plots.kurtogram.rows", "is not an array of at most 64 rows");
+        for (const auto& row : rows) {
+            if (!row.is_object()) bad(origin, "plots.kurtogram.rows", "holds a row that is not an object");
+            number_array(row, "mean", origin, "plots.kurtogram.rows[]");
+            if (!(num(row, "bandwidth_hz", -1.0) > 0.0)) bad(origin, "plots.kurtogram.rows[].bandwidth_hz", "is not above 0 Hz");
+        }
+    }
+    return f;
+}
+
+const json& checked_comparison(const json& c, const std::string& origin) {
+    static const std::set<std::string> changes{"improved", "unchanged", "worse"};
+    if (!field(c, "change").is_string() || !changes.count(field(c, "change").get<std::string>()))
+        bad(origin, "change", "is missing or not one of improved, unchanged, worse");
+    if (!field(c, "indicators").is_array() || field(c, "indicators").empty())
+        bad(origin, "indicators", "is missing or empty");
+    for (const auto& i : field(c, "indicators"))
+        if (!i.is_object()) bad(origin, "indicators", "holds an entry that is not an object");
+    check_sentences(c, "evidence", origin);
+    const json& plots = field(c, "plots");
+    if (plots.is_object() && plots.contains("center_hz")) {
+        const std::size_t n = number_array(plots, "center_hz", origin, "plots", true);
+        for (const char* k : {"before_db", "after_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"})
+            same_length(n, number_array(plots, k, origin, "plots", false, false), origin, std::string("plots.") + k);
+        const json& seg = field(plots, "hf_segments_db");
+        if (seg.is_object()) {
+            number_array(seg, "before", origin, "plots.hf_segments_db");
+            number_array(seg, "after", origin, "plots.hf_segments_db");
+        }
+    }
+    return c;
+}
+
+}  // namespace
+
 void render_report(const ReportOptions& o, std::ostream& out) {
     if (!o.html && !o.pdf) throw UsageError("report: give --html OUT.html, --pdf OUT.pdf or both");
     if (o.paper != "a4" && o.paper != "letter") throw UsageError("--paper '" + o.paper + "': use a4 or letter");
@@ -799,8 +914,8 @@ void render_report(const ReportOptions& o, std::ostream& out) {
     } else {
         const json j = read_json_file(o.input, "report input");
         const std::string schema = str(j, "schema");
-        if (schema.rfind("cavitas.finding/", 0) == 0) d = finding_document(j, o);
-        else if (schema.rfind("cavitas.compare/", 0) == 0) d = compare_document(j, o);
+        if (schema.rfind("cavitas.finding/", 0) == 0) d = finding_document(checked_finding(j, o.input), o);
+        else if (schema.rfind("cavitas.compare/", 0) == 0) d = compare_document(checked_comparison(j, o.input), o);
         else
             throw InputError(o.input + ": not a finding (analyze --json), a comparison (compare --json) or a route "
                              "output folder");

@@ -194,6 +194,15 @@ std::function<void()> edited_baseline(const std::string& name, std::function<voi
     };
 }
 
+// The control row's finding, edited as JSON (rows run in order; the control comes first).
+std::function<void()> edited_finding(const std::string& name, std::function<void(nlohmann::json&)> edit) {
+    return [=] {
+        nlohmann::json j = nlohmann::json::parse(slurp(at("ctl-finding.json")));
+        edit(j);
+        spit(at(name), j.dump());
+    };
+}
+
 // Several steps in order.
 std::function<void()> all(std::vector<std::function<void()>> steps) {
     return [steps] {
@@ -604,6 +613,30 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         // -o at a directory: spec silent, cavitas refuses with "it is a directory" (reasonable).
         {"-o pointing at a directory", [] { fs::create_directories(at("outdir")); },
          base_o + Q("outdir") + " " + Q("good1.wav"), 1, {"is a directory"}, "outdir", ""},
+
+        // --- report on a finding or comparison that was cut or edited: the field is named, nothing is
+        // drawn from it (before: a read past an array, a tick loop from INT_MIN, undefined behaviour).
+        {"report: a finding with nothing but its schema", text_file("f-min.json", R"({"schema":"cavitas.finding/1"})"),
+         "report " + Q("f-min.json") + " --html " + Q("r-min.html"), 1, {"verdict"}, "f-min.json", "r-min.html"},
+        {"report: a comparison with nothing but its schema", text_file("c-min.json", R"({"schema":"cavitas.compare/1"})"),
+         "report " + Q("c-min.json") + " --html " + Q("r-cmin.html"), 1, {"change"}, "c-min.json", "r-cmin.html"},
+        {"report: spectrum levels shorter than its frequencies",
+         edited_finding("f-short.json",
+                        [](nlohmann::json& j) { j["plots"]["spectrum"]["level_db"] = nlohmann::json::array({-40.0}); }),
+         "report " + Q("f-short.json") + " --html " + Q("r-short.html"), 1, {"level_db"}, "f-short.json", "r-short.html"},
+        {"report: an empty spectrum level array",
+         edited_finding("f-empty.json",
+                        [](nlohmann::json& j) { j["plots"]["spectrum"]["level_db"] = nlohmann::json::array(); }),
+         "report " + Q("f-empty.json") + " --html " + Q("r-empty.html"), 1, {"level_db"}, "f-empty.json", "r-empty.html"},
+        {"report: a zero frequency on the log axis",
+         edited_finding("f-zero.json", [](nlohmann::json& j) { j["plots"]["spectrum"]["center_hz"][0] = 0.0; }),
+         "report " + Q("f-zero.json") + " --html " + Q("r-zero.html"), 1, {"center_hz"}, "f-zero.json", "r-zero.html"},
+        {"report: a kurtogram row of 100 000 cells",
+         edited_finding("f-kg.json",
+                        [](nlohmann::json& j) {
+                            j["plots"]["kurtogram"]["rows"][0]["mean"] = std::vector<double>(100000, 1.0);
+                        }),
+         "report " + Q("f-kg.json") + " --html " + Q("r-kg.html"), 1, {"mean"}, "f-kg.json", "r-kg.html"},
 
         // --- usage errors (exit 2). The one-line rule is specified for exit 1 only; CLI11
         // adds a second line "Run with --help for more information.", which is adopted.
