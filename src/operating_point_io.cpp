@@ -160,7 +160,51 @@ OperatingPoint read_operating_point_file(const std::string& path) {
                                       fs::path(path).parent_path().string());
 }
 
+namespace {
+
+// An operating-point file is a flat table of strings. The TOML parser recurses
+// once per level of dotted keys and nested tables or arrays, so a file of deeply
+// nested keys would overflow the stack (80 KB of "a.a.a..." did): the nesting is
+// measured first, outside quotes and comments, and refused past these limits
+// (our choice; a sidecar needs depth 1).
+constexpr int kMaxKeyDots = 8, kMaxBrackets = 16;
+
+void refuse_deep_nesting(const std::string& text, const std::string& path) {
+    int line = 1, brackets = 0, dots = 0;
+    bool before_equals = true;
+    char quote = 0;
+    for (std::size_t i = 0; i < text.size(); ++i) {
+        const char c = text[i];
+        if (c == '\n') {
+            ++line;
+            dots = 0;
+            before_equals = true;
+            if (quote == '\'') quote = 0;  // a literal string ends at the line; others are caught by the parser
+            continue;
+        }
+        if (quote) {
+            if (c == '\\' && quote == '"') ++i;
+            else if (c == quote) quote = 0;
+            continue;
+        }
+        if (c == '"' || c == '\'') quote = c;
+        else if (c == '#') while (i + 1 < text.size() && text[i + 1] != '\n') ++i;
+        else if (c == '=') before_equals = false;
+        else if (c == '.' && before_equals && ++dots > kMaxKeyDots)
+            throw InputError(path + ":" + std::to_string(line) + ": a key nested more than " + std::to_string(kMaxKeyDots) +
+                             " levels deep; an operating-point file holds plain keys such as suction_pressure = \"35 kPa\"");
+        else if ((c == '[' || c == '{') && ++brackets > kMaxBrackets)
+            throw InputError(path + ":" + std::to_string(line) + ": tables or arrays nested more than " +
+                             std::to_string(kMaxBrackets) + " deep; an operating-point file holds plain keys");
+        else if ((c == ']' || c == '}') && brackets > 0)
+            --brackets;
+    }
+}
+
+}  // namespace
+
 OperatingPoint parse_operating_point_toml(const std::string& text, const std::string& path, const std::string& base_dir) {
+    refuse_deep_nesting(text, path);
     toml::table table;
     try {
         table = toml::parse(text, path);

@@ -638,6 +638,21 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
                         }),
          "report " + Q("f-kg.json") + " --html " + Q("r-kg.html"), 1, {"mean"}, "f-kg.json", "r-kg.html"},
 
+        // --- a sidecar of deeply nested keys or brackets: refused before the TOML parser recurses
+        // (before: the stack overflowed, exit 139, and a route died with it).
+        {"sidecar: 40 000 dotted key levels",
+         all({copy_of("today.wav", "deep1.wav"), text_file("deep1.op.toml", [] {
+                  std::string t;
+                  for (int i = 0; i < 40000; ++i) t += "a.";
+                  return t + "b = \"1\"\n";
+              }())}),
+         judge + good + " --json " + Q("j-deep1.json") + " " + Q("deep1.wav"), 1, {"nested"}, "deep1.op.toml",
+         "j-deep1.json"},
+        {"sidecar: 5 000 nested arrays",
+         all({copy_of("today.wav", "deep2.wav"), text_file("deep2.op.toml", "x = " + std::string(5000, '[') + "\n")}),
+         judge + good + " --json " + Q("j-deep2.json") + " " + Q("deep2.wav"), 1, {"nested"}, "deep2.op.toml",
+         "j-deep2.json"},
+
         // --- usage errors (exit 2). The one-line rule is specified for exit 1 only; CLI11
         // adds a second line "Run with --help for more information.", which is adopted.
         // No arguments at all.
