@@ -19,7 +19,8 @@ struct CsvRecord {
 std::vector<CsvRecord> parse_csv(const std::string& text, const std::string& name);
 
 /// One field as CSV: quoted when it holds a comma, quote, CR or LF, or has
-/// leading or trailing spaces.
+/// leading or trailing spaces; a text cell a spreadsheet would run as a formula
+/// (first character = + - @ TAB CR LF, and not a plain number) gets a leading '.
 std::string csv_field(const std::string& s);
 /// A record from fields, ending in "\n".
 std::string csv_line(const std::vector<std::string>& fields);

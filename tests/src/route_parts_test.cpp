@@ -51,6 +51,19 @@ TEST_CASE("CSV as RFC 4180 writes it", "[src][route]") {
     CHECK(parse_csv(csv_line(tricky), "w.csv").front().fields == tricky);
 }
 
+TEST_CASE("CSV cells a spreadsheet would run are written as text, numbers stay numbers", "[src][route]") {
+    // OWASP CSV injection (methods review A9, [S]): prefix ', double embedded quotes, quote the field.
+    CHECK(csv_field("=1+2\";=1+2") == "\"'=1+2\"\";=1+2\"");
+    CHECK(csv_field("=1+2'\" ;,=1+2") == "\"'=1+2'\"\" ;,=1+2\"");
+    CHECK(csv_field("@SUM(1+1)") == "'@SUM(1+1)");
+    CHECK(csv_field("+HYPERLINK(x)") == "'+HYPERLINK(x)");
+    CHECK(csv_field("-cmd") == "'-cmd");
+    CHECK(csv_field("\tx") == "'\tx");
+    CHECK(csv_field("-inf") == "'-inf");
+    // Numbers as cavitas writes them are left alone.
+    for (const char* n : {"-3.2", "+0.5", "-12", "1e-05", "-2.5E+3", "0"}) CHECK(csv_field(n) == n);
+}
+
 TEST_CASE("ISO 8601 dates and times", "[src][route]") {
     // Days since 1970-01-01: 2026-11-02 is day 20759 (Python's datetime:
     // (date(2026, 11, 2) - date(1970, 1, 1)).days).
