@@ -263,8 +263,18 @@ LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Ca
     models::RecordingContext ctx;
     ctx.unit = cal.unit;
     ctx.channel = o.channel;
-    const auto reasons = models::assess_quality(r.analysis, self, ctx).reasons();
-    if (!reasons.empty()) throw InputError(path + ": cannot serve as a baseline: " + reasons.front());
+    // The speed is the exception: a baseline may be learned without one (its
+    // findings then need a speed given or confirmed against it).
+    for (const auto& c : models::assess_quality(r.analysis, self, ctx).checks)
+        if (c.status == models::CheckStatus::fail && c.name != "speed_confirmed")
+            throw InputError(path + ": cannot serve as a baseline: " + c.message);
+    // A speed the spectrum could not confirm is not the baseline's: it stays unknown.
+    if (r.analysis.rpm_estimated && !r.analysis.speed_confirmed) {
+        err << path << ": shaft speed could not be confirmed from the spectrum (" << r.analysis.speed_how
+            << "); the baseline keeps no speed for it: give --rpm\n";
+        r.analysis.rpm = 0.0;
+        r.analysis.rpm_estimated = false;
+    }
     if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
     if (index < o.expected_sha256.size() && o.expected_sha256[index] != r.sha256)
         throw InputError(path + ": changed since the results store recorded it (SHA-256 " + r.sha256.substr(0, 12) +

@@ -243,23 +243,37 @@ void SndfileSource::adopt(void* handle, const SF_INFO& sfi, int channel) {
     if (sfi.channels <= 0 || sfi.channels > 1024)
         fail(std::to_string(sfi.channels) + " channels in the header is not valid (1..1024 accepted)");
     if (sfi.frames <= 0) fail("holds no samples");
-    // A sample chunk that promises more bytes than the file holds means the file
-    // was cut short (an interrupted copy or recording): libsndfile would quietly
-    // read what is there. The placeholders 0 and 0xFFFFFFFF of streamed files
-    // ("length unknown") are not a promise and pass. libsndfile's parse log says
-    // "data : CLAIMED (should be PRESENT)" (WAV) or "SSND : ..." (AIFF).
+    // A header that promises more than the file holds means the file was cut
+    // short (an interrupted copy or recording): libsndfile quietly reads what is
+    // there. Its parse log says so for every container it reads, in one of two
+    // forms: "LABEL : CLAIMED (should be PRESENT)" (WAV data, AIFF SSND, W64 and
+    // RF64 riff sizes, AU data size) and, for RF64, "Calculated frame count
+    // PRESENT does not match value from 'ds64' chunk of CLAIMED". The
+    // placeholders 0 and 0xFFFFFFFF of streamed files ("length unknown") are not
+    // a promise and pass; a file longer than promised (trailing chunks) passes.
     {
         char log[8192] = {0};
         sf_command(f, SFC_GET_LOG_INFO, log, sizeof log - 1);
-        for (const char* tag : {"data : ", "SSND : "}) {
-            const char* at = std::strstr(log, tag);
-            if (!at) continue;
+        std::istringstream lines(log);
+        for (std::string line; std::getline(lines, line);) {
             unsigned long long claimed = 0, present = 0;
-            if (std::sscanf(at + std::strlen(tag), "%llu (should be %llu)", &claimed, &present) == 2 &&
-                present < claimed && claimed != 0xFFFFFFFFull && claimed != 0)
-                fail("the header promises " + std::to_string(claimed) + " bytes of samples but the file holds " +
-                     std::to_string(present) + ": the file was cut short (interrupted copy or recording); copy it "
-                     "again from the collector");
+            const auto colon = line.find(" : "), should = line.find("(should be ");
+            bool cut = false;
+            if (colon != std::string::npos && should != std::string::npos && should > colon &&
+                std::sscanf(line.c_str() + colon + 3, "%llu", &claimed) == 1 &&
+                std::sscanf(line.c_str() + should + 11, "%llu", &present) == 1)
+                cut = present < claimed && claimed != 0xFFFFFFFFull && claimed != 0;
+            else if (std::sscanf(line.c_str(), "*** Calculated frame count %llu does not match value from 'ds64' chunk of %llu",
+                                 &present, &claimed) == 2)
+                cut = present < claimed;
+            if (!cut) continue;
+            std::string label = colon != std::string::npos && line.rfind("***", 0) != 0 ? line.substr(0, colon)
+                                                                                        : std::string("ds64 frame count");
+            label.erase(0, label.find_first_not_of(' '));
+            label.erase(label.find_last_not_of(' ') + 1);
+            fail("its header promises " + std::to_string(claimed) + " (" + label + ") but the file holds " +
+                 std::to_string(present) + ": the file was cut short (interrupted copy or recording); copy it again "
+                 "from the collector");
         }
     }
     if (channel < 0 || channel >= sfi.channels)

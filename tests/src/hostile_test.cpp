@@ -203,6 +203,23 @@ std::function<void()> edited_finding(const std::string& name, std::function<void
     };
 }
 
+// A 4 s recording in another container libsndfile writes (RF64, W64, AU), cut to 45 % of its bytes.
+std::function<void()> cut_container(const std::string& name, int format) {
+    return [=] {
+        SF_INFO info{};
+        info.samplerate = kRate;
+        info.channels = 1;
+        info.format = format | SF_FORMAT_PCM_16;
+        SNDFILE* f = sf_open(at(name).c_str(), SFM_WRITE, &info);
+        REQUIRE(f != nullptr);
+        std::vector<float> x(static_cast<std::size_t>(kRate) * kSeconds);
+        for (std::size_t i = 0; i < x.size(); ++i) x[i] = static_cast<float>(0.1 * std::sin(0.01 * static_cast<double>(i)));
+        sf_writef_float(f, x.data(), static_cast<sf_count_t>(x.size()));
+        sf_close(f);
+        fs::resize_file(at(name), fs::file_size(at(name)) * 45 / 100);
+    };
+}
+
 // Several steps in order.
 std::function<void()> all(std::vector<std::function<void()>> steps) {
     return [steps] {
@@ -317,6 +334,17 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          text_file("cut3s.wav", wav_bytes().substr(0, chunk_body(wav_bytes(), "data") + 6 * kRate)),
          judge + good + " --json " + Q("j-cut3s.json") + " " + Q("cut3s.wav"), 1, {"cut short"}, "cut3s.wav",
          "j-cut3s.json"},
+
+        // Other containers cut short: each says so in its own header field (libsndfile's log), and each is
+        // refused as the WAV is (before: analysed as a short recording, a verdict, exit 0).
+        {"RF64 cut to 45 %", cut_container("cut.rf64", SF_FORMAT_RF64),
+         judge + good + " --json " + Q("j-cut-rf64.json") + " " + Q("cut.rf64"), 1, {"cut short"}, "cut.rf64",
+         "j-cut-rf64.json"},
+        {"W64 cut to 45 %", cut_container("cut.w64", SF_FORMAT_W64),
+         judge + good + " --json " + Q("j-cut-w64.json") + " " + Q("cut.w64"), 1, {"cut short"}, "cut.w64",
+         "j-cut-w64.json"},
+        {"AU cut to 45 %", cut_container("cut.au", SF_FORMAT_AU),
+         judge + good + " --json " + Q("j-cut-au.json") + " " + Q("cut.au"), 1, {"cut short"}, "cut.au", "j-cut-au.json"},
 
         // --- an encoding nobody supports -----------------------------------------------
         // An unknown fmt format tag: libsndfile must refuse, not guess PCM.
