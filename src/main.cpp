@@ -8,6 +8,7 @@
 #include <cstdlib>
 
 #include <iostream>
+#include <sstream>
 
 #include "src/commands.hpp"
 #include "src/errors.hpp"
@@ -19,6 +20,21 @@
 using namespace cavitas::app;
 
 namespace {
+
+// A number typed by a person is decimal: CLI11 would read "nan", "inf" and
+// "0x10" as numbers (and NaN passes every range check), so each comma-separated
+// value must be digits, a point, a sign and an exponent only.
+const CLI::Validator kDecimal(
+    [](std::string& text) -> std::string {
+        std::stringstream ss(text);
+        for (std::string v; std::getline(ss, v, ',');) {
+            if (v.empty() || v.find_first_not_of("+-0123456789.eE") != std::string::npos)
+                return "'" + v + "' is not a decimal number";
+        }
+        return {};
+    },
+    "DECIMAL");
+
 
 const char* kIntro =
     "cavitas - cavitation finder for pumps and hydro turbines.\n"
@@ -176,7 +192,7 @@ int main(int argc, char** argv) {
                      "separated (--rpm 714,1011,1208 for a variable-speed pump); without it each recording's sidecar "
                      "speed, else the speed estimated from the spectrum")
         ->delimiter(',')
-        ->check(CLI::Range(1.0, 100000.0));
+        ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     base->add_option("--vanes", bo.vanes, "Impeller vanes (runner blades): blade-pass frequency = vanes x rpm / 60")
         ->check(CLI::Range(0, 200));
     base->add_option("--channel", bo.channel, "Channel to read from multichannel files, from 0")->check(CLI::NonNegativeNumber);
@@ -185,14 +201,14 @@ int main(int argc, char** argv) {
                      "levels stay in full-scale units (FS). Analyses use the baseline's calibration.");
     base->add_option("--sensor-max-hz", bo.sensor_max_hz,
                      "Usable top frequency of the sensor as mounted; the HF band stops there")
-        ->check(CLI::Range(100.0, 1.0e6));
+        ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
     base->add_option("--mount", bo.mount,
                      "Sensor mounting, caps the HF band: handheld (2 kHz), magnet (5 kHz), adhesive (6 kHz), stud (7 kHz)")
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
     base->add_option("--segment", bo.segment_s,
                      "Analysis segment length, s (default 1); later analyses use it too, shorter only for short "
                      "captures")
-        ->check(CLI::Range(0.25, 10.0));
+        ->check(kDecimal)->check(CLI::Range(0.25, 10.0));
     add_operating_point_flags(base, bo.operating, true);
 
     AnalyzeOptions ao;
@@ -208,7 +224,7 @@ int main(int argc, char** argv) {
     an->add_option("--rpm", ao.rpm,
                    "Shaft speed during this recording, rpm (may differ from the baseline's by a few percent: "
                    "lines are compared in orders); without it the speed is estimated near the baseline's")
-        ->check(CLI::Range(1.0, 100000.0));
+        ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     an->add_option("--vanes", ao.vanes, "Impeller vanes (default: the baseline's)")->check(CLI::Range(0, 200));
     an->add_option("--channel", ao.channel, "Channel to read, from 0")->check(CLI::NonNegativeNumber);
     an->add_option("--full-scale", ao.full_scale, "Calibration of this file if it differs in form from the "
@@ -217,7 +233,7 @@ int main(int argc, char** argv) {
     an->add_option("--sensor-max-hz", ao.sensor_max_hz,
                    "Usable top frequency of the sensor as mounted for this recording; the verdict is indeterminate "
                    "when the baseline's HF band reaches above it")
-        ->check(CLI::Range(100.0, 1.0e6));
+        ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
     an->add_option("--mount", ao.mount, "Sensor mounting for this recording: handheld, magnet, adhesive or stud (see baseline --help)")
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
     add_operating_point_flags(an, ao.operating, true);
@@ -289,7 +305,7 @@ int main(int argc, char** argv) {
     cp->add_option("--after", co.after, "Recordings after the change")->required()->type_name("REC...");
     cp->add_option("--machine", co.machine, "Machine tag; refused when the baseline names another");
     cp->add_option("--rpm", co.rpm, "Shaft speed of all the recordings, rpm (default: each one's sidecar, else estimated)")
-        ->check(CLI::Range(1.0, 100000.0));
+        ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     cp->add_option("--vanes", co.vanes, "Impeller vanes (default: the baseline's)")->check(CLI::Range(0, 200));
     cp->add_option("--channel", co.channel, "Channel to read, from 0")->check(CLI::NonNegativeNumber);
     cp->add_option("--json", co.json_output, "Write the comparison as JSON")->type_name("FILE");

@@ -5,11 +5,24 @@
 #include <cmath>
 #include <cstdlib>
 #include <stdexcept>
+#include <cstring>
 #include <string_view>
 
 #include "src/errors.hpp"
 
 namespace cavitas::app {
+
+namespace {
+// strtod also reads hexadecimal ("0x10" = 16), "inf" and "nan": a number typed
+// by a person is decimal, so what strtod consumed must be digits, a point, a
+// sign and an exponent only.
+bool plain_decimal(const char* begin, const char* end) {
+    if (end == begin) return false;
+    for (const char* c = begin; c != end; ++c)
+        if (!std::strchr("+-0123456789.eE", *c)) return false;
+    return true;
+}
+}  // namespace
 
 Calibration parse_full_scale(const std::string& text) {
     const char* s = text.c_str();
@@ -17,8 +30,9 @@ Calibration parse_full_scale(const std::string& text) {
     const double v = std::strtod(s, &end);
     std::string unit = end ? std::string(end) : std::string();
     while (!unit.empty() && unit.front() == ' ') unit.erase(unit.begin());
-    if (end == s || !std::isfinite(v) || !(v > 0.0))
-        throw UsageError("--full-scale '" + text + "': expected a positive number followed by a unit, e.g. 50g, 500m/s2, 2000Pa");
+    if (!plain_decimal(s, end) || !std::isfinite(v) || !(v > 0.0))
+        throw UsageError("--full-scale '" + text + "': expected a positive decimal number followed by a unit, e.g. 50g, "
+                         "500m/s2, 2000Pa");
     Calibration c;
     c.full_scale = v;
     if (unit == "g" || unit == "G") {
@@ -153,8 +167,8 @@ Split split(const std::string& text, Quantity q) {
     const char* s = t.c_str();
     char* end = nullptr;
     const double v = std::strtod(s, &end);
-    if (end == s)
-        throw std::invalid_argument(quoted + ": expected a number followed by a unit (" + accepted_units(q) + ")");
+    if (!plain_decimal(s, end))
+        throw std::invalid_argument(quoted + ": expected a decimal number followed by a unit (" + accepted_units(q) + ")");
     if (!std::isfinite(v)) throw std::invalid_argument(quoted + ": the number is not finite");
     const std::string unit = normalise(std::string(end));
     if (unit.empty())

@@ -338,7 +338,8 @@ TEST_CASE("npsh: bad values are usage errors naming the flag and the problem", "
     const std::vector<Case> cases = {
         {"--suction-pressure 35furlongs --temperature 20C", "unknown pressure unit 'furlongs'"},
         {"--suction-pressure 35 --temperature 20C", "no unit"},
-        {"--suction-pressure kPa --temperature 20C", "expected a number"},
+        {"--suction-pressure kPa --temperature 20C", "expected a decimal number"},
+        {"--suction-pressure 0x10kPa --temperature 20C", "expected a decimal number"},
         {"--suction-pressure 35kPa --temperature 20Q", "unknown temperature unit"},
         {"--suction-pressure 35kPa --temperature 20C --flow 3furlongs/h --bore 150mm", "--flow"},
         {"--suction-pressure -1.2bar --temperature 20C", "below -1 atm"},

@@ -690,6 +690,12 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         // A negative speed: must not be read as an option nor accepted.
         {"--rpm -5", nothing, "baseline --rpm -5 -o " + Q("u-rpm.json") + " " + Q("good1.wav"), 2, {"--rpm"}, "",
          "u-rpm.json"},
+        // "nan" and hexadecimal are numbers to the parsers underneath, not to a person (before: --rpm nan
+        // was taken as "not given").
+        {"--rpm nan", nothing, judge.substr(0, judge.find("--rpm")) + "--rpm nan --baseline " + good + " " + today, 2,
+         {"--rpm"}, "", ""},
+        {"--rpm 0x5CD", nothing, "baseline --rpm 0x5CD -o " + Q("u-hex.json") + " " + Q("good1.wav"), 2, {"--rpm"}, "",
+         "u-hex.json"},
         // A unit nobody knows: levels would be silently mis-scaled.
         {"--full-scale 50furlongs", nothing,
          "baseline --full-scale 50furlongs -o " + Q("u-fs.json") + " " + Q("good1.wav"), 2, {"furlongs"}, "",

@@ -86,11 +86,15 @@ TEST_CASE("Unknown units, missing values and bare numbers are refused with words
     CHECK_THROWS_WITH(parse_quantity("60X", Quantity::temperature), Contains("unknown temperature unit 'X'"));
     CHECK_THROWS_WITH(parse_quantity("120 m3/day", Quantity::flow), Contains("gpm"));
     CHECK_THROWS_WITH(parse_quantity("35", Quantity::pressure), Contains("no unit"));
-    CHECK_THROWS_WITH(parse_quantity("kPa", Quantity::pressure), Contains("expected a number"));
+    CHECK_THROWS_WITH(parse_quantity("kPa", Quantity::pressure), Contains("expected a decimal number"));
+    // strtod would read these as 16 and infinity: a person types decimals.
+    CHECK_THROWS_WITH(parse_quantity("0x10kPa", Quantity::pressure), Contains("expected a decimal number"));
+    CHECK_THROWS_WITH(parse_quantity("infC", Quantity::temperature), Contains("expected a decimal number"));
+    CHECK_THROWS_AS(parse_full_scale("0x32g"), UsageError);
     CHECK_THROWS_WITH(parse_quantity("", Quantity::flow), Contains("no value"));
     CHECK_THROWS_WITH(parse_quantity("   ", Quantity::length), Contains("no value"));
-    CHECK_THROWS_WITH(parse_quantity("nan kPa", Quantity::pressure), Contains("not finite"));
-    CHECK_THROWS_WITH(parse_quantity("inf m", Quantity::length), Contains("not finite"));
+    CHECK_THROWS_WITH(parse_quantity("nan kPa", Quantity::pressure), Contains("expected a decimal number"));
+    CHECK_THROWS_WITH(parse_quantity("inf m", Quantity::length), Contains("expected a decimal number"));
     CHECK_THROWS_WITH(parse_quantity("-300C", Quantity::temperature), Contains("absolute zero"));
     CHECK_THROWS_AS(parse_quantity("35kPa", Quantity::length), std::invalid_argument);  // a pressure is not a length
 }
