@@ -385,6 +385,13 @@ double amplitude_prominence_db(std::span<const double> spec, long k, long half, 
 
 }  // namespace
 
+double envelope_line_floor_hz(double bin_hz, double hz) { return std::max(10.0 * bin_hz, 0.1 * hz); }
+
+dsp::LineMeasure envelope_line(std::span<const double> ses, double bin_hz, double hz, bool speed_estimated) {
+    const double rel = speed_estimated ? 0.01 : 0.005;
+    return dsp::measure_line(ses, bin_hz, hz, std::max(bin_hz, rel * hz), envelope_line_floor_hz(bin_hz, hz));
+}
+
 RecordingAnalysis RecordingAnalyzer::finish() {
     Impl& m = *impl_;
     m.clock.restart();
@@ -459,11 +466,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     auto set = [&](RI i, double v) { r.recording[static_cast<std::size_t>(i)] = v; };
     if (r.rpm > 0.0) {
         const double fr = shaft_hz(r.rpm);
-        // Search window: +-0.5 % (+-1 % when estimated), at least one bin.
-        const double rel = r.rpm_estimated ? 0.01 : 0.005;
-        auto line = [&](double f) {
-            return dsp::measure_line(ses, ses_bin, f, std::max(ses_bin, rel * f), std::max(10.0 * ses_bin, 0.1 * f));
-        };
+        auto line = [&](double f) { return envelope_line(ses, ses_bin, f, r.rpm_estimated); };
         const auto l1 = line(fr);
         set(RI::ses_1x_prominence_db, l1.prominence_db);
         set(RI::modulation_1x, mean_sq > 0.0 ? l1.amplitude / mean_sq : 0.0);

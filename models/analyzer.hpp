@@ -15,6 +15,7 @@
 #include <vector>
 
 #include "models/indicators.hpp"
+#include "signal/envelope.hpp"
 #include "signal/kurtogram.hpp"
 #include "signal/quality.hpp"
 
@@ -192,6 +193,13 @@ private:
     struct Impl;
     std::unique_ptr<Impl> impl_;
 };
+
+/// An envelope-spectrum line at hz, measured as every line of the analysis is:
+/// searched within +-0.5 % (+-1 % when the speed was estimated) and at least a
+/// bin, against the median floor of max(10 bins, 10 % of hz) around it.
+dsp::LineMeasure envelope_line(std::span<const double> ses, double bin_hz, double hz, bool speed_estimated);
+/// Its floor's half width, for callers that must know the spectrum reaches it.
+double envelope_line_floor_hz(double bin_hz, double hz);
 
 /// Median of a series (copy-free for callers; sorts a copy).
 double median(std::vector<double> v);

@@ -99,10 +99,11 @@ std::vector<double> Baseline::visit_levels_at_ref(SegmentIndicator i) const {
     return at_ref;
 }
 
-double Baseline::between_visit_sigma(SegmentIndicator i) const {
-    const std::vector<double> at_ref = visit_levels_at_ref(i);
-    return at_ref.size() < 2 ? 0.0 : robust_stat(at_ref).sigma;
-}
+namespace {
+double spread_between(const std::vector<double>& at_ref) { return at_ref.size() < 2 ? 0.0 : robust_stat(at_ref).sigma; }
+}  // namespace
+
+double Baseline::between_visit_sigma(SegmentIndicator i) const { return spread_between(visit_levels_at_ref(i)); }
 
 RobustStat Baseline::expected(SegmentIndicator i, double rpm_now) const {
     RobustStat s = (*this)[i];
@@ -126,7 +127,7 @@ RobustStat Baseline::expected(SegmentIndicator i, double rpm_now) const {
     s.median = level;
     s.p10 += offset;
     s.p90 += offset;
-    s.sigma = std::max({within, between_visit_sigma(i), repeatability_floor_db(mount)});
+    s.sigma = std::max({within, spread_between(levels), repeatability_floor_db(mount)});
     return s;
 }
 

@@ -7,7 +7,6 @@
 
 #include "models/machine.hpp"
 #include "models/text.hpp"
-#include "signal/envelope.hpp"
 
 namespace cavitas::models {
 
@@ -194,12 +193,9 @@ bool find_bearing_like(const RecordingAnalysis& a, double& order_out, double& hz
 std::optional<double> order_line_db(const RecordingAnalysis& a, int order) {
     if (a.rpm <= 0.0 || a.envelope_bin_hz <= 0.0) return std::nullopt;
     const double hz = order * shaft_hz(a.rpm);
-    const double floor_hz = std::max(10.0 * a.envelope_bin_hz, 0.1 * hz);
     const double top_hz = a.envelope_bin_hz * static_cast<double>(a.envelope_spectrum.size());
-    if (hz + floor_hz >= top_hz) return std::nullopt;
-    const double rel = a.rpm_estimated ? 0.01 : 0.005;
-    return dsp::measure_line(a.envelope_spectrum, a.envelope_bin_hz, hz, std::max(a.envelope_bin_hz, rel * hz), floor_hz)
-        .prominence_db;
+    if (hz + envelope_line_floor_hz(a.envelope_bin_hz, hz) >= top_hz) return std::nullopt;
+    return envelope_line(a.envelope_spectrum, a.envelope_bin_hz, hz, a.rpm_estimated).prominence_db;
 }
 
 // The strongest envelope line at the shaft orders 1x .. 2Zx that are not

@@ -54,6 +54,13 @@ json operating_point_json(const OperatingPointSummary& s) {
 
 }  // namespace
 
+json warnings_to_json(const std::vector<BaselineWarning>& warnings) {
+    json a = json::array();
+    for (const auto& w : warnings)
+        a.push_back({{"check", w.check}, {"file", w.file}, {"time_s", w.time_s}, {"message", w.message}});
+    return a;
+}
+
 json baseline_to_json(const Baseline& b) {
     json seg = json::object();
     for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i)
@@ -77,9 +84,7 @@ json baseline_to_json(const Baseline& b) {
                            {"recording_values", recv},
                            {"spectrum_median_db", s.spectrum_median_db}});
     }
-    json warnings = json::array();
-    for (const auto& w : b.warnings)
-        warnings.push_back({{"check", w.check}, {"file", w.file}, {"time_s", w.time_s}, {"message", w.message}});
+    const json warnings = warnings_to_json(b.warnings);
     const SpeedModel& m = b.speed;
     return {
         {"schema", b.schema},

@@ -1,5 +1,7 @@
 #include "src/csv.hpp"
 
+#include "src/units.hpp"
+
 #include "src/errors.hpp"
 
 namespace cavitas::app {
@@ -60,40 +62,12 @@ std::vector<CsvRecord> parse_csv(const std::string& text, const std::string& nam
     return out;
 }
 
-namespace {
-
-// A plain decimal number: [+-]digits[.digits][e[+-]digits]. Such a cell stays a
-// number for a spreadsheet; "inf", "nan" and anything else are text.
-bool plain_number(const std::string& s) {
-    std::size_t i = 0, digits = 0;
-    auto run = [&] {
-        const std::size_t start = i;
-        while (i < s.size() && s[i] >= '0' && s[i] <= '9') ++i;
-        return i - start;
-    };
-    if (i < s.size() && (s[i] == '+' || s[i] == '-')) ++i;
-    digits += run();
-    if (i < s.size() && s[i] == '.') {
-        ++i;
-        digits += run();
-    }
-    if (digits == 0) return false;
-    if (i < s.size() && (s[i] == 'e' || s[i] == 'E')) {
-        ++i;
-        if (i < s.size() && (s[i] == '+' || s[i] == '-')) ++i;
-        if (run() == 0) return false;
-    }
-    return i == s.size();
-}
-
-}  // namespace
-
 std::string csv_field(const std::string& given) {
     // Spreadsheet safety (OWASP, CSV injection): a text cell that begins with
     // = + - @ TAB CR or LF is a formula to a spreadsheet; a leading apostrophe
     // keeps it text. Numbers stay numbers (methods review A9).
     const bool formula = !given.empty() && std::string("=+-@\t\r\n").find(given.front()) != std::string::npos &&
-                         !plain_number(given);
+                         !is_decimal(given);
     const std::string s = formula ? "'" + given : given;
     const bool quote = s.find_first_of(",\"\r\n") != std::string::npos ||
                        (!s.empty() && (s.front() == ' ' || s.back() == ' '));

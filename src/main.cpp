@@ -13,6 +13,7 @@
 #include "src/commands.hpp"
 #include "src/errors.hpp"
 #include "src/plan_store.hpp"
+#include "src/units.hpp"
 #include "src/report_options.hpp"
 #include "src/review.hpp"
 #include "src/route.hpp"
@@ -28,8 +29,7 @@ const CLI::Validator kDecimal(
     [](std::string& text) -> std::string {
         std::stringstream ss(text);
         for (std::string v; std::getline(ss, v, ',');) {
-            if (v.empty() || v.find_first_not_of("+-0123456789.eE") != std::string::npos)
-                return "'" + v + "' is not a decimal number";
+            if (!is_decimal(v)) return "'" + v + "' is not a decimal number";
         }
         return {};
     },

@@ -80,7 +80,7 @@ double plain_number(const std::string& text) {
     const char* s = t.c_str();
     char* end = nullptr;
     const double v = std::strtod(s, &end);
-    if (end == s || *end != '\0' || !std::isfinite(v))
+    if (!is_decimal(t) || end == s || *end != '\0' || !std::isfinite(v))
         throw std::invalid_argument("'" + text + "': expected a plain number (no unit)");
     return v;
 }

@@ -1,5 +1,7 @@
 #include "src/report.hpp"
 
+#include "src/baseline_io.hpp"
+
 #include <cmath>
 #include <cstdio>
 #include <ostream>
@@ -142,13 +144,6 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
     }
 }
 
-json baseline_warnings_json(const std::vector<models::BaselineWarning>& warnings) {
-    json a = json::array();
-    for (const auto& w : warnings)
-        a.push_back({{"check", w.check}, {"file", w.file}, {"time_s", w.time_s}, {"message", w.message}});
-    return a;
-}
-
 json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
     const auto& in = r.recording.info;
     const auto& a = r.recording.analysis;
@@ -220,7 +215,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"confidence_reasons", f.grade_reasons},
         {"evidence", f.evidence},
         {"other_findings", f.other_findings},
-        {"baseline_warnings", baseline_warnings_json(f.baseline_warnings)},
+        {"baseline_warnings", warnings_to_json(f.baseline_warnings)},
         {"cautions", cavitating(f.verdict) ? json(models::cavitation_cautions()) : json::array()},
         {"indicators", indicators},
         {"bands",

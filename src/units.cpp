@@ -12,17 +12,27 @@
 
 namespace cavitas::app {
 
-namespace {
-// strtod also reads hexadecimal ("0x10" = 16), "inf" and "nan": a number typed
-// by a person is decimal, so what strtod consumed must be digits, a point, a
-// sign and an exponent only.
-bool plain_decimal(const char* begin, const char* end) {
-    if (end == begin) return false;
-    for (const char* c = begin; c != end; ++c)
-        if (!std::strchr("+-0123456789.eE", *c)) return false;
-    return true;
+bool is_decimal(std::string_view s) {
+    std::size_t i = 0, digits = 0;
+    auto run = [&] {
+        const std::size_t start = i;
+        while (i < s.size() && s[i] >= '0' && s[i] <= '9') ++i;
+        return i - start;
+    };
+    if (i < s.size() && (s[i] == '+' || s[i] == '-')) ++i;
+    digits += run();
+    if (i < s.size() && s[i] == '.') {
+        ++i;
+        digits += run();
+    }
+    if (digits == 0) return false;
+    if (i < s.size() && (s[i] == 'e' || s[i] == 'E')) {
+        ++i;
+        if (i < s.size() && (s[i] == '+' || s[i] == '-')) ++i;
+        if (run() == 0) return false;
+    }
+    return i == s.size();
 }
-}  // namespace
 
 Calibration parse_full_scale(const std::string& text) {
     const char* s = text.c_str();
@@ -30,7 +40,7 @@ Calibration parse_full_scale(const std::string& text) {
     const double v = std::strtod(s, &end);
     std::string unit = end ? std::string(end) : std::string();
     while (!unit.empty() && unit.front() == ' ') unit.erase(unit.begin());
-    if (!plain_decimal(s, end) || !std::isfinite(v) || !(v > 0.0))
+    if (!is_decimal({s, static_cast<std::size_t>(end - s)}) || !std::isfinite(v) || !(v > 0.0))
         throw UsageError("--full-scale '" + text + "': expected a positive decimal number followed by a unit, e.g. 50g, "
                          "500m/s2, 2000Pa");
     Calibration c;
@@ -167,7 +177,7 @@ Split split(const std::string& text, Quantity q) {
     const char* s = t.c_str();
     char* end = nullptr;
     const double v = std::strtod(s, &end);
-    if (!plain_decimal(s, end))
+    if (!is_decimal({s, static_cast<std::size_t>(end - s)}))
         throw std::invalid_argument(quoted + ": expected a decimal number followed by a unit (" + accepted_units(q) + ")");
     if (!std::isfinite(v)) throw std::invalid_argument(quoted + ": the number is not finite");
     const std::string unit = normalise(std::string(end));

@@ -7,6 +7,7 @@
 
 #include <optional>
 #include <string>
+#include <string_view>
 
 namespace cavitas::app {
 
@@ -20,6 +21,12 @@ struct Calibration {
 /// Parse "<number><unit>", unit one of g, m/s2 (also m/s^2, m/s²), Pa, kPa, FS.
 /// Throws UsageError naming the text and what is accepted.
 Calibration parse_full_scale(const std::string& text);
+
+/// A number as a person types it: [+-]digits[.digits][(e|E)[+-]digits]. Not
+/// hexadecimal, "inf" or "nan", which strtod and CLI11 would also read. Every
+/// number cavitas reads from text, and every CSV cell it keeps a number, is
+/// judged by this.
+bool is_decimal(std::string_view text);
 
 /// Kinds of quantity and the SI unit each is returned in.
 enum class Quantity {

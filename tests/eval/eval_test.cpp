@@ -32,13 +32,6 @@ using Row = cavitas::test::EvalRow;
 
 std::vector<Row> read_manifest(const std::string& path) { return cavitas::test::read_eval_manifest(path); }
 
-int index_of(const std::string& label) {
-    if (label == "normal") return 0;
-    if (label == "incipient") return 1;
-    if (label == "developed") return 2;
-    return 3;  // indeterminate
-}
-
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -73,7 +66,7 @@ int main(int argc, char** argv) {
             baselines[machine] = b;
         }
         // confusion[true][predicted], predicted includes indeterminate.
-        std::array<std::array<int, 4>, 3> confusion{};
+        std::array<std::array<int, 4>, 4> confusion{};
         std::map<std::string, std::array<int, 4>> by_kind;
         int lookalikes = 0, false_alarms = 0, developed_missed = 0, total = 0, correct = 0, flagged = 0;
         for (const auto& r : rows) {
@@ -88,7 +81,7 @@ int main(int argc, char** argv) {
             app::Calibration cal{b.full_scale, "g"};
             const auto a = app::analyze_file(dir + "/" + r.file, 0, cal, b.setup, 0.0, m);
             const auto f = models::classify(a.analysis, b, "g");
-            const int t = index_of(r.label), p = index_of(models::to_string(f.verdict));
+            const int t = test::verdict_index(r.label), p = test::verdict_index(models::to_string(f.verdict));
             // Every generated recording is clean: the quality gate must not flag one.
             if (f.quality.warning_count() > 0 || !f.quality.usable()) {
                 ++flagged;
@@ -108,16 +101,8 @@ int main(int argc, char** argv) {
                 std::cout << "miss: " << r.file << " (" << r.kind << ") called " << models::to_string(f.verdict)
                           << ", HF " << f.hf_rise_db << " dB\n";
         }
-        const char* names[] = {"normal", "incipient", "developed", "indeterm."};
-        std::printf("\nconfusion matrix (rows: truth, columns: verdict), %d recordings\n", total);
-        std::printf("%-12s", "");
-        for (const char* n : names) std::printf("%11s", n);
-        std::printf("\n");
-        for (std::size_t t = 0; t < 3; ++t) {
-            std::printf("%-12s", names[t]);
-            for (int v : confusion[t]) std::printf("%11d", v);
-            std::printf("\n");
-        }
+        const std::string title = "confusion matrix (rows: truth, columns: verdict), " + std::to_string(total) + " recordings";
+        test::print_confusion(confusion, 3, title.c_str());
         std::printf("\nby generated kind:\n");
         for (const auto& [kind, v] : by_kind)
             std::printf("%-12s%11d%11d%11d%11d\n", kind.c_str(), v[0], v[1], v[2], v[3]);

@@ -30,13 +30,6 @@ using namespace cavitas;
 
 namespace {
 
-int index_of(const std::string& v) {
-    if (v == "normal") return 0;
-    if (v == "incipient") return 1;
-    if (v == "developed") return 2;
-    return 3;
-}
-
 struct Group {
     std::vector<test::EvalRow> baselines, tests;
 };
@@ -139,7 +132,7 @@ int evaluate(const std::string& dir, Scores* scores) {
                 o.recording = dir + "/" + r.file;
                 if (r.rpm_given) o.rpm = r.rpm;
                 const auto f = app::analyze(o).finding;
-                const int t = index_of(r.expect), p = index_of(models::to_string(f.verdict));
+                const int t = test::verdict_index(r.expect), p = test::verdict_index(models::to_string(f.verdict));
                 confusion[static_cast<std::size_t>(t)][static_cast<std::size_t>(p)]++;
                 // Calibration counts the verdicts made on rows due one (the confidence of a verdict).
                 if (t < 3 && p < 3) {
@@ -167,15 +160,7 @@ int evaluate(const std::string& dir, Scores* scores) {
                               << (f.reasons.empty() ? "" : ": " + f.reasons.front()) << "\n";
             }
         }
-        const char* names[] = {"normal", "incipient", "developed", "indeterm."};
-        std::printf("\nconfusion matrix (rows: verdict due, columns: verdict given)\n%-12s", "");
-        for (const char* n : names) std::printf("%11s", n);
-        std::printf("\n");
-        for (std::size_t t = 0; t < 4; ++t) {
-            std::printf("%-12s", names[t]);
-            for (int v : confusion[t]) std::printf("%11d", v);
-            std::printf("\n");
-        }
+        test::print_confusion(confusion, 4, "confusion matrix (rows: verdict due, columns: verdict given)");
         const auto rel = models::reliability(conf, right, 10);
         std::printf("\nreliability of the confidence (%zu verdicts made on rows due one)\n", rel.n);
         std::printf("%-14s%8s%12s%10s\n", "confidence", "count", "mean conf.", "right");

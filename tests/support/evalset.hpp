@@ -3,6 +3,8 @@
 #pragma once
 
 #include <algorithm>
+#include <array>
+#include <cstdio>
 #include <fstream>
 #include <sstream>
 #include <stdexcept>
@@ -69,6 +71,27 @@ inline std::vector<EvalRow> read_eval_manifest(const std::string& path) {
         rows.push_back(r);
     }
     return rows;
+}
+
+/// Verdict word -> row/column of a confusion matrix (0 normal .. 3 indeterminate).
+inline int verdict_index(const std::string& verdict) {
+    if (verdict == "normal") return 0;
+    if (verdict == "incipient") return 1;
+    if (verdict == "developed") return 2;
+    return 3;  // indeterminate
+}
+
+/// The first `rows` rows of a confusion matrix (rows: what is due, columns: the verdict given).
+inline void print_confusion(const std::array<std::array<int, 4>, 4>& m, std::size_t rows, const char* title) {
+    const char* names[] = {"normal", "incipient", "developed", "indeterm."};
+    std::printf("\n%s\n%-12s", title, "");
+    for (const char* n : names) std::printf("%11s", n);
+    std::printf("\n");
+    for (std::size_t t = 0; t < rows; ++t) {
+        std::printf("%-12s", names[t]);
+        for (int v : m[t]) std::printf("%11d", v);
+        std::printf("\n");
+    }
 }
 
 }  // namespace cavitas::test
