@@ -286,7 +286,7 @@ LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Ca
     return l;
 }
 
-void write_baseline_summary(std::ostream& out, const BaselineOptions& o, const std::string& path, const models::Baseline& b,
+void write_baseline_summary(std::ostream& out, const std::string& path, const models::Baseline& b,
                             std::size_t stated) {
     out << "baseline written to " << path << "\n"
         << "  " << b.sources.size() << " recording(s), " << b.segments << " segments of " << b.setup.segment_s << " s at "
@@ -320,7 +320,6 @@ void write_baseline_summary(std::ostream& out, const BaselineOptions& o, const s
         out << "  WARNINGS (" << b.warnings.size() << "): findings against this baseline will repeat them\n";
         for (const auto& w : b.warnings) out << "    - " << w.message << "\n";
     }
-    (void)o;
 }
 
 // The store's normal visits of a point, newest last: their recordings, speeds and hashes.
@@ -479,7 +478,7 @@ void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream&
                          " problem(s) with the recordings:" + all);
     }
     write_file_atomically(output, baseline_to_json(b).dump(2) + "\n");
-    write_baseline_summary(out, o, output, b, stated.size());
+    write_baseline_summary(out, output, b, stated.size());
 }
 
 AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
