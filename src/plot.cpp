@@ -236,7 +236,8 @@ std::vector<double> ticks(const Axis& a) {
             } else {
                 step = s;
             }
-        for (double v = std::ceil(a.lo / step) * step; v <= a.hi + 1e-9; v += step) t.push_back(v);
+        // At most 64 ticks: over a span of millions of years (an edited date) v += step would not even move.
+        for (double v = std::ceil(a.lo / step) * step; v <= a.hi + 1e-9 && t.size() < 64; v += step) t.push_back(v);
         return t;
     }
     const double step = nice_step(a.hi - a.lo, 6);

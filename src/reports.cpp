@@ -62,6 +62,20 @@ std::vector<std::string> strs(const json& j, const char* key) {
     return v;
 }
 
+// ---- what a report reads at most (file sizes; the fields are checked further down) ------------
+// A finding written by analyze --json is 50-85 kB (the demo's seven, tools/demo.sh), a
+// comparison 25 kB, a route.json under 1 kB and a summary line about 1 kB. The limits are
+// ~100 times that and more: a real file never meets them, an edited one cannot make a
+// report of hundreds of MB. Checked before a byte is parsed.
+constexpr std::size_t kMaxDocumentBytes = 8u << 20;      // a finding or a comparison
+constexpr std::size_t kMaxRouteRunBytes = 8u << 20;      // route.json (merged_from lists up to 100 000 shards)
+constexpr std::size_t kMaxSummaryBytes = 64u << 20;      // summary.jsonl
+constexpr std::size_t kMaxSummaryLineBytes = 64u << 10;  // one row of it
+constexpr std::size_t kMaxRouteRows = 20000;             // rows of a route report (a year of weekly visits to 400 points)
+
+const json& checked_finding(const json& f, const std::string& origin);
+const json& checked_comparison(const json& c, const std::string& origin);
+
 // ---- words ----------------------------------------------------------------------------------
 
 std::string headline(const std::string& verdict) {
@@ -439,8 +453,8 @@ std::vector<Field> finding_provenance(const json& f) {
             {"Report", utc_now() + " by cavitas " + std::string(kVersion)}};
 }
 
-json read_json_file(const std::string& path, const char* what) {
-    const json j = json::parse(read_text_file(path, what), nullptr, false);
+json read_json_file(const std::string& path, const char* what, std::size_t max_bytes) {
+    const json j = json::parse(read_text_file(path, what, max_bytes), nullptr, false);
     if (j.is_discarded()) throw InputError(path + ": not valid JSON");
     return j;
 }
@@ -626,17 +640,23 @@ Document compare_document(const json& c, const ReportOptions& o) {
 }
 
 Document route_document(const std::string& folder, const ReportOptions& o) {
-    const json run = read_json_file((fs::path(folder) / "route.json").string(), "route run file");
+    const json run = read_json_file((fs::path(folder) / "route.json").string(), "route run file", kMaxRouteRunBytes);
     if (str(run, "schema") != "cavitas.route/1") throw InputError(folder + "/route.json: not a cavitas route run");
     std::vector<SummaryRow> rows;
     {
         const std::string path = (fs::path(folder) / "summary.jsonl").string();
-        std::istringstream in(read_text_file(path, "route summary"));
+        std::istringstream in(read_text_file(path, "route summary", kMaxSummaryBytes));
         std::string line;
         std::size_t n = 0;
         while (std::getline(in, line)) {
             ++n;
             if (line.empty()) continue;
+            if (line.size() > kMaxSummaryLineBytes)
+                throw InputError(path + ":" + std::to_string(n) + ": a line of " + std::to_string(line.size()) +
+                                 " bytes (a summary row is at most " + std::to_string(kMaxSummaryLineBytes) + ")");
+            if (rows.size() == kMaxRouteRows)
+                throw InputError(path + ": more than " + std::to_string(kMaxRouteRows) +
+                                 " rows (a route report shows at most that many)");
             const json j = json::parse(line, nullptr, false);
             if (j.is_discarded()) throw InputError(path + ":" + std::to_string(n) + ": not valid JSON");
             rows.push_back(SummaryRow::from_json(j, path + ":" + std::to_string(n)));
@@ -757,7 +777,13 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     // The evidence for each point that needs attention now.
     for (const auto* r : latest) {
         if (!(r->verdict == "developed" || r->verdict == "incipient") || r->finding.empty()) continue;
-        const json f = read_json_file((fs::path(folder) / r->finding).string(), "finding file");
+        // Only a file inside the folder's findings/ (what route writes): the summary may have been edited.
+        const fs::path rel = fs::path(r->finding).lexically_normal();
+        if (rel.is_absolute() || *rel.begin() != "findings" || !rel.has_filename() || rel == "findings")
+            throw InputError((fs::path(folder) / "summary.jsonl").string() + ":" + std::to_string(r->line) +
+                             ": field 'finding' is not a file in the folder's findings/");
+        const std::string fpath = (fs::path(folder) / rel).string();
+        const json f = checked_finding(read_json_file(fpath, "finding file", kMaxDocumentBytes), fpath);
         d.blocks.push_back(doc::make(Kind::page_break));
         d.heading("Evidence: " + r->machine + " " + r->point + ", " + r->datetime.substr(0, 16));
         const json plots = f.contains("plots") ? field(f, "plots") : json::object();
@@ -798,25 +824,67 @@ namespace {
 // partner and a limit, every frequency for being finite and positive, and the
 // first problem is named with the file and the field.
 
-constexpr std::size_t kMaxPlotPoints = 65536;   // more than any analysis writes (our limit)
-constexpr std::size_t kMaxKurtogramRows = 64;
+// Our limits, each a generous multiple of what cavitas writes (measured on the demo's
+// findings and comparison, tools/demo.sh): checked before anything is drawn, so that an
+// edited file cannot make a report of hundreds of MB. They are far above anything analyze
+// or compare writes, so a real file is never refused by them.
+//   a spectrum has ~130 bands (at most a few hundred), the envelope spectrum ~900 lines
+//   (ten thousands with long segments), a kurtogram at most 14 rows of at most 128 cells
+//   (levels are clamped to 7), a comparison ~6 indicators and one recording a side.
+constexpr std::size_t kMaxPlotPoints = 65536;          // values in one plotted array
+constexpr std::size_t kMaxDocumentPoints = 262144;     // values in all the plotted arrays of one document
+constexpr std::size_t kMaxKurtogramRows = 32;          // cavitas writes at most 14
+constexpr std::size_t kMaxKurtogramCells = 4096;       // in one row; cavitas writes at most 128
+constexpr std::size_t kMaxSentences = 1000;            // evidence, cautions ... lines of one list
+constexpr std::size_t kMaxTableRows = 1000;            // indicators, recordings of a comparison side
+constexpr std::size_t kMaxEnvelopeOrders = 2000;       // shaft orders or BPF harmonics marked on the envelope chart
 
 [[noreturn]] void bad(const std::string& origin, const std::string& field_name, const std::string& problem) {
     throw InputError(origin + ": field '" + field_name + "' " + problem);
 }
 
+// The plotted values of one document, counted against kMaxDocumentPoints as the arrays are checked.
+struct PointBudget {
+    std::size_t used = 0;
+    void take(std::size_t n, const std::string& origin, const std::string& name) {
+        used += n;
+        if (used > kMaxDocumentPoints)
+            bad(origin, name, "brings the plotted values to more than " + std::to_string(kMaxDocumentPoints) +
+                                  " (a report draws at most that many)");
+    }
+};
+
+enum class Values { any, positive, increasing };  // increasing: positive and strictly rising (a log frequency axis)
+
 std::size_t number_array(const json& j, const char* key, const std::string& origin, const std::string& where,
-                         bool positive = false, bool required = true) {
+                         PointBudget& budget, Values values = Values::any, bool required = true,
+                         std::size_t max_values = kMaxPlotPoints) {
     const json& a = field(j, key);
     const std::string name = where + "." + key;
     if (a.is_null() && !required) return 0;
     if (!a.is_array()) bad(origin, name, "is missing or not an array");
-    if (a.size() > kMaxPlotPoints) bad(origin, name, "has " + std::to_string(a.size()) + " values (at most 65536)");
+    if (a.size() > max_values)
+        bad(origin, name, "has " + std::to_string(a.size()) + " values (at most " + std::to_string(max_values) + ")");
+    budget.take(a.size(), origin, name);
+    double previous = 0.0;
     for (const auto& x : a) {
         if (!x.is_number() || !std::isfinite(x.get<double>())) bad(origin, name, "holds a value that is not a finite number");
-        if (positive && !(x.get<double>() > 0.0)) bad(origin, name, "holds a frequency that is not above 0 Hz");
+        const double v = x.get<double>();
+        if (values != Values::any && !(v > 0.0)) bad(origin, name, "holds a frequency that is not above 0 Hz");
+        if (values == Values::increasing && !(v > previous)) bad(origin, name, "holds frequencies that do not increase");
+        previous = v;
     }
     return a.size();
+}
+
+// A number the report draws with: absent (fallback) or finite and within [lo, hi].
+double checked_number(const json& j, const char* key, const std::string& origin, const std::string& name, double lo,
+                      double hi, double fallback = 0.0) {
+    const json& v = field(j, key);
+    if (v.is_null()) return fallback;
+    if (!v.is_number() || !std::isfinite(v.get<double>()) || v.get<double>() < lo || v.get<double>() > hi)
+        bad(origin, name, "is not a number from " + fixed(lo, 0) + " to " + fixed(hi, 0));
+    return v.get<double>();
 }
 
 // m values for n frequencies; an optional array may be absent (m = 0), a required one may not.
@@ -825,75 +893,138 @@ void same_length(std::size_t n, std::size_t m, const std::string& origin, const 
     if ((required || m != 0) && m != n) bad(origin, name, "has " + std::to_string(m) + " values for " + std::to_string(n) + " frequencies");
 }
 
-void check_sentences(const json& j, const char* key, const std::string& origin) {
+void check_sentences(const json& j, const char* key, const std::string& origin, const std::string& where = "",
+                     bool required = true) {
     const json& a = field(j, key);
-    if (!a.is_array()) bad(origin, key, "is missing or not an array of sentences");
+    const std::string name = where.empty() ? std::string(key) : where + "." + key;
+    if (a.is_null() && !required) return;
+    if (!a.is_array()) bad(origin, name, "is missing or not an array of sentences");
+    if (a.size() > kMaxSentences)
+        bad(origin, name, "has " + std::to_string(a.size()) + " entries (at most " + std::to_string(kMaxSentences) + ")");
     for (const auto& x : a)
-        if (!x.is_string()) bad(origin, key, "holds an entry that is not text");
+        if (!x.is_string()) bad(origin, name, "holds an entry that is not text");
 }
+
+// An array of objects (table rows) of at most kMaxTableRows entries; absent is allowed.
+void check_table(const json& j, const char* key, const std::string& origin) {
+    const json& a = field(j, key);
+    if (a.is_null()) return;
+    if (!a.is_array()) bad(origin, key, "is not an array");
+    if (a.size() > kMaxTableRows)
+        bad(origin, key, "has " + std::to_string(a.size()) + " entries (at most " + std::to_string(kMaxTableRows) + ")");
+    for (const auto& x : a)
+        if (!x.is_object()) bad(origin, key, "holds an entry that is not an object");
+}
+
+constexpr double kMaxHz = 1e9;  // frequencies drawn: far above any sample rate cavitas reads (5 MHz)
 
 const json& checked_finding(const json& f, const std::string& origin) {
     static const std::set<std::string> verdicts{"normal", "incipient", "developed", "indeterminate"};
+    if (!f.is_object()) bad(origin, "schema", "belongs to a document that is not an object");
     if (!field(f, "verdict").is_string() || !verdicts.count(field(f, "verdict").get<std::string>()))
         bad(origin, "verdict", "is missing or not one of normal, incipient, developed, indeterminate");
     for (const char* k : {"evidence", "other_findings", "cautions"}) check_sentences(f, k, origin);
     if (!field(field(f, "input"), "path").is_string()) bad(origin, "input.path", "is missing or not text");
     if (!field(f, "quality").is_object()) bad(origin, "quality", "is missing or not an object");
+    for (const char* k : {"reasons", "warnings"}) check_sentences(field(f, "quality"), k, origin, "quality", false);
+    check_sentences(field(f, "operating_point"), "reading_notes", origin, "operating_point", false);
+    check_table(f, "baseline_warnings", origin);
+    const json& ind = field(f, "indicators");
+    if (ind.is_object() && ind.size() > kMaxTableRows)
+        bad(origin, "indicators", "has " + std::to_string(ind.size()) + " entries (at most " +
+                                      std::to_string(kMaxTableRows) + ")");
     const json& plots = field(f, "plots");
     if (plots.is_null()) return f;
     if (!plots.is_object()) bad(origin, "plots", "is not an object");
+    PointBudget budget;
     const json& sp = field(plots, "spectrum");
     if (sp.is_object() && sp.contains("center_hz")) {
-        const std::size_t n = number_array(sp, "center_hz", origin, "plots.spectrum", true);
-        same_length(n, number_array(sp, "level_db", origin, "plots.spectrum"), origin, "plots.spectrum.level_db", true);
+        const std::size_t n = number_array(sp, "center_hz", origin, "plots.spectrum", budget, Values::increasing);
+        same_length(n, number_array(sp, "level_db", origin, "plots.spectrum", budget), origin, "plots.spectrum.level_db",
+                    true);
         for (const char* k : {"p10_db", "p90_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"})
-            same_length(n, number_array(sp, k, origin, "plots.spectrum", false, false), origin,
+            same_length(n, number_array(sp, k, origin, "plots.spectrum", budget, Values::any, false), origin,
                         std::string("plots.spectrum.") + k);
+        for (const char* k : {"hf_low_hz", "hf_high_hz"})
+            checked_number(sp, k, origin, std::string("plots.spectrum.") + k, 0.0, kMaxHz);
     }
     const json& es = field(plots, "envelope_spectrum");
     if (es.is_object()) {
-        const std::size_t n = number_array(es, "amplitude", origin, "plots.envelope_spectrum");
+        const std::size_t n = number_array(es, "amplitude", origin, "plots.envelope_spectrum", budget);
         const double bin = num(es, "bin_hz", -1.0);
-        if (n > 0 && !(bin > 0.0 && std::isfinite(bin)))
+        if (n > 0 && !(bin > 0.0 && bin <= kMaxHz))
             bad(origin, "plots.envelope_spectrum.bin_hz", "is not a positive number");
-    }
-    const json& rows = field(field(plots, "kurtogram"), "rows");
-    if (!rows.is_null()) {
-        if (!rows.is_array() || rows.size() > kMaxKurtogramRows)
-            bad(origin, "plots.kurtogram.rows", "is not an array of at most 64 rows");
-        for (const auto& row : rows) {
-            if (!row.is_object()) bad(origin, "plots.kurtogram.rows", "holds a row that is not an object");
-            number_array(row, "mean", origin, "plots.kurtogram.rows[]");
-            if (!(num(row, "bandwidth_hz", -1.0) > 0.0)) bad(origin, "plots.kurtogram.rows[].bandwidth_hz", "is not above 0 Hz");
+        const double top = static_cast<double>(n) * bin;
+        for (const char* k : {"shaft_hz", "bpf_hz"}) {
+            const std::string name = std::string("plots.envelope_spectrum.") + k;
+            const double hz = checked_number(es, k, origin, name, 0.0, kMaxHz);
+            if (hz > 0.0 && top / hz > static_cast<double>(kMaxEnvelopeOrders))
+                bad(origin, name, "would mark more than " + std::to_string(kMaxEnvelopeOrders) +
+                                      " orders on an envelope spectrum up to " + fixed(top, 0) + " Hz");
         }
     }
+    const json& kg = field(plots, "kurtogram");
+    const json& rows = field(kg, "rows");
+    if (!rows.is_null()) {
+        if (!rows.is_array() || rows.size() > kMaxKurtogramRows)
+            bad(origin, "plots.kurtogram.rows", "is not an array of at most " + std::to_string(kMaxKurtogramRows) + " rows");
+        for (const auto& row : rows) {
+            if (!row.is_object()) bad(origin, "plots.kurtogram.rows", "holds a row that is not an object");
+            number_array(row, "mean", origin, "plots.kurtogram.rows[]", budget, Values::any, true, kMaxKurtogramCells);
+            if (!(num(row, "bandwidth_hz", -1.0) > 0.0 && num(row, "bandwidth_hz") <= kMaxHz))
+                bad(origin, "plots.kurtogram.rows[].bandwidth_hz", "is not above 0 Hz");
+            checked_number(row, "level", origin, "plots.kurtogram.rows[].level", 0.0, 64.0);
+        }
+    }
+    for (const char* k : {"hf_low_hz", "hf_high_hz"}) checked_number(kg, k, origin, std::string("plots.kurtogram.") + k, 0.0, kMaxHz);
+    for (const char* k : {"center_hz", "bandwidth_hz"})
+        checked_number(field(kg, "chosen"), k, origin, std::string("plots.kurtogram.chosen.") + k, 0.0, kMaxHz);
+    checked_number(field(kg, "chosen"), "level", origin, "plots.kurtogram.chosen.level", -1.0, 64.0);
     return f;
 }
 
 const json& checked_comparison(const json& c, const std::string& origin) {
     static const std::set<std::string> changes{"improved", "unchanged", "worse"};
+    if (!c.is_object()) bad(origin, "schema", "belongs to a document that is not an object");
     if (!field(c, "change").is_string() || !changes.count(field(c, "change").get<std::string>()))
         bad(origin, "change", "is missing or not one of improved, unchanged, worse");
     if (!field(c, "indicators").is_array() || field(c, "indicators").empty())
         bad(origin, "indicators", "is missing or empty");
-    for (const auto& i : field(c, "indicators"))
-        if (!i.is_object()) bad(origin, "indicators", "holds an entry that is not an object");
+    check_table(c, "indicators", origin);
+    for (const char* side : {"before", "after"}) check_table(c, side, origin);
     check_sentences(c, "evidence", origin);
+    check_sentences(c, "warnings", origin, "", false);
     const json& plots = field(c, "plots");
     if (plots.is_object() && plots.contains("center_hz")) {
-        const std::size_t n = number_array(plots, "center_hz", origin, "plots", true);
+        PointBudget budget;
+        const std::size_t n = number_array(plots, "center_hz", origin, "plots", budget, Values::increasing);
         for (const char* k : {"before_db", "after_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"})
-            same_length(n, number_array(plots, k, origin, "plots", false, false), origin, std::string("plots.") + k);
+            same_length(n, number_array(plots, k, origin, "plots", budget, Values::any, false), origin,
+                        std::string("plots.") + k);
+        for (const char* k : {"hf_low_hz", "hf_high_hz"})
+            checked_number(plots, k, origin, std::string("plots.") + k, 0.0, kMaxHz);
         const json& seg = field(plots, "hf_segments_db");
         if (seg.is_object()) {
-            number_array(seg, "before", origin, "plots.hf_segments_db");
-            number_array(seg, "after", origin, "plots.hf_segments_db");
+            number_array(seg, "before", origin, "plots.hf_segments_db", budget);
+            number_array(seg, "after", origin, "plots.hf_segments_db", budget);
         }
     }
     return c;
 }
 
 }  // namespace
+
+Document document_from_text(const std::string& text, const std::string& origin, const ReportOptions& o) {
+    if (text.size() > kMaxDocumentBytes)
+        throw InputError(origin + ": " + std::to_string(text.size()) + " bytes is too large for a report input (at most " +
+                         std::to_string(kMaxDocumentBytes) + ")");
+    const json j = json::parse(text, nullptr, false);
+    if (j.is_discarded()) throw InputError(origin + ": not valid JSON");
+    const std::string schema = str(j, "schema");
+    if (schema.rfind("cavitas.finding/", 0) == 0) return finding_document(checked_finding(j, origin), o);
+    if (schema.rfind("cavitas.compare/", 0) == 0) return compare_document(checked_comparison(j, origin), o);
+    throw InputError(origin + ": not a finding (analyze --json), a comparison (compare --json) or a route output folder");
+}
 
 void render_report(const ReportOptions& o, std::ostream& out) {
     if (!o.html && !o.pdf) throw UsageError("report: give --html OUT.html, --pdf OUT.pdf or both");
@@ -912,13 +1043,7 @@ void render_report(const ReportOptions& o, std::ostream& out) {
     if (fs::is_directory(o.input, ec)) {
         d = route_document(o.input, o);
     } else {
-        const json j = read_json_file(o.input, "report input");
-        const std::string schema = str(j, "schema");
-        if (schema.rfind("cavitas.finding/", 0) == 0) d = finding_document(checked_finding(j, o.input), o);
-        else if (schema.rfind("cavitas.compare/", 0) == 0) d = compare_document(checked_comparison(j, o.input), o);
-        else
-            throw InputError(o.input + ": not a finding (analyze --json), a comparison (compare --json) or a route "
-                             "output folder");
+        d = document_from_text(read_text_file(o.input, "report input", kMaxDocumentBytes), o.input, o);
     }
     if (o.html) {
         write_file_atomically(*o.html, doc::to_html(d));

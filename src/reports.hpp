@@ -23,4 +23,10 @@ doc::Document finding_document(const nlohmann::json& finding, const ReportOption
 doc::Document compare_document(const nlohmann::json& comparison, const ReportOptions& options);
 doc::Document route_document(const std::string& folder, const ReportOptions& options);
 
+/// The document of a finding (analyze --json) or a comparison (compare --json) given as
+/// its JSON text, checked as 'report' checks such a file: its size, its schema and every
+/// field the report draws (lengths, limits, finite numbers). origin names the text in
+/// errors. Throws InputError; what it returns renders (doc::to_html, doc::to_pdf).
+doc::Document document_from_text(const std::string& text, const std::string& origin, const ReportOptions& options);
+
 }  // namespace cavitas::app

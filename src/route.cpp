@@ -410,6 +410,20 @@ std::size_t import_rows(HistoryStore& store, const std::vector<SummaryRow>& rows
     return added;
 }
 
+// A member of a shard's route.json as merge reads it: absent or null gives the
+// fallback, another JSON type than route writes is refused naming the file and
+// the field (json::value would throw a type_error that names neither).
+template <class T>
+T run_field(const json& run, const char* key, T fallback, const std::string& run_path) {
+    const auto it = run.find(key);
+    if (it == run.end() || it->is_null()) return fallback;
+    try {
+        return it->get<T>();
+    } catch (const json::exception&) {
+        throw InputError(run_path + ": field '" + key + "' is not of the type a route run writes");
+    }
+}
+
 void prepare_out_dir(const std::string& out_dir) {
     std::error_code ec;
     fs::create_directories(fs::path(out_dir) / "findings", ec);
@@ -599,19 +613,26 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     for (const auto& dir : o.shard_dirs) {
         const std::string run_path = (fs::path(dir) / "route.json").string();
         const json run = json::parse(read_text_file(run_path, "route run file"), nullptr, false);
-        if (run.is_discarded() || !run.is_object() || run.value("schema", "") != "cavitas.route/1")
+        if (run.is_discarded() || !run.is_object() || !run.contains("schema") || run["schema"] != "cavitas.route/1")
             throw InputError(run_path + ": not the route.json of a cavitas route run");
         if (!run.contains("shard") || !run["shard"].is_string())
             throw InputError(run_path + ": this run was not a shard (route --shard K/N)");
-        const auto [k, n] = parse_shard(run["shard"].get<std::string>());
-        const std::string sha = run.value("manifest_sha256", "");
+        std::pair<std::size_t, std::size_t> kn;
+        try {
+            kn = parse_shard(run["shard"].get<std::string>());
+        } catch (const UsageError&) {  // the file's fault, not the command line's
+            throw InputError(run_path + ": field 'shard' is '" + run["shard"].get<std::string>() +
+                             "', not K/N with 1 <= K <= N <= 100000");
+        }
+        const auto [k, n] = kn;
+        const std::string sha = run_field(run, "manifest_sha256", std::string(), run_path);
         if (manifest_sha.empty()) {
             manifest_sha = sha;
-            manifest_path = run.value("manifest", "");
-            manifest_rows = run.value("manifest_rows", std::size_t{0});
+            manifest_path = run_field(run, "manifest", std::string(), run_path);
+            manifest_rows = run_field(run, "manifest_rows", std::size_t{0}, run_path);
             shard_count = n;
-            extra_columns = run.value("extra_columns", std::vector<std::string>{});
-            baselines = run.value("baselines", "");
+            extra_columns = run_field(run, "extra_columns", std::vector<std::string>{}, run_path);
+            baselines = run_field(run, "baselines", std::string(), run_path);
         } else if (sha != manifest_sha) {
             throw InputError(run_path + ": this shard analysed another manifest (or another version of it) than " +
                              o.shard_dirs.front());

@@ -666,6 +666,111 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
                         }),
          "report " + Q("f-kg.json") + " --html " + Q("r-kg.html"), 1, {"mean"}, "f-kg.json", "r-kg.html"},
 
+        // --- report inputs past the report's limits (reports.cpp): refused before a chart is drawn, the file
+        // and the field named (before: a finding within the old per-array limit, 64 kurtogram rows of 65 536
+        // cells, 17 MB, took 7 s and 286 MB and made a 13.5 MB page).
+        {"report: a finding of more than 8 MB",
+         [] { spit(at("f-8mb.json"), slurp(at("ctl-finding.json")) + std::string((8u << 20) + 1, ' ')); },
+         "report " + Q("f-8mb.json") + " --html " + Q("r-8mb.html"), 1, {"too large for a report input"}, "f-8mb.json",
+         "r-8mb.html", kQuickS},
+        {"report: a kurtogram of 16 rows of 62 500 cells",
+         edited_finding("f-kg16.json",
+                        [](nlohmann::json& j) {
+                            nlohmann::json kg = nlohmann::json::array();
+                            for (int i = 0; i < 16; ++i)
+                                kg.push_back({{"level", i}, {"bandwidth_hz", 0.2}, {"mean", std::vector<double>(62500, 1.5)}});
+                            j["plots"]["kurtogram"]["rows"] = kg;
+                        }),
+         "report " + Q("f-kg16.json") + " --html " + Q("r-kg16.html"), 1, {"plots.kurtogram.rows[].mean", "at most 4096"},
+         "f-kg16.json", "r-kg16.html", kQuickS},
+        {"report: a kurtogram of 40 rows",
+         edited_finding("f-kg40.json",
+                        [](nlohmann::json& j) {
+                            j["plots"]["kurtogram"]["rows"] = std::vector<nlohmann::json>(
+                                40, {{"level", 1}, {"bandwidth_hz", 100.0}, {"mean", {2.0}}});
+                        }),
+         "report " + Q("f-kg40.json") + " --html " + Q("r-kg40.html"), 1, {"plots.kurtogram.rows", "at most 32"},
+         "f-kg40.json", "r-kg40.html", kQuickS},
+        {"report: spectra of 7 x 40 000 values",
+         edited_finding("f-pts.json",
+                        [](nlohmann::json& j) {
+                            auto& sp = j["plots"]["spectrum"];
+                            std::vector<double> hz(40000);
+                            for (std::size_t i = 0; i < hz.size(); ++i) hz[i] = 10.0 + 0.5 * static_cast<double>(i);
+                            sp["center_hz"] = hz;
+                            for (const char* k : {"level_db", "p10_db", "p90_db", "baseline_median_db", "baseline_p10_db",
+                                                  "baseline_p90_db"})
+                                sp[k] = std::vector<double>(hz.size(), -40.0);
+                        }),
+         "report " + Q("f-pts.json") + " --html " + Q("r-pts.html"), 1, {"plotted values", "262144"}, "f-pts.json",
+         "r-pts.html", kQuickS},
+        {"report: spectrum frequencies that fall",
+         edited_finding("f-fall.json",
+                        [](nlohmann::json& j) {
+                            auto& hz = j["plots"]["spectrum"]["center_hz"];
+                            std::reverse(hz.begin(), hz.end());
+                        }),
+         "report " + Q("f-fall.json") + " --html " + Q("r-fall.html"), 1, {"center_hz", "do not increase"},
+         "f-fall.json", "r-fall.html", kQuickS},
+        {"report: a shaft speed of 1e-9 Hz on the envelope chart",
+         edited_finding("f-shaft.json", [](nlohmann::json& j) { j["plots"]["envelope_spectrum"]["shaft_hz"] = 1e-9; }),
+         "report " + Q("f-shaft.json") + " --html " + Q("r-shaft.html"), 1, {"shaft_hz", "2000 orders"},
+         "f-shaft.json", "r-shaft.html", kQuickS},
+        {"report: 1001 evidence sentences",
+         edited_finding("f-ev.json",
+                        [](nlohmann::json& j) { j["evidence"] = std::vector<std::string>(1001, "a sentence"); }),
+         "report " + Q("f-ev.json") + " --html " + Q("r-ev.html"), 1, {"evidence", "at most 1000"}, "f-ev.json",
+         "r-ev.html", kQuickS},
+        {"report: a comparison of 2000 indicators",
+         text_file("c-ind.json",
+                   [] {
+                       nlohmann::json c = {{"schema", "cavitas.compare/1"}, {"change", "improved"}, {"evidence", {"x"}}};
+                       c["indicators"] = std::vector<nlohmann::json>(2000, {{"key", "hf_band_level_db"}, {"shift", -3.0}});
+                       return c.dump();
+                   }()),
+         "report " + Q("c-ind.json") + " --html " + Q("r-cind.html"), 1, {"indicators", "at most 1000"}, "c-ind.json",
+         "r-cind.html", kQuickS},
+        {"report: a route summary line of 70 kB",
+         all({[] { fs::create_directories(at("rr-line")); },
+              text_file("rr-line/route.json", R"({"schema":"cavitas.route/1"})"),
+              text_file("rr-line/summary.jsonl", R"({"schema":"cavitas.route-row/1","line":2,"verdict":"normal","note":")" +
+                                                     std::string(70000, 'x') + "\"}\n")}),
+         "report " + Q("rr-line") + " --html " + Q("r-rline.html"), 1, {"summary.jsonl:1", "65536"},
+         "rr-line/summary.jsonl", "r-rline.html", kQuickS},
+        {"report: a route summary of 20 001 rows",
+         all({[] { fs::create_directories(at("rr-rows")); }, text_file("rr-rows/route.json", R"({"schema":"cavitas.route/1"})"),
+              text_file("rr-rows/summary.jsonl",
+                        [] {
+                            std::string t;
+                            for (int i = 1; i <= 20001; ++i)
+                                t += R"({"schema":"cavitas.route-row/1","line":)" + std::to_string(i + 1) +
+                                     R"(,"verdict":"normal"})" + "\n";
+                            return t;
+                        }())}),
+         "report " + Q("rr-rows") + " --html " + Q("r-rrows.html"), 1, {"more than 20000 rows"},
+         "rr-rows/summary.jsonl", "r-rrows.html", kQuickS},
+        {"report: a route summary naming a finding outside the folder",
+         all({[] { fs::create_directories(at("rr-out")); }, text_file("rr-out/route.json", R"({"schema":"cavitas.route/1"})"),
+              text_file("rr-out/summary.jsonl",
+                        R"({"schema":"cavitas.route-row/1","line":2,"machine":"P1","point":"A","verdict":"developed",)"
+                        R"("finding":"../ctl-finding.json"})"
+                        "\n")}),
+         "report " + Q("rr-out") + " --html " + Q("r-rout.html"), 1, {"finding", "findings/"}, "rr-out/summary.jsonl",
+         "r-rout.html", kQuickS},
+        // --- merge of a shard whose route.json was edited: the file and the field named, exit 1 (before: a JSON
+        // type error without the file, and a shard "2/0" reported as a bad --shard option, exit 2).
+        {"merge: a shard's route.json with \"baselines\": 8",
+         all({[] { fs::create_directories(at("sh-num")); },
+              text_file("sh-num/route.json",
+                        R"({"schema":"cavitas.route/1","shard":"1/1","manifest_rows":0,"baselines":8})"),
+              text_file("sh-num/summary.jsonl", "")}),
+         "merge --out " + Q("m-num") + " " + Q("sh-num"), 1, {"baselines"}, "sh-num/route.json", "m-num", kQuickS},
+        {"merge: a shard's route.json with \"shard\": \"2/0\"",
+         all({[] { fs::create_directories(at("sh-20")); },
+              text_file("sh-20/route.json", R"({"schema":"cavitas.route/1","shard":"2/0","manifest_rows":0})"),
+              text_file("sh-20/summary.jsonl", "")}),
+         "merge --out " + Q("m-20") + " " + Q("sh-20"), 1, {"field 'shard'"}, "sh-20/route.json", "m-20", kQuickS},
+
         // --- a sidecar of deeply nested keys or brackets: refused before the TOML parser recurses
         // (before: the stack overflowed, exit 139, and a route died with it).
         {"sidecar: 40 000 dotted key levels",
