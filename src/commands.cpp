@@ -16,6 +16,7 @@
 #include "models/machine.hpp"
 #include "models/quality.hpp"
 #include "src/atomic_file.hpp"
+#include "src/output_guard.hpp"
 #include "src/baseline_io.hpp"
 #include "src/plan_store.hpp"
 #include "src/report.hpp"
@@ -205,20 +206,17 @@ double sensor_limit(double sensor_max_hz, const std::string& mount) {
     return limit;
 }
 
-void refuse_overwriting_input(const std::string& out, const std::vector<std::string>& inputs) {
-    namespace fs = std::filesystem;
-    std::error_code ec;
-    // Fail before the analysis, not after it, when the output cannot be written.
-    fs::path dir = fs::path(out).parent_path();
-    if (dir.empty()) dir = ".";
-    if (!fs::is_directory(dir, ec)) throw InputError(out + ": cannot write: folder " + dir.string() + " does not exist");
-    if (fs::is_directory(out, ec)) throw InputError(out + ": cannot write: it is a directory");
-    for (const auto& in : inputs)
-        if (fs::exists(out, ec) && fs::equivalent(out, in, ec))
-            throw InputError(out + ": is one of the input files; refusing to overwrite it (choose another output path)");
-}
 
 }  // namespace
+
+// The files an operating point is read from (the --operating-point file, the
+// recording's sidecar, an NPSH3 curve either names), as inputs of the guard.
+void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags, const std::string& recording) {
+    if (flags.file) guard.input(*flags.file, "operating-point file");
+    if (!recording.empty()) guard.input(sidecar_path_for(recording), "sidecar of " + recording);
+    if (const auto duty = resolve_operating_point(flags, recording))
+        if (!duty->op.npsh3_curve_name.empty()) guard.input(duty->op.npsh3_curve_name, "NPSH3 curve");
+}
 
 namespace {
 
@@ -378,7 +376,16 @@ void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream&
     if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
     const std::string output = !o.output.empty() ? o.output : o.add_to.value_or("");
     if (output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
-    refuse_overwriting_input(output, o.recordings);
+    {
+        OutputGuard guard;
+        for (const auto& rec : o.recordings) {
+            guard.input(rec, "recording");
+            guard_operating_inputs(guard, o.operating, rec);
+        }
+        if (o.add_to && *o.add_to != output) guard.input(*o.add_to, "baseline added to");
+        if (given.from_store) guard.input(*given.from_store, "results store");
+        guard.output(output);
+    }
     std::optional<models::Baseline> earlier;
     if (o.add_to) earlier = read_baseline_file(*o.add_to);
     const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
@@ -521,9 +528,11 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
 
 void run_analyze(const AnalyzeOptions& o, std::ostream& out, std::ostream& err) {
     if (o.json_output) {
-        std::vector<std::string> inputs{o.recording, o.baseline};
-        if (o.operating.file) inputs.push_back(*o.operating.file);
-        refuse_overwriting_input(*o.json_output, inputs);
+        OutputGuard guard;
+        guard.input(o.recording, "recording");
+        guard.input(o.baseline, "baseline");
+        guard_operating_inputs(guard, o.operating, o.recording);
+        guard.output(*o.json_output);
     }
     const AnalyzeResult r = analyze(o, stderr_progress(o.recording, err));
     if (o.json_output) write_file_atomically(*o.json_output, finding_to_json(r, o.baseline).dump(2) + "\n");
@@ -536,9 +545,9 @@ void run_npsh(const NpshOptions& o, std::ostream& out) {
         throw UsageError("npsh: give the suction reading (--suction-pressure and --temperature) for a pump, or "
                          "--runner-setting and --net-head for a turbine; see 'cavitas npsh --help'");
     if (o.json_output) {
-        std::vector<std::string> inputs;
-        if (o.operating.file) inputs.push_back(*o.operating.file);
-        refuse_overwriting_input(*o.json_output, inputs);
+        OutputGuard guard;
+        guard_operating_inputs(guard, o.operating, "");
+        guard.output(*o.json_output);
     }
     const auto duty = resolve_operating_point(o.operating, "");
     const models::Hydraulics& h = duty->hydraulics;

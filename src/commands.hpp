@@ -16,6 +16,7 @@
 #include "models/operating_point.hpp"
 #include "src/errors.hpp"
 #include "src/operating_point_io.hpp"
+#include "src/output_guard.hpp"
 #include "src/recording.hpp"
 
 namespace cavitas::app {
@@ -67,6 +68,10 @@ struct ResolvedOperatingPoint {
 /// stated. Errors: UsageError for bad flags, InputError naming the file.
 std::optional<ResolvedOperatingPoint> resolve_operating_point(const OperatingPointFlags& flags,
                                                               const std::string& recording);
+
+/// Tell `guard` the files an operating point is read from: the --operating-point
+/// file, the recording's sidecar, the NPSH3 curve either names.
+void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags, const std::string& recording);
 
 struct BaselineOptions {
     std::string machine;

@@ -10,6 +10,7 @@
 
 #include "models/classifier.hpp"
 #include "src/atomic_file.hpp"
+#include "src/output_guard.hpp"
 #include "src/commands.hpp"
 #include "src/errors.hpp"
 #include "src/format.hpp"
@@ -1029,15 +1030,17 @@ Document document_from_text(const std::string& text, const std::string& origin, 
 void render_report(const ReportOptions& o, std::ostream& out) {
     if (!o.html && !o.pdf) throw UsageError("report: give --html OUT.html, --pdf OUT.pdf or both");
     if (o.paper != "a4" && o.paper != "letter") throw UsageError("--paper '" + o.paper + "': use a4 or letter");
-    for (const auto* p : {&o.html, &o.pdf})
-        if (*p) {
-            std::error_code ec;
-            fs::path dir = fs::path(**p).parent_path();
-            if (dir.empty()) dir = ".";
-            if (!fs::is_directory(dir, ec)) throw InputError(**p + ": cannot write: folder " + dir.string() + " does not exist");
-            if (fs::exists(**p, ec) && fs::exists(o.input, ec) && fs::equivalent(**p, o.input, ec))
-                throw InputError(**p + ": is the input; refusing to overwrite it");
-        }
+    {
+        OutputGuard guard;
+        std::error_code ec;
+        guard.input(o.input, "report input");
+        if (fs::is_directory(o.input, ec))  // a route folder: every file it holds is read or may be
+            for (auto it = fs::recursive_directory_iterator(o.input, ec); !ec && it != fs::recursive_directory_iterator();
+                 it.increment(ec))
+                if (it->is_regular_file(ec)) guard.input(it->path().string(), "file of the route folder");
+        for (const auto* p : {&o.html, &o.pdf})
+            if (*p) guard.output(**p);
+    }
     Document d;
     std::error_code ec;
     if (fs::is_directory(o.input, ec)) {
@@ -1045,17 +1048,16 @@ void render_report(const ReportOptions& o, std::ostream& out) {
     } else {
         d = document_from_text(read_text_file(o.input, "report input", kMaxDocumentBytes), o.input, o);
     }
-    if (o.html) {
-        write_file_atomically(*o.html, doc::to_html(d));
-        out << "report written to " << *o.html << "\n";
-    }
-    if (o.pdf) {
-        int pages = 0;
-        const std::string pdf = doc::to_pdf(d, o.paper == "letter" ? doc::Paper::letter : doc::Paper::a4, &pages);
-        write_file_atomically(*o.pdf, pdf);
+    // Both files or neither: a PDF that cannot be written leaves no new HTML behind.
+    StagedFiles files;
+    if (o.html) files.add(*o.html, doc::to_html(d));
+    int pages = 0;
+    if (o.pdf) files.add(*o.pdf, doc::to_pdf(d, o.paper == "letter" ? doc::Paper::letter : doc::Paper::a4, &pages));
+    files.commit();
+    if (o.html) out << "report written to " << *o.html << "\n";
+    if (o.pdf)
         out << "report written to " << *o.pdf << " (" << pages << " page" << (pages == 1 ? "" : "s") << ", "
             << (o.paper == "letter" ? "Letter" : "A4") << ")\n";
-    }
 }
 
 }  // namespace cavitas::app

@@ -51,20 +51,18 @@ std::string store_path_of(const std::optional<std::string>& store, const std::op
     throw UsageError(std::string(command) + ": give --store FILE or --baselines DIR (whose history.sqlite 'route' writes)");
 }
 
-void refuse_folder_missing(const std::string& out) {
-    std::error_code ec;
-    fs::path dir = fs::path(out).parent_path();
-    if (dir.empty()) dir = ".";
-    if (!fs::is_directory(dir, ec)) throw InputError(out + ": cannot write: folder " + dir.string() + " does not exist");
-    if (fs::is_directory(out, ec)) throw InputError(out + ": cannot write: it is a directory");
-}
 
 }  // namespace
 
 void run_trend(const TrendOptions& o, std::ostream& out) {
     const std::string path = store_path_of(o.store, o.baselines, "trend");
-    if (o.json_output) refuse_folder_missing(*o.json_output);
-    if (o.csv_output) refuse_folder_missing(*o.csv_output);
+    {
+        OutputGuard guard;
+        guard.input(path, "results store");
+        for (const char* suffix : {"-journal", "-wal", "-shm"}) guard.input(path + suffix, "results store's journal");
+        if (o.json_output) guard.output(*o.json_output);
+        if (o.csv_output) guard.output(*o.csv_output);
+    }
     std::error_code ec;
     if (!fs::exists(path, ec))
         throw InputError(path + ": no results store here yet (it is created by 'cavitas route')");
@@ -138,13 +136,24 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
         p["trend"] = t;
         doc["points"].push_back(p);
     }
-    if (o.json_output) write_file_atomically(*o.json_output, doc.dump(2) + "\n");
-    if (o.csv_output) write_file_atomically(*o.csv_output, csv);
+    StagedFiles files;
+    if (o.json_output) files.add(*o.json_output, doc.dump(2) + "\n");
+    if (o.csv_output) files.add(*o.csv_output, csv);
+    files.commit();
 }
 
 void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err*/) {
     if (o.before.empty() || o.after.empty()) throw UsageError("compare: give at least one --before and one --after recording");
-    if (o.json_output) refuse_folder_missing(*o.json_output);
+    if (o.json_output) {
+        OutputGuard guard;
+        guard.input(o.baseline, "baseline");
+        for (const auto* side : {&o.before, &o.after})
+            for (const auto& f : *side) {
+                guard.input(f, "recording");
+                guard_operating_inputs(guard, OperatingPointFlags{}, f);
+            }
+        guard.output(*o.json_output);
+    }
     struct Side {
         std::vector<AnalyzeResult> results;
         models::OperatingPointSummary duty;

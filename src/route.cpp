@@ -17,6 +17,7 @@
 #include <thread>
 
 #include "src/atomic_file.hpp"
+#include "src/output_guard.hpp"
 #include "src/commands.hpp"
 #include "src/csv.hpp"
 #include "src/errors.hpp"
@@ -86,6 +87,18 @@ json SummaryRow::to_json() const {
     return json(j);
 }
 
+bool is_finding_path(const std::string& path) {
+    const std::string prefix = "findings/", suffix = ".json";
+    if (path.size() <= prefix.size() + suffix.size() || path.compare(0, prefix.size(), prefix) != 0 ||
+        path.compare(path.size() - suffix.size(), suffix.size(), suffix) != 0)
+        return false;
+    const std::string name = path.substr(prefix.size());
+    if (name.size() > 255 || name.front() == '.') return false;
+    for (unsigned char c : name)
+        if (c == '/' || c == '\\' || c < 0x20 || c == 0x7f) return false;
+    return true;
+}
+
 SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
     try {
         if (!j.is_object() || get_str(j, "schema") != kSummarySchema)
@@ -126,6 +139,8 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
         r.sha256 = get_str(j, "sha256");
         r.baseline = get_str(j, "baseline");
         r.finding = get_str(j, "finding");
+        if (!r.finding.empty() && !is_finding_path(r.finding))
+            throw std::invalid_argument("'finding' is not findings/NAME.json inside the route folder");
         r.previous_datetime = get_str(j, "previous_datetime");
         r.previous_verdict = get_str(j, "previous_verdict");
         r.hf_rise_change_db = get_opt(j, "hf_rise_change_db");
@@ -229,7 +244,8 @@ SummaryRow start_row(const ManifestRow& m) {
     return r;
 }
 
-// One manifest row, start to finish. Never throws: a failure becomes the row's reason.
+// One manifest row, start to finish. A failure of the row's inputs becomes its
+// reason; only a finding that cannot be written throws.
 SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std::string& baselines,
                        const std::string& out_dir) {
     SummaryRow row = start_row(m);
@@ -241,6 +257,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
     if (!m.error.empty()) return fail(manifest.path + ":" + std::to_string(m.line) + ": " + m.error);
     const fs::path base = fs::path(baselines) / m.machine / (m.point + ".json");
     row.baseline = base.string();
+    std::string finding_text;
     try {
         std::error_code ec;
         if (!fs::exists(base, ec))
@@ -281,14 +298,15 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
             if (h.margin) row.margin_ratio = h.margin->ratio;
             row.agreement = models::to_string(r.operating->reading.agreement);
         }
-        const std::string name = finding_name(m);
-        write_file_atomically((fs::path(out_dir) / "findings" / name).string(),
-                              finding_to_json(r, base.string()).dump(2) + "\n");
-        row.finding = "findings/" + name;
-        return row;
+        finding_text = finding_to_json(r, base.string()).dump(2) + "\n";
     } catch (const std::exception& e) {
         return fail(e.what());
     }
+    // An output that cannot be written (a full disk) fails the run, not the row.
+    const std::string name = finding_name(m);
+    write_file_atomically((fs::path(out_dir) / "findings" / name).string(), finding_text);
+    row.finding = "findings/" + name;
+    return row;
 }
 
 // Worst first: developed, incipient, failed, indeterminate, normal at risk or
@@ -431,6 +449,32 @@ void prepare_out_dir(const std::string& out_dir) {
         throw InputError(out_dir + ": cannot create the output folder" + (ec ? ": " + ec.message() : std::string()));
 }
 
+void guard_store(OutputGuard& guard, const std::string& store) {
+    guard.input(store, "results store");
+    for (const char* suffix : {"-journal", "-wal", "-shm"}) guard.input(store + suffix, "results store's journal");
+}
+
+// Every file a route reads, against its output folder (whose contents are
+// replaced): the manifest, the baseline library, the store, each recording,
+// its sidecar and any NPSH3 curve a row names.
+void guard_route_inputs(const Manifest& manifest, const std::string& baselines, const std::string& store,
+                        const std::string& out_dir) {
+    OutputGuard guard;
+    guard.input(manifest.path, "route manifest");
+    guard.input(baselines, "baseline library");
+    if (!store.empty()) guard_store(guard, store);
+    for (const auto& r : manifest.rows) {
+        if (r.path.empty()) continue;
+        guard.input(r.path, "recording of manifest line " + std::to_string(r.line));
+        guard.input(sidecar_path_for(r.path), "sidecar of manifest line " + std::to_string(r.line));
+        for (const auto& [key, value] : r.operating)
+            if (key == "npsh3_curve" && !value.empty())
+                guard.input((fs::path(value).is_absolute() ? fs::path(value) : fs::path(manifest.dir) / value).string(),
+                            "NPSH3 curve of manifest line " + std::to_string(r.line));
+    }
+    guard.output_folder(out_dir);
+}
+
 }  // namespace
 
 Measurement to_measurement(const SummaryRow& r, const std::string& finding_json) {
@@ -503,9 +547,15 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     const Manifest manifest = read_manifest(o.manifest);
     const bool use_store = !o.no_store && !shard;
     const std::string store_path = o.store ? *o.store : (fs::path(o.baselines) / "history.sqlite").string();
+    guard_route_inputs(manifest, o.baselines, use_store ? store_path : std::string(), o.out_dir);
+    // Fail before the analysis, not after it: a store that is locked, read-only or not ours.
     std::unique_ptr<HistoryStore> store;
-    if (use_store) store = std::make_unique<HistoryStore>(store_path);  // fail before the analysis, not after
-    prepare_out_dir(o.out_dir);
+    if (use_store) {
+        store = std::make_unique<HistoryStore>(store_path);
+        store->check_writable();
+    }
+    StagedFolder staged(o.out_dir);
+    prepare_out_dir(staged.path());
 
     std::vector<const ManifestRow*> todo;
     for (const auto& r : manifest.rows)
@@ -522,11 +572,18 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     // every 200 ms.
     std::mutex done_mutex;
     std::condition_variable done_cv;
+    std::exception_ptr write_error;  // the first output that could not be written ends the run
     auto worker = [&] {
         for (;;) {
             const std::size_t i = next.fetch_add(1);
             if (i >= todo.size()) return;
-            rows[i] = analyse_row(*todo[i], manifest, o.baselines, o.out_dir);
+            try {
+                rows[i] = analyse_row(*todo[i], manifest, o.baselines, staged.path());
+            } catch (...) {
+                std::lock_guard<std::mutex> lock(done_mutex);
+                if (!write_error) write_error = std::current_exception();
+                next.store(todo.size());
+            }
             if (rows[i].failed()) failed.fetch_add(1);
             {
                 std::lock_guard<std::mutex> lock(done_mutex);
@@ -541,7 +598,9 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     for (;;) {
         {
             std::unique_lock<std::mutex> lock(done_mutex);
-            done_cv.wait_for(lock, std::chrono::milliseconds(200), [&] { return done.load() >= todo.size(); });
+            done_cv.wait_for(lock, std::chrono::milliseconds(200),
+                             [&] { return done.load() >= todo.size() || write_error; });
+            if (write_error) break;
         }
         if (done.load() >= todo.size()) break;
         if (!tty) continue;
@@ -554,6 +613,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     }
     for (auto& t : pool) t.join();
     if (tty) err << "\r" << std::string(78, ' ') << "\r" << std::flush;
+    if (write_error) std::rethrow_exception(write_error);
     const double elapsed = std::chrono::duration<double>(clock::now() - started).count();
 
     link_previous_visits(rows, store.get());
@@ -582,7 +642,12 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     run["finished_utc"] = utc_now();
     run["elapsed_s"] = elapsed;
     run["audio_s"] = audio_s;
-    write_summary_files(o.out_dir, rows, manifest.extra_columns, run);
+    // One unit: the summaries beside the findings, the store in one transaction,
+    // then the folder swapped in. A failure on the way leaves the old outputs whole.
+    write_summary_files(staged.path(), rows, manifest.extra_columns, run);
+    std::size_t added = 0, updated = 0;
+    if (store) added = import_rows(*store, rows, staged.path(), updated);
+    staged.commit();
 
     out << "route " << manifest.path << (shard ? " (shard " + *o.shard + ")" : std::string()) << ": " << rows.size()
         << " recording(s), " << analysed << " analysed, " << rows.size() - analysed << " failed ("
@@ -591,13 +656,8 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     out << "summary: " << (fs::path(o.out_dir) / "summary.csv").string() << ", "
         << (fs::path(o.out_dir) / "summary.jsonl").string() << "; findings in " << (fs::path(o.out_dir) / "findings").string()
         << "/\n";
-    if (store) {
-        std::size_t updated = 0;
-        const std::size_t added = import_rows(*store, rows, o.out_dir, updated);
-        out << "history: " << store_path << " (" << added << " new, " << updated << " already there and updated)\n";
-    } else if (shard) {
-        out << "history: not written by a shard; 'cavitas merge' writes it once all shards are done\n";
-    }
+    if (store) out << "history: " << store_path << " (" << added << " new, " << updated << " already there and updated)\n";
+    else if (shard) out << "history: not written by a shard; 'cavitas merge' writes it once all shards are done\n";
     return analysed == rows.size() ? 0 : 1;
 }
 
@@ -681,16 +741,25 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
         throw InputError(o.shard_dirs.front() + ": the shards hold " + std::to_string(rows.size()) + " rows, the manifest " +
                          std::to_string(manifest_rows));
 
-    prepare_out_dir(o.out_dir);
+    {
+        OutputGuard guard;
+        for (const auto& dir : o.shard_dirs) guard.input(dir, "shard folder");
+        if (!o.no_store && o.store) guard_store(guard, *o.store);
+        guard.output_folder(o.out_dir);
+    }
     std::unique_ptr<HistoryStore> store;
-    if (!o.no_store && o.store) store = std::make_unique<HistoryStore>(*o.store);
+    if (!o.no_store && o.store) {
+        store = std::make_unique<HistoryStore>(*o.store);
+        store->check_writable();
+    }
+    StagedFolder staged(o.out_dir);
+    prepare_out_dir(staged.path());
     std::vector<SummaryRow> merged;
     for (auto& [r, dir] : rows) {
-        if (!r.finding.empty()) {
-            const fs::path from = fs::path(dir) / r.finding, to = fs::path(o.out_dir) / r.finding;
-            if (fs::absolute(from) != fs::absolute(to))
-                write_file_atomically(to.string(), read_text_file(from.string(), "finding file"));
-        }
+        // from_json let through only findings/NAME.json: the copy stays inside both folders.
+        if (!r.finding.empty())
+            write_file_atomically((fs::path(staged.path()) / r.finding).string(),
+                                  read_text_file((fs::path(dir) / r.finding).string(), "finding file"));
         merged.push_back(std::move(r));
     }
     link_previous_visits(merged, store.get());
@@ -712,15 +781,14 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     run["failed"] = merged.size() - analysed;
     run["finished_utc"] = utc_now();
     run["audio_s"] = audio_s;
-    write_summary_files(o.out_dir, merged, extra_columns, run);
+    write_summary_files(staged.path(), merged, extra_columns, run);
+    std::size_t added = 0, updated = 0;
+    if (store) added = import_rows(*store, merged, staged.path(), updated);
+    staged.commit();
     out << "merged " << shard_count << " shard(s) of " << manifest_path << ": " << merged.size() << " recording(s), "
         << analysed << " analysed, " << merged.size() - analysed << " failed\n";
     print_attention(out, merged);
-    if (store) {
-        std::size_t updated = 0;
-        const std::size_t added = import_rows(*store, merged, o.out_dir, updated);
-        out << "history: " << *o.store << " (" << added << " new, " << updated << " already there and updated)\n";
-    }
+    if (store) out << "history: " << *o.store << " (" << added << " new, " << updated << " already there and updated)\n";
     return analysed == merged.size() ? 0 : 1;
 }
 

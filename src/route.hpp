@@ -22,6 +22,11 @@ namespace cavitas::app {
 inline constexpr const char* kSummarySchema = "cavitas.route-row/1";
 
 /// One row of summary.csv / one line of summary.jsonl.
+/// Whether a route row's `finding` is a file of the route folder's findings/
+/// ("findings/NAME.json", NAME one plain file name): what a reader of a
+/// summary may open or copy, never a path that leaves the folder.
+bool is_finding_path(const std::string& path);
+
 struct SummaryRow {
     std::size_t line = 0;          ///< manifest line
     std::string file;              ///< as in the manifest

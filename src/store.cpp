@@ -2,6 +2,8 @@
 
 #include <sqlite3.h>
 
+#include <unistd.h>
+
 #include <filesystem>
 
 #include "src/errors.hpp"
@@ -101,6 +103,11 @@ HistoryStore::~HistoryStore() { sqlite3_close(db_); }
 void HistoryStore::exec(const std::string& sql) const {
     char* err = nullptr;
     if (sqlite3_exec(db_, sql.c_str(), nullptr, nullptr, &err) != SQLITE_OK) {
+        const int code = sqlite3_errcode(db_) & 0xff;
+        if (code == SQLITE_BUSY || code == SQLITE_LOCKED) {
+            sqlite3_free(err);
+            throw InputError(locked_message());
+        }
         const std::string why = err ? err : sqlite3_errmsg(db_);
         sqlite3_free(err);
         throw InputError(path_ + ": results store: " + why);
@@ -109,8 +116,11 @@ void HistoryStore::exec(const std::string& sql) const {
 
 int HistoryStore::schema_version() const {
     Statement st;
-    if (sqlite3_prepare_v2(db_, "PRAGMA user_version", -1, &st.s, nullptr) != SQLITE_OK || sqlite3_step(st.s) != SQLITE_ROW)
+    if (sqlite3_prepare_v2(db_, "PRAGMA user_version", -1, &st.s, nullptr) != SQLITE_OK || sqlite3_step(st.s) != SQLITE_ROW) {
+        const int code = sqlite3_errcode(db_) & 0xff;
+        if (code == SQLITE_BUSY || code == SQLITE_LOCKED) throw InputError(locked_message());
         throw InputError(path_ + ": not a cavitas results store (" + sqlite3_errmsg(db_) + ")");
+    }
     const int v = sqlite3_column_int(st.s, 0);
     if (v == 0) {
         // A new file, or some other SQLite database: refuse one that has tables of its own.
@@ -120,6 +130,32 @@ int HistoryStore::schema_version() const {
             throw InputError(path_ + ": an SQLite database that is not a cavitas results store");
     }
     return v;
+}
+
+std::string HistoryStore::locked_message() const {
+    return path_ + ": the results store is locked by another program (another cavitas run, or an SQLite tool with it "
+                   "open); nothing was changed: run again when that program is done";
+}
+
+void HistoryStore::check_writable() const {
+    namespace fs = std::filesystem;
+    if (sqlite3_db_readonly(db_, "main") == 1)
+        throw InputError(path_ + ": the results store is read-only (its permissions); this run could not be added to "
+                                 "it: make it writable, name another with --store, or use --no-store");
+    fs::path dir = fs::path(path_).parent_path();
+    if (dir.empty()) dir = ".";
+    if (::access(dir.c_str(), W_OK) != 0)
+        throw InputError(path_ + ": the folder " + dir.string() + " is not writable, and SQLite writes its journal "
+                                 "beside the results store: make it writable, name another store with --store, or "
+                                 "use --no-store");
+    // A write lock taken and given back at once: another program holding the
+    // store is found now, not after the analysis.
+    if (sqlite3_exec(db_, "BEGIN IMMEDIATE", nullptr, nullptr, nullptr) != SQLITE_OK) {
+        const int code = sqlite3_errcode(db_) & 0xff;
+        if (code == SQLITE_BUSY || code == SQLITE_LOCKED) throw InputError(locked_message());
+        throw InputError(path_ + ": cannot write to the results store: " + sqlite3_errmsg(db_));
+    }
+    sqlite3_exec(db_, "ROLLBACK", nullptr, nullptr, nullptr);
 }
 
 void HistoryStore::begin() { exec("BEGIN IMMEDIATE"); }

@@ -58,6 +58,10 @@ public:
     bool upsert(const Measurement& m);
     void begin();
     void commit();
+    /// Throws InputError with the reason when this run could not write to the
+    /// store: read-only, its folder not writable (the journal), locked by
+    /// another program. Called before an analysis that ends in a write.
+    void check_writable() const;
 
     /// Every measurement of a machine (and point), oldest first within each point.
     std::vector<Measurement> history(const std::string& machine, const std::string& point = "") const;
@@ -67,6 +71,7 @@ public:
 
 private:
     void exec(const std::string& sql) const;
+    std::string locked_message() const;
     std::string path_;
     sqlite3* db_ = nullptr;
 };

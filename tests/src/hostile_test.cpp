@@ -506,6 +506,73 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         {"trend with a store that is a directory", [] { fs::create_directories(at("store-dir")); },
          "trend OW-P101 --store " + Q("store-dir"), 1, {"not a regular file"}, "store-dir", "", kQuickS},
 
+        // --- outputs that are inputs, devices, or named twice (one guard, every command) -----
+        // Before: each of these overwrote the input with exit 0; --json /dev/null (as root) replaced the device.
+        {"analyze --json onto the recording's sidecar",
+         all({copy_of("today.wav", "side1.wav"), text_file("side1.op.toml", "suction_pressure = \"35 kPa\"\ntemperature = \"20 C\"\n")}),
+         judge + good + " --json " + Q("side1.op.toml") + " " + Q("side1.wav"), 1, {"sidecar", "refusing to overwrite"},
+         "side1.op.toml", "side1.op.toml", kQuickS},
+        {"analyze --json onto the NPSH3 curve its sidecar names",
+         all({copy_of("today.wav", "side2.wav"), text_file("c2.npsh3.csv", "flow [m3/h], npsh3 [m]\n100, 2.0\n400, 3.5\n"),
+              text_file("side2.op.toml", "suction_pressure = \"35 kPa\"\ntemperature = \"20 C\"\nflow = \"300 m3/h\"\n"
+                                          "npsh3_curve = \"c2.npsh3.csv\"\n")}),
+         judge + good + " --json " + Q("c2.npsh3.csv") + " " + Q("side2.wav"), 1, {"NPSH3 curve", "refusing"},
+         "c2.npsh3.csv", "c2.npsh3.csv", kQuickS},
+        {"npsh --json onto its own --npsh3-curve", nothing,
+         "npsh --suction-pressure 35kPa --temperature 20C --flow 300m3/h --npsh3-curve " + Q("c2.npsh3.csv") +
+             " --json " + Q("c2.npsh3.csv"),
+         1, {"NPSH3 curve", "refusing"}, "c2.npsh3.csv", "c2.npsh3.csv", kQuickS},
+        {"baseline -o onto a recording's sidecar", nothing,
+         base_o + Q("side1.op.toml") + " " + Q("side1.wav"), 1, {"sidecar", "refusing"}, "side1.op.toml",
+         "side1.op.toml", kQuickS},
+        {"compare --json onto a recording", copy_of("good2.wav", "before.wav"),
+         "compare --baseline " + good + " --before " + Q("before.wav") + " --after " + today + " --json " +
+             Q("before.wav"),
+         1, {"recording", "refusing"}, "before.wav", "before.wav", kQuickS},
+        {"analyze --json through a link to the recording", [] { fs::create_symlink(at("today.wav"), at("link-to-today.json")); },
+         judge + good + " --json " + Q("link-to-today.json") + " " + today, 1, {"is the recording"},
+         "link-to-today.json", "today.wav", kQuickS},
+        {"analyze --json through a link to /dev/null", [] { fs::create_symlink("/dev/null", at("null-link.json")); },
+         judge + good + " --json " + Q("null-link.json") + " " + today, 1, {"character device"}, "null-link.json", "",
+         kQuickS},
+        {"route, then a store for the rows below", text_file("none.csv", "file,machine,point,channel,datetime,rpm,vanes\n"),
+         "route " + Q("none.csv") + " --baselines " + Q("lib") + " --store " + Q("h.sqlite") + " --out " + Q("r-none"),
+         0, {}, "", "h.sqlite"},
+        {"trend --json onto its own store", nothing,
+         "trend OW-P101 --store " + Q("h.sqlite") + " --json " + Q("h.sqlite"), 1, {"results store", "refusing"},
+         "h.sqlite", "h.sqlite", kQuickS},
+        {"report of a route folder onto its summary.jsonl", nothing,
+         "report " + Q("r-none") + " --html " + Q("r-none/summary.jsonl"), 1, {"route folder", "refusing"},
+         "r-none/summary.jsonl", "r-none/summary.jsonl", kQuickS},
+        {"report --html X --pdf X", nothing,
+         "report " + Q("ctl-finding.json") + " --html " + Q("twice.out") + " --pdf " + Q("twice.out"), 1,
+         {"named twice"}, "twice.out", "twice.out", kQuickS},
+        {"route --out the folder holding its manifest",
+         all({[] { fs::create_directories(at("holds")); }, text_file("holds/m.csv", "file,machine,point,channel,datetime,rpm,vanes\n")}),
+         "route " + Q("holds/m.csv") + " --baselines " + Q("lib") + " --no-store --out " + Q("holds"), 1,
+         {"holds", "route manifest"}, "holds", "holds/m.csv", kQuickS},
+        // Names up to the file system's 255 bytes are written (before: 248 and over were refused for the temporary name).
+        {"control: a 255-byte output name", nothing,
+         judge + good + " --json " + Q(std::string(250, 'n') + ".json") + " " + today, 0, {}, "",
+         std::string(250, 'n') + ".json"},
+        {"a 256-byte output name", nothing, judge + good + " --json " + Q(std::string(251, 'n') + ".json") + " " + today, 1,
+         {"255"}, std::string(251, 'n') + ".json", std::string(251, 'n') + ".json", kQuickS},
+
+        // --- merge trusts nothing in a shard's summary ------------------------------------------
+        {"merge of a shard whose finding path leaves the folder",
+         all({[] { fs::create_directories(at("sh-up")); },
+              text_file("sh-up/route.json", R"({"schema":"cavitas.route/1","shard":"1/1","manifest_sha256":"ab","manifest_rows":1,"extra_columns":[]})"),
+              text_file("sh-up/summary.jsonl", R"({"schema":"cavitas.route-row/1","line":2,"verdict":"normal","finding":"../x.txt"})" "\n"),
+              text_file("x.txt", "outside the output folder\n")}),
+         "merge --out " + Q("m-up") + " " + Q("sh-up"), 1, {"finding", "findings/NAME.json"},
+         "sh-up/summary.jsonl", "m-up", kQuickS},
+        {"merge of a shard whose finding path is absolute",
+         all({[] { fs::create_directories(at("sh-abs")); },
+              text_file("sh-abs/route.json", R"({"schema":"cavitas.route/1","shard":"1/1","manifest_sha256":"ab","manifest_rows":1,"extra_columns":[]})"),
+              text_file("sh-abs/summary.jsonl", R"({"schema":"cavitas.route-row/1","line":2,"verdict":"normal","finding":"/etc/passwd"})" "\n")}),
+         "merge --out " + Q("m-abs") + " " + Q("sh-abs"), 1, {"finding"}, "sh-abs/summary.jsonl", "m-abs",
+         kQuickS},
+
         // --- baselines ---------------------------------------------------------------------
         // Not there at all.
         {"missing baseline", nothing, judge + Q("absent.json") + " --json " + Q("j-absent.json") + " " + today, 1,
@@ -846,4 +913,5 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         if (row.status != 0) CHECK_FALSE(temp_leftover(out));
     }
     CHECK_FALSE(fs::exists(at("no-such-out")));
+    CHECK(slurp(at("x.txt")) == "outside the output folder\n");  // merge wrote nothing outside --out
 }

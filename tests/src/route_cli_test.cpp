@@ -5,6 +5,8 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <csignal>
+
 #include <algorithm>
 #include <filesystem>
 #include <fstream>
@@ -324,4 +326,183 @@ TEST_CASE("compare: a repair that removed cavitation is improved, a no-change pa
     CHECK(run("compare --baseline " + q(base) + " --before " + q(s.dir / "OW-P101_2026-09-07.wav") + " --after " +
               q(s.dir / "OW-P101_2026-09-07.wav"))
               .status == 2);
+}
+
+// --- faults: a route's outputs are one unit --------------------------------------------
+namespace {
+
+std::set<std::string> finding_files(const fs::path& out) {
+    std::set<std::string> names;
+    std::error_code ec;
+    for (const auto& e : fs::directory_iterator(out / "findings", ec)) names.insert(e.path().filename().string());
+    return names;
+}
+
+// Every finding a summary names is in the folder, and nothing else is.
+void check_consistent(const fs::path& out) {
+    std::set<std::string> named;
+    for (const auto& r : jsonl(out / "summary.jsonl"))
+        if (!r["finding"].get<std::string>().empty()) named.insert(fs::path(r["finding"].get<std::string>()).filename().string());
+    CHECK(named == finding_files(out));
+}
+
+// The demo route's first `rows` data rows, as a manifest of its own.
+fs::path first_rows(const std::string& name, std::size_t rows) {
+    const Site& s = site();
+    std::istringstream in(slurp(s.dir / "route.csv"));
+    std::string line, text;
+    for (std::size_t k = 0; k <= rows && std::getline(in, line); ++k) text += line + "\n";
+    const fs::path p = s.dir / name;
+    std::ofstream(p) << text;
+    return p;
+}
+
+}  // namespace
+
+TEST_CASE("route: killed midway, the earlier route's outputs stay whole, and a rerun is consistent", "[route][faults]") {
+    const Site& s = site();
+    const fs::path out = workdir() / "out-killed";
+    const fs::path a = first_rows("route-a.csv", 2);
+    // Every demo row, and each one twice, so the kill lands while findings are being written.
+    std::string b_text = slurp(s.dir / "route.csv");
+    {
+        std::istringstream in(b_text);
+        std::string line, rows;
+        std::getline(in, line);
+        while (std::getline(in, line)) rows += line + "\n";
+        b_text += rows + rows;
+    }
+    const fs::path b = s.dir / "route-b.csv";
+    std::ofstream(b) << b_text;
+    REQUIRE(run("route " + q(a) + " --baselines " + q(s.lib) + " --no-store --jobs 1 --out " + q(out)).status == 0);
+    std::ofstream(out / "notes.txt") << "the analyst's own file in the route folder\n";
+    const std::string a_summary = slurp(out / "summary.jsonl");
+    const auto a_findings = finding_files(out);
+    REQUIRE(a_findings.size() == 2);
+
+    // Route B into the same folder, killed once its first finding is written.
+    const pid_t pid = ::fork();
+    REQUIRE(pid >= 0);
+    if (pid == 0) {
+        const std::string cmd = "exec '" + std::string(CAVITAS_BIN) + "' route " + q(b) + " --baselines " + q(s.lib) +
+                                " --no-store --jobs 1 --out " + q(out) + " >/dev/null 2>&1";
+        ::execl("/bin/sh", "sh", "-c", cmd.c_str(), static_cast<char*>(nullptr));
+        ::_exit(127);
+    }
+    bool saw_staging = false;
+    for (int k = 0; k < 3000 && !saw_staging; ++k) {
+        for (const auto& e : fs::directory_iterator(workdir()))
+            if (e.path().filename().string().rfind(".out-killed.cavitas-", 0) == 0 && !finding_files(e.path()).empty())
+                saw_staging = true;
+        if (!saw_staging) ::usleep(5000);
+    }
+    ::kill(pid, SIGKILL);
+    int status = 0;
+    ::waitpid(pid, &status, 0);
+    REQUIRE(saw_staging);
+    REQUIRE(WIFSIGNALED(status));
+    // The folder is route A's, whole: its summary, its findings, the analyst's file.
+    CHECK(slurp(out / "summary.jsonl") == a_summary);
+    CHECK(finding_files(out) == a_findings);
+    CHECK(fs::exists(out / "notes.txt"));
+    check_consistent(out);
+
+    // Run again to the end: B's outputs, consistent, the analyst's file kept, A's other findings gone.
+    const Run r = run("route " + q(b) + " --baselines " + q(s.lib) + " --no-store --jobs 2 --out " + q(out));
+    INFO(r.err);
+    CHECK(r.status == 0);
+    CHECK(jsonl(out / "summary.jsonl").size() == 21);
+    check_consistent(out);
+    CHECK(slurp(out / "notes.txt") == "the analyst's own file in the route folder\n");
+}
+
+TEST_CASE("route: a full disk leaves the earlier outputs whole and names what failed", "[route][faults]") {
+    if (::geteuid() != 0) {
+        WARN("skipped: mounting a small tmpfs to fill needs root");
+        return;
+    }
+    const Site& s = site();
+    const fs::path disk = workdir() / "small-disk";
+    fs::create_directories(disk);
+    if (std::system(("mount -t tmpfs -o size=4m tmpfs " + q(disk) + " 2>/dev/null").c_str()) != 0) {
+        WARN("skipped: this machine does not let root mount a tmpfs (a container without CAP_SYS_ADMIN)");
+        return;
+    }
+    struct Unmount {
+        fs::path at;
+        ~Unmount() { std::system(("umount " + q(at)).c_str()); }
+    } unmount{disk};
+    const fs::path out = disk / "out";
+    const fs::path a = first_rows("route-disk.csv", 2);
+    REQUIRE(run("route " + q(a) + " --baselines " + q(s.lib) + " --no-store --out " + q(out)).status == 0);
+    const fs::path finding = out / "findings" / *finding_files(out).begin();
+    const Run old_report = run("report " + q(finding) + " --html " + q(disk / "old.html"));
+    INFO(old_report.err);
+    REQUIRE(old_report.status == 0);
+    const std::string a_summary = slurp(out / "summary.jsonl"), a_csv = slurp(out / "summary.csv"),
+                      a_route = slurp(out / "route.json"), old_html = slurp(disk / "old.html");
+    // Fill the disk, leaving a few kilobytes: enough to start, not to finish.
+    std::system(("dd if=/dev/zero of=" + q(disk / "filler") + " bs=4k 2>/dev/null; rm -f " + q(disk / "filler") +
+                 "; dd if=/dev/zero of=" + q(disk / "filler") + " bs=1k count=$(( $(df --output=avail -k " + q(disk) +
+                 " | tail -1) - 12 )) 2>/dev/null")
+                    .c_str());
+
+    const Run r = run("route " + q(first_rows("route-disk-b.csv", 4)) + " --baselines " + q(s.lib) +
+                      " --no-store --out " + q(out));
+    INFO(r.out << r.err);
+    CHECK(r.status == 1);
+    CHECK(r.err.find("No space left on device") != std::string::npos);
+    CHECK(slurp(out / "summary.jsonl") == a_summary);
+    CHECK(slurp(out / "summary.csv") == a_csv);
+    CHECK(slurp(out / "route.json") == a_route);
+    check_consistent(out);
+    for (const auto& e : fs::directory_iterator(disk)) CHECK(e.path().filename().string().find(".cavitas-") == std::string::npos);
+
+    // A report of an HTML and a PDF: neither is written when one cannot be.
+    const Run rep = run("report " + q(finding) + " --html " + q(disk / "old.html") + " --pdf " + q(disk / "new.pdf"));
+    CHECK(rep.status == 1);
+    CHECK(rep.err.find("No space left on device") != std::string::npos);
+    CHECK(slurp(disk / "old.html") == old_html);
+    CHECK_FALSE(fs::exists(disk / "new.pdf"));
+}
+
+TEST_CASE("route: a locked or read-only store is found before the analysis, with the right words", "[route][faults]") {
+    const Site& s = site();
+    const fs::path store = workdir() / "locked.sqlite";
+    const fs::path a = first_rows("route-lock.csv", 1);
+    REQUIRE(run("route " + q(a) + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                q(workdir() / "out-lock")).status == 0);
+    {
+        cavitas::app::HistoryStore holder(store.string());
+        holder.begin();  // a write lock held by "another program"
+        const Run r = run("route " + q(a) + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                          q(workdir() / "out-lock2"));
+        INFO(r.err);
+        CHECK(r.status == 1);
+        CHECK(r.err.find("locked by another program") != std::string::npos);
+        CHECK(r.err.find("not a cavitas results store") == std::string::npos);
+        CHECK_FALSE(fs::exists(workdir() / "out-lock2"));
+        holder.commit();
+    }
+    // Read-only: root ignores permissions, so the run is made as an unprivileged user then.
+    fs::permissions(store, fs::perms::owner_read | fs::perms::group_read | fs::perms::others_read);
+    std::string as_user;
+    if (::geteuid() == 0) {
+        if (std::system("command -v setpriv >/dev/null 2>&1") != 0) {
+            WARN("skipped the read-only store: running as root without setpriv to drop privileges");
+            return;
+        }
+        fs::permissions(workdir(), fs::perms::all);
+        as_user = "--reuid=65534 --regid=65534 --clear-groups ";
+    }
+    const std::string cmd = (as_user.empty() ? std::string() : "setpriv " + as_user) + "'" + CAVITAS_BIN + "' route " +
+                            q(a) + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                            q(workdir() / "out-ro") + " >" + q(workdir() / "ro.out") + " 2>" + q(workdir() / "ro.err");
+    const int rc = std::system(cmd.c_str());
+    const std::string err = slurp(workdir() / "ro.err");
+    INFO(err);
+    CHECK(WIFEXITED(rc));
+    CHECK(WEXITSTATUS(rc) == 1);
+    CHECK(err.find("read-only") != std::string::npos);
+    CHECK_FALSE(fs::exists(workdir() / "out-ro"));
 }
