@@ -8,7 +8,8 @@
 # Needs the demo's outputs (tools/demo.sh BUILD_DIR) and python3.
 # corpus/report/          the demo's findings and comparison, one-line copies, and
 #                         edits: short or empty arrays, zero, negative and falling
-#                         frequencies, missing keys, arrays past the report's limits.
+#                         frequencies, missing keys, arrays past the report's limits;
+#                         the demo route's summary (fuzz_report's route mode).
 # corpus/merge/           the demo route's summary.jsonl (whole and cut in two shards),
 #                         a failed row, a row without a finding, and a route.json of
 #                         its own after a line "%%route.json%%" (see fuzz_merge.cpp).
@@ -86,6 +87,15 @@ with open(rep + "schema_only_finding.json", "w") as f:
 with open(rep + "schema_only_compare.json", "w") as f:
     f.write('{"schema":"cavitas.compare/1"}')
 
+# report, route mode: the demo route's summary with "schema" first (fuzz_report.cpp)
+def schema_first(line):
+    d = json.loads(line)
+    return json.dumps(dict([("schema", d.pop("schema"))] + list(d.items())), separators=(",", ":"))
+with open(demo + "/route/summary.jsonl") as f:
+    route_rows = [schema_first(l) for l in f.read().splitlines()]
+with open(rep + "route_summary_7_rows.jsonl", "w") as f:
+    f.write("\n".join(route_rows) + "\n")
+
 # merge: summary lines (with the harness's route.json, or one of their own)
 mg = corpus + "/merge/"
 with open(demo + "/route/summary.jsonl") as f:
@@ -96,6 +106,10 @@ def write(name, text):
 write("summary_7_rows.jsonl", "\n".join(lines) + "\n")
 write("summary_shard_1_of_2.jsonl", "\n".join(lines[0::2]) + "\n")
 write("summary_one_row.jsonl", lines[0] + "\n")
+# The fewest keys a row needs: the finding's path is a larger share of the input to mutate.
+write("summary_minimal_row.jsonl", json.dumps({"schema": "cavitas.route-row/1", "line": 2, "verdict": "normal",
+                                               "finding": "findings/L000002_OW-P101_DE-H.json"},
+                                              separators=(",", ":")) + "\n")
 row = json.loads(lines[1])
 row.update(verdict="error", reason="not a readable recording", finding="")
 write("summary_failed_row.jsonl", lines[0] + "\n" + json.dumps(row, separators=(",", ":")) + "\n")

@@ -824,6 +824,20 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
                         "\n")}),
          "report " + Q("rr-out") + " --html " + Q("r-rout.html"), 1, {"finding", "findings/"}, "rr-out/summary.jsonl",
          "r-rout.html", kQuickS},
+        // Reported fine (exit 0): before, the history chart's date ticks never ended (1e300 + 365 days is
+        // 1e300 again) and filled the memory (found with fuzz_report's route mode).
+        {"report: a route whose two visits of a point are 1e300 days apart",
+         all({[] { fs::create_directories(at("rr-days")); },
+              text_file("rr-days/route.json", R"({"schema":"cavitas.route/1"})"),
+              text_file("rr-days/summary.jsonl",
+                        R"({"schema":"cavitas.route-row/1","line":2,"machine":"P1","point":"A","verdict":"normal",)"
+                        R"("sha256":"aa","hf_rise_db":0.5,"days":-1e300})"
+                        "\n"
+                        R"({"schema":"cavitas.route-row/1","line":3,"machine":"P1","point":"A","verdict":"normal",)"
+                        R"("sha256":"bb","hf_rise_db":1.5,"days":1e300})"
+                        "\n")}),
+         "report " + Q("rr-days") + " --html " + Q("r-rdays.html"), 0, {}, "", "r-rdays.html", kQuickS},
+
         // --- merge of a shard whose route.json was edited: the file and the field named, exit 1 (before: a JSON
         // type error without the file, and a shard "2/0" reported as a bad --shard option, exit 2).
         {"merge: a shard's route.json with \"baselines\": 8",
