@@ -568,6 +568,8 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          "r-latin1/summary.jsonl"},
         {"analyze --json of a recording with a Latin-1 name", copy_of("today.wav", "caf\xE9.wav"),
          judge + good + " --json " + Q("j-latin1.json") + " " + Q("caf\xE9.wav"), 0, {}, "", "j-latin1.json"},
+        {"baseline from a recording with a Latin-1 name", nothing,
+         base_o + Q("o-latin1.json") + " " + Q("caf\xE9.wav") + " " + Q("good2.wav"), 0, {}, "", "o-latin1.json"},
         // A spreadsheet's "Unicode text": UTF-16 with a byte-order mark (before: "lacks the columns").
         {"route manifest in UTF-16",
          [] {
