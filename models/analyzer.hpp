@@ -158,6 +158,7 @@ struct RecordingAnalysis {
     double mean_squared_envelope = 0.0;
     std::vector<KurtogramRow> kurtogram_map;
     double full_scale = 0.0;       ///< |x| of a full-scale sample in signal units (0 = unknown, float files)
+    double quantum = 0.0;          ///< quantisation step of an integer file, signal units (0 = float or unknown)
 };
 
 /// Where an analyzer's time went, in seconds of wall time per stage (for

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "models/text.hpp"
 
@@ -85,7 +86,27 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
                                        : std::string("the signal is flat (zero AC rms): the input is stuck; check the sensor, "
                                                      "cable and input channel and record again")));
 
-    const double clipped = static_cast<double>(std::max(q.at_full_scale, q.flat_top_samples(0.99))) / n;
+    // Coarse quantisation (an 8-bit file, or a low signal in any integer file):
+    // runs of equal samples are steps of the scale, not flat tops or dropouts.
+    const double steps = a.quantum > 0.0 ? q.max_abs / a.quantum : std::numeric_limits<double>::infinity();
+    const bool coarse = steps < L.resolution_warn_steps;
+    if (coarse) {
+        const int bits = static_cast<int>(std::lround(std::log2(a.full_scale / a.quantum))) + 1;
+        QualityCheck c{"resolution", "steps", steps, L.resolution_warn_steps, L.resolution_fail_steps, CheckStatus::warn,
+                       fmt("the signal's peaks reach only %.0f steps of this %d-bit file's scale: the quantisation "
+                           "noise is within about 30 dB of the signal; raise the input gain or record with more bits",
+                           steps, bits)};
+        if (steps < L.resolution_fail_steps) {
+            c.status = CheckStatus::fail;
+            c.message = fmt("the signal's peaks reach only %.0f steps of this %d-bit file's scale: the high-frequency "
+                            "band is quantisation noise, and runs of equal samples are steps of the scale, not "
+                            "clipping or dropouts; raise the input gain (a smaller range) or record with 16 or 24 bits",
+                            steps, bits);
+        }
+        r.checks.push_back(c);
+    }
+    const double clipped =
+        static_cast<double>(coarse ? q.at_full_scale : std::max(q.at_full_scale, q.flat_top_samples(0.99))) / n;
     r.checks.push_back(graded(
         "clipping", "share", clipped, L.clipped_warn, L.clipped_fail,
         fmt("%.3f %% of samples are at full scale or flat-topped at the record's extremes: peaks may be clipped; "
@@ -95,7 +116,7 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
             "reduce the input range (or the sensor's sensitivity) and record again",
             100.0 * clipped)));
 
-    const double dropout = static_cast<double>(q.dropout_samples) / n;
+    const double dropout = coarse ? 0.0 : static_cast<double>(q.dropout_samples) / n;
     r.checks.push_back(graded("dropouts", "share", dropout, L.dropout_warn, L.dropout_fail,
                               fmt("%.2f %% of the record is stuck at one value (runs of 5 ms or more): brief dropouts; "
                                   "check the cable and connector",

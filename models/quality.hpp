@@ -29,6 +29,12 @@ struct QualityLimits {
     /// Share of the record in dropouts (runs of equal samples of 5 ms or more).
     /// Our choice: warn at 0.1 %, fail at 1 %; an all-zero record always fails.
     double dropout_warn = 1e-3, dropout_fail = 1e-2;
+    /// Resolution: the record's largest |x| in quantisation steps of an integer
+    /// file. Peaks of k steps with a crest factor near 3.5 put the signal about
+    /// 20 log10(k) dB over the quantisation noise (step / sqrt(12), rms).
+    /// Our choice: fail under 8 steps (about 18 dB), warn under 32 (about 30 dB);
+    /// below 32, runs of equal samples are not judged as flat tops or dropouts.
+    double resolution_fail_steps = 8.0, resolution_warn_steps = 32.0;
     /// DC offset as a share of full scale (PCM files): an AC-coupled (IEPE)
     /// sensor should show none; a large one means a bias or cable fault and eats
     /// the input range. Our choice: warn at 2 %, fail at 20 %.

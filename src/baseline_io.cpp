@@ -27,13 +27,30 @@ double num(const json& j, const char* key, const std::string& where) {
     return v;
 }
 
+// No indicator cavitas computes comes near these (dB levels, kurtosis, rates,
+// ratios); within them, a z-score or a power 10^(dB/10) stays finite (a median
+// of 1.7e308 once made z infinite, written as null).
+constexpr double kIndicatorLimit = 1e9;
+constexpr double kLevelLimitDb = 1000.0;
+
+double indicator(const json& j, const char* key, const std::string& where, double limit = kIndicatorLimit) {
+    const double v = num(j, key, where);
+    if (std::fabs(v) > limit) {
+        std::ostringstream m;
+        m << where << ": '" << key << "' = " << v << " is outside -" << limit << " .. " << limit
+          << ", beyond any value of this indicator";
+        throw InputError(m.str());
+    }
+    return v;
+}
+
 RobustStat stat_from(const json& j, const std::string& where) {
     if (!j.is_object()) throw InputError(where + ": expected an object of statistics");
     RobustStat s;
-    s.median = num(j, "median", where);
-    s.sigma = num(j, "sigma", where);
-    s.p10 = num(j, "p10", where);
-    s.p90 = num(j, "p90", where);
+    s.median = indicator(j, "median", where);
+    s.sigma = indicator(j, "sigma", where);
+    s.p10 = indicator(j, "p10", where);
+    s.p90 = indicator(j, "p90", where);
     const double c = num(j, "count", where);
     if (!(c >= 0 && c <= 1e12)) throw InputError(where + ": count is outside 0 .. 1e12");
     s.count = static_cast<std::size_t>(c);
@@ -164,13 +181,16 @@ std::string str(const json& j, const char* key, const std::string& where) {
     return j.at(key).get<std::string>();
 }
 
-std::vector<double> finite_array(const json& j, const std::string& where, std::size_t max) {
+std::vector<double> finite_array(const json& j, const std::string& where, std::size_t max,
+                                 double limit = kIndicatorLimit) {
     if (!j.is_array()) throw InputError(where + ": expected an array of numbers");
     if (j.size() > max) throw InputError(where + ": more than " + std::to_string(max) + " values");
     std::vector<double> v;
     for (const auto& x : j) {
         if (!x.is_number() || !std::isfinite(x.get<double>()))
             throw InputError(where + ": holds a value that is not a finite number");
+        if (std::fabs(x.get<double>()) > limit)
+            throw InputError(where + ": holds " + std::to_string(x.get<double>()) + ", beyond any value it can take");
         v.push_back(x.get<double>());
     }
     return v;
@@ -201,9 +221,9 @@ BaselineSource source_from(const json& e, const std::string& origin) {
     if (!rv.is_object()) throw InputError(w + ": 'recording_values' is not an object");
     for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i) {
         const std::string name(info(static_cast<RecordingIndicator>(i)).name);
-        src.recording[i] = num(rv, name.c_str(), w);
+        src.recording[i] = indicator(rv, name.c_str(), w);
     }
-    if (e.contains("spectrum_median_db")) src.spectrum_median_db = finite_array(e["spectrum_median_db"], w, 10000);
+    if (e.contains("spectrum_median_db")) src.spectrum_median_db = finite_array(e["spectrum_median_db"], w, 10000, kLevelLimitDb);
     return src;
 }
 
@@ -308,15 +328,9 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
         const std::string wsp = origin + " (spectrum)";
         if (!sp.is_object()) throw InputError(wsp + ": expected an object");
         auto arr = [&](const char* key) {
-            std::vector<double> v;
             if (!sp.contains(key) || !sp[key].is_array()) throw InputError(wsp + ": missing array '" + key + "'");
-            if (sp[key].size() > 10000) throw InputError(wsp + ": '" + key + "' is too long");
-            for (const auto& x : sp[key]) {
-                if (!x.is_number() || !std::isfinite(x.get<double>()))
-                    throw InputError(wsp + ": '" + key + "' holds a value that is not a finite number");
-                v.push_back(x.get<double>());
-            }
-            return v;
+            return finite_array(sp[key], wsp + " (" + key + ")", 10000,
+                                std::string(key) == "center_hz" ? kIndicatorLimit : kLevelLimitDb);
         };
         b.spectrum.center_hz = arr("center_hz");
         b.spectrum.median_db = arr("median_db");

@@ -17,6 +17,7 @@
 #include "models/quality.hpp"
 #include "src/atomic_file.hpp"
 #include "src/output_guard.hpp"
+#include "src/plain_text.hpp"
 #include "src/baseline_io.hpp"
 #include "src/plan_store.hpp"
 #include "src/report.hpp"
@@ -70,6 +71,7 @@ models::RecordingAnalysis analyze_source(AudioSource& source, const models::Anal
     }
     try {
         models::RecordingAnalysis a = analyzer.finish();
+        a.quantum = info.quantum();
         // For developers: where the time went (DEVELOPERS.md, "Where the time goes").
         if (const char* e = std::getenv("CAVITAS_STAGE_TIMES"); e && e[0] && e[0] != '0') {
             auto ms = [](clock::duration d) { return 1e3 * std::chrono::duration<double>(d).count(); };
@@ -484,7 +486,7 @@ void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream&
         throw InputError("baseline not written (--strict): " + std::to_string(b.warnings.size()) +
                          " problem(s) with the recordings:" + all);
     }
-    write_file_atomically(output, baseline_to_json(b).dump(2) + "\n");
+    write_file_atomically(output, json_text(baseline_to_json(b), 2) + "\n");
     write_baseline_summary(out, output, b, stated.size());
 }
 
@@ -535,7 +537,7 @@ void run_analyze(const AnalyzeOptions& o, std::ostream& out, std::ostream& err) 
         guard.output(*o.json_output);
     }
     const AnalyzeResult r = analyze(o, stderr_progress(o.recording, err));
-    if (o.json_output) write_file_atomically(*o.json_output, finding_to_json(r, o.baseline).dump(2) + "\n");
+    if (o.json_output) write_file_atomically(*o.json_output, json_text(finding_to_json(r, o.baseline), 2) + "\n");
     write_summary(out, r, o.baseline);
 }
 
@@ -560,7 +562,7 @@ void run_npsh(const NpshOptions& o, std::ostream& out) {
                          *h.margin_unavailable);
     if (o.json_output) {
         nlohmann::json j = npsh_to_json(*duty);
-        write_file_atomically(*o.json_output, j.dump(2) + "\n");
+        write_file_atomically(*o.json_output, json_text(j, 2) + "\n");
     }
     write_npsh_account(out, *duty);
 }

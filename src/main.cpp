@@ -12,6 +12,7 @@
 
 #include "src/commands.hpp"
 #include "src/errors.hpp"
+#include "src/plain_text.hpp"
 #include "src/plan_store.hpp"
 #include "src/units.hpp"
 #include "src/report_options.hpp"
@@ -58,7 +59,6 @@ std::string one_line(const std::string& s) {
     for (char c : s) {
         if (c == '\n') o += "\\n";
         else if (c == '\r') o += "\\r";
-        else if (static_cast<unsigned char>(c) < 0x20) o += '?';
         else o += c;
     }
     return o;
@@ -131,6 +131,8 @@ void heap_in_huge_pages() {
 }  // namespace
 
 int main(int argc, char** argv) {
+    // Text from file names, manifests and notes reaches the terminal escaped (src/plain_text.hpp).
+    const TerminalText terminal_out(std::cout), terminal_err(std::cerr);
     // Keep freed buffers in the heap for the next recording instead of handing
     // them back to the kernel: an analyzer allocates some 15 MB of DSP buffers,
     // and a route that returned them after every recording would fault them in

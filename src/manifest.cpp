@@ -22,7 +22,8 @@ std::optional<std::string> unusable_as_file_name(const std::string& tag) {
         if (c == '/' || c == '\\') return "cannot hold '/' or '\\' (it names a file of the baseline library)";
         if (c < 0x20 || c == 0x7f) return "holds a control character";
     }
-    if (tag.size() > 200) return "is longer than 200 characters";
+    // Two tags and a line number name a finding file (L000012_MACHINE_POINT.json): 100 + 100 bytes fit NAME_MAX.
+    if (tag.size() > 100) return "is longer than 100 bytes";
     return std::nullopt;
 }
 
@@ -31,10 +32,13 @@ namespace {
 const std::vector<std::string> kRequired = {"file", "machine", "point", "channel", "datetime", "rpm", "vanes"};
 const std::vector<std::string> kSensor = {"full_scale", "mount", "sensor_max_hz"};
 
-std::string trim(std::string s) {
-    while (!s.empty() && std::isspace(static_cast<unsigned char>(s.back()))) s.pop_back();
-    while (!s.empty() && std::isspace(static_cast<unsigned char>(s.front()))) s.erase(s.begin());
-    return s;
+// Linear in the cell's length (a cell of a million blanks took 23 s when each was erased from the front).
+std::string trim(const std::string& s) {
+    const auto blank = [](unsigned char c) { return std::isspace(c) != 0; };
+    std::size_t b = 0, e = s.size();
+    while (b < e && blank(static_cast<unsigned char>(s[b]))) ++b;
+    while (e > b && blank(static_cast<unsigned char>(s[e - 1]))) --e;
+    return s.substr(b, e - b);
 }
 
 bool is_operating_key(const std::string& k) {

@@ -286,6 +286,13 @@ void SndfileSource::adopt(void* handle, const SF_INFO& sfi, int channel) {
     info_.format = describe_format(sfi.format);
     const int sub = sfi.format & SF_FORMAT_SUBMASK;
     info_.is_float = sub == SF_FORMAT_FLOAT || sub == SF_FORMAT_DOUBLE;
+    switch (sub) {
+        case SF_FORMAT_PCM_S8: case SF_FORMAT_PCM_U8: info_.pcm_bits = 8; break;
+        case SF_FORMAT_PCM_16: info_.pcm_bits = 16; break;
+        case SF_FORMAT_PCM_24: info_.pcm_bits = 24; break;
+        case SF_FORMAT_PCM_32: info_.pcm_bits = 32; break;
+        default: info_.pcm_bits = 0; break;
+    }
     interleaved_.resize(kBlockFrames * static_cast<std::size_t>(sfi.channels));
     const int major = sfi.format & SF_FORMAT_TYPEMASK, endian = sfi.format & SF_FORMAT_ENDMASK;
     raw16_ = sub == SF_FORMAT_PCM_16 && (major == SF_FORMAT_WAV || major == SF_FORMAT_WAVEX) &&

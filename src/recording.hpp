@@ -10,6 +10,7 @@
 #include <cstdint>
 #include <memory>
 #include <span>
+#include <cmath>
 #include <string>
 #include <vector>
 
@@ -27,10 +28,13 @@ struct RecordingInfo {
     std::size_t frames = 0;       ///< as stated in the header
     std::string format;           ///< e.g. "WAV PCM 16-bit"
     bool is_float = false;        ///< float/double file: no fixed full scale
+    int pcm_bits = 0;             ///< bits of a linear integer encoding (8, 16, 24, 32); 0 = float, companded or lossy
     Calibration calibration;
     double duration_s() const { return fs_hz > 0.0 ? static_cast<double>(frames) / fs_hz : 0.0; }
     /// |x| of a full-scale sample in engineering units (0 for float files).
     double full_scale_value() const { return is_float ? 0.0 : calibration.full_scale; }
+    /// One step of the integer scale in engineering units (0 when not a linear integer encoding).
+    double quantum() const { return pcm_bits > 0 ? calibration.full_scale / std::ldexp(1.0, pcm_bits - 1) : 0.0; }
 };
 
 class AudioSource {

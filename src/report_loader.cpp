@@ -1,6 +1,8 @@
-// run_report: finds cavitas-report.so beside the running executable (or in
-// ../lib/cavitas for an installed layout), checks that it was built with this
-// cavitas, and runs it. See report_options.hpp for why it is a module.
+// run_report: finds cavitas-report.so beside the running executable (the build
+// tree) or, for an installed cavitas, in its private library folder relative to
+// the executable (CAVITAS_REPORT_MODULE_RELDIR, from the install directories:
+// ../lib/cavitas, ../lib/<multiarch>/cavitas, ...), checks that it was built
+// with this cavitas, and runs it. See report_options.hpp for why it is a module.
 #include <dlfcn.h>
 #include <unistd.h>
 
@@ -11,6 +13,10 @@
 
 #include "src/errors.hpp"
 #include "src/report_options.hpp"
+
+#ifndef CAVITAS_REPORT_MODULE_RELDIR
+#error "CAVITAS_REPORT_MODULE_RELDIR (the module's install folder relative to the executable's) is set by src/CMakeLists.txt"
+#endif
 
 namespace cavitas::app {
 
@@ -38,7 +44,7 @@ fs::path executable_folder() {
 Module load() {
     const fs::path here = executable_folder();
     if (here.empty()) throw InputError(std::string("report: cannot find the folder of the cavitas executable to load ") + kModuleName);
-    const fs::path candidates[] = {here / kModuleName, here / ".." / "lib" / "cavitas" / kModuleName};
+    const fs::path candidates[] = {here / kModuleName, here / CAVITAS_REPORT_MODULE_RELDIR / kModuleName};
     std::string tried;
     for (const fs::path& p : candidates) {
         std::error_code ec;
@@ -62,7 +68,8 @@ Module load() {
         return Module{run};  // stays loaded until the process ends
     }
     throw InputError(std::string("report: the report renderer ") + kModuleName +
-                     " was not found (looked for " + tried + "); it is built beside the cavitas executable");
+                     " was not found (looked in " + tried + "); it is built beside the cavitas executable and installed in " +
+                     CAVITAS_REPORT_MODULE_RELDIR + " relative to it: rebuild or reinstall cavitas");
 }
 
 }  // namespace

@@ -11,6 +11,8 @@
 #include "models/compare.hpp"
 #include "models/trend.hpp"
 #include "src/atomic_file.hpp"
+#include "src/output_guard.hpp"
+#include "src/plain_text.hpp"
 #include "src/csv.hpp"
 #include "src/errors.hpp"
 #include "src/format.hpp"
@@ -137,7 +139,7 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
         doc["points"].push_back(p);
     }
     StagedFiles files;
-    if (o.json_output) files.add(*o.json_output, doc.dump(2) + "\n");
+    if (o.json_output) files.add(*o.json_output, json_text(doc, 2) + "\n");
     if (o.csv_output) files.add(*o.csv_output, csv);
     files.commit();
 }
@@ -340,7 +342,7 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
             plots["hf_segments_db"] = {{"before", hf_segments(before)}, {"after", hf_segments(after)}};
             j["plots"] = plots;
         }
-        write_file_atomically(*o.json_output, j.dump(2) + "\n");
+        write_file_atomically(*o.json_output, json_text(j, 2) + "\n");
     }
 }
 

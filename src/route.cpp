@@ -18,6 +18,7 @@
 
 #include "src/atomic_file.hpp"
 #include "src/output_guard.hpp"
+#include "src/plain_text.hpp"
 #include "src/commands.hpp"
 #include "src/csv.hpp"
 #include "src/errors.hpp"
@@ -298,7 +299,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
             if (h.margin) row.margin_ratio = h.margin->ratio;
             row.agreement = models::to_string(r.operating->reading.agreement);
         }
-        finding_text = finding_to_json(r, base.string()).dump(2) + "\n";
+        finding_text = json_text(finding_to_json(r, base.string()), 2) + "\n";
     } catch (const std::exception& e) {
         return fail(e.what());
     }
@@ -401,11 +402,11 @@ void write_summary_files(const std::string& out_dir, const std::vector<SummaryRo
     std::string jsonl;
     for (const auto& r : rows) {
         csv += csv_line(summary_cells(r));
-        jsonl += r.to_json().dump() + "\n";
+        jsonl += json_text(r.to_json()) + "\n";
     }
     write_file_atomically((fs::path(out_dir) / "summary.csv").string(), csv);
     write_file_atomically((fs::path(out_dir) / "summary.jsonl").string(), jsonl);
-    write_file_atomically((fs::path(out_dir) / "route.json").string(), run.dump(2) + "\n");
+    write_file_atomically((fs::path(out_dir) / "route.json").string(), json_text(run, 2) + "\n");
 }
 
 std::size_t import_rows(HistoryStore& store, const std::vector<SummaryRow>& rows, const std::string& out_dir,

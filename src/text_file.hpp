@@ -9,8 +9,9 @@
 namespace cavitas::app {
 
 /// `what` names the kind of file in errors ("baseline file", "NPSH3 curve").
-/// Throws InputError: no such file, a directory, not a regular file, larger
-/// than max_bytes, unreadable.
+/// UTF-16 text (with a byte-order mark, or ASCII with every other byte zero)
+/// comes back as UTF-8. Throws InputError: no such file, a directory, not a
+/// regular file, larger than max_bytes, unreadable, a NUL byte (binary data).
 std::string read_text_file(const std::string& path, const std::string& what, std::size_t max_bytes = 64u << 20);
 
 }  // namespace cavitas::app

@@ -60,6 +60,9 @@ Calibration parse_full_scale(const std::string& text) {
         throw UsageError("--full-scale '" + text + "': unknown unit '" + unit +
                          "' (use g, m/s2, Pa, kPa or FS)");
     }
+    // The range a baseline file may hold (baseline_io): what is learned can be read back.
+    if (!(c.full_scale >= 1e-12 && c.full_scale <= 1e12))
+        throw UsageError("--full-scale '" + text + "': outside 1e-12 .. 1e12 " + c.unit + "; no sensor spans that");
     return c;
 }
 

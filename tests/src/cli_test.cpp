@@ -458,7 +458,8 @@ TEST_CASE("analyze reads the NPSH margin beside the verdict and flags disagreeme
 
 TEST_CASE("report: without its renderer module beside the executable, a clear error and nothing written",
           "[cli][report]") {
-    // The report renderer is cavitas-report.so beside the executable (src/report_options.hpp).
+    // The report renderer is cavitas-report.so beside the executable, or in the
+    // installed layout's library folder (src/report_loader.cpp).
     const fs::path lone = workdir() / "lone-bin";
     fs::create_directories(lone);
     fs::copy_file(CAVITAS_BIN, lone / "cavitas", fs::copy_options::overwrite_existing);
@@ -470,6 +471,10 @@ TEST_CASE("report: without its renderer module beside the executable, a clear er
     INFO(r.err);
     CHECK(r.status == 1);
     CHECK(r.err.find("cavitas-report.so was not found") != std::string::npos);
+    // Both places are named: beside the executable, and the installed layout's library folder.
+    CHECK(r.err.find((lone / "cavitas-report.so").string()) != std::string::npos);
+    CHECK(r.err.find((workdir() / "lib").string() + "/") != std::string::npos);
+    CHECK(r.err.find("/cavitas/cavitas-report.so") != std::string::npos);
     CHECK(!fs::exists(html));
     // Beside the real executable it loads (the same input is then judged on its content).
     const Run real = run("report '" + finding.string() + "' --html '" + html.string() + "'");

@@ -558,6 +558,74 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
         {"a 256-byte output name", nothing, judge + good + " --json " + Q(std::string(251, 'n') + ".json") + " " + today, 1,
          {"255"}, std::string(251, 'n') + ".json", std::string(251, 'n') + ".json", kQuickS},
 
+        // --- text that is not what it claims: encodings, NULs, control characters, sizes -------------
+        // Before: one Latin-1 byte in a passed-through cell killed the run in the JSON writer (no summary).
+        {"route with a Latin-1 byte in a passed-through cell",
+         all({[] { fs::create_directories(at("lib/OW-P101")); }, copy_of("good.json", "lib/OW-P101/DE-H.json"),
+              text_file("latin1.csv", "file,machine,point,channel,datetime,rpm,vanes,remark\n"
+                                      "today.wav,OW-P101,DE-H,0,2026-11-02T08:00,1485,7,caf\xE9 au lait\n")}),
+         "route " + Q("latin1.csv") + " --baselines " + Q("lib") + " --no-store --out " + Q("r-latin1"), 0, {}, "",
+         "r-latin1/summary.jsonl"},
+        {"analyze --json of a recording with a Latin-1 name", copy_of("today.wav", "caf\xE9.wav"),
+         judge + good + " --json " + Q("j-latin1.json") + " " + Q("caf\xE9.wav"), 0, {}, "", "j-latin1.json"},
+        {"baseline from a recording with a Latin-1 name", nothing,
+         base_o + Q("o-latin1.json") + " " + Q("caf\xE9.wav") + " " + Q("good2.wav"), 0, {}, "", "o-latin1.json"},
+        // A spreadsheet's "Unicode text": UTF-16 with a byte-order mark (before: "lacks the columns").
+        {"route manifest in UTF-16",
+         [] {
+             const std::string text = "file,machine,point,channel,datetime,rpm,vanes\r\n"
+                                      "today.wav,OW-P101,DE-H,0,2026-11-02T08:00,1485,7\r\n";
+             std::string b = "\xFF\xFE";
+             for (char c : text) b += std::string{c, '\0'};
+             spit(at("utf16.csv"), b);
+         },
+         "route " + Q("utf16.csv") + " --baselines " + Q("lib") + " --no-store --out " + Q("r-utf16"), 0, {}, "",
+         "r-utf16/summary.jsonl"},
+        {"route manifest with a NUL byte in a file cell",
+         text_file("nul.csv", std::string("file,machine,point,channel,datetime,rpm,vanes\ntoday.wav\0evil.wav,OW-P101,DE-H,0,"
+                                          "2026-11-02T08:00,1485,7\n", 89)),
+         "route " + Q("nul.csv") + " --baselines " + Q("lib") + " --no-store --out " + Q("r-nul"), 1,
+         {":2: holds a NUL byte"}, "nul.csv", "r-nul", kQuickS},
+        // 1.6 MB of blanks before a cell's value took 23 s (each blank erased from the front); now linear.
+        {"route manifest cell with 1.6 MB of leading blanks",
+         text_file("blanks.csv", "file,machine,point,channel,datetime,rpm,vanes\ntoday.wav,OW-P101," +
+                                     std::string(1600000, ' ') + "DE-H,0,2026-11-02T08:00,1485,7\n"),
+         "route " + Q("blanks.csv") + " --baselines " + Q("lib") + " --no-store --out " + Q("r-blanks"), 0, {}, "",
+         "r-blanks/summary.jsonl"},
+        // A control character in a file name reaches the terminal escaped, not as a command to it.
+        {"ESC in a file name", nothing, judge + good + " " + Q("n\x1B[31mo.wav"), 1, {"n\\x1B[31mo.wav", "no such"}, "", ""},
+        // A 100 000-character work order took 44 s to lay out; a header field is a line.
+        {"report --work-order of 100 000 characters", nothing,
+         "report " + Q("ctl-finding.json") + " --work-order " + std::string(100000, 'W') + " --html " + Q("wo.html"), 2,
+         {"--work-order", "at most 200"}, "", "wo.html", kQuickS},
+        // An 8-bit file whose signal spans a step or two: quantisation, not overload or dropouts.
+        {"8-bit recording reaching 1 step of the scale",
+         [] {
+             SF_INFO info{};
+             info.samplerate = kRate;
+             info.channels = 1;
+             info.format = SF_FORMAT_WAV | SF_FORMAT_PCM_U8;
+             SNDFILE* f = sf_open(at("quiet8.wav").c_str(), SFM_WRITE, &info);
+             REQUIRE(f != nullptr);
+             std::mt19937 gen(8u);
+             std::normal_distribution<float> noise(0.0f, 0.004f);
+             std::vector<float> x(static_cast<std::size_t>(kRate) * kSeconds);
+             for (auto& v : x) v = noise(gen);
+             sf_writef_float(f, x.data(), static_cast<sf_count_t>(x.size()));
+             sf_close(f);
+         },
+         base_o + Q("o-quiet8.json") + " " + Q("quiet8.wav"), 1, {"steps of this 8-bit file", "not clipping or dropouts"},
+         "quiet8.wav", "o-quiet8.json"},
+        // What a baseline cannot be read back with is refused when learning (before: written, then refused by analyze).
+        {"baseline --full-scale 1e30g", nothing, "baseline --rpm 1485 --full-scale 1e30g -o " + Q("u-fs30.json") + " " +
+         Q("good1.wav"), 2, {"1e-12 .. 1e12"}, "", "u-fs30.json", kQuickS},
+        // A median near the largest double made z infinite (written as null, against the finding schema).
+        {"baseline with an indicator median of 1.7e308",
+         edited_baseline("median-huge.json",
+                         [](nlohmann::json& j) { j["segment_indicators"].begin().value()["median"] = 1.7e308; }),
+         judge + Q("median-huge.json") + " --json " + Q("j-median-huge.json") + " " + today, 1, {"beyond any value"},
+         "median-huge.json", "j-median-huge.json", kQuickS},
+
         // --- merge trusts nothing in a shard's summary ------------------------------------------
         {"merge of a shard whose finding path leaves the folder",
          all({[] { fs::create_directories(at("sh-up")); },
@@ -928,4 +996,17 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
     }
     CHECK_FALSE(fs::exists(at("no-such-out")));
     CHECK(slurp(at("x.txt")) == "outside the output folder\n");  // merge wrote nothing outside --out
+    // The Latin-1 cell and file name come out as UTF-8, the bad byte replaced (U+FFFD).
+    CHECK(contains(slurp(at("r-latin1/summary.jsonl")), "caf\xEF\xBF\xBD au lait"));
+    CHECK(contains(slurp(at("j-latin1.json")), "caf\xEF\xBF\xBD.wav"));
+    CHECK(contains(slurp(at("r-utf16/summary.jsonl")), "\"verdict\""));
+    // No raw ESC reached the terminal.
+    const Run esc = run(judge + good + " " + Q("n\x1B[31mo.wav"));
+    CHECK_FALSE(contains(esc.err, "\x1B"));
+    // Tags longer than a file name allows fail their row before any analysis, not after it.
+    spit(at("longtag.csv"), "file,machine,point,channel,datetime,rpm,vanes\ntoday.wav,OW-P101," + std::string(150, 'P') +
+                                ",0,2026-11-02T08:00,1485,7\n");
+    const Run tag = run("route " + Q("longtag.csv") + " --baselines " + Q("lib") + " --no-store --out " + Q("r-longtag"));
+    CHECK(tag.status == 1);
+    CHECK(contains(slurp(at("r-longtag/summary.jsonl")), "longer than 100 bytes"));
 }
