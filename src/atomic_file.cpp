@@ -103,6 +103,11 @@ StagedFolder::StagedFolder(const std::string& target) : target_(target) {
     std::error_code ec;
     fs::path t = fs::path(target).lexically_normal();
     if (t.filename().empty()) t = t.parent_path();
+    // A link to a folder: the folder it names is swapped, and the link stays.
+    if (fs::is_symlink(t, ec)) {
+        const fs::path real = fs::canonical(t, ec);
+        if (!ec) t = real;
+    }
     fs::path parent = t.parent_path();
     if (parent.empty()) parent = ".";
     if (!fs::is_directory(parent, ec))
