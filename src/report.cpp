@@ -2,6 +2,7 @@
 
 #include "src/baseline_io.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdio>
 #include <ostream>
@@ -11,6 +12,15 @@
 #include "src/format.hpp"
 
 namespace cavitas::app {
+
+void thin_by_largest(std::vector<double>& amplitude, double& bin_hz, std::size_t max_points) {
+    while (amplitude.size() > max_points && max_points > 0) {
+        for (std::size_t k = 0; 2 * k < amplitude.size(); ++k)
+            amplitude[k] = std::max(amplitude[2 * k], 2 * k + 1 < amplitude.size() ? amplitude[2 * k + 1] : 0.0);
+        amplitude.resize((amplitude.size() + 1) / 2);
+        bin_hz *= 2.0;
+    }
+}
 
 using nlohmann::json;
 using models::Verdict;
@@ -86,14 +96,17 @@ json plots_to_json(const AnalyzeResult& r) {
         spectrum["hf_low_hz"] = a.setup.hf.low_hz;
         spectrum["hf_high_hz"] = a.setup.hf.high_hz;
     }
+    std::vector<double> envelope = a.envelope_spectrum;
+    double envelope_bin_hz = a.envelope_bin_hz;
+    thin_by_largest(envelope, envelope_bin_hz, kEnvelopePointsWritten);
     json rows = json::array();
     for (const auto& kr : a.kurtogram_map)
         rows.push_back({{"level", kr.level}, {"bandwidth_hz", kr.bandwidth_hz}, {"mean", kr.mean}});
     return {
         {"spectrum", spectrum},
         {"envelope_spectrum",
-         {{"bin_hz", a.envelope_bin_hz},
-          {"amplitude", a.envelope_spectrum},
+         {{"bin_hz", envelope_bin_hz},
+          {"amplitude", envelope},
           {"mean_squared_envelope", a.mean_squared_envelope},
           {"shaft_hz", a.rpm > 0.0 ? models::shaft_hz(a.rpm) : 0.0},
           {"bpf_hz", a.rpm > 0.0 && a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0}}},

@@ -1,8 +1,10 @@
 // Presenting a finding: a short summary for a person, JSON for other tools.
 #pragma once
 
+#include <cstddef>
 #include <iosfwd>
 #include <string>
+#include <vector>
 
 #include <nlohmann/json.hpp>
 
@@ -32,5 +34,13 @@ void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty);
 /// What `baseline` prints of the operating point it was learned at.
 void write_operating_point_summary(std::ostream& out, const models::OperatingPointSummary& s, std::size_t stated,
                                    std::size_t recordings);
+
+/// The envelope spectrum as a finding keeps it for reports: at most this many
+/// lines (long segments and a high blade-pass frequency give more; a report
+/// reads at most 65 536 values an array).
+inline constexpr std::size_t kEnvelopePointsWritten = 16384;
+/// Halves the bins, each pair merged by its larger amplitude (so a line is never
+/// lost) and bin_hz doubled, until at most max_points remain.
+void thin_by_largest(std::vector<double>& amplitude, double& bin_hz, std::size_t max_points);
 
 }  // namespace cavitas::app

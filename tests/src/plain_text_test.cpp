@@ -3,7 +3,9 @@
 // UTF-8 Byte Sequences"); the sequences below are its boundary cases.
 #include <catch2/catch.hpp>
 
+#include <algorithm>
 #include <string>
+#include <vector>
 
 #include <nlohmann/json.hpp>
 
@@ -61,3 +63,4 @@ TEST_CASE("json_text writes text that is not UTF-8 with replacements instead of 
     CHECK(json_text(j) == "{\"file\":\"caf" + kFffd + ".wav\"}");
     CHECK(nlohmann::json::parse(json_text(j, 2))["file"] == "caf" + kFffd + ".wav");
 }
+
