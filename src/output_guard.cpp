@@ -63,6 +63,11 @@ void OutputGuard::input(const std::string& path, const std::string& role) {
     inputs_.push_back(std::move(in));
 }
 
+void OutputGuard::input_store(const std::string& path) {
+    input(path, "results store");
+    for (const char* suffix : {"-journal", "-wal", "-shm"}) input(path + suffix, "results store's journal");
+}
+
 void OutputGuard::output(const std::string& path) {
     if (path.empty()) throw UsageError("an output path is empty; name a file");
     const fs::path p(path);

@@ -17,6 +17,8 @@ public:
     /// A file or folder the command reads. Paths that do not exist are ignored
     /// (the command's own reader names them). `role` is said in the refusal.
     void input(const std::string& path, const std::string& role);
+    /// The results store (SQLite) with the journal files SQLite keeps beside it.
+    void input_store(const std::string& path);
     /// A file the command will write: throws InputError naming the path and the
     /// reason when it may not be written. Checks its folder exists, its name
     /// fits the file system, and it is not an input, a device, a folder or an

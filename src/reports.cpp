@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <initializer_list>
 #include <filesystem>
 #include <map>
 #include <ostream>
@@ -779,12 +780,8 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     // The evidence for each point that needs attention now.
     for (const auto* r : latest) {
         if (!(r->verdict == "developed" || r->verdict == "incipient") || r->finding.empty()) continue;
-        // Only a file inside the folder's findings/ (what route writes): the summary may have been edited.
-        const fs::path rel = fs::path(r->finding).lexically_normal();
-        if (rel.is_absolute() || *rel.begin() != "findings" || !rel.has_filename() || rel == "findings")
-            throw InputError((fs::path(folder) / "summary.jsonl").string() + ":" + std::to_string(r->line) +
-                             ": field 'finding' is not a file in the folder's findings/");
-        const std::string fpath = (fs::path(folder) / rel).string();
+        // SummaryRow::from_json took only findings/NAME.json: a file inside the folder.
+        const std::string fpath = (fs::path(folder) / r->finding).string();
         const json f = checked_finding(read_json_file(fpath, "finding file", kMaxDocumentBytes), fpath);
         d.blocks.push_back(doc::make(Kind::page_break));
         d.heading("Evidence: " + r->machine + " " + r->point + ", " + r->datetime.substr(0, 16));
@@ -920,6 +917,18 @@ void check_table(const json& j, const char* key, const std::string& origin) {
 
 constexpr double kMaxHz = 1e9;  // frequencies drawn: far above any sample rate cavitas reads (5 MHz)
 
+// A band plot: rising frequencies (center_hz), arrays of one value a frequency (the
+// required ones must be there), and the HF band's edges.
+void check_band_plot(const json& j, const std::string& where, std::initializer_list<const char*> required,
+                     std::initializer_list<const char*> optional, const std::string& origin, PointBudget& budget) {
+    const std::size_t n = number_array(j, "center_hz", origin, where, budget, Values::increasing);
+    for (const char* k : required)
+        same_length(n, number_array(j, k, origin, where, budget), origin, where + "." + k, true);
+    for (const char* k : optional)
+        same_length(n, number_array(j, k, origin, where, budget, Values::any, false), origin, where + "." + k);
+    for (const char* k : {"hf_low_hz", "hf_high_hz"}) checked_number(j, k, origin, where + "." + k, 0.0, kMaxHz);
+}
+
 const json& checked_finding(const json& f, const std::string& origin) {
     static const std::set<std::string> verdicts{"normal", "incipient", "developed", "indeterminate"};
     if (!f.is_object()) bad(origin, "schema", "belongs to a document that is not an object");
@@ -941,14 +950,8 @@ const json& checked_finding(const json& f, const std::string& origin) {
     PointBudget budget;
     const json& sp = field(plots, "spectrum");
     if (sp.is_object() && sp.contains("center_hz")) {
-        const std::size_t n = number_array(sp, "center_hz", origin, "plots.spectrum", budget, Values::increasing);
-        same_length(n, number_array(sp, "level_db", origin, "plots.spectrum", budget), origin, "plots.spectrum.level_db",
-                    true);
-        for (const char* k : {"p10_db", "p90_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"})
-            same_length(n, number_array(sp, k, origin, "plots.spectrum", budget, Values::any, false), origin,
-                        std::string("plots.spectrum.") + k);
-        for (const char* k : {"hf_low_hz", "hf_high_hz"})
-            checked_number(sp, k, origin, std::string("plots.spectrum.") + k, 0.0, kMaxHz);
+        check_band_plot(sp, "plots.spectrum", {"level_db"},
+                        {"p10_db", "p90_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"}, origin, budget);
     }
     const json& es = field(plots, "envelope_spectrum");
     if (es.is_object()) {
@@ -999,12 +1002,9 @@ const json& checked_comparison(const json& c, const std::string& origin) {
     const json& plots = field(c, "plots");
     if (plots.is_object() && plots.contains("center_hz")) {
         PointBudget budget;
-        const std::size_t n = number_array(plots, "center_hz", origin, "plots", budget, Values::increasing);
-        for (const char* k : {"before_db", "after_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"})
-            same_length(n, number_array(plots, k, origin, "plots", budget, Values::any, false), origin,
-                        std::string("plots.") + k);
-        for (const char* k : {"hf_low_hz", "hf_high_hz"})
-            checked_number(plots, k, origin, std::string("plots.") + k, 0.0, kMaxHz);
+        check_band_plot(plots, "plots", {},
+                        {"before_db", "after_db", "baseline_median_db", "baseline_p10_db", "baseline_p90_db"}, origin,
+                        budget);
         const json& seg = field(plots, "hf_segments_db");
         if (seg.is_object()) {
             number_array(seg, "before", origin, "plots.hf_segments_db", budget);

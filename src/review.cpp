@@ -60,8 +60,7 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
     const std::string path = store_path_of(o.store, o.baselines, "trend");
     {
         OutputGuard guard;
-        guard.input(path, "results store");
-        for (const char* suffix : {"-journal", "-wal", "-shm"}) guard.input(path + suffix, "results store's journal");
+        guard.input_store(path);
         if (o.json_output) guard.output(*o.json_output);
         if (o.csv_output) guard.output(*o.csv_output);
     }

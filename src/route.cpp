@@ -450,11 +450,6 @@ void prepare_out_dir(const std::string& out_dir) {
         throw InputError(out_dir + ": cannot create the output folder" + (ec ? ": " + ec.message() : std::string()));
 }
 
-void guard_store(OutputGuard& guard, const std::string& store) {
-    guard.input(store, "results store");
-    for (const char* suffix : {"-journal", "-wal", "-shm"}) guard.input(store + suffix, "results store's journal");
-}
-
 // Every file a route reads, against its output folder (whose contents are
 // replaced): the manifest, the baseline library, the store, each recording,
 // its sidecar and any NPSH3 curve a row names.
@@ -463,7 +458,7 @@ void guard_route_inputs(const Manifest& manifest, const std::string& baselines, 
     OutputGuard guard;
     guard.input(manifest.path, "route manifest");
     guard.input(baselines, "baseline library");
-    if (!store.empty()) guard_store(guard, store);
+    if (!store.empty()) guard.input_store(store);
     for (const auto& r : manifest.rows) {
         if (r.path.empty()) continue;
         guard.input(r.path, "recording of manifest line " + std::to_string(r.line));
@@ -745,7 +740,7 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     {
         OutputGuard guard;
         for (const auto& dir : o.shard_dirs) guard.input(dir, "shard folder");
-        if (!o.no_store && o.store) guard_store(guard, *o.store);
+        if (!o.no_store && o.store) guard.input_store(*o.store);
         guard.output_folder(o.out_dir);
     }
     std::unique_ptr<HistoryStore> store;
