@@ -10,14 +10,14 @@
 #include <iostream>
 #include <sstream>
 
-#include "src/commands.hpp"
-#include "src/errors.hpp"
-#include "src/plain_text.hpp"
-#include "src/plan_store.hpp"
-#include "src/units.hpp"
-#include "src/report_options.hpp"
-#include "src/review.hpp"
-#include "src/route.hpp"
+#include "src/commands/commands.hpp"
+#include "src/io/errors.hpp"
+#include "src/output/plain_text.hpp"
+#include "src/io/plan_store.hpp"
+#include "src/io/units.hpp"
+#include "src/report/report_options.hpp"
+#include "src/commands/review.hpp"
+#include "src/route/route.hpp"
 
 using namespace cavitas::app;
 
@@ -131,7 +131,7 @@ void heap_in_huge_pages() {
 }  // namespace
 
 int main(int argc, char** argv) {
-    // Text from file names, manifests and notes reaches the terminal escaped (src/plain_text.hpp).
+    // Text from file names, manifests and notes reaches the terminal escaped (src/output/plain_text.hpp).
     const TerminalText terminal_out(std::cout), terminal_err(std::cerr);
     // Keep freed buffers in the heap for the next recording instead of handing
     // them back to the kernel: an analyzer allocates some 15 MB of DSP buffers,
@@ -341,7 +341,7 @@ int main(int argc, char** argv) {
         return rc == 0 ? 0 : static_cast<int>(ExitCode::usage_error);
     }
     // The FFT plans this run made are kept for the next one, however it ends
-    // (src/plan_store.hpp; nothing happens when no recording was analysed).
+    // (src/io/plan_store.hpp; nothing happens when no recording was analysed).
     struct SavePlans {
         ~SavePlans() { save_fft_plans(); }
     } save_plans;

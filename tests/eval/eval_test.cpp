@@ -21,7 +21,7 @@
 #include <vector>
 
 #include "models/classifier.hpp"
-#include "src/commands.hpp"
+#include "src/analysis/analysis.hpp"
 #include "tests/support/evalset.hpp"
 
 using namespace cavitas;

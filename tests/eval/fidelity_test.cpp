@@ -26,7 +26,7 @@
 
 #include "models/baseline.hpp"
 #include "models/classifier.hpp"
-#include "src/commands.hpp"
+#include "src/analysis/analysis.hpp"
 #include "tests/support/evalset.hpp"
 
 namespace models = cavitas::models;

@@ -21,8 +21,8 @@
 #include <vector>
 
 #include "models/calibration.hpp"
-#include "src/baseline_io.hpp"
-#include "src/commands.hpp"
+#include "src/io/baseline_io.hpp"
+#include "src/commands/commands.hpp"
 #include "tests/support/evalset.hpp"
 
 namespace fs = std::filesystem;

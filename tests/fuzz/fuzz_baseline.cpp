@@ -23,8 +23,8 @@
 #include <nlohmann/json.hpp>
 
 #include "models/baseline.hpp"
-#include "src/baseline_io.hpp"
-#include "src/errors.hpp"
+#include "src/io/baseline_io.hpp"
+#include "src/io/errors.hpp"
 
 namespace {
 

@@ -17,8 +17,8 @@
 #include <string>
 
 #include "models/hydraulics.hpp"
-#include "src/errors.hpp"
-#include "src/operating_point_io.hpp"
+#include "src/io/errors.hpp"
+#include "src/io/operating_point_io.hpp"
 
 namespace {
 

@@ -13,9 +13,9 @@
 
 #include <nlohmann/json.hpp>
 
-#include "src/errors.hpp"
-#include "src/manifest.hpp"
-#include "src/route.hpp"
+#include "src/io/errors.hpp"
+#include "src/io/manifest.hpp"
+#include "src/route/route.hpp"
 
 namespace {
 

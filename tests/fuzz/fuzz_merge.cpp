@@ -30,8 +30,8 @@
 
 #include <nlohmann/json.hpp>
 
-#include "src/errors.hpp"
-#include "src/route.hpp"
+#include "src/io/errors.hpp"
+#include "src/route/route.hpp"
 
 namespace fs = std::filesystem;
 

@@ -14,8 +14,8 @@
 #include <string>
 
 #include "models/operating_point.hpp"
-#include "src/errors.hpp"
-#include "src/operating_point_io.hpp"
+#include "src/io/errors.hpp"
+#include "src/io/operating_point_io.hpp"
 
 namespace {
 

@@ -19,9 +19,9 @@
 #include <vector>
 
 #include "models/analyzer.hpp"
-#include "src/commands.hpp"
-#include "src/errors.hpp"
-#include "src/recording.hpp"
+#include "src/commands/commands.hpp"
+#include "src/io/errors.hpp"
+#include "src/io/recording.hpp"
 
 namespace {
 

@@ -21,10 +21,10 @@
 #include <filesystem>
 #include <fstream>
 
-#include "src/document.hpp"
-#include "src/errors.hpp"
-#include "src/report_options.hpp"
-#include "src/reports.hpp"
+#include "src/report/document.hpp"
+#include "src/io/errors.hpp"
+#include "src/report/report_options.hpp"
+#include "src/report/reports.hpp"
 
 namespace {
 

@@ -21,8 +21,8 @@
 
 #include "models/classifier.hpp"
 #include "models/compare.hpp"
-#include "src/baseline_io.hpp"
-#include "src/commands.hpp"
+#include "src/io/baseline_io.hpp"
+#include "src/commands/commands.hpp"
 
 namespace fs = std::filesystem;
 using namespace cavitas;

@@ -25,7 +25,7 @@
 #include <vector>
 
 #include "models/operating_point.hpp"
-#include "src/operating_point_io.hpp"
+#include "src/io/operating_point_io.hpp"
 #include "tools/synth/synth.hpp"
 
 namespace synth = cavitas::synth;

@@ -266,7 +266,7 @@ int main(int argc, char** argv) {
     }
 
     // 1 and 3. analyze, whole process: with the FFT plans kept by the runs
-    // before (src/plan_store.hpp; the baseline run above filled the bench's own
+    // before (src/io/plan_store.hpp; the baseline run above filled the bench's own
     // cache folder), and with no plan cache at all; between them the decode and
     // the bare Welch pass, so that every stage sees the machine in the same
     // state (it is shared: its speed drifts by tens of per cent over a minute).

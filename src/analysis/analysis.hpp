@@ -1,0 +1,113 @@
+// The analysis API: what the commands, the route and the comparison ask of a
+// recording. A request in (AnalyzeOptions: the recording, its baseline, its
+// stated duty), a typed result out (AnalyzeResult: the recording's analysis,
+// the finding, the operating point read beside it).
+#pragma once
+
+#include <functional>
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "models/analyzer.hpp"
+#include "models/baseline.hpp"
+#include "models/classifier.hpp"
+#include "models/margin_reading.hpp"
+#include "models/operating_point.hpp"
+#include "src/io/errors.hpp"
+#include "src/io/operating_point_io.hpp"
+#include "src/io/output_guard.hpp"
+#include "src/io/recording.hpp"
+
+namespace cavitas::app {
+
+/// The version that stamps every baseline, finding and route.
+extern const char* const kVersion;
+
+struct AnalyzedRecording {
+    RecordingInfo info;
+    std::string sha256;
+    models::RecordingAnalysis analysis;
+};
+
+/// Progress: seconds of audio done, seconds in all.
+using Progress = std::function<void(double done_s, double total_s)>;
+
+/// Read `source` block by block through a RecordingAnalyzer.
+models::RecordingAnalysis analyze_source(AudioSource& source, const models::AnalysisSetup& setup,
+                                         const models::MachineContext& machine, const Progress& progress = {},
+                                         models::Fidelity fidelity = models::Fidelity::fast);
+
+/// Open, hash and analyse one file. setup: the baseline's (nullopt = choose from
+/// the file's rate and sensor_max_hz).
+AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
+                               const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
+                               const models::MachineContext& machine, const Progress& progress = {},
+                               models::Fidelity fidelity = models::Fidelity::fast);
+
+/// The operating-point flags of a command, as typed (key -> text; empty = not
+/// given), and --operating-point FILE.
+struct OperatingPointFlags {
+    std::map<std::string, std::string> values;
+    std::optional<std::string> file;
+    /// Where `values` came from when not the command line (a manifest row):
+    /// errors then name that file and line instead of a flag.
+    std::optional<TextOrigin> origin;
+    OperatingPointText text() const;
+};
+
+/// An operating point put together from a sidecar file and flags, and what
+/// follows from it.
+struct ResolvedOperatingPoint {
+    models::OperatingPoint op;
+    std::vector<std::string> sources;  ///< files read, then "command line"
+    models::Hydraulics hydraulics;
+};
+
+/// The sidecar (--operating-point FILE, else NAME.op.toml beside `recording`
+/// when it exists) overlaid by the flags, evaluated. nullopt when nothing was
+/// stated. Errors: UsageError for bad flags, InputError naming the file.
+std::optional<ResolvedOperatingPoint> resolve_operating_point(const OperatingPointFlags& flags,
+                                                              const std::string& recording);
+
+/// Tell `guard` the files an operating point is read from: the --operating-point
+/// file, the recording's sidecar, the NPSH3 curve either names.
+void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags, const std::string& recording);
+
+struct AnalyzeOptions {
+    std::string machine;
+    double sensor_max_hz = 0.0;
+    std::string mount;
+    std::string baseline;
+    std::string recording;
+    std::optional<std::string> json_output;
+    int channel = 0;
+    std::optional<double> rpm;
+    std::optional<int> vanes;
+    std::optional<std::string> full_scale;
+    OperatingPointFlags operating;
+};
+
+/// The operating point of an analysed recording beside its verdict.
+struct OperatingPointFinding {
+    ResolvedOperatingPoint resolved;
+    models::MarginReading reading;
+    std::vector<std::string> baseline_differences;  ///< also in the finding's warnings
+};
+
+struct AnalyzeResult {
+    AnalyzedRecording recording;
+    models::Baseline baseline;
+    models::Finding finding;
+    std::optional<OperatingPointFinding> operating;
+};
+AnalyzeResult analyze(const AnalyzeOptions& options, const Progress& progress = {});
+/// The lower of a stated sensor limit and the mount's (0 = none stated);
+/// UsageError for an unknown mount.
+double sensor_limit(double sensor_max_hz, const std::string& mount);
+
+/// --full-scale's text as a calibration (none: full-scale units).
+Calibration calibration_of(const std::optional<std::string>& text);
+
+}  // namespace cavitas::app

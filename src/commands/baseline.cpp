@@ -1,0 +1,305 @@
+// cavitas baseline: learn a machine's known-good state from recordings.
+#include "src/commands/commands.hpp"
+
+#include "models/baseline_check.hpp"
+
+#include <unistd.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <ctime>
+#include <filesystem>
+#include <iostream>
+#include <sstream>
+
+#include "models/machine.hpp"
+#include "models/quality.hpp"
+#include "src/io/atomic_file.hpp"
+#include "src/io/baseline_io.hpp"
+#include "src/io/datetime.hpp"
+#include "src/io/output_guard.hpp"
+#include "src/io/plan_store.hpp"
+#include "src/output/finding.hpp"
+#include "src/output/plain_text.hpp"
+#include "src/route/store.hpp"
+
+#ifndef CAVITAS_VERSION
+#define CAVITAS_VERSION "0.0.0"
+#endif
+
+
+namespace cavitas::app {
+
+namespace {
+
+// One known-good recording analysed for a baseline, with its stated duty.
+struct LearnedSource {
+    models::BaselineSource source;
+    models::RecordingAnalysis analysis;
+    std::optional<ResolvedOperatingPoint> duty;
+};
+
+LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Calibration& cal,
+                           std::optional<models::AnalysisSetup>& setup, double sensor_max,
+                           models::MachineContext& machine, std::ostream& err) {
+    // The operating point first: a mistyped reading fails before minutes of analysis.
+    const std::string& path = o.recordings[index];
+    LearnedSource l;
+    l.duty = resolve_operating_point(o.operating, path);
+    models::MachineContext this_machine = machine;
+    if (!o.rpms.empty()) this_machine.rpm = o.rpms[index];
+    if (!this_machine.rpm && l.duty && l.duty->op.rpm) this_machine.rpm = l.duty->op.rpm;
+    if (!setup) {
+        // The first recording fixes the bands and the segment length (--segment).
+        const SndfileSource probe(path, o.channel, cal);
+        try {
+            setup = models::choose_setup(probe.info().fs_hz, sensor_max, o.segment_s);
+        } catch (const std::invalid_argument& e) {
+            throw InputError(path + ": " + e.what());
+        }
+    }
+    AnalyzedRecording r = analyze_file(path, o.channel, cal, setup, sensor_max, this_machine, stderr_progress(path, err));
+    if (r.info.fs_hz != setup->fs_hz)
+        throw InputError(path + ": sample rate " + std::to_string(static_cast<int>(r.info.fs_hz)) +
+                         " Hz differs from the baseline's " + std::to_string(static_cast<int>(setup->fs_hz)) +
+                         " Hz; a baseline needs recordings made the same way");
+    // A baseline must be learned from clean recordings: the checks that need
+    // no reference (NaN, a dead or stuck signal, clipping, dropouts, DC,
+    // ski slope, length) are run against the recording's own statistics.
+    models::Baseline self = models::learn_baseline({r.analysis});
+    self.unit = cal.unit;
+    self.full_scale = cal.full_scale;
+    self.channel = o.channel;
+    models::RecordingContext ctx;
+    ctx.unit = cal.unit;
+    ctx.channel = o.channel;
+    // The speed is the exception: a baseline may be learned without one (its
+    // findings then need a speed given or confirmed against it).
+    for (const auto& c : models::assess_quality(r.analysis, self, ctx).checks)
+        if (c.status == models::CheckStatus::fail && c.name != "speed_confirmed")
+            throw InputError(path + ": cannot serve as a baseline: " + c.message);
+    // A speed the spectrum could not confirm is not the baseline's: it stays unknown.
+    if (r.analysis.rpm_estimated && !r.analysis.speed_confirmed) {
+        err << path << ": shaft speed could not be confirmed from the spectrum (" << r.analysis.speed_how
+            << "); the baseline keeps no speed for it: give --rpm\n";
+        r.analysis.rpm = 0.0;
+        r.analysis.rpm_estimated = false;
+    }
+    if (!machine.rpm && machine.rpm_hint <= 0.0 && r.analysis.rpm > 0.0) machine.rpm_hint = r.analysis.rpm;
+    if (index < o.expected_sha256.size() && o.expected_sha256[index] != r.sha256)
+        throw InputError(path + ": changed since the results store recorded it (SHA-256 " + r.sha256.substr(0, 12) +
+                         "... now, " + o.expected_sha256[index].substr(0, 12) + "... then); it cannot stand for that visit");
+    l.source = models::source_of(r.analysis);
+    l.source.file = path;
+    l.source.sha256 = r.sha256;
+    l.analysis = std::move(r.analysis);
+    return l;
+}
+
+void write_baseline_summary(std::ostream& out, const std::string& path, const models::Baseline& b,
+                            std::size_t stated) {
+    out << "baseline written to " << path << "\n"
+        << "  " << b.sources.size() << " recording(s), " << b.segments << " segments of " << b.setup.segment_s << " s at "
+        << b.setup.fs_hz << " Hz, channel " << b.channel << ", unit " << b.unit << "\n"
+        << "  HF band " << b.setup.hf.low_hz << "-" << b.setup.hf.high_hz << " Hz, LF band " << b.setup.lf.low_hz << "-"
+        << b.setup.lf.high_hz << " Hz\n";
+    const models::SpeedModel& m = b.speed;
+    if (m.speeds > 1)
+        out << "  shaft speeds " << m.rpm_low << "-" << m.rpm_high << " rpm (" << m.speeds << " speeds); band levels "
+            << (m.fitted ? "fitted against speed: HF " + std::to_string(static_cast<int>(std::lround(m.hf_slope_db_per_decade))) +
+                               " dB/decade, LF " + std::to_string(static_cast<int>(std::lround(m.lf_slope_db_per_decade))) +
+                               " dB/decade"
+                         : std::string("scaled by an assumed 40 dB/decade (not two speeds 15 % apart)"))
+            << "; judged from " << std::lround(m.covered_low_rpm()) << " to " << std::lround(m.covered_high_rpm()) << " rpm\n";
+    else if (b.rpm > 0.0)
+        out << "  shaft speed " << b.rpm << " rpm, judged from " << std::lround(m.covered_low_rpm()) << " to "
+            << std::lround(m.covered_high_rpm()) << " rpm"
+            << (b.rpm_estimated ? " (estimated from the spectrum without a reference: a harmonic-series search can lock "
+                                  "on twice or half the speed; give --rpm from a tachometer or the nameplate to be sure)"
+                                : "")
+            << "\n";
+    else
+        out << "  shaft speed unknown: give --rpm so that envelope lines can be checked\n";
+    if (b.vanes > 0) out << "  " << b.vanes << " vanes, BPF " << models::blade_pass_hz(b.rpm, b.vanes) << " Hz\n";
+    out << "  repeatability floor " << models::repeatability_floor_db(b.mount) << " dB ("
+        << (b.mount.empty() ? std::string("mount not stated: a magnet's") : b.mount) << ")\n";
+    write_operating_point_summary(out, b.operating_point, stated, b.sources.size());
+    if (b.warnings.empty()) {
+        out << "  checks: nothing found\n";
+    } else {
+        out << "  WARNINGS (" << b.warnings.size() << "): findings against this baseline will repeat them\n";
+        for (const auto& w : b.warnings) out << "    - " << w.message << "\n";
+    }
+}
+
+// The store's normal visits of a point, newest last: their recordings, speeds and hashes.
+BaselineOptions with_store_visits(BaselineOptions o) {
+    namespace fs = std::filesystem;
+    if (!o.recordings.empty()) throw UsageError("--from-store: give no recordings; they come from the store");
+    if (o.machine.empty() || o.point.empty()) throw UsageError("--from-store needs --machine and --point");
+    std::error_code ec;
+    if (!fs::is_regular_file(*o.from_store, ec)) throw InputError(*o.from_store + ": no such results store");
+    const HistoryStore store(*o.from_store);
+    std::vector<Measurement> normal;
+    for (const auto& m : store.history(o.machine, o.point))
+        // A normal verdict at a thin margin is not known-good (margin reading "at_risk").
+        if (m.verdict == "normal" && m.agreement != "at_risk") normal.push_back(m);
+    if (normal.empty())
+        throw InputError(*o.from_store + ": no normal visit of " + o.machine + " " + o.point + " to learn from");
+    if (normal.size() > o.last_visits) normal.erase(normal.begin(), normal.end() - static_cast<std::ptrdiff_t>(o.last_visits));
+    o.rpms.clear();
+    for (const auto& m : normal) {
+        const auto f = nlohmann::json::parse(m.finding_json, nullptr, false);
+        std::string path = m.file;
+        double rpm = 0.0;
+        if (!f.is_discarded() && f.contains("input") && f["input"].contains("path") && f["input"]["path"].is_string())
+            path = f["input"]["path"].get<std::string>();
+        if (!f.is_discarded() && f.contains("speed") && f["speed"].contains("rpm") && f["speed"]["rpm"].is_number())
+            rpm = f["speed"]["rpm"].get<double>();
+        o.recordings.push_back(path);
+        o.rpms.push_back(rpm > 0.0 ? rpm : 0.0);
+        o.expected_sha256.push_back(m.sha256);
+        o.channel = m.channel;
+    }
+    // Calibration, vane count and mount as the baseline those visits were judged against, unless given.
+    std::error_code ec2;
+    if (fs::is_regular_file(normal.back().baseline, ec2)) {
+        const models::Baseline used = read_baseline_file(normal.back().baseline);
+        if (!o.full_scale && used.unit != "FS") {
+            char text[64];
+            std::snprintf(text, sizeof text, "%.17g%s", used.full_scale, used.unit.c_str());
+            o.full_scale = text;
+        }
+        if (o.vanes == 0) o.vanes = used.vanes;
+        if (o.mount.empty()) o.mount = used.mount;
+    }
+    // A speed unknown for one visit: let every visit's speed come from its sidecar or the spectrum.
+    if (std::find(o.rpms.begin(), o.rpms.end(), 0.0) != o.rpms.end()) o.rpms.clear();
+    return o;
+}
+
+}  // namespace
+
+void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream& err) {
+    const BaselineOptions o = given.from_store ? with_store_visits(given) : given;
+    if (given.from_store)
+        out << "learning from " << o.recordings.size() << " normal visit(s) of " << o.machine << " " << o.point << " in "
+            << *given.from_store << "\n";
+    if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
+    const std::string output = !o.output.empty() ? o.output : o.add_to.value_or("");
+    if (output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
+    {
+        OutputGuard guard;
+        for (const auto& rec : o.recordings) {
+            guard.input(rec, "recording");
+            guard_operating_inputs(guard, o.operating, rec);
+        }
+        if (o.add_to && *o.add_to != output) guard.input(*o.add_to, "baseline added to");
+        if (given.from_store) guard.input(*given.from_store, "results store");
+        guard.output(output);
+    }
+    std::optional<models::Baseline> earlier;
+    if (o.add_to) earlier = read_baseline_file(*o.add_to);
+    const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
+    Calibration cal = calibration_of(o.full_scale);
+    if (earlier) {
+        if (o.full_scale && (cal.unit != earlier->unit || cal.full_scale != earlier->full_scale))
+            throw UsageError("--full-scale " + *o.full_scale + " differs from the calibration of " + *o.add_to +
+                             "; recordings added to a baseline must be calibrated as it is");
+        cal.unit = earlier->unit;
+        cal.full_scale = earlier->full_scale;
+        if (earlier->sources.empty() || earlier->sources.front().series.segments() == 0)
+            throw InputError(*o.add_to + ": made by an older cavitas, it keeps no per-recording values to add to; "
+                             "relearn it from its recordings");
+        if (o.channel != earlier->channel)
+            throw UsageError("--channel " + std::to_string(o.channel) + " differs from the channel " +
+                             std::to_string(earlier->channel) + " of " + *o.add_to);
+    }
+    models::MachineContext machine;
+    machine.rpm = o.rpm;
+    machine.vanes = earlier ? earlier->vanes : o.vanes;
+    if (earlier) machine.rpm_hint = earlier->rpm;
+    std::optional<models::AnalysisSetup> setup;
+    if (earlier) setup = earlier->setup;
+    std::vector<LearnedSource> learned;
+    if (!o.rpms.empty() && o.rpms.size() != o.recordings.size())
+        throw UsageError("--rpm: " + std::to_string(o.rpms.size()) + " speeds for " + std::to_string(o.recordings.size()) +
+                         " recordings; give one speed for all or one per recording, in order");
+    for (std::size_t k = 0; k < o.recordings.size(); ++k)
+        learned.push_back(learn_source(o, k, cal, setup, sensor_max, machine, err));
+
+    std::vector<models::BaselineSource> sources = earlier ? earlier->sources : std::vector<models::BaselineSource>{};
+    std::vector<std::optional<models::Hydraulics>> duties(sources.size());
+    std::vector<std::pair<models::OperatingPoint, models::Hydraulics>> stated;
+    std::vector<models::RecordingAnalysis> analyses;
+    for (auto& l : learned) {
+        sources.push_back(l.source);
+        duties.push_back(l.duty ? std::optional<models::Hydraulics>(l.duty->hydraulics) : std::nullopt);
+        if (l.duty) stated.emplace_back(l.duty->op, l.duty->hydraulics);
+        analyses.push_back(std::move(l.analysis));
+    }
+    models::Baseline b;
+    if (earlier) {
+        b = models::learn_from_sources(std::move(sources), *setup, earlier->vanes);
+        b.spectrum = earlier->spectrum;  // the profile's spread is kept from the first learning
+        b.machine = earlier->machine;
+        b.mount = earlier->mount;
+        b.operating_point = earlier->operating_point;
+        b.rpm_estimated = earlier->rpm_estimated;
+    } else {
+        b = models::learn_baseline(analyses);
+        b.sources = std::move(sources);
+        b.machine = o.machine;
+        b.mount = o.mount;
+        b.operating_point = models::summarize(stated);
+    }
+    for (const auto& a : analyses) b.rpm_estimated = b.rpm_estimated || a.rpm_estimated;
+    b.cavitas_version = kVersion;
+    b.created_utc = utc_now();
+    b.channel = o.channel;
+    b.unit = cal.unit;
+    b.full_scale = cal.full_scale;
+    b.warnings = models::check_baseline(b, duties);
+    // A level step: learn from the quieter side of it, and say so in the warning.
+    bool cut = false;
+    for (auto& w : b.warnings)
+        if (w.check == "level_step")
+            for (auto& src : b.sources)
+                if (src.file == w.file) {
+                    const double at = models::keep_quieter_part(src, b.setup.segment_s);
+                    if (at < 0.0) continue;
+                    w.message += "; the baseline keeps only the quieter side of the step";
+                    cut = true;
+                }
+    // Visits louder than re-mounting explains are left out of the statistics (the warning names them).
+    const auto louder = models::louder_visits(b);
+    for (auto k = louder.rbegin(); k != louder.rend(); ++k) {
+        for (auto& w : b.warnings)
+            if (w.check == "visits_disagree" && (w.file == b.sources[*k].file || b.sources.size() == 2))
+                w.message += "; the baseline leaves " + b.sources[*k].file + " (the louder) out of its statistics";
+        b.sources.erase(b.sources.begin() + static_cast<std::ptrdiff_t>(*k));
+        cut = true;
+    }
+    if (cut) {
+        models::Baseline relearned = models::learn_from_sources(b.sources, b.setup, b.vanes);
+        b.segment = relearned.segment;
+        b.recording = relearned.recording;
+        b.segments = relearned.segments;
+        b.speed = relearned.speed;
+    }
+    if (earlier)  // what only the first learning's operating points could show is kept
+        for (const auto& w : earlier->warnings)
+            if (w.check == "low_npsh" || w.check == "low_margin") b.warnings.push_back(w);
+    if (o.strict && !b.warnings.empty()) {
+        std::string all;
+        for (const auto& w : b.warnings) all += "\n  - " + w.message;
+        throw InputError("baseline not written (--strict): " + std::to_string(b.warnings.size()) +
+                         " problem(s) with the recordings:" + all);
+    }
+    write_file_atomically(output, json_text(baseline_to_json(b), 2) + "\n");
+    write_baseline_summary(out, output, b, stated.size());
+}
+
+}  // namespace cavitas::app

@@ -1,0 +1,55 @@
+// The commands: parsed options in, a summary on the terminal and files out.
+// main.cpp only parses the command line and maps errors to exit statuses.
+#pragma once
+
+#include <iosfwd>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "src/analysis/analysis.hpp"
+
+namespace cavitas::app {
+
+struct BaselineOptions {
+    std::string machine;
+    std::vector<std::string> recordings;
+    std::string output;
+    int channel = 0;
+    std::optional<double> rpm;        ///< speed of every recording
+    std::vector<double> rpms;         ///< or one speed per recording, in order (overrides rpm)
+    int vanes = 0;
+    std::optional<std::string> full_scale;
+    double sensor_max_hz = 0.0;
+    std::string mount;
+    double segment_s = 1.0;
+    OperatingPointFlags operating;
+    bool strict = false;                 ///< refuse (InputError) instead of warning
+    std::optional<std::string> add_to;   ///< an existing baseline to add these recordings to
+    /// Learn from the results store's normal visits of machine/point instead of
+    /// listed recordings (the newest `last_visits`; each file must still hash as stored).
+    std::optional<std::string> from_store;
+    std::string point;
+    std::size_t last_visits = 8;
+    std::vector<std::string> expected_sha256;  ///< per recording (from the store); empty = not checked
+};
+
+/// Learn and write a baseline; prints a summary to out.
+void run_baseline(const BaselineOptions& options, std::ostream& out, std::ostream& err);
+
+/// analyze() + text summary to out + JSON file when asked.
+void run_analyze(const AnalyzeOptions& options, std::ostream& out, std::ostream& err);
+
+struct NpshOptions {
+    OperatingPointFlags operating;
+    std::optional<std::string> json_output;
+};
+/// NPSH available, margin and Thoma number from the flags (and --operating-point);
+/// a readable account to out, JSON when asked.
+void run_npsh(const NpshOptions& options, std::ostream& out);
+
+/// Progress of one file on the terminal (nothing when stderr is not one, or
+/// the file is short).
+Progress stderr_progress(const std::string& path, std::ostream& err);
+
+}  // namespace cavitas::app

@@ -1,0 +1,64 @@
+// A route manifest: one row per recording, as a collector export or a
+// spreadsheet writes it (CSV with a header row, columns in any order).
+//
+// Required columns: file (relative to the manifest), machine, point, channel,
+// datetime (ISO 8601), rpm, vanes. Optional: the operating-point keys of a
+// sidecar file (suction_pressure, temperature, flow, ...; see
+// operating_point_io.hpp), and the sensor columns full_scale (50g), mount,
+// sensor_max_hz. Any other column is kept and passed through to the outputs.
+// Empty cells: channel 0, rpm estimated near the baseline's, vanes from the
+// baseline, operating-point fields not stated.
+#pragma once
+
+#include <cstddef>
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include "src/io/datetime.hpp"
+#include "src/io/operating_point_io.hpp"
+
+namespace cavitas::app {
+
+struct ManifestRow {
+    std::size_t line = 0;   ///< 1-based line of the manifest
+    std::size_t index = 0;  ///< 0-based position among the data rows
+    std::string file;       ///< as written
+    std::string path;       ///< resolved against the manifest's folder
+    std::string machine;
+    std::string point;
+    int channel = 0;
+    std::string datetime;   ///< as written
+    Timestamp when;
+    std::optional<double> rpm;
+    std::optional<int> vanes;
+    std::optional<std::string> full_scale;
+    std::string mount;
+    double sensor_max_hz = 0.0;
+    OperatingPointText operating;                              ///< operating-point columns (non-empty cells)
+    std::vector<std::pair<std::string, std::string>> extra;    ///< unknown columns, in header order
+    std::string error;      ///< non-empty: what is wrong with this row (it is not analysed)
+};
+
+struct Manifest {
+    std::string path;
+    std::string dir;
+    std::string sha256;                    ///< of the file's bytes
+    std::vector<std::string> extra_columns;  ///< unknown columns, in header order
+    std::vector<ManifestRow> rows;
+};
+
+/// Reads and checks the manifest. File-level problems (missing, unreadable,
+/// no header, a required column missing, a column named twice) throw
+/// InputError; a bad row keeps its line number and the reason in `error`.
+Manifest read_manifest(const std::string& path);
+/// The same from text (no sha256); `path` names the file in errors and sets the folder.
+Manifest parse_manifest(const std::string& text, const std::string& path);
+
+/// Whether a machine or point tag can name a file of the baseline library
+/// (DIR/MACHINE/POINT.json): not empty, not "." or "..", no '/', '\\' or
+/// control characters. Returns the reason when it cannot.
+std::optional<std::string> unusable_as_file_name(const std::string& tag);
+
+}  // namespace cavitas::app

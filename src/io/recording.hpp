@@ -1,0 +1,100 @@
+// Reading recordings block by block through libsndfile.
+//
+// AudioSource is the seam between the analysis and the file system: the
+// analysis asks for blocks, SndfileSource reads them from any format
+// libsndfile knows (WAV PCM 16/24/32, float, FLAC, ...), MemorySource serves
+// samples from memory for tests.
+#pragma once
+
+#include <cstddef>
+#include <cstdint>
+#include <memory>
+#include <span>
+#include <cmath>
+#include <string>
+#include <vector>
+
+#include "src/io/units.hpp"
+
+struct SF_INFO;  // libsndfile's, kept out of this header
+
+namespace cavitas::app {
+
+struct RecordingInfo {
+    std::string path;
+    double fs_hz = 0.0;
+    int channels = 0;
+    int channel = 0;
+    std::size_t frames = 0;       ///< as stated in the header
+    std::string format;           ///< e.g. "WAV PCM 16-bit"
+    bool is_float = false;        ///< float/double file: no fixed full scale
+    int pcm_bits = 0;             ///< bits of a linear integer encoding (8, 16, 24, 32); 0 = float, companded or lossy
+    Calibration calibration;
+    double duration_s() const { return fs_hz > 0.0 ? static_cast<double>(frames) / fs_hz : 0.0; }
+    /// |x| of a full-scale sample in engineering units (0 for float files).
+    double full_scale_value() const { return is_float ? 0.0 : calibration.full_scale; }
+    /// One step of the integer scale in engineering units (0 when not a linear integer encoding).
+    double quantum() const { return pcm_bits > 0 ? calibration.full_scale / std::ldexp(1.0, pcm_bits - 1) : 0.0; }
+};
+
+class AudioSource {
+public:
+    virtual ~AudioSource() = default;
+    virtual const RecordingInfo& info() const = 0;
+    /// Fill up to out.size() samples of the chosen channel, in engineering units.
+    /// Returns the number written; 0 at the end.
+    virtual std::size_t read(std::span<float> out) = 0;
+};
+
+class SndfileSource final : public AudioSource {
+public:
+    /// Opens and validates; throws InputError naming the file and the problem.
+    SndfileSource(const std::string& path, int channel, const Calibration& calibration);
+    /// The same from bytes in memory (for fuzzing and tests); `name` stands for
+    /// the file in messages. The bytes must outlive the source.
+    SndfileSource(std::span<const std::byte> bytes, const std::string& name, int channel,
+                  const Calibration& calibration);
+    ~SndfileSource() override;
+    SndfileSource(const SndfileSource&) = delete;
+    SndfileSource& operator=(const SndfileSource&) = delete;
+    const RecordingInfo& info() const override { return info_; }
+    std::size_t read(std::span<float> out) override;
+    /// SHA-256 of the whole file (hex), for a source opened from a path: the
+    /// bytes were hashed as the decoder read them, and what it skipped or had
+    /// not reached yet is read and hashed now, so the file is read about once.
+    /// Throws InputError on a read error, std::logic_error for a source in memory.
+    std::string sha256();
+
+    struct Memory;
+    struct HashingFile;
+
+private:
+    void adopt(void* handle, const ::SF_INFO& info, int channel);
+    void* file_ = nullptr;  // SNDFILE*
+    std::unique_ptr<Memory> memory_;
+    std::unique_ptr<HashingFile> hashing_;
+    RecordingInfo info_;
+    std::vector<float> interleaved_;
+    // 16-bit PCM in a little-endian container (WAV): read as raw samples and
+    // scaled here, as libsndfile would (x / 32768), without its float buffer.
+    bool raw16_ = false;
+    std::vector<std::int16_t> raw_;
+    std::size_t read_frames_ = 0;
+};
+
+class MemorySource final : public AudioSource {
+public:
+    MemorySource(std::vector<float> samples, double fs_hz, const Calibration& calibration = {});
+    const RecordingInfo& info() const override { return info_; }
+    std::size_t read(std::span<float> out) override;
+
+private:
+    std::vector<float> samples_;
+    std::size_t pos_ = 0;
+    RecordingInfo info_;
+};
+
+/// SHA-256 of a file's bytes as 64 lowercase hex digits; throws InputError.
+std::string sha256_file(const std::string& path);
+
+}  // namespace cavitas::app

@@ -1,0 +1,434 @@
+#include "src/output/finding.hpp"
+
+#include "src/io/baseline_io.hpp"
+#include "src/io/datetime.hpp"
+#include "src/output/format.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <ostream>
+
+#include "models/hydraulics.hpp"
+#include "models/machine.hpp"
+
+namespace cavitas::app {
+
+void thin_by_largest(std::vector<double>& amplitude, double& bin_hz, std::size_t max_points) {
+    while (amplitude.size() > max_points && max_points > 0) {
+        for (std::size_t k = 0; 2 * k < amplitude.size(); ++k)
+            amplitude[k] = std::max(amplitude[2 * k], 2 * k + 1 < amplitude.size() ? amplitude[2 * k + 1] : 0.0);
+        amplitude.resize((amplitude.size() + 1) / 2);
+        bin_hz *= 2.0;
+    }
+}
+
+using nlohmann::json;
+using models::Verdict;
+
+namespace {
+
+const char* verdict_words(Verdict v) {
+    switch (v) {
+        case Verdict::normal: return "NORMAL - no cavitation found against the baseline";
+        case Verdict::incipient: return "INCIPIENT cavitation - sparse bubble collapse has begun";
+        case Verdict::developed: return "DEVELOPED cavitation - dense bubble collapse, damage likely if it persists";
+        case Verdict::indeterminate: return "INDETERMINATE - this recording cannot support a verdict";
+    }
+    return "";
+}
+
+bool cavitating(Verdict v) { return v == Verdict::incipient || v == Verdict::developed; }
+
+constexpr double kM3sToM3h = 3600.0;
+
+std::string kpa(double pa) { return fixed(pa / 1000.0, 3) + " kPa"; }
+std::string celsius(double k) { return fixed(k - 273.15, 2) + " C"; }
+
+std::string reference_word(const models::OperatingPoint& op) {
+    return op.pressure_reference && *op.pressure_reference == models::PressureReference::absolute ? "absolute" : "gauge";
+}
+
+// The operating-point block of analyze's summary.
+void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
+    const auto& op = of.resolved.op;
+    const auto& h = of.resolved.hydraulics;
+    std::string from;
+    for (const auto& s : of.resolved.sources) from += (from.empty() ? "" : " + ") + s;
+    out << "  operating point (" << from << "):\n";
+    std::string duty;
+    auto add = [&duty](const std::string& s) { duty += (duty.empty() ? "" : ", ") + s; };
+    if (op.flow_m3_s) add(fixed(*op.flow_m3_s * kM3sToM3h, 1) + " m3/h");
+    if (op.rpm) add(fixed(*op.rpm, 0) + " rpm");
+    if (op.temperature_k) add(celsius(*op.temperature_k));
+    if (h.absolute_suction_pa) add("suction " + kpa(*h.absolute_suction_pa) + " absolute");
+    if (!duty.empty()) out << "    duty        " << duty << "\n";
+    if (!of.reading.summary.empty()) out << "    NPSH        " << of.reading.summary << "\n";
+    out << "    reading     " << models::to_string(of.reading.agreement) << "\n";
+    for (const auto& n : of.reading.notes) out << "    - " << n << "\n";
+    // Differences from the baseline's duty are listed under "lowered confidence" above.
+    for (const auto& n : h.notes) out << "    . " << n << "\n";
+    if (!op.note.empty()) out << "    note        " << op.note << "\n";
+}
+
+}  // namespace
+
+json plots_to_json(const AnalyzeResult& r) {
+    const auto& a = r.recording.analysis;
+    const auto& b = r.baseline;
+    json spectrum = json::object();
+    const std::size_t nb = a.spectrum.bands(), ns = a.spectrum.segments();
+    if (nb > 0 && ns > 0) {
+        std::vector<double> p10(nb), p90(nb);
+        for (std::size_t k = 0; k < nb; ++k) {
+            std::vector<double> v(ns);
+            for (std::size_t s2 = 0; s2 < ns; ++s2) v[s2] = a.spectrum.segment_db[s2 * nb + k];
+            p10[k] = models::quantile(v, 0.10);
+            p90[k] = models::quantile(v, 0.90);
+        }
+        spectrum = {{"center_hz", a.spectrum.center_hz}, {"level_db", a.spectrum.mean_db()}, {"p10_db", p10},
+                    {"p90_db", p90}};
+        if (!b.spectrum.empty() && b.spectrum.center_hz.size() == nb) {
+            spectrum["baseline_median_db"] = b.spectrum.median_db;
+            spectrum["baseline_p10_db"] = b.spectrum.p10_db;
+            spectrum["baseline_p90_db"] = b.spectrum.p90_db;
+        }
+        spectrum["level_reference"] = "dB re 1 " + r.recording.info.calibration.unit + "^2/Hz";
+        spectrum["hf_low_hz"] = a.setup.hf.low_hz;
+        spectrum["hf_high_hz"] = a.setup.hf.high_hz;
+    }
+    std::vector<double> envelope = a.envelope_spectrum;
+    double envelope_bin_hz = a.envelope_bin_hz;
+    thin_by_largest(envelope, envelope_bin_hz, kEnvelopePointsWritten);
+    json rows = json::array();
+    for (const auto& kr : a.kurtogram_map)
+        rows.push_back({{"level", kr.level}, {"bandwidth_hz", kr.bandwidth_hz}, {"mean", kr.mean}});
+    return {
+        {"spectrum", spectrum},
+        {"envelope_spectrum",
+         {{"bin_hz", envelope_bin_hz},
+          {"amplitude", envelope},
+          {"mean_squared_envelope", a.mean_squared_envelope},
+          {"shaft_hz", a.rpm > 0.0 ? models::shaft_hz(a.rpm) : 0.0},
+          {"bpf_hz", a.rpm > 0.0 && a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0}}},
+        {"kurtogram",
+         {{"rows", rows},
+          {"chosen",
+           {{"center_hz", a.kurtogram_band.center_hz},
+            {"bandwidth_hz", a.kurtogram_band.bandwidth_hz},
+            {"level", a.kurtogram_band.level},
+            {"kurtosis", a.kurtogram_band.kurtosis}}},
+          {"hf_low_hz", a.setup.hf.low_hz},
+          {"hf_high_hz", a.setup.hf.high_hz}}},
+    };
+}
+
+void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string& baseline_path) {
+    const auto& in = r.recording.info;
+    const auto& a = r.recording.analysis;
+    const auto& f = r.finding;
+    out << in.path << "  (channel " << in.channel << ", " << fixed(in.fs_hz, 0) << " Hz, " << fixed(a.duration_s, 1)
+        << " s, " << a.series.segments() << " segments)\n";
+    out << "  against " << baseline_path << "\n";
+    out << "  verdict     " << verdict_words(f.verdict) << "\n";
+    if (f.verdict != models::Verdict::indeterminate) {
+        out << "  confidence  " << models::to_string(f.grade) << "\n";
+        for (const auto& why : f.grade_reasons) out << "    because " << why << "\n";
+    }
+    if (!f.reasons.empty()) {
+        out << "  why indeterminate:\n";
+        for (const auto& s : f.reasons) out << "    - " << s << "\n";
+    }
+    if (!f.evidence.empty()) {
+        out << "  evidence:\n";
+        for (const auto& s : f.evidence) out << "    - " << s << "\n";
+    }
+    if (!f.other_findings.empty()) {
+        out << "  other findings:\n";
+        for (const auto& s : f.other_findings) out << "    - " << s << "\n";
+    }
+    if (!f.baseline_warnings.empty()) {
+        out << "  baseline warnings (from " << baseline_path << "):\n";
+        for (const auto& w : f.baseline_warnings) out << "    - " << w.message << "\n";
+    }
+    if (r.operating) write_operating_point(out, *r.operating);
+    if (cavitating(f.verdict)) {
+        out << "  caution:\n";
+        for (const auto& s : models::cavitation_cautions()) out << "    ! " << s << "\n";
+    }
+}
+
+json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
+    const auto& in = r.recording.info;
+    const auto& a = r.recording.analysis;
+    const auto& f = r.finding;
+    const auto& b = r.baseline;
+    json indicators = json::object();
+    for (const auto& c : f.comparisons)
+        indicators[c.key] = {{"value", c.value},
+                             {"p10", c.p10},
+                             {"p90", c.p90},
+                             {"baseline_median", c.baseline_median},
+                             {"baseline_sigma", c.baseline_sigma},
+                             {"change", c.change},
+                             {"z", c.z}};
+    indicators["kurtogram_band"] = {{"center_hz", a.kurtogram_band.center_hz},
+                                    {"bandwidth_hz", a.kurtogram_band.bandwidth_hz},
+                                    {"level", a.kurtogram_band.level},
+                                    {"kurtosis", a.kurtogram_band.kurtosis}};
+    json peaks = json::array();
+    for (const auto& p : a.envelope_peaks)
+        peaks.push_back({{"frequency_hz", p.hz}, {"order", p.order}, {"prominence_db", p.prominence_db}});
+    const auto& q = a.quality;
+    const std::string ukey = models::unit_key(in.calibration.unit);
+    json checks = json::array();
+    for (const auto& c : f.quality.checks)
+        checks.push_back({{"check", c.name},
+                          {"status", models::to_string(c.status)},
+                          {"value", c.value},
+                          {"unit", c.unit},
+                          {"warn_at", c.warn_at},
+                          {"fail_at", c.fail_at},
+                          {"message", c.message}});
+    json quality = {
+        {"checks", checks},
+        {"samples", q.samples},
+        {"segments", a.series.segments()},
+        {"non_finite_samples", q.non_finite},
+        {"at_full_scale_share", q.samples ? static_cast<double>(q.at_full_scale) / static_cast<double>(q.samples) : 0.0},
+        {"longest_flat_run_samples", q.longest_flat_run},
+        {"dropout_share", q.samples ? static_cast<double>(q.dropout_samples) / static_cast<double>(q.samples) : 0.0},
+        {"flat_top_share", q.samples ? static_cast<double>(q.flat_top_samples()) / static_cast<double>(q.samples) : 0.0},
+        {"dc_offset_" + ukey, q.mean()},
+        {"usable", f.verdict != Verdict::indeterminate},
+        {"reasons", f.reasons},
+        {"warnings", f.warnings},
+    };
+    const bool speed_known = a.rpm > 0.0;
+    json speed = {
+        {"rpm", a.rpm},
+        {"source", !speed_known ? "unknown" : (a.rpm_estimated ? "estimated" : "given")},
+        {"resolution_rpm", a.rpm_resolution},
+        {"confirmed", a.speed_confirmed},
+        {"confirmation", a.rpm_estimated || !speed_known ? a.speed_how : "given"},
+        {"search_low_rpm", a.speed_search_low_rpm},
+        {"search_high_rpm", a.speed_search_high_rpm},
+        {"shaft_hz", models::shaft_hz(a.rpm)},
+        {"vanes", a.vanes},
+        {"bpf_hz", a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0},
+        {"baseline_rpm", b.rpm},
+    };
+    json j = {
+        {"schema", kFindingSchema},
+        {"cavitas_version", kVersion},
+        {"created_utc", utc_now()},
+        {"verdict", models::to_string(f.verdict)},
+        {"confidence", f.confidence},
+        {"raw_score", f.raw_score},
+        {"confidence_grade", models::to_string(f.grade)},
+        {"confidence_reasons", f.grade_reasons},
+        {"evidence", f.evidence},
+        {"other_findings", f.other_findings},
+        {"baseline_warnings", warnings_to_json(f.baseline_warnings)},
+        {"cautions", cavitating(f.verdict) ? json(models::cavitation_cautions()) : json::array()},
+        {"indicators", indicators},
+        {"bands",
+         {{"hf_low_hz", a.setup.hf.low_hz},
+          {"hf_high_hz", a.setup.hf.high_hz},
+          {"lf_low_hz", a.setup.lf.low_hz},
+          {"lf_high_hz", a.setup.lf.high_hz},
+          {"segment_s", a.setup.segment_s},
+          {"level_reference", "dB re 1 " + in.calibration.unit + " squared"}}},
+        {"speed", speed},
+        {"envelope_peaks", peaks},
+        {"quality", quality},
+        {"input",
+         {{"path", in.path},
+          {"sample_rate_hz", in.fs_hz},
+          {"duration_s", a.duration_s},
+          {"channel", in.channel},
+          {"channels", in.channels},
+          {"format", in.format},
+          {"unit", in.calibration.unit},
+          {"full_scale", in.calibration.full_scale},
+          {"sha256", r.recording.sha256}}},
+        {"baseline",
+         {{"path", baseline_path},
+          {"schema", b.schema},
+          {"created_utc", b.created_utc},
+          {"machine", b.machine},
+          {"recordings", b.sources.size()},
+          {"rpm", b.rpm}}},
+    };
+    j["plots"] = plots_to_json(r);
+    if (r.operating) {
+        json op = hydraulics_to_json(r.operating->resolved);
+        op["agreement"] = models::to_string(r.operating->reading.agreement);
+        op["summary"] = r.operating->reading.summary;
+        op["reading_notes"] = r.operating->reading.notes;
+        op["baseline_differences"] = r.operating->baseline_differences;
+        j["operating_point"] = op;
+    }
+    return j;
+}
+
+json hydraulics_to_json(const ResolvedOperatingPoint& duty) {
+    const auto& op = duty.op;
+    const auto& h = duty.hydraulics;
+    json stated = json::object();
+    if (op.suction_pressure_pa) {
+        stated["suction_pressure_pa"] = *op.suction_pressure_pa;
+        stated["pressure_reference"] = reference_word(op);
+    }
+    if (op.barometric_pa) stated["barometric_pa"] = *op.barometric_pa;
+    if (op.elevation_m) stated["elevation_m"] = *op.elevation_m;
+    if (op.temperature_k) stated["temperature_k"] = *op.temperature_k;
+    if (op.gauge_height_m) stated["gauge_height_m"] = *op.gauge_height_m;
+    if (op.flow_m3_s) stated["flow_m3_s"] = *op.flow_m3_s;
+    if (op.bore_m) stated["bore_m"] = *op.bore_m;
+    if (op.npsh3_m) stated["npsh3_m"] = *op.npsh3_m;
+    if (op.npsh3_curve) {
+        json pts = json::array();
+        for (const auto& p : op.npsh3_curve->points()) pts.push_back({{"flow_m3_s", p.flow_m3_s}, {"npsh3_m", p.npsh3_m}});
+        stated["npsh3_curve"] = {{"file", op.npsh3_curve_name}, {"points", pts}};
+    }
+    if (op.vapour_pressure_pa) stated["vapour_pressure_pa"] = *op.vapour_pressure_pa;
+    if (op.density_kg_m3) stated["density_kg_m3"] = *op.density_kg_m3;
+    if (op.rpm) stated["rpm"] = *op.rpm;
+    if (op.runner_setting_m) stated["runner_setting_m"] = *op.runner_setting_m;
+    if (op.net_head_m) stated["net_head_m"] = *op.net_head_m;
+    if (op.sigma_critical) stated["sigma_critical"] = *op.sigma_critical;
+    if (!op.note.empty()) stated["note"] = op.note;
+
+    json j = json::object();
+    j["sources"] = duty.sources;
+    j["stated"] = stated;
+    if (h.barometric_pa) {
+        j["barometric_pa"] = *h.barometric_pa;
+        j["barometric_source"] = h.barometric_source;
+    }
+    if (h.liquid) {
+        j["vapour_pressure_pa"] = h.liquid->vapour_pressure_pa;
+        j["density_kg_m3"] = h.liquid->density_kg_m3;
+        j["liquid_source"] = h.liquid->source;
+    }
+    if (h.absolute_suction_pa) j["absolute_suction_pa"] = *h.absolute_suction_pa;
+    if (h.velocity_m_s) j["velocity_m_s"] = *h.velocity_m_s;
+    if (h.npsh) {
+        j["pressure_head_m"] = h.npsh->pressure_head_m;
+        j["velocity_head_m"] = h.npsh->velocity_head_m;
+        j["elevation_head_m"] = h.npsh->elevation_head_m;
+        j["npsha_m"] = h.npsh->npsha_m;
+    }
+    if (h.npsh3_m) {
+        j["npsh3_m"] = *h.npsh3_m;
+        j["npsh3_source"] = h.npsh3_source;
+    }
+    if (h.margin) {
+        j["margin_m"] = h.margin->margin_m;
+        j["margin_ratio"] = h.margin->ratio;
+        j["margin_class"] = models::to_string(h.margin->margin_class);
+        j["required_npsha_m"] = h.margin->required_m;
+        j["margin_guidance"] = models::margin_guidance_text();
+    }
+    if (h.margin_unavailable) j["margin_unavailable"] = *h.margin_unavailable;
+    if (h.thoma_sigma) j["thoma_sigma"] = *h.thoma_sigma;
+    if (h.thoma_ratio) j["thoma_ratio_to_critical"] = *h.thoma_ratio;
+    j["notes"] = h.notes;
+    return j;
+}
+
+json npsh_to_json(const ResolvedOperatingPoint& duty) {
+    json j = {{"schema", kNpshSchema}, {"cavitas_version", kVersion}, {"created_utc", utc_now()}};
+    j.update(hydraulics_to_json(duty));
+    return j;
+}
+
+namespace {
+
+constexpr double kFoot_m = 0.3048;
+
+// "13.05 m (42.82 ft)": heads in both, for readers of either kind of pump curve.
+std::string head(double m) { return fixed(m, 2) + " m (" + fixed(m / kFoot_m, 2) + " ft)"; }
+
+// One term of the NPSH sum, right-aligned: "      12.070 m   (p_abs - p_v) / (rho g)".
+std::string term(double m, bool with_sign = false) {
+    char b[64];
+    std::snprintf(b, sizeof b, with_sign ? "%+9.3f m" : "%9.3f m", m);
+    return b;
+}
+
+}  // namespace
+
+void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty) {
+    const auto& op = duty.op;
+    const auto& h = duty.hydraulics;
+    if (h.npsh) {
+        const auto& n = *h.npsh;
+        out << "NPSH available  " << head(n.npsha_m) << " of liquid at the impeller-eye datum\n";
+        out << "  suction pressure  " << kpa(*h.absolute_suction_pa) << " absolute";
+        if (reference_word(op) == "gauge")
+            out << " = " << kpa(*op.suction_pressure_pa) << " gauge + " << kpa(*h.barometric_pa) << " barometric ("
+                << h.barometric_source << ")";
+        out << "\n";
+        out << "  liquid            " << h.liquid->source;
+        if (op.temperature_k && h.liquid->source != "given") out << " at " << celsius(*op.temperature_k);
+        out << ": vapour pressure " << kpa(h.liquid->vapour_pressure_pa) << ", density "
+            << fixed(h.liquid->density_kg_m3, 2) << " kg/m3\n";
+        out << "  pressure head     " << term(n.pressure_head_m) << "   (p_abs - p_v) / (rho g)\n";
+        out << "  velocity head     " << term(n.velocity_head_m);
+        if (h.velocity_m_s)
+            out << "   v^2 / 2g, v = " << fixed(*h.velocity_m_s, 2) << " m/s (" << fixed(*op.flow_m3_s * kM3sToM3h, 1)
+                << " m3/h in a " << fixed(*op.bore_m * 1000.0, 1) << " mm bore)";
+        else
+            out << "   (not included)";
+        out << "\n";
+        out << "  gauge height      " << term(n.elevation_head_m, true) << "   above the datum\n";
+        out << "  NPSHa             " << term(n.npsha_m) << "\n";
+    }
+    if (h.npsh3_m) {
+        out << "NPSH3           " << head(*h.npsh3_m) << " (" << h.npsh3_source << ")\n";
+        if (h.margin) {
+            const auto& m = *h.margin;
+            out << "margin          " << signed_fixed(m.margin_m, 2) << " m (" << signed_fixed(m.margin_m / kFoot_m, 2)
+                << " ft), NPSHa/NPSH3 = " << fixed(m.ratio, 2) << ": " << models::to_string(m.margin_class)
+                << " (guidance minimum " << fixed(m.required_m, 2) << " m)\n";
+            out << "  " << models::margin_guidance_text() << "\n";
+        }
+    }
+    if (h.thoma_sigma) {
+        const double rho_g = h.liquid->density_kg_m3 * models::kStandardGravityM_s2;
+        out << "Thoma number (plant)  " << fixed(*h.thoma_sigma, 4) << " = (H_atm " << fixed(*h.barometric_pa / rho_g, 3)
+            << " m - H_v " << fixed(h.liquid->vapour_pressure_pa / rho_g, 3) << " m - H_s "
+            << fixed(*op.runner_setting_m, 3) << " m) / H " << fixed(*op.net_head_m, 3) << " m\n";
+        out << "  barometric " << kpa(*h.barometric_pa) << " (" << h.barometric_source << "), " << h.liquid->source;
+        if (op.temperature_k && h.liquid->source != "given") out << " at " << celsius(*op.temperature_k);
+        out << "\n";
+        if (h.thoma_ratio)
+            out << "  " << fixed(*h.thoma_ratio, 2) << " x the critical value " << fixed(*op.sigma_critical, 4)
+                << (*h.thoma_ratio < 1.0 ? ": below it, cavitation is expected at this setting" : "") << "\n";
+    }
+    if (!h.notes.empty()) {
+        out << "notes:\n";
+        for (const auto& n : h.notes) out << "  - " << n << "\n";
+    }
+}
+
+void write_operating_point_summary(std::ostream& out, const models::OperatingPointSummary& s, std::size_t stated,
+                                   std::size_t recordings) {
+    if (s.empty()) {
+        out << "  operating point not stated: give the flow, suction pressure and temperature (flags or NAME.op.toml "
+               "beside each recording) so that later findings can be read against the duty\n";
+        return;
+    }
+    std::string duty;
+    auto add = [&duty](const std::string& t) { duty += (duty.empty() ? "" : ", ") + t; };
+    if (s.flow_m3_s) add(fixed(*s.flow_m3_s * kM3sToM3h, 1) + " m3/h");
+    if (s.rpm) add(fixed(*s.rpm, 0) + " rpm");
+    if (s.temperature_k) add(celsius(*s.temperature_k));
+    if (s.npsha_m) add("NPSHa " + fixed(*s.npsha_m, 2) + " m");
+    if (s.margin_ratio) add("NPSHa/NPSH3 " + fixed(*s.margin_ratio, 2));
+    out << "  operating point (median of " << stated << " of " << recordings << " recording(s)): " << duty << "\n";
+}
+
+}  // namespace cavitas::app

@@ -1,0 +1,46 @@
+// Presenting a finding: a short summary for a person, JSON for other tools.
+#pragma once
+
+#include <cstddef>
+#include <iosfwd>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "src/analysis/analysis.hpp"
+
+namespace cavitas::app {
+
+inline constexpr const char* kFindingSchema = "cavitas.finding/1";
+
+inline constexpr const char* kNpshSchema = "cavitas.npsh/1";
+
+void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string& baseline_path);
+nlohmann::json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path);
+/// The data a report draws: the spectrum profile against the baseline's, the
+/// averaged squared-envelope spectrum, the kurtogram's mean map (the finding's "plots").
+nlohmann::json plots_to_json(const AnalyzeResult& r);
+
+/// The derived hydraulics with units in the keys (npsha_m, vapour_pressure_pa,
+/// density_kg_m3, velocity_head_m, absolute_suction_pa, margin_m, margin_ratio,
+/// ...) and the stated inputs; shared by `npsh --json` and the finding's
+/// "operating_point".
+nlohmann::json hydraulics_to_json(const ResolvedOperatingPoint& duty);
+/// `npsh --json`: the schema, version and time, then hydraulics_to_json's keys.
+nlohmann::json npsh_to_json(const ResolvedOperatingPoint& duty);
+/// `npsh`'s account for a person: every term of the sum with its unit.
+void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty);
+/// What `baseline` prints of the operating point it was learned at.
+void write_operating_point_summary(std::ostream& out, const models::OperatingPointSummary& s, std::size_t stated,
+                                   std::size_t recordings);
+
+/// The envelope spectrum as a finding keeps it for reports: at most this many
+/// lines (long segments and a high blade-pass frequency give more; a report
+/// reads at most 65 536 values an array).
+inline constexpr std::size_t kEnvelopePointsWritten = 16384;
+/// Halves the bins, each pair merged by its larger amplitude (so a line is never
+/// lost) and bin_hz doubled, until at most max_points remain.
+void thin_by_largest(std::vector<double>& amplitude, double& bin_hz, std::size_t max_points);
+
+}  // namespace cavitas::app

@@ -1,0 +1,99 @@
+// A whole route at once: every recording of a manifest analysed against its
+// point's baseline, in parallel, with one summary row per manifest row, the
+// full finding of each recording, the change since the previous visit, and
+// the history kept in the results store. Shards of a route (--shard K/N) can
+// run anywhere and be merged into the same summary.
+#pragma once
+
+#include <cstddef>
+#include <iosfwd>
+#include <optional>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "src/io/manifest.hpp"
+#include "src/route/store.hpp"
+
+namespace cavitas::app {
+
+inline constexpr const char* kSummarySchema = "cavitas.route-row/1";
+
+/// One row of summary.csv / one line of summary.jsonl.
+/// Whether a route row's `finding` is a file of the route folder's findings/
+/// ("findings/NAME.json", NAME one plain file name): what a reader of a
+/// summary may open or copy, never a path that leaves the folder.
+bool is_finding_path(const std::string& path);
+
+struct SummaryRow {
+    std::size_t line = 0;          ///< manifest line
+    std::string file;              ///< as in the manifest
+    std::string machine, point;
+    int channel = 0;
+    std::string datetime;          ///< normalised ISO 8601
+    double days = 0.0;
+    std::string verdict;           ///< normal, incipient, developed, indeterminate, or error
+    std::string reason;            ///< error: what went wrong; indeterminate: why
+    double confidence = 0.0;
+    std::string confidence_grade;  ///< high / moderate / low (empty: an error row or an older summary)
+    std::optional<double> hf_rise_db, hf_kurtosis, impulse_rate_per_s, lf_rise_db, bpf_modulation;
+    std::optional<double> npsha_m, margin_ratio;
+    std::string agreement;         ///< margin reading, empty without an operating point
+    std::string other_findings;    ///< joined with "; "
+    std::optional<double> duration_s;
+    std::string sha256;
+    std::string baseline;          ///< path of the baseline used
+    std::string finding;           ///< the finding JSON, relative to the output folder
+    std::string previous_datetime, previous_verdict;
+    std::optional<double> hf_rise_change_db;  ///< since the previous visit of the point
+    std::vector<std::pair<std::string, std::string>> extra;  ///< passed-through manifest columns
+
+    bool failed() const { return verdict == "error"; }
+    nlohmann::json to_json() const;
+    /// Throws InputError naming `where` on a line that is not a summary row.
+    static SummaryRow from_json(const nlohmann::json& j, const std::string& where);
+};
+
+/// The CSV header and one CSV line of a row (extra columns last, in the manifest's order).
+std::vector<std::string> summary_columns(const std::vector<std::string>& extra_columns);
+std::vector<std::string> summary_cells(const SummaryRow& row);
+
+struct RouteOptions {
+    std::string manifest;
+    std::string out_dir;
+    std::string baselines;             ///< library: BASELINES/MACHINE/POINT.json
+    std::optional<std::string> store;  ///< default BASELINES/history.sqlite
+    bool no_store = false;
+    int jobs = 0;                      ///< 0: one per core
+    std::optional<std::string> shard;  ///< "K/N"
+};
+
+/// Analyse the route. Returns the exit status: 0 every row analysed, 1 when a
+/// row failed or a file-level error stopped the route (the summary of what was
+/// done is written either way, except on a file-level error).
+int run_route(const RouteOptions& options, std::ostream& out, std::ostream& err);
+
+struct MergeOptions {
+    std::vector<std::string> shard_dirs;
+    std::string out_dir;
+    std::optional<std::string> store;
+    bool no_store = true;
+};
+/// Merge the outputs of route --shard runs of one manifest into one summary,
+/// as a run without shards would have written it. Exit status as run_route.
+int run_merge(const MergeOptions& options, std::ostream& out, std::ostream& err);
+
+/// "K/N" -> {K, N}; UsageError unless 1 <= K <= N <= 100000.
+std::pair<std::size_t, std::size_t> parse_shard(const std::string& text);
+
+/// Fill the previous-visit fields of each analysed row from the other rows and
+/// the store's history (the latest earlier measurement of the same machine and
+/// point, not the same recording).
+void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* store);
+
+/// Rows that could be recorded in the store.
+Measurement to_measurement(const SummaryRow& row, const std::string& finding_json);
+
+}  // namespace cavitas::app

@@ -1,0 +1,508 @@
+// Routes, history and before/after comparisons, run through the real cavitas
+// binary on the demo recordings (samples/) and on damaged inputs made here.
+#include <catch2/catch.hpp>
+
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <csignal>
+
+#include <algorithm>
+#include <filesystem>
+#include <fstream>
+#include <set>
+#include <sstream>
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "tests/support/cli.hpp"
+
+#include "src/io/errors.hpp"
+#include "src/route/route.hpp"
+#include "src/route/store.hpp"
+
+namespace fs = std::filesystem;
+using cavitas::test::q;
+using cavitas::test::Run;
+using cavitas::test::slurp;
+using nlohmann::json;
+
+namespace {
+
+fs::path workdir() {
+    static const fs::path d = [] {
+        fs::path p = fs::temp_directory_path() / ("cavitas-route-test-" + std::to_string(::getpid()));
+        fs::create_directories(p);
+        return p;
+    }();
+    return d;
+}
+
+Run run(const std::string& args) { return cavitas::test::run_binary(CAVITAS_BIN, args, workdir()); }
+
+// The demo's recordings and sidecars, copied once, with a baseline library built from them.
+struct Site {
+    fs::path dir, lib;
+};
+
+const Site& site() {
+    static const Site s = [] {
+        Site st;
+        st.dir = workdir() / "site";
+        st.lib = st.dir / "baselines";
+        fs::create_directories(st.lib);
+        for (const auto& e : fs::directory_iterator(CAVITAS_SAMPLES))
+            fs::copy_file(e.path(), st.dir / e.path().filename(), fs::copy_options::overwrite_existing);
+        const struct {
+            const char* machine;
+            const char* rpm;
+            const char* vanes;
+        } machines[] = {{"OW-P101", "1485", "7"}, {"OW-P102", "2960", "5"}, {"OW-P103", "985", "6"}};
+        for (const auto& m : machines) {
+            fs::create_directories(st.lib / m.machine);
+            const std::string files = q(st.dir / (std::string(m.machine) + "_baseline_1.wav")) + " " +
+                                      q(st.dir / (std::string(m.machine) + "_baseline_2.wav"));
+            const Run r = run(std::string("baseline --machine ") + m.machine + " --rpm " + m.rpm + " --vanes " + m.vanes +
+                              " --full-scale 50g -o " + q(st.lib / m.machine / "DE-H.json") + " " + files);
+            REQUIRE(r.status == 0);
+        }
+        return st;
+    }();
+    return s;
+}
+
+// The demo route plus rows that must fail on their own: a bad date, a missing
+// recording, a text file named .wav, a machine without a baseline.
+fs::path mixed_manifest() {
+    const Site& s = site();
+    std::ofstream(s.dir / "notes.wav") << "this is not a recording\n";
+    std::string text = slurp(s.dir / "route.csv");
+    text += "OW-P101_2026-09-07.wav,OW-P101,DE-H,0,2026-09-31T08:00,1485,7,50g,test,normal,healthy,25600,8,1\n";
+    text += "OW-P101_lost.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,2\n";
+    text += "notes.wav,OW-P102,DE-H,0,2026-11-16T09:00,2960,5,50g,test,normal,healthy,51200,8,3\n";
+    text += "OW-P103_2026-09-07.wav,OW-P104,DE-H,0,2026-11-16T10:00,985,6,50g,test,normal,healthy,12800,8,4\n";
+    const fs::path m = s.dir / "mixed.csv";
+    std::ofstream(m) << text;
+    return m;
+}
+
+std::vector<json> jsonl(const fs::path& p) {
+    std::vector<json> v;
+    std::istringstream in(slurp(p));
+    std::string line;
+    while (std::getline(in, line))
+        if (!line.empty()) v.push_back(json::parse(line));
+    return v;
+}
+
+// A finding without its time of creation, for comparing runs.
+std::string without_time(const fs::path& p) {
+    json j = json::parse(slurp(p));
+    j.erase("created_utc");
+    return j.dump();
+}
+
+}  // namespace
+
+TEST_CASE("route: every row accounted for, failures isolated, the same results on 1 and 2 jobs", "[route]") {
+    const Site& s = site();
+    const fs::path manifest = mixed_manifest();
+    const fs::path store = workdir() / "jobs.sqlite";
+    const fs::path out1 = workdir() / "out-jobs1", out2 = workdir() / "out-jobs2";
+    const Run r1 = run("route " + q(manifest) + " --baselines " + q(s.lib) + " --store " + q(store) + " --jobs 1 --out " +
+                       q(out1));
+    INFO(r1.out << r1.err);
+    CHECK(r1.status == 1);  // some rows failed
+    const auto rows = jsonl(out1 / "summary.jsonl");
+    REQUIRE(rows.size() == 11);  // 7 demo rows + 4 bad ones: every manifest row
+    std::map<std::string, std::string> verdict_of;
+    int failed = 0;
+    for (const auto& r : rows) {
+        const std::string file = r["file"];
+        const int line = r["line"];
+        if (r["verdict"] == "error") {
+            ++failed;
+            CHECK_FALSE(r["reason"].get<std::string>().empty());
+            continue;
+        }
+        verdict_of[file + "@" + std::to_string(line)] = r["verdict"];
+        CHECK(fs::exists(out1 / r["finding"].get<std::string>()));
+        CHECK(r["sha256"].get<std::string>().size() == 64);
+    }
+    CHECK(failed == 4);
+    // The demo labels (samples/route.csv, column label) of the rows that were analysed.
+    CHECK(verdict_of["OW-P101_2026-10-05.wav@3"] == "incipient");
+    CHECK(verdict_of["OW-P101_2026-11-02.wav@4"] == "developed");
+    CHECK(verdict_of["OW-P101_2026-11-09.wav@5"] == "normal");
+    CHECK(verdict_of["OW-P102_2026-10-05.wav@7"] == "developed");
+    CHECK(verdict_of["OW-P103_2026-09-07.wav@8"] == "normal");
+    // Each failure names its problem.
+    CHECK(rows[7]["reason"].get<std::string>().find(":9: datetime '2026-09-31T08:00'") != std::string::npos);
+    CHECK(rows[8]["reason"].get<std::string>().find("OW-P101_lost.wav: no such file") != std::string::npos);
+    CHECK(rows[9]["reason"].get<std::string>().find("notes.wav") != std::string::npos);
+    CHECK(rows[10]["line"] == 12);
+    const std::string summary_csv = slurp(out1 / "summary.csv");
+    CHECK(std::count(summary_csv.begin(), summary_csv.end(), '\n') == 12);  // header + 11
+    CHECK(summary_csv.find("no baseline for machine OW-P104") != std::string::npos);
+    // Passed-through columns survive.
+    CHECK(rows[0]["extra"]["label"] == "normal");
+    CHECK(summary_csv.substr(0, summary_csv.find('\n')).find(",role,label,kind,fs_hz,duration_s,seed") != std::string::npos);
+    // The change since the previous visit of the same point.
+    CHECK(rows[2]["previous_datetime"] == "2026-10-05T08:55:00");
+    CHECK(rows[2]["previous_verdict"] == "incipient");
+    CHECK(rows[2]["hf_rise_change_db"].get<double>() > 9.0);
+    CHECK(rows[3]["previous_verdict"] == "developed");
+    // Worst first on the screen: the developed OW-P102 before the repaired OW-P101.
+    CHECK(r1.out.find("1. OW-P102") != std::string::npos);
+    CHECK(r1.out.find("line 9") != std::string::npos);
+
+    const Run r2 = run("route " + q(manifest) + " --baselines " + q(s.lib) + " --no-store --jobs 2 --out " + q(out2));
+    CHECK(r2.status == 1);
+    CHECK(slurp(out1 / "summary.csv") == slurp(out2 / "summary.csv"));
+    CHECK(slurp(out1 / "summary.jsonl") == slurp(out2 / "summary.jsonl"));
+    for (const auto& r : rows)
+        if (r["verdict"] != "error")
+            CHECK(without_time(out1 / r["finding"].get<std::string>()) ==
+                  without_time(out2 / r["finding"].get<std::string>()));
+}
+
+TEST_CASE("route: shards merge into the same summary as one run", "[route]") {
+    const Site& s = site();
+    const fs::path manifest = mixed_manifest();
+    const fs::path whole = workdir() / "out-whole", a = workdir() / "out-shard1", b = workdir() / "out-shard2",
+                   merged = workdir() / "out-merged";
+    CHECK(run("route " + q(manifest) + " --baselines " + q(s.lib) + " --no-store --out " + q(whole)).status == 1);
+    CHECK(run("route " + q(manifest) + " --baselines " + q(s.lib) + " --shard 1/2 --out " + q(a)).status == 1);
+    CHECK(run("route " + q(manifest) + " --baselines " + q(s.lib) + " --shard 2/2 --out " + q(b)).status == 1);
+    CHECK(jsonl(a / "summary.jsonl").size() == 6);  // rows 1, 3, 5, ... of 11
+    CHECK(jsonl(b / "summary.jsonl").size() == 5);
+    const Run m = run("merge --out " + q(merged) + " " + q(b) + " " + q(a));
+    INFO(m.out << m.err);
+    CHECK(m.status == 1);
+    CHECK(slurp(merged / "summary.csv") == slurp(whole / "summary.csv"));
+    CHECK(slurp(merged / "summary.jsonl") == slurp(whole / "summary.jsonl"));
+    // A shard missing, or one given twice, is refused.
+    const Run missing = run("merge --out " + q(workdir() / "out-m2") + " " + q(a));
+    CHECK(missing.status == 1);
+    CHECK(missing.err.find("shard(s) 2 of 2 are missing") != std::string::npos);
+    CHECK(run("merge --out " + q(workdir() / "out-m3") + " " + q(a) + " " + q(a)).status == 1);
+    CHECK(run("route " + q(manifest) + " --baselines " + q(s.lib) + " --shard 3/2 --out " + q(a)).status == 2);
+}
+
+TEST_CASE("route: a summary line with a channel no recording can have is refused, not cast", "[route]") {
+    // Found by fuzz_manifest: a channel of 1.5e12 was converted to int (undefined behaviour).
+    const Site& s = site();
+    const fs::path out = workdir() / "out-channel";
+    CHECK(run("route " + q(mixed_manifest()) + " --baselines " + q(s.lib) + " --shard 1/2 --out " + q(out)).status ==
+          1);
+    const auto rows = jsonl(out / "summary.jsonl");
+    REQUIRE(!rows.empty());
+    CHECK_NOTHROW(cavitas::app::SummaryRow::from_json(rows.front(), "summary.jsonl:1"));
+    for (const double bad : {1.54129e12, -1.0, 2.5, 1024.0}) {
+        json r = rows.front();
+        r["channel"] = bad;
+        INFO("channel " << bad);
+        CHECK_THROWS_AS(cavitas::app::SummaryRow::from_json(r, "summary.jsonl:1"), cavitas::app::InputError);
+    }
+}
+
+TEST_CASE("history: importing a route twice adds no rows, and trend reads it", "[route]") {
+    const Site& s = site();
+    const fs::path store = workdir() / "twice.sqlite";
+    const std::string args = "route " + q(s.dir / "route.csv") + " --baselines " + q(s.lib) + " --store " + q(store);
+    const Run first = run(args + " --out " + q(workdir() / "out-t1"));
+    CHECK(first.status == 0);
+    CHECK(first.out.find("(7 new, 0 already there") != std::string::npos);
+    const Run second = run(args + " --out " + q(workdir() / "out-t2"));
+    CHECK(second.out.find("(0 new, 7 already there") != std::string::npos);
+    {
+        cavitas::app::HistoryStore h(store.string());
+        CHECK(h.count() == 7);
+    }
+    const fs::path tj = workdir() / "trend.json";
+    const Run t = run("trend OW-P101 DE-H --store " + q(store) + " --json " + q(tj));
+    INFO(t.err);
+    REQUIRE(t.status == 0);
+    const json doc = json::parse(slurp(tj));
+    REQUIRE(doc["points"].size() == 1);
+    CHECK(doc["points"][0]["measurements"].size() == 4);
+    CHECK(doc["points"][0]["measurements"][2]["verdict"] == "developed");
+    CHECK(t.out.find("trend:") != std::string::npos);
+    CHECK(run("trend OW-P999 --store " + q(store)).status == 1);
+    CHECK(run("trend OW-P101").status == 2);  // no store named
+
+    // A baseline learned from the store's normal visits of the point (OW-P101 DE-H: 2 of its 4
+    // visits are normal), with the calibration and vanes of the baseline the route used.
+    const fs::path learned = workdir() / "from-store.json";
+    const Run b = run("baseline --from-store " + q(store) + " --machine OW-P101 --point DE-H -o " + q(learned));
+    INFO(b.err);
+    REQUIRE(b.status == 0);
+    CHECK(b.out.find("learning from 2 normal visit(s)") != std::string::npos);
+    const json base = json::parse(slurp(learned));
+    CHECK(base["sources"].size() == 2);
+    CHECK(base["context"]["unit"] == "g");
+    CHECK(base["context"]["vanes"] == 7);
+    CHECK(run("baseline --from-store " + q(store) + " --machine OW-P999 --point DE-H -o " + q(learned)).status == 1);
+    CHECK(run("baseline --from-store " + q(store) + " --machine OW-P101 -o " + q(learned)).status == 2);
+}
+
+TEST_CASE("trend: a slowly worsening point is flagged before it crosses into incipient", "[route]") {
+    // A synthetic history written straight into a store: visits every 28 days, HF over
+    // baseline creeping up 0.4 dB a visit, every verdict still normal (under +3 dB).
+    const fs::path store = workdir() / "creep.sqlite";
+    fs::remove(store);
+    {
+        cavitas::app::HistoryStore h(store.string());
+        const double rise[] = {0.1, 0.4, 0.9, 1.2, 1.7, 2.1};
+        for (int i = 0; i < 6; ++i) {
+            cavitas::app::Measurement m;
+            m.sha256 = std::string(63, '0') + std::to_string(i);
+            m.machine = "OW-P201";
+            m.point = "DE-H";
+            m.days = 20700.0 + 28.0 * i;
+            m.measured_at = "2026-0" + std::to_string(3 + i) + "-01T09:00:00";
+            m.file = "creep.wav";
+            m.baseline = "b.json";
+            m.verdict = "normal";
+            m.confidence = 0.9;
+            m.hf_rise_db = rise[i];
+            m.finding_json = "{}";
+            h.upsert(m);
+        }
+    }
+    const fs::path tj = workdir() / "creep.json";
+    const Run t = run("trend OW-P201 --store " + q(store) + " --json " + q(tj));
+    REQUIRE(t.status == 0);
+    const json tr = json::parse(slurp(tj))["points"][0]["trend"];
+    CHECK(tr["rising"] == true);
+    CHECK(tr["days_to_alert"].get<double>() > 0.0);
+    CHECK(tr["slope_db_per_30d"].get<double>() > 0.3);
+    CHECK(t.out.find("rising") != std::string::npos);
+}
+
+TEST_CASE("compare: a repair that removed cavitation is improved, a no-change pair is not", "[route]") {
+    const Site& s = site();
+    const fs::path base = s.lib / "OW-P101" / "DE-H.json";
+    const fs::path j = workdir() / "compare.json";
+    Run r = run("compare --baseline " + q(base) + " --before " + q(s.dir / "OW-P101_2026-11-02.wav") + " --after " +
+                q(s.dir / "OW-P101_2026-11-09.wav") + " --json " + q(j));
+    INFO(r.err);
+    REQUIRE(r.status == 0);
+    json c = json::parse(slurp(j));
+    CHECK(c["change"] == "improved");
+    CHECK(c["before"][0]["verdict"] == "developed");
+    CHECK(c["after"][0]["verdict"] == "normal");
+    CHECK(c["indicators"][0]["key"] == "hf_band_level_db");
+    CHECK(c["indicators"][0]["shift"].get<double>() < -10.0);
+    CHECK(c["indicators"][0]["p_value"].get<double>() < 0.01);
+    CHECK(c["warnings"].empty());
+    CHECK(r.out.find("IMPROVED") != std::string::npos);
+
+    // Two healthy visits: no significant change.
+    r = run("compare --baseline " + q(base) + " --before " + q(s.dir / "OW-P101_2026-09-07.wav") + " --after " +
+            q(s.dir / "OW-P101_2026-11-09.wav") + " --json " + q(j));
+    REQUIRE(r.status == 0);
+    c = json::parse(slurp(j));
+    CHECK(c["change"] == "unchanged");
+    CHECK(r.out.find("no significant change") != std::string::npos);
+    const std::set<std::string> allowed{"improved", "unchanged", "worse"};
+    CHECK(allowed.count(c["change"].get<std::string>()) == 1);
+
+    // The other way round the repair reads as worse; with the after-visit at another flow the
+    // duty is named as a possible explanation.
+    fs::copy_file(s.dir / "OW-P101_2026-11-09.wav", workdir() / "OW-P101_throttled.wav", fs::copy_options::overwrite_existing);
+    std::ofstream(workdir() / "OW-P101_throttled.op.toml") << "flow = \"250 m3/h\"\nspeed = \"1485 rpm\"\n";
+    r = run("compare --baseline " + q(base) + " --before " + q(workdir() / "OW-P101_throttled.wav") + " --after " +
+            q(s.dir / "OW-P101_2026-11-02.wav") + " --json " + q(j));
+    REQUIRE(r.status == 0);
+    c = json::parse(slurp(j));
+    CHECK(c["change"] == "worse");
+    REQUIRE(c["warnings"].size() == 1);
+    CHECK(c["warnings"][0].get<std::string>().find("flow before 250 m3/h") != std::string::npos);
+    CHECK_FALSE(c["cautions"].empty());  // cavitating after: the cautions come with it
+
+    // The same file on both sides is a usage error.
+    CHECK(run("compare --baseline " + q(base) + " --before " + q(s.dir / "OW-P101_2026-09-07.wav") + " --after " +
+              q(s.dir / "OW-P101_2026-09-07.wav"))
+              .status == 2);
+}
+
+// --- faults: a route's outputs are one unit --------------------------------------------
+namespace {
+
+std::set<std::string> finding_files(const fs::path& out) {
+    std::set<std::string> names;
+    std::error_code ec;
+    for (const auto& e : fs::directory_iterator(out / "findings", ec)) names.insert(e.path().filename().string());
+    return names;
+}
+
+// Every finding a summary names is in the folder, and nothing else is.
+void check_consistent(const fs::path& out) {
+    std::set<std::string> named;
+    for (const auto& r : jsonl(out / "summary.jsonl"))
+        if (!r["finding"].get<std::string>().empty()) named.insert(fs::path(r["finding"].get<std::string>()).filename().string());
+    CHECK(named == finding_files(out));
+}
+
+// The demo route's first `rows` data rows, as a manifest of its own.
+fs::path first_rows(const std::string& name, std::size_t rows) {
+    const Site& s = site();
+    std::istringstream in(slurp(s.dir / "route.csv"));
+    std::string line, text;
+    for (std::size_t k = 0; k <= rows && std::getline(in, line); ++k) text += line + "\n";
+    const fs::path p = s.dir / name;
+    std::ofstream(p) << text;
+    return p;
+}
+
+}  // namespace
+
+TEST_CASE("route: killed midway, the earlier route's outputs stay whole, and a rerun is consistent", "[route][faults]") {
+    const Site& s = site();
+    const fs::path out = workdir() / "out-killed";
+    const fs::path a = first_rows("route-a.csv", 2);
+    // Every demo row, and each one twice, so the kill lands while findings are being written.
+    std::string b_text = slurp(s.dir / "route.csv");
+    {
+        std::istringstream in(b_text);
+        std::string line, rows;
+        std::getline(in, line);
+        while (std::getline(in, line)) rows += line + "\n";
+        b_text += rows + rows;
+    }
+    const fs::path b = s.dir / "route-b.csv";
+    std::ofstream(b) << b_text;
+    REQUIRE(run("route " + q(a) + " --baselines " + q(s.lib) + " --no-store --jobs 1 --out " + q(out)).status == 0);
+    std::ofstream(out / "notes.txt") << "the analyst's own file in the route folder\n";
+    const std::string a_summary = slurp(out / "summary.jsonl");
+    const auto a_findings = finding_files(out);
+    REQUIRE(a_findings.size() == 2);
+
+    // Route B into the same folder, killed once its first finding is written.
+    const pid_t pid = ::fork();
+    REQUIRE(pid >= 0);
+    if (pid == 0) {
+        const std::string cmd = "exec '" + std::string(CAVITAS_BIN) + "' route " + q(b) + " --baselines " + q(s.lib) +
+                                " --no-store --jobs 1 --out " + q(out) + " >/dev/null 2>&1";
+        ::execl("/bin/sh", "sh", "-c", cmd.c_str(), static_cast<char*>(nullptr));
+        ::_exit(127);
+    }
+    bool saw_staging = false;
+    for (int k = 0; k < 3000 && !saw_staging; ++k) {
+        for (const auto& e : fs::directory_iterator(workdir()))
+            if (e.path().filename().string().rfind(".out-killed.cavitas-", 0) == 0 && !finding_files(e.path()).empty())
+                saw_staging = true;
+        if (!saw_staging) ::usleep(5000);
+    }
+    ::kill(pid, SIGKILL);
+    int status = 0;
+    ::waitpid(pid, &status, 0);
+    REQUIRE(saw_staging);
+    REQUIRE(WIFSIGNALED(status));
+    // The folder is route A's, whole: its summary, its findings, the analyst's file.
+    CHECK(slurp(out / "summary.jsonl") == a_summary);
+    CHECK(finding_files(out) == a_findings);
+    CHECK(fs::exists(out / "notes.txt"));
+    check_consistent(out);
+
+    // Run again to the end: B's outputs, consistent, the analyst's file kept, A's other findings gone.
+    const Run r = run("route " + q(b) + " --baselines " + q(s.lib) + " --no-store --jobs 2 --out " + q(out));
+    INFO(r.err);
+    CHECK(r.status == 0);
+    CHECK(jsonl(out / "summary.jsonl").size() == 21);
+    check_consistent(out);
+    CHECK(slurp(out / "notes.txt") == "the analyst's own file in the route folder\n");
+}
+
+TEST_CASE("route: a full disk leaves the earlier outputs whole and names what failed", "[route][faults]") {
+    if (::geteuid() != 0) {
+        WARN("skipped: mounting a small tmpfs to fill needs root");
+        return;
+    }
+    const Site& s = site();
+    const fs::path disk = workdir() / "small-disk";
+    fs::create_directories(disk);
+    if (std::system(("mount -t tmpfs -o size=4m tmpfs " + q(disk) + " 2>/dev/null").c_str()) != 0) {
+        WARN("skipped: this machine does not let root mount a tmpfs (a container without CAP_SYS_ADMIN)");
+        return;
+    }
+    struct Unmount {
+        fs::path at;
+        ~Unmount() { std::system(("umount " + q(at)).c_str()); }
+    } unmount{disk};
+    const fs::path out = disk / "out";
+    const fs::path a = first_rows("route-disk.csv", 2);
+    REQUIRE(run("route " + q(a) + " --baselines " + q(s.lib) + " --no-store --out " + q(out)).status == 0);
+    const fs::path finding = out / "findings" / *finding_files(out).begin();
+    const Run old_report = run("report " + q(finding) + " --html " + q(disk / "old.html"));
+    INFO(old_report.err);
+    REQUIRE(old_report.status == 0);
+    const std::string a_summary = slurp(out / "summary.jsonl"), a_csv = slurp(out / "summary.csv"),
+                      a_route = slurp(out / "route.json"), old_html = slurp(disk / "old.html");
+    // Fill the disk, leaving a few kilobytes: enough to start, not to finish.
+    std::system(("dd if=/dev/zero of=" + q(disk / "filler") + " bs=4k 2>/dev/null; rm -f " + q(disk / "filler") +
+                 "; dd if=/dev/zero of=" + q(disk / "filler") + " bs=1k count=$(( $(df --output=avail -k " + q(disk) +
+                 " | tail -1) - 12 )) 2>/dev/null")
+                    .c_str());
+
+    const Run r = run("route " + q(first_rows("route-disk-b.csv", 4)) + " --baselines " + q(s.lib) +
+                      " --no-store --out " + q(out));
+    INFO(r.out << r.err);
+    CHECK(r.status == 1);
+    CHECK(r.err.find("No space left on device") != std::string::npos);
+    CHECK(slurp(out / "summary.jsonl") == a_summary);
+    CHECK(slurp(out / "summary.csv") == a_csv);
+    CHECK(slurp(out / "route.json") == a_route);
+    check_consistent(out);
+    for (const auto& e : fs::directory_iterator(disk)) CHECK(e.path().filename().string().find(".cavitas-") == std::string::npos);
+
+    // A report of an HTML and a PDF: neither is written when one cannot be.
+    const Run rep = run("report " + q(finding) + " --html " + q(disk / "old.html") + " --pdf " + q(disk / "new.pdf"));
+    CHECK(rep.status == 1);
+    CHECK(rep.err.find("No space left on device") != std::string::npos);
+    CHECK(slurp(disk / "old.html") == old_html);
+    CHECK_FALSE(fs::exists(disk / "new.pdf"));
+}
+
+TEST_CASE("route: a locked or read-only store is found before the analysis, with the right words", "[route][faults]") {
+    const Site& s = site();
+    const fs::path store = workdir() / "locked.sqlite";
+    const fs::path a = first_rows("route-lock.csv", 1);
+    REQUIRE(run("route " + q(a) + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                q(workdir() / "out-lock")).status == 0);
+    {
+        cavitas::app::HistoryStore holder(store.string());
+        holder.begin();  // a write lock held by "another program"
+        const Run r = run("route " + q(a) + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                          q(workdir() / "out-lock2"));
+        INFO(r.err);
+        CHECK(r.status == 1);
+        CHECK(r.err.find("locked by another program") != std::string::npos);
+        CHECK(r.err.find("not a cavitas results store") == std::string::npos);
+        CHECK_FALSE(fs::exists(workdir() / "out-lock2"));
+        holder.commit();
+    }
+    // Read-only: root ignores permissions, so the run is made as an unprivileged user then.
+    fs::permissions(store, fs::perms::owner_read | fs::perms::group_read | fs::perms::others_read);
+    std::string as_user;
+    if (::geteuid() == 0) {
+        if (std::system("command -v setpriv >/dev/null 2>&1") != 0) {
+            WARN("skipped the read-only store: running as root without setpriv to drop privileges");
+            return;
+        }
+        fs::permissions(workdir(), fs::perms::all);
+        as_user = "--reuid=65534 --regid=65534 --clear-groups ";
+    }
+    const std::string cmd = (as_user.empty() ? std::string() : "setpriv " + as_user) + "'" + CAVITAS_BIN + "' route " +
+                            q(a) + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                            q(workdir() / "out-ro") + " >" + q(workdir() / "ro.out") + " 2>" + q(workdir() / "ro.err");
+    const int rc = std::system(cmd.c_str());
+    const std::string err = slurp(workdir() / "ro.err");
+    INFO(err);
+    CHECK(WIFEXITED(rc));
+    CHECK(WEXITSTATUS(rc) == 1);
+    CHECK(err.find("read-only") != std::string::npos);
+    CHECK_FALSE(fs::exists(workdir() / "out-ro"));
+}
