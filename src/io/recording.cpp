@@ -284,6 +284,7 @@ void SndfileSource::adopt(void* handle, const SF_INFO& sfi, int channel) {
     info_.channel = channel;
     info_.frames = static_cast<std::size_t>(sfi.frames);
     info_.format = describe_format(sfi.format);
+    info_.stated_unit = "FS";
     const int sub = sfi.format & SF_FORMAT_SUBMASK;
     info_.is_float = sub == SF_FORMAT_FLOAT || sub == SF_FORMAT_DOUBLE;
     switch (sub) {
@@ -376,6 +377,8 @@ std::size_t MemorySource::read(std::span<float> out) {
     pos_ += n;
     return n;
 }
+
+std::string AudioSource::sha256() { return sha256_file(info().path); }
 
 std::string sha256_file(const std::string& path) {
     std::ifstream in(path, std::ios::binary);

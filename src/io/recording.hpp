@@ -1,9 +1,12 @@
-// Reading recordings block by block through libsndfile.
+// Reading recordings block by block.
 //
 // AudioSource is the seam between the analysis and the file system: the
-// analysis asks for blocks, SndfileSource reads them from any format
-// libsndfile knows (WAV PCM 16/24/32, float, FLAC, ...), MemorySource serves
-// samples from memory for tests.
+// analysis asks for blocks of one channel in engineering units. SndfileSource
+// reads any format libsndfile knows (WAV PCM 16/24/32, float, FLAC, ...);
+// the readers of the formats collectors and acquisition systems export (UFF
+// dataset 58, CSV waveforms, MATLAB files) live beside it in src/io/, and
+// sources.hpp opens whichever a file is. MemorySource serves samples from
+// memory for tests.
 #pragma once
 
 #include <cstddef>
@@ -29,6 +32,12 @@ struct RecordingInfo {
     std::string format;           ///< e.g. "WAV PCM 16-bit"
     bool is_float = false;        ///< float/double file: no fixed full scale
     int pcm_bits = 0;             ///< bits of a linear integer encoding (8, 16, 24, 32); 0 = float, companded or lossy
+    std::string channel_name;     ///< as the file names it ("" = none)
+    /// The unit the file states for its values ("" = none stated; "FS" for
+    /// a sound file's samples, which are fractions of full scale).
+    std::string stated_unit;
+    /// calibration.full_scale is the engineering value of one unit of the
+    /// file's samples (of full scale for a sound file, of stated_unit else).
     Calibration calibration;
     double duration_s() const { return fs_hz > 0.0 ? static_cast<double>(frames) / fs_hz : 0.0; }
     /// |x| of a full-scale sample in engineering units (0 for float files).
@@ -44,6 +53,8 @@ public:
     /// Fill up to out.size() samples of the chosen channel, in engineering units.
     /// Returns the number written; 0 at the end.
     virtual std::size_t read(std::span<float> out) = 0;
+    /// SHA-256 of the whole file (hex); throws InputError on a read error.
+    virtual std::string sha256();
 };
 
 class SndfileSource final : public AudioSource {
@@ -63,7 +74,7 @@ public:
     /// bytes were hashed as the decoder read them, and what it skipped or had
     /// not reached yet is read and hashed now, so the file is read about once.
     /// Throws InputError on a read error, std::logic_error for a source in memory.
-    std::string sha256();
+    std::string sha256() override;
 
     struct Memory;
     struct HashingFile;
