@@ -108,7 +108,9 @@ struct Baseline {
     bool rpm_estimated = false;
     int vanes = 0;
     std::string unit = "FS";
-    double full_scale = 1.0;
+    double full_scale = 1.0;  ///< engineering units per unit of the learned files' values
+    std::string values_unit = "FS";  ///< the unit the learned files stated for their values (FS: sound files)
+    std::string calibration_account;  ///< how the calibration was found ("sensitivity 100mV/g, gain 10")
     std::string mount;    ///< as stated when learned (empty = not stated)
     std::vector<BaselineSource> sources;
     SpeedModel speed;

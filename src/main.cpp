@@ -66,6 +66,32 @@ std::string one_line(const std::string& s) {
 
 // The operating-point flags, the same on every command that takes them.
 // beside_recording: the command reads NAME.op.toml beside each recording by default.
+// Which channel of a file and how its values become engineering units.
+void add_reading_flags(CLI::App* cmd, ReadRequest& read, CalibrationText& cal, bool learning) {
+    cmd->add_option("--channel", read.channel, "Channel to read, from 0 (a column of a CSV waveform or a MATLAB "
+                                               "matrix, a dataset of a UFF file); 'cavitas info FILE' lists them")
+        ->check(CLI::Range(0, 1023));
+    const std::string later = learning ? " Analyses against the baseline use its calibration unless told otherwise."
+                                       : " Default: the baseline's, for files whose values come in the unit its did.";
+    cmd->add_option("--full-scale", cal.full_scale,
+                    "What a full-scale sample of a sound file (WAV, FLAC) means: 50g, 500m/s2, 2000Pa (hydrophone), "
+                    "or the voltage 10V to combine with --sensitivity. Without any calibration levels stay in "
+                    "full-scale units (FS)." + later);
+    cmd->add_option("--sensitivity", cal.sensitivity,
+                    "The sensor's sensitivity, to turn volts into g, m/s2 or Pa: 100mV/g, 10.2mV/(m/s2), 50mV/Pa, or "
+                    "for a hydrophone 0.1V/uPa or -200dB re 1V/uPa. For files of volts (a UFF or CSV stating V or "
+                    "mV, a MATLAB file); a sound file needs --full-scale in volts too");
+    cmd->add_option("--gain", cal.gain, "Amplifier gain between sensor and recorder, a factor (10) or dB (20dB); "
+                                        "needs --sensitivity");
+    cmd->add_option("--unit", cal.unit, "Unit of the values of a file that states none (a MATLAB file, a CSV "
+                                        "without units): g, m/s2, Pa, kPa, V or mV");
+    cmd->add_option("--variable", read.variable, "The variable of a MATLAB file to read (default: its only numeric "
+                                                 "vector or matrix)");
+    cmd->add_option("--sample-rate", read.sample_rate_hz, "Sample rate, Hz, of a file that does not state it (a CSV "
+                                                          "without a time column or rate line, most MATLAB files)")
+        ->check(kDecimal)->check(CLI::Range(1.0, 1.0e7));
+}
+
 void add_operating_point_flags(CLI::App* cmd, OperatingPointFlags& f, bool beside_recording) {
     for (const auto& field : operating_point_fields()) {
         if (!field.flag) continue;
@@ -197,10 +223,7 @@ int main(int argc, char** argv) {
         ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     base->add_option("--vanes", bo.vanes, "Impeller vanes (runner blades): blade-pass frequency = vanes x rpm / 60")
         ->check(CLI::Range(0, 200));
-    base->add_option("--channel", bo.channel, "Channel to read from multichannel files, from 0")->check(CLI::NonNegativeNumber);
-    base->add_option("--full-scale", bo.full_scale,
-                     "What a full-scale sample means, e.g. 50g, 500m/s2, 2000Pa (hydrophone); without it "
-                     "levels stay in full-scale units (FS). Analyses use the baseline's calibration.");
+    add_reading_flags(base, bo.read, bo.calibration, true);
     base->add_option("--sensor-max-hz", bo.sensor_max_hz,
                      "Usable top frequency of the sensor as mounted; the HF band stops there")
         ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
@@ -228,9 +251,7 @@ int main(int argc, char** argv) {
                    "lines are compared in orders); without it the speed is estimated near the baseline's")
         ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     an->add_option("--vanes", ao.vanes, "Impeller vanes (default: the baseline's)")->check(CLI::Range(0, 200));
-    an->add_option("--channel", ao.channel, "Channel to read, from 0")->check(CLI::NonNegativeNumber);
-    an->add_option("--full-scale", ao.full_scale, "Calibration of this file if it differs in form from the "
-                                                  "baseline's (default: the baseline's)");
+    add_reading_flags(an, ao.read, ao.calibration, false);
     an->add_option("--json", ao.json_output, "Write the finding as JSON to this file (atomically)");
     an->add_option("--sensor-max-hz", ao.sensor_max_hz,
                    "Usable top frequency of the sensor as mounted for this recording; the verdict is indeterminate "

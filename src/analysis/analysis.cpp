@@ -78,12 +78,14 @@ std::string seconds_text(double s) {
 }
 }  // namespace
 
-AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
+AnalyzedRecording analyze_file(const std::string& path, const ReadRequest& read, const CalibrationText& calibration,
+                               const std::optional<StoredCalibration>& stored,
                                const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
                                const models::MachineContext& machine, const Progress& progress,
                                models::Fidelity fidelity) {
     AnalyzedRecording r;
-    SndfileSource source(path, channel, calibration);
+    const std::unique_ptr<AudioSource> opened = open_calibrated(path, read, calibration, stored);
+    AudioSource& source = *opened;
     r.info = source.info();
     models::AnalysisSetup use;
     try {
@@ -178,8 +180,13 @@ double sensor_limit(double sensor_max_hz, const std::string& mount) {
 
 
 
-Calibration calibration_of(const std::optional<std::string>& text) {
-    return text ? parse_full_scale(*text) : Calibration{};
+StoredCalibration stored_calibration(const models::Baseline& b) {
+    StoredCalibration s;
+    s.calibration.full_scale = b.full_scale;
+    s.calibration.unit = b.unit;
+    s.calibration.account = b.calibration_account;
+    s.values_unit = b.values_unit;
+    return s;
 }
 
 // The files an operating point is read from (the --operating-point file, the
@@ -197,13 +204,6 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
         throw InputError(o.baseline + ": baseline is for machine '" + r.baseline.machine + "', not '" + o.machine +
                          "'; use that machine's baseline");
-    Calibration cal;
-    if (o.full_scale) {
-        cal = parse_full_scale(*o.full_scale);
-    } else {
-        cal.full_scale = r.baseline.full_scale;
-        cal.unit = r.baseline.unit;
-    }
     // The operating point first: a mistyped reading fails before the analysis.
     std::optional<ResolvedOperatingPoint> duty = resolve_operating_point(o.operating, o.recording);
     models::MachineContext machine;
@@ -211,10 +211,11 @@ AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     if (!machine.rpm && duty && duty->op.rpm) machine.rpm = duty->op.rpm;
     machine.vanes = o.vanes ? *o.vanes : r.baseline.vanes;
     machine.rpm_hint = r.baseline.rpm;
-    r.recording = analyze_file(o.recording, o.channel, cal, r.baseline.setup, 0.0, machine, progress);
+    r.recording = analyze_file(o.recording, o.read, o.calibration, stored_calibration(r.baseline), r.baseline.setup,
+                               0.0, machine, progress);
     models::RecordingContext ctx;
-    ctx.unit = cal.unit;
-    ctx.channel = o.channel;
+    ctx.unit = r.recording.info.calibration.unit;
+    ctx.channel = o.read.channel;
     ctx.sensor_max_hz = sensor_limit(o.sensor_max_hz, o.mount);
     r.finding = models::classify(r.recording.analysis, r.baseline, ctx);
     if (duty) {

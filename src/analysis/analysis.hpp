@@ -19,6 +19,7 @@
 #include "src/io/operating_point_io.hpp"
 #include "src/io/output_guard.hpp"
 #include "src/io/recording.hpp"
+#include "src/io/sources.hpp"
 
 namespace cavitas::app {
 
@@ -39,9 +40,11 @@ models::RecordingAnalysis analyze_source(AudioSource& source, const models::Anal
                                          const models::MachineContext& machine, const Progress& progress = {},
                                          models::Fidelity fidelity = models::Fidelity::fast);
 
-/// Open, hash and analyse one file. setup: the baseline's (nullopt = choose from
-/// the file's rate and sensor_max_hz).
-AnalyzedRecording analyze_file(const std::string& path, int channel, const Calibration& calibration,
+/// Open (open_calibrated: the calibration from `calibration`, the file and
+/// `stored`), hash and analyse one file. setup: the baseline's (nullopt =
+/// choose from the file's rate and sensor_max_hz).
+AnalyzedRecording analyze_file(const std::string& path, const ReadRequest& read, const CalibrationText& calibration,
+                               const std::optional<StoredCalibration>& stored,
                                const std::optional<models::AnalysisSetup>& setup, double sensor_max_hz,
                                const models::MachineContext& machine, const Progress& progress = {},
                                models::Fidelity fidelity = models::Fidelity::fast);
@@ -82,10 +85,10 @@ struct AnalyzeOptions {
     std::string baseline;
     std::string recording;
     std::optional<std::string> json_output;
-    int channel = 0;
+    ReadRequest read;
     std::optional<double> rpm;
     std::optional<int> vanes;
-    std::optional<std::string> full_scale;
+    CalibrationText calibration;
     OperatingPointFlags operating;
 };
 
@@ -107,7 +110,7 @@ AnalyzeResult analyze(const AnalyzeOptions& options, const Progress& progress = 
 /// UsageError for an unknown mount.
 double sensor_limit(double sensor_max_hz, const std::string& mount);
 
-/// --full-scale's text as a calibration (none: full-scale units).
-Calibration calibration_of(const std::optional<std::string>& text);
+/// The calibration a baseline was learned with, to read like files alike.
+StoredCalibration stored_calibration(const models::Baseline& b);
 
 }  // namespace cavitas::app

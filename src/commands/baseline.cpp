@@ -41,7 +41,7 @@ struct LearnedSource {
     std::optional<ResolvedOperatingPoint> duty;
 };
 
-LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Calibration& cal,
+LearnedSource learn_source(const BaselineOptions& o, std::size_t index, std::optional<StoredCalibration>& cal,
                            std::optional<models::AnalysisSetup>& setup, double sensor_max,
                            models::MachineContext& machine, std::ostream& err) {
     // The operating point first: a mistyped reading fails before minutes of analysis.
@@ -53,14 +53,31 @@ LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Ca
     if (!this_machine.rpm && l.duty && l.duty->op.rpm) this_machine.rpm = l.duty->op.rpm;
     if (!setup) {
         // The first recording fixes the bands and the segment length (--segment).
-        const SndfileSource probe(path, o.channel, cal);
+        const auto probe = open_recording(path, o.read, Calibration{});
         try {
-            setup = models::choose_setup(probe.info().fs_hz, sensor_max, o.segment_s);
+            setup = models::choose_setup(probe->info().fs_hz, sensor_max, o.segment_s);
         } catch (const std::invalid_argument& e) {
             throw InputError(path + ": " + e.what());
         }
     }
-    AnalyzedRecording r = analyze_file(path, o.channel, cal, setup, sensor_max, this_machine, stderr_progress(path, err));
+    // The first recording fixes the calibration (or the baseline added to
+    // does); every other one must come out the same.
+    AnalyzedRecording r = analyze_file(path, o.read, o.calibration, cal, setup, sensor_max, this_machine,
+                                       stderr_progress(path, err));
+    const Calibration& got = r.info.calibration;
+    if (!cal) {
+        cal = StoredCalibration{got, r.info.stated_unit};
+    } else if (got.unit != cal->calibration.unit ||
+               std::abs(got.full_scale - cal->calibration.full_scale) > 1e-9 * cal->calibration.full_scale) {
+        const std::string what = path + ": comes out as " + std::to_string(got.full_scale) + " " + got.unit +
+                                 " per unit of its values, the baseline's other recordings as " +
+                                 std::to_string(cal->calibration.full_scale) + " " + cal->calibration.unit +
+                                 "; a baseline needs recordings calibrated alike";
+        if (o.add_to && !o.calibration.empty())
+            throw UsageError("the calibration given (--full-scale, --sensitivity, --gain, --unit) differs from the "
+                             "one of " + *o.add_to + ": " + what);
+        throw InputError(what);
+    }
     if (r.info.fs_hz != setup->fs_hz)
         throw InputError(path + ": sample rate " + std::to_string(static_cast<int>(r.info.fs_hz)) +
                          " Hz differs from the baseline's " + std::to_string(static_cast<int>(setup->fs_hz)) +
@@ -69,12 +86,12 @@ LearnedSource learn_source(const BaselineOptions& o, std::size_t index, const Ca
     // no reference (NaN, a dead or stuck signal, clipping, dropouts, DC,
     // ski slope, length) are run against the recording's own statistics.
     models::Baseline self = models::learn_baseline({r.analysis});
-    self.unit = cal.unit;
-    self.full_scale = cal.full_scale;
-    self.channel = o.channel;
+    self.unit = got.unit;
+    self.full_scale = got.full_scale;
+    self.channel = o.read.channel;
     models::RecordingContext ctx;
-    ctx.unit = cal.unit;
-    ctx.channel = o.channel;
+    ctx.unit = got.unit;
+    ctx.channel = o.read.channel;
     // The speed is the exception: a baseline may be learned without one (its
     // findings then need a speed given or confirmed against it).
     for (const auto& c : models::assess_quality(r.analysis, self, ctx).checks)
@@ -161,17 +178,13 @@ BaselineOptions with_store_visits(BaselineOptions o) {
         o.recordings.push_back(path);
         o.rpms.push_back(rpm > 0.0 ? rpm : 0.0);
         o.expected_sha256.push_back(m.sha256);
-        o.channel = m.channel;
+        o.read.channel = m.channel;
     }
     // Calibration, vane count and mount as the baseline those visits were judged against, unless given.
     std::error_code ec2;
     if (fs::is_regular_file(normal.back().baseline, ec2)) {
         const models::Baseline used = read_baseline_file(normal.back().baseline);
-        if (!o.full_scale && used.unit != "FS") {
-            char text[64];
-            std::snprintf(text, sizeof text, "%.17g%s", used.full_scale, used.unit.c_str());
-            o.full_scale = text;
-        }
+        if (o.calibration.empty()) o.stored_calibration = stored_calibration(used);
         if (o.vanes == 0) o.vanes = used.vanes;
         if (o.mount.empty()) o.mount = used.mount;
     }
@@ -203,18 +216,14 @@ void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream&
     std::optional<models::Baseline> earlier;
     if (o.add_to) earlier = read_baseline_file(*o.add_to);
     const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
-    Calibration cal = calibration_of(o.full_scale);
+    std::optional<StoredCalibration> cal = o.stored_calibration;
     if (earlier) {
-        if (o.full_scale && (cal.unit != earlier->unit || cal.full_scale != earlier->full_scale))
-            throw UsageError("--full-scale " + *o.full_scale + " differs from the calibration of " + *o.add_to +
-                             "; recordings added to a baseline must be calibrated as it is");
-        cal.unit = earlier->unit;
-        cal.full_scale = earlier->full_scale;
+        cal = stored_calibration(*earlier);
         if (earlier->sources.empty() || earlier->sources.front().series.segments() == 0)
             throw InputError(*o.add_to + ": made by an older cavitas, it keeps no per-recording values to add to; "
                              "relearn it from its recordings");
-        if (o.channel != earlier->channel)
-            throw UsageError("--channel " + std::to_string(o.channel) + " differs from the channel " +
+        if (o.read.channel != earlier->channel)
+            throw UsageError("--channel " + std::to_string(o.read.channel) + " differs from the channel " +
                              std::to_string(earlier->channel) + " of " + *o.add_to);
     }
     models::MachineContext machine;
@@ -258,9 +267,11 @@ void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream&
     for (const auto& a : analyses) b.rpm_estimated = b.rpm_estimated || a.rpm_estimated;
     b.cavitas_version = kVersion;
     b.created_utc = utc_now();
-    b.channel = o.channel;
-    b.unit = cal.unit;
-    b.full_scale = cal.full_scale;
+    b.channel = o.read.channel;
+    b.unit = cal->calibration.unit;
+    b.full_scale = cal->calibration.full_scale;
+    b.values_unit = cal->values_unit;
+    b.calibration_account = cal->calibration.account;
     b.warnings = models::check_baseline(b, duties);
     // A level step: learn from the quieter side of it, and say so in the warning.
     bool cut = false;

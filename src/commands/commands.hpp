@@ -15,11 +15,13 @@ struct BaselineOptions {
     std::string machine;
     std::vector<std::string> recordings;
     std::string output;
-    int channel = 0;
+    ReadRequest read;                 ///< channel and format hints, the same for every recording
     std::optional<double> rpm;        ///< speed of every recording
     std::vector<double> rpms;         ///< or one speed per recording, in order (overrides rpm)
     int vanes = 0;
-    std::optional<std::string> full_scale;
+    CalibrationText calibration;
+    /// The calibration of the baseline the store's visits were judged against (--from-store).
+    std::optional<StoredCalibration> stored_calibration;
     double sensor_max_hz = 0.0;
     std::string mount;
     double segment_s = 1.0;

@@ -172,7 +172,7 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
             ao.machine = o.machine;
             ao.rpm = o.rpm;
             ao.vanes = o.vanes;
-            ao.channel = o.channel;
+            ao.read.channel = o.channel;
             AnalyzeResult r = analyze(ao);
             if (r.operating) {
                 duties.emplace_back(r.operating->resolved.op, r.operating->resolved.hydraulics);

@@ -5,6 +5,7 @@
 #include <fstream>
 #include <sstream>
 
+#include "src/io/calibration.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/text_file.hpp"
 
@@ -116,6 +117,8 @@ json baseline_to_json(const Baseline& b) {
           {"vanes", b.vanes},
           {"unit", b.unit},
           {"full_scale", b.full_scale},
+          {"values_unit", b.values_unit},
+          {"calibration", b.calibration_account},
           {"mount", b.mount}}},
         {"warnings", warnings},
         {"speed_model",
@@ -264,6 +267,17 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
     if (!c.contains("unit") || !c["unit"].is_string()) throw InputError(wc + ": missing 'unit'");
     b.unit = c["unit"];
     b.full_scale = num(c, "full_scale", wc);
+    // Optional: the unit of the learned files' values and how the calibration was found (absent: sound files).
+    if (c.contains("values_unit")) {
+        if (!c["values_unit"].is_string() || !signal_unit(c["values_unit"].get<std::string>()))
+            throw InputError(wc + ": 'values_unit' is not a unit cavitas reads (g, m/s2, Pa, V, FS, raw)");
+        b.values_unit = signal_unit(c["values_unit"].get<std::string>())->name;
+    }
+    if (c.contains("calibration")) {
+        if (!c["calibration"].is_string() || c["calibration"].get<std::string>().size() > 200)
+            throw InputError(wc + ": 'calibration' is not a text of at most 200 bytes");
+        b.calibration_account = c["calibration"].get<std::string>();
+    }
     b.setup.segment_s = num(s, "segment_s", ws);
     b.setup.hf.low_hz = num(s, "hf_low_hz", ws);
     b.setup.hf.high_hz = num(s, "hf_high_hz", ws);

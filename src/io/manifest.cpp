@@ -30,7 +30,8 @@ std::optional<std::string> unusable_as_file_name(const std::string& tag) {
 namespace {
 
 const std::vector<std::string> kRequired = {"file", "machine", "point", "channel", "datetime", "rpm", "vanes"};
-const std::vector<std::string> kSensor = {"full_scale", "mount", "sensor_max_hz"};
+const std::vector<std::string> kSensor = {"full_scale", "sensitivity", "gain",    "unit",
+                                          "mount",      "sensor_max_hz", "variable", "sample_rate_hz"};
 
 // Linear in the cell's length (a cell of a million blanks took 23 s when each was erased from the front).
 std::string trim(const std::string& s) {
@@ -139,7 +140,15 @@ Manifest parse_manifest(const std::string& text, const std::string& path) {
             if (auto v = whole(c, 0, 200)) row.vanes = static_cast<int>(*v);
             else fail("vanes '" + c + "' is not a whole number 0 .. 200");
         }
-        if (const std::string c = cell("full_scale"); !c.empty()) row.full_scale = c;
+        if (const std::string c = cell("full_scale"); !c.empty()) row.calibration.full_scale = c;
+        if (const std::string c = cell("sensitivity"); !c.empty()) row.calibration.sensitivity = c;
+        if (const std::string c = cell("gain"); !c.empty()) row.calibration.gain = c;
+        if (const std::string c = cell("unit"); !c.empty()) row.calibration.unit = c;
+        row.variable = cell("variable");
+        if (const std::string c = cell("sample_rate_hz"); !c.empty()) {
+            if (auto v = number(c, 1.0, 1.0e7)) row.sample_rate_hz = *v;
+            else fail("sample_rate_hz '" + c + "' is not a rate 1 .. 1e7 Hz");
+        }
         row.mount = cell("mount");
         if (const std::string c = cell("sensor_max_hz"); !c.empty()) {
             if (auto v = number(c, 100.0, 1.0e6)) row.sensor_max_hz = *v;

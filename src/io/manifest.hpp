@@ -4,8 +4,10 @@
 // Required columns: file (relative to the manifest), machine, point, channel,
 // datetime (ISO 8601), rpm, vanes. Optional: the operating-point keys of a
 // sidecar file (suction_pressure, temperature, flow, ...; see
-// operating_point_io.hpp), and the sensor columns full_scale (50g), mount,
-// sensor_max_hz. Any other column is kept and passed through to the outputs.
+// operating_point_io.hpp), the sensor columns full_scale (50g), sensitivity
+// (100mV/g), gain (10 or 20dB), unit (of a file's values when it states none),
+// mount, sensor_max_hz, and the reading hints variable (a MATLAB file's) and
+// sample_rate_hz (of a file that states none). Any other column is kept and passed through to the outputs.
 // Empty cells: channel 0, rpm estimated near the baseline's, vanes from the
 // baseline, operating-point fields not stated.
 #pragma once
@@ -16,6 +18,7 @@
 #include <utility>
 #include <vector>
 
+#include "src/io/calibration.hpp"
 #include "src/io/datetime.hpp"
 #include "src/io/operating_point_io.hpp"
 
@@ -33,7 +36,9 @@ struct ManifestRow {
     Timestamp when;
     std::optional<double> rpm;
     std::optional<int> vanes;
-    std::optional<std::string> full_scale;
+    CalibrationText calibration;
+    std::string variable;
+    std::optional<double> sample_rate_hz;
     std::string mount;
     double sensor_max_hz = 0.0;
     OperatingPointText operating;                              ///< operating-point columns (non-empty cells)

@@ -192,12 +192,7 @@ sf_count_t file_tell(void* user) { return static_cast<SndfileSource::HashingFile
 SndfileSource::SndfileSource(const std::string& path, int channel, const Calibration& calibration) {
     info_.path = path;
     info_.calibration = calibration;
-    std::error_code ec;
-    const auto st = std::filesystem::status(path, ec);
-    if (ec || !std::filesystem::exists(st)) throw InputError(path + ": no such file");
-    if (std::filesystem::is_directory(st)) throw InputError(path + ": is a directory, not a recording");
-    // A FIFO, socket or device would block or never end: only regular files are recordings.
-    if (!std::filesystem::is_regular_file(st)) throw InputError(path + ": is not a regular file");
+    require_recording_file(path);
     hashing_ = std::make_unique<HashingFile>();
     hashing_->fd = ::open(path.c_str(), O_RDONLY | O_CLOEXEC);
     if (hashing_->fd < 0) throw InputError(path + ": cannot open: " + std::strerror(errno));
@@ -376,6 +371,15 @@ std::size_t MemorySource::read(std::span<float> out) {
     std::copy_n(samples_.begin() + static_cast<std::ptrdiff_t>(pos_), n, out.begin());
     pos_ += n;
     return n;
+}
+
+void require_recording_file(const std::string& path) {
+    std::error_code ec;
+    const auto st = std::filesystem::status(path, ec);
+    if (ec || !std::filesystem::exists(st)) throw InputError(path + ": no such file");
+    if (std::filesystem::is_directory(st)) throw InputError(path + ": is a directory, not a recording");
+    // A FIFO, socket or device would block or never end: only regular files are recordings.
+    if (!std::filesystem::is_regular_file(st)) throw InputError(path + ": is not a regular file");
 }
 
 std::string AudioSource::sha256() { return sha256_file(info().path); }

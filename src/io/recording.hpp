@@ -105,6 +105,11 @@ private:
     RecordingInfo info_;
 };
 
+/// Throws InputError unless `path` is a regular file ("no such file", "is a
+/// directory", "is not a regular file": a FIFO or device would block).
+/// Every reader calls it before opening.
+void require_recording_file(const std::string& path);
+
 /// SHA-256 of a file's bytes as 64 lowercase hex digits; throws InputError.
 std::string sha256_file(const std::string& path);
 

@@ -40,6 +40,7 @@ bool looks_like_uff(std::string_view head) {
 }  // namespace
 
 RecordingFormat detect_format(const std::string& path) {
+    require_recording_file(path);
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError(path + ": " + (errno ? std::strerror(errno) : "cannot be opened"));
     std::array<char, 256> buf{};
@@ -62,6 +63,45 @@ std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadR
         default: break;
     }
     throw InputError(path + ": this kind of file is not read yet");
+}
+
+namespace {
+
+// A source whose values are multiplied by a calibration the reader did not apply.
+class ScaledSource final : public AudioSource {
+public:
+    ScaledSource(std::unique_ptr<AudioSource> inner, const Calibration& calibration)
+        : inner_(std::move(inner)), info_(inner_->info()), factor_(static_cast<float>(calibration.full_scale)) {
+        info_.calibration = calibration;
+    }
+    const RecordingInfo& info() const override { return info_; }
+    std::size_t read(std::span<float> out) override {
+        const std::size_t n = inner_->read(out);
+        if (factor_ != 1.0f)
+            for (std::size_t i = 0; i < n; ++i) out[i] *= factor_;
+        return n;
+    }
+    std::string sha256() override { return inner_->sha256(); }
+
+private:
+    std::unique_ptr<AudioSource> inner_;
+    RecordingInfo info_;
+    float factor_;
+};
+
+}  // namespace
+
+std::unique_ptr<AudioSource> open_calibrated(const std::string& path, const ReadRequest& request,
+                                             const CalibrationText& text,
+                                             const std::optional<StoredCalibration>& stored) {
+    if (detect_format(path) == RecordingFormat::sound_file) {
+        // libsndfile's samples are fractions of full scale; the reader applies the calibration itself.
+        const Calibration c = resolve_calibration(text, "FS", path, stored);
+        return std::make_unique<SndfileSource>(path, request.channel, c);
+    }
+    auto source = open_recording(path, request, Calibration{1.0, "", ""});
+    const Calibration c = resolve_calibration(text, source->info().stated_unit, path, stored);
+    return std::make_unique<ScaledSource>(std::move(source), c);
 }
 
 FileSummary describe_recording(const std::string& path, const ReadRequest& request) {

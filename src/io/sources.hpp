@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "src/io/calibration.hpp"
 #include "src/io/recording.hpp"
 
 namespace cavitas::app {
@@ -55,6 +56,14 @@ RecordingFormat detect_format(const std::string& path);
 /// InputError naming the file, the record and the problem.
 std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadRequest& request,
                                             const Calibration& calibration);
+
+/// Opens `request.channel` of `path` calibrated: the calibration resolved
+/// from what was typed, the unit the file states for that channel and a
+/// baseline's calibration (resolve_calibration says how), then applied to
+/// every value. The source's info().calibration is the one applied.
+std::unique_ptr<AudioSource> open_calibrated(const std::string& path, const ReadRequest& request,
+                                             const CalibrationText& text,
+                                             const std::optional<StoredCalibration>& stored = std::nullopt);
 
 /// What `path` holds: channels (or variables), rates, lengths, units.
 FileSummary describe_recording(const std::string& path, const ReadRequest& request = {});

@@ -54,11 +54,16 @@ Calibration parse_full_scale(const std::string& text) {
     } else if (unit == "kPa" || unit == "kpa") {
         c.unit = "Pa";
         c.full_scale = v * 1000.0;
+    } else if (unit == "V") {
+        c.unit = "V";
+    } else if (unit == "mV") {
+        c.unit = "V";
+        c.full_scale = v * 1e-3;
     } else if (unit == "FS" || unit == "fs") {
         c.unit = "FS";
     } else {
         throw UsageError("--full-scale '" + text + "': unknown unit '" + unit +
-                         "' (use g, m/s2, Pa, kPa or FS)");
+                         "' (use g, m/s2, Pa, kPa, V, mV or FS)");
     }
     // The range a baseline file may hold (baseline_io): what is learned can be read back.
     if (!(c.full_scale >= 1e-12 && c.full_scale <= 1e12))

@@ -14,11 +14,16 @@ namespace cavitas::app {
 /// "50g" -> {50, "g"}; "9.81m/s2" -> {9.81, "m/s2"}; "2000Pa" -> {2000, "Pa"}.
 /// Without a calibration samples stay in full-scale units, {1, "FS"}.
 struct Calibration {
-    double full_scale = 1.0;  ///< engineering units per full-scale sample
+    /// Engineering units per unit of the file's values: per full-scale
+    /// sample for a sound file, per stated unit (or volt) for other files.
+    double full_scale = 1.0;
     std::string unit = "FS";
+    /// How it was found, for the finding ("100 mV/g, gain 10, full scale 10 V").
+    std::string account;
 };
 
-/// Parse "<number><unit>", unit one of g, m/s2 (also m/s^2, m/s²), Pa, kPa, FS.
+/// Parse "<number><unit>", unit one of g, m/s2 (also m/s^2, m/s²), Pa, kPa,
+/// V, mV (a full scale in volts, to be divided by a sensitivity), FS.
 /// Throws UsageError naming the text and what is accepted.
 Calibration parse_full_scale(const std::string& text);
 

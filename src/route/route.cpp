@@ -269,10 +269,12 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         ao.baseline = base.string();
         ao.recording = m.path;
         ao.machine = m.machine;
-        ao.channel = m.channel;
+        ao.read.channel = m.channel;
+        ao.read.variable = m.variable;
+        ao.read.sample_rate_hz = m.sample_rate_hz;
         ao.rpm = m.rpm;
         ao.vanes = m.vanes;
-        ao.full_scale = m.full_scale;
+        ao.calibration = m.calibration;
         ao.mount = m.mount;
         ao.sensor_max_hz = m.sensor_max_hz;
         for (const auto& [k, v] : m.operating) ao.operating.values[k] = v;

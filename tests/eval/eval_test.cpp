@@ -55,7 +55,7 @@ int main(int argc, char** argv) {
                 models::MachineContext m;
                 m.rpm = r.rpm;
                 m.vanes = r.vanes;
-                auto a = app::analyze_file(dir + "/" + r.file, 0, cal, setup, 0.0, m);
+                auto a = app::analyze_file(dir + "/" + r.file, {}, {}, app::StoredCalibration{cal, "FS"}, setup, 0.0, m);
                 if (!setup) setup = a.analysis.setup;
                 an.push_back(std::move(a.analysis));
             }
@@ -79,7 +79,7 @@ int main(int argc, char** argv) {
             m.vanes = b.vanes;
             m.rpm_hint = b.rpm;
             app::Calibration cal{b.full_scale, "g"};
-            const auto a = app::analyze_file(dir + "/" + r.file, 0, cal, b.setup, 0.0, m);
+            const auto a = app::analyze_file(dir + "/" + r.file, {}, {}, app::StoredCalibration{cal, "FS"}, b.setup, 0.0, m);
             const auto f = models::classify(a.analysis, b, "g");
             const int t = test::verdict_index(r.label), p = test::verdict_index(models::to_string(f.verdict));
             // Every generated recording is clean: the quality gate must not flag one.

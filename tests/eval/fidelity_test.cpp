@@ -108,7 +108,7 @@ int main(int argc, char** argv) {
                 models::MachineContext m;
                 m.rpm = r.rpm;
                 m.vanes = r.vanes;
-                auto a = app::analyze_file(dir + "/" + r.file, 0, cal, setup, 0.0, m, {}, fid);
+                auto a = app::analyze_file(dir + "/" + r.file, {}, {}, app::StoredCalibration{cal, "FS"}, setup, 0.0, m, {}, fid);
                 if (!setup) setup = a.analysis.setup;
                 an.push_back(std::move(a.analysis));
             }
@@ -136,8 +136,8 @@ int main(int argc, char** argv) {
         m.vanes = r.vanes;
         const auto& bf = base_fast.at(r.machine);
         const auto& br = base_ref.at(r.machine);
-        const auto fast = app::analyze_file(path, 0, cal, bf.setup, 0.0, m, {}, models::Fidelity::fast).analysis;
-        const auto ref = app::analyze_file(path, 0, cal, br.setup, 0.0, m, {}, models::Fidelity::reference).analysis;
+        const auto fast = app::analyze_file(path, {}, {}, app::StoredCalibration{cal, "FS"}, bf.setup, 0.0, m, {}, models::Fidelity::fast).analysis;
+        const auto ref = app::analyze_file(path, {}, {}, app::StoredCalibration{cal, "FS"}, br.setup, 0.0, m, {}, models::Fidelity::reference).analysis;
         const auto vf = models::classify(fast, bf, "g").verdict, vr = models::classify(ref, br, "g").verdict;
         if (vf != vr) {
             ++verdict_mismatch;

@@ -43,7 +43,7 @@ std::string learn(const std::string& dir, const std::string& name, const Group& 
         o.rpms.push_back(r.rpm);
     }
     o.vanes = g.baselines.front().vanes;
-    o.full_scale = "50g";
+    o.calibration.full_scale = "50g";
     o.machine = g.baselines.front().machine;
     o.output = (out_dir / (name + ".json")).string();
     std::ostringstream out, err;

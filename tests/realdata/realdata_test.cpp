@@ -46,7 +46,7 @@ models::Baseline learn(const std::vector<fs::path>& files, double rpm, int vanes
     m.rpm = rpm;
     m.vanes = vanes;
     for (const auto& f : files) {
-        auto r = app::analyze_file(f.string(), 0, cal, setup, 0.0, m);
+        auto r = app::analyze_file(f.string(), {}, {}, app::StoredCalibration{cal, "FS"}, setup, 0.0, m);
         if (!setup) setup = r.analysis.setup;
         an.push_back(std::move(r.analysis));
     }
@@ -63,7 +63,7 @@ Judged judge(const fs::path& f, const models::Baseline& b, double rpm, const app
     if (rpm > 0.0) m.rpm = rpm;
     m.vanes = b.vanes;
     m.rpm_hint = b.rpm;
-    auto r = app::analyze_file(f.string(), 0, cal, b.setup, 0.0, m);
+    auto r = app::analyze_file(f.string(), {}, {}, app::StoredCalibration{cal, "FS"}, b.setup, 0.0, m);
     Judged j{models::classify(r.analysis, b, cal.unit), r.analysis};
     return j;
 }
@@ -264,7 +264,7 @@ std::string write_baseline(const fs::path& dir, const std::vector<fs::path>& fil
     o.output = (dir / "baseline.json").string();
     o.rpm = rpm;
     o.vanes = kPumpVanes;
-    o.full_scale = full_scale;
+    o.calibration.full_scale = full_scale;
     std::ostringstream out, err;
     app::run_baseline(o, out, err);
     return o.output;
@@ -356,7 +356,7 @@ TEST_CASE("Lab pump: a baseline learned at 700 and 1000 rpm judges the speeds be
     for (const auto& f : known) bo.recordings.push_back(f.string());
     bo.output = (dir / "b.json").string();
     bo.vanes = kPumpVanes;
-    bo.full_scale = "1m/s2";
+    bo.calibration.full_scale = "1m/s2";
     std::ostringstream out, err;
     app::run_baseline(bo, out, err);
     std::cout << out.str();
