@@ -49,6 +49,7 @@ const char* kIntro =
     "  cavitas baseline --rpm 1485 --vanes 7 --full-scale 50g -o P101.json good1.wav good2.wav\n"
     "  cavitas analyze  --baseline P101.json --rpm 1490 --json finding.json today.wav\n"
     "  cavitas npsh     --suction-pressure 35kPa --temperature 60C --flow 120m3/h --bore 150mm --npsh3 4.2m\n"
+    "  cavitas info     export.uff       (what a file holds: channels, rates, lengths, units)\n"
     "\n"
     "Exit status: 0 a verdict was reached (indeterminate included), 1 unreadable or\n"
     "invalid input, 2 a usage error.";
@@ -261,6 +262,18 @@ int main(int argc, char** argv) {
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
     add_operating_point_flags(an, ao.operating, true);
 
+    InfoOptions io;
+    auto* inf = app.add_subcommand(
+        "info",
+        "What recordings hold, before judging them: format, channels (a sound file's channels, a UFF\n"
+        "file's datasets 58, a CSV waveform's columns, a MATLAB file's variables), sample rate,\n"
+        "length and the unit the file states for its values. Reads every format analyze reads.");
+    inf->add_option("files", io.files, "Recordings (WAV/FLAC, UFF 58/58b, CSV, MATLAB .mat)")->required();
+    inf->add_option("--sample-rate", io.read.sample_rate_hz, "Sample rate, Hz, of a file that does not state it")
+        ->check(kDecimal)->check(CLI::Range(1.0, 1.0e7));
+    inf->add_option("--json", io.json_output, "Also write what was found as JSON to this file (atomically)")
+        ->type_name("FILE");
+
     NpshOptions no;
     auto* np = app.add_subcommand("npsh", kNpshHelp);
     add_operating_point_flags(np, no.operating, false);
@@ -376,6 +389,7 @@ int main(int argc, char** argv) {
         }
         if (*an) run_analyze(ao, std::cout, std::cerr);
         if (*np) run_npsh(no, std::cout);
+        if (*inf) run_info(io, std::cout);
         if (*rt) return run_route(ro, std::cout, std::cerr);
         if (*mg) {
             mo.store = merge_store;

@@ -50,6 +50,15 @@ struct NpshOptions {
 /// a readable account to out, JSON when asked.
 void run_npsh(const NpshOptions& options, std::ostream& out);
 
+struct InfoOptions {
+    std::vector<std::string> files;
+    ReadRequest read;  ///< --variable, --sample-rate, as a reader needs them
+    std::optional<std::string> json_output;
+};
+/// What each file holds: format, channels (or variables), rates, lengths,
+/// units; a line each on `out`, JSON (cavitas.info/1) when asked.
+void run_info(const InfoOptions& options, std::ostream& out);
+
 /// Progress of one file on the terminal (nothing when stderr is not one, or
 /// the file is short).
 Progress stderr_progress(const std::string& path, std::ostream& err);

@@ -568,3 +568,24 @@ TEST_CASE("baseline checks what it is given: warnings stored and printed, --stri
     CHECK(r.status == 2);
     CHECK(r.err.find("--full-scale") != std::string::npos);
 }
+
+TEST_CASE("info describes a recording: format, channels, rate, length, unit", "[cli]") {
+    const fs::path wav = make_wav("info.wav", 7);
+    const fs::path js = workdir() / "info.json";
+    Run r = run("info " + q(wav) + " --json " + q(js));
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("WAV PCM 16-bit, 1 channel(s)") != std::string::npos);
+    // make_wav writes 6 s at 25.6 kHz: 153 600 samples.
+    CHECK(r.out.find("25600 Hz, 153600 samples, 6 s") != std::string::npos);
+    CHECK(r.out.find("fractions of full scale") != std::string::npos);
+    const auto j = nlohmann::json::parse(slurp(js));
+    REQUIRE(j.size() == 1);
+    CHECK(j[0]["schema"] == "cavitas.info/1");
+    CHECK(j[0]["channels"][0]["frames"] == 153600);
+    CHECK(j[0]["channels"][0]["sample_rate_hz"] == 25600.0);
+    // A missing file: exit 1 naming it, nothing written.
+    r = run("info " + q(workdir() / "gone.wav"));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("gone.wav: no such file") != std::string::npos);
+    CHECK(run("info").status == 2);
+}
