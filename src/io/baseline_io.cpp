@@ -383,11 +383,42 @@ Baseline baseline_from_json(const json& j, const std::string& origin) {
     }
 }
 
-Baseline read_baseline_file(const std::string& path) {
+json baseline_channels_to_json(const std::vector<Baseline>& channels) {
+    if (channels.size() == 1) return baseline_to_json(channels.front());
+    json list = json::array();
+    for (const auto& b : channels) list.push_back(baseline_to_json(b));
+    return {{"schema", kBaselineChannelsSchema},
+            {"machine", channels.empty() ? std::string() : channels.front().machine},
+            {"channels", list}};
+}
+
+std::vector<Baseline> read_baseline_channels(const std::string& path) {
     const std::string text = read_text_file(path, "baseline file");
     json j = json::parse(text, nullptr, false);
     if (j.is_discarded()) throw InputError(path + ": baseline is not valid JSON (corrupt or truncated)");
-    return baseline_from_json(j, path);
+    if (!j.is_object() || !j.contains("schema") || j["schema"] != kBaselineChannelsSchema) return {baseline_from_json(j, path)};
+    if (!j.contains("channels") || !j["channels"].is_array() || j["channels"].size() < 2 || j["channels"].size() > 64)
+        throw InputError(path + ": 'channels' is not a list of 2 to 64 baselines");
+    std::vector<Baseline> out;
+    for (std::size_t k = 0; k < j["channels"].size(); ++k) {
+        out.push_back(baseline_from_json(j["channels"][k], path + ": channels[" + std::to_string(k) + "]"));
+        if (k > 0 && out[k].channel <= out[k - 1].channel)
+            throw InputError(path + ": channels[" + std::to_string(k) + "]: channel " + std::to_string(out[k].channel) +
+                             " is not above the one before; each channel once, ascending");
+    }
+    return out;
+}
+
+Baseline read_baseline_file(const std::string& path, std::optional<int> channel) {
+    std::vector<Baseline> all = read_baseline_channels(path);
+    if (all.size() == 1) return std::move(all.front());
+    std::string list;
+    for (const auto& b : all) {
+        if (channel && b.channel == *channel) return b;
+        list += (list.empty() ? "" : ", ") + std::to_string(b.channel);
+    }
+    throw InputError(path + ": holds the baselines of channels " + list +
+                     (channel ? ", not of channel " + std::to_string(*channel) : std::string("; say which with --channel")));
 }
 
 }  // namespace cavitas::app
