@@ -330,9 +330,10 @@ Prefix read_prefix(Lines& lines, Layout& layout) {
     return p;
 }
 
-// How well `delimiter` splits the first rows: (rows agree, all numbers,
-// header agrees, cells).
-using Score = std::tuple<bool, bool, bool, std::size_t>;
+// How well `delimiter` splits the first rows, best first: every cell a number,
+// the header splits into as many cells as the first row, the header's cells,
+// the rows agree, the cells of the first row.
+using Score = std::tuple<bool, bool, std::size_t, bool, std::size_t>;
 
 char decimal_for(char delimiter, char given, const Prefix& p) {
     if (given) return given;
@@ -356,11 +357,13 @@ Score score(const Prefix& p, char delimiter, char decimal) {
         }
     }
     bool header = false;
+    std::size_t header_cells = 0;
     if (p.header) {
         split(p.header->first, delimiter, cells);
         header = cells.size() == n;
+        header_cells = cells.size();
     }
-    return {agree, numbers, header, n};
+    return {numbers, header, header_cells, agree, n};
 }
 
 void choose_delimiter(const Prefix& p, const ReadRequest& request, Layout& layout) {
@@ -422,6 +425,7 @@ public:
             throw InputError(lines.where() + "column 1 (time): " + cell_text(cell) +
                              (k == Cell::not_finite ? " is not a finite number" : " is not a number"));
         const double res = printed_resolution(cell);
+        unit_ = layout.time_to_s == 1.0 ? " s" : " ms";
         if (n_ == 0) {
             t0_ = t;
             res0_ = res;
@@ -451,11 +455,12 @@ private:
         const double tol = std::min(0.25 * mean, 1e-6 * std::abs(t) + 2.0 * (res + res_prev_));
         if (std::abs(step - mean) > tol)
             throw InputError(lines.where() + "the time column is not evenly spaced: a step of " + number_text(step) +
-                             " after a mean step of " + number_text(mean) +
+                             unit_ + " after a mean step of " + number_text(mean) + unit_ +
                              " (a gap, a jump or a restart in the record); cut the table there or give the rate with "
                              "--sample-rate and no time column");
     }
 
+    std::string unit_;
     std::size_t n_ = 0;
     double t0_ = 0.0, prev_ = 0.0, res0_ = 0.0, res_prev_ = 0.0;
 };

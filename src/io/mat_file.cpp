@@ -10,6 +10,7 @@
 #include <cmath>
 #include <cstring>
 #include <filesystem>
+#include <fstream>
 #include <mutex>
 #include <optional>
 
@@ -130,6 +131,35 @@ namespace {
 
 using Handle = MatSource::Handle;
 
+std::uint32_t u32(const unsigned char* b, bool little) {
+    return little ? std::uint32_t{b[0]} | std::uint32_t{b[1]} << 8 | std::uint32_t{b[2]} << 16 | std::uint32_t{b[3]} << 24
+                  : std::uint32_t{b[3]} | std::uint32_t{b[2]} << 8 | std::uint32_t{b[1]} << 16 | std::uint32_t{b[0]} << 24;
+}
+
+// libmatio reads a v5 variable cut short without a word (fread's short count
+// is not checked): the top-level elements' tags (8 bytes: type, byte count;
+// MathWorks, "MAT-File Format", v5 data elements) must each fit in the file.
+void check_v5_extent(const std::string& path) {
+    std::ifstream in(path, std::ios::binary);
+    std::array<unsigned char, 128> header{};
+    in.read(reinterpret_cast<char*>(header.data()), header.size());
+    if (in.gcount() != 128) throw InputError(path + ": cut short inside its 128-byte header");
+    const bool little = header[126] == 'I' && header[127] == 'M';
+    const auto size = std::filesystem::file_size(path);
+    std::uint64_t at = 128;
+    for (int k = 1; at < size; ++k) {
+        std::array<unsigned char, 8> tag{};
+        in.seekg(static_cast<std::streamoff>(at));
+        in.read(reinterpret_cast<char*>(tag.data()), tag.size());
+        const std::uint64_t bytes = u32(tag.data() + 4, little);
+        if (in.gcount() != 8 || at + 8 + bytes > size)
+            throw InputError(path + ": variable " + std::to_string(k) + " promises " + std::to_string(bytes) +
+                             " bytes but the file ends " + std::to_string(size - std::min(size, at + 8)) +
+                             " bytes after its tag: the file was cut short (an interrupted copy or save)");
+        at += 8 + bytes + (u32(tag.data(), little) == 14 ? (8 - bytes % 8) % 8 : 0);  // miMATRIX is padded to 8
+    }
+}
+
 // Opens a MAT file for reading; the caller holds matio_mutex().
 void open_mat(Handle& h, const std::string& path) {
     h.path = path;
@@ -141,6 +171,7 @@ void open_mat(Handle& h, const std::string& path) {
     quiet_libraries();
     h.mat = Mat_Open(path.c_str(), MAT_ACC_RDONLY);
     if (!h.mat) throw InputError(path + ": not a readable MAT-file" + matio_detail());
+    if (Mat_GetVersion(h.mat) == MAT_FT_MAT5) check_v5_extent(path);
 }
 
 std::vector<Variable> list_variables(Handle& h) {
