@@ -8,7 +8,9 @@
 #include <cstring>
 #include <fstream>
 
+#include "src/io/csv_waveform.hpp"
 #include "src/io/errors.hpp"
+#include "src/io/mat_file.hpp"
 
 namespace cavitas::app {
 namespace {
@@ -60,6 +62,8 @@ std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadR
                                             const Calibration& calibration) {
     switch (detect_format(path)) {
         case RecordingFormat::sound_file: return std::make_unique<SndfileSource>(path, request.channel, calibration);
+        case RecordingFormat::csv: return std::make_unique<CsvWaveformSource>(path, request, calibration);
+        case RecordingFormat::mat: return std::make_unique<MatSource>(path, request, calibration);
         default: break;
     }
     throw InputError(path + ": this kind of file is not read yet");
@@ -122,6 +126,8 @@ FileSummary describe_recording(const std::string& path, const ReadRequest& reque
             }
             return s;
         }
+        case RecordingFormat::csv: return describe_csv_waveform(path, request);
+        case RecordingFormat::mat: return describe_mat(path);
         default: break;
     }
     (void)request;

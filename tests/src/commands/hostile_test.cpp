@@ -308,6 +308,39 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          base_o + Q("o-random.json") + " " + Q("random.wav"), 1, {"not a readable recording"}, "random.wav",
          "o-random.json"},
 
+        // --- CSV waveforms and MATLAB files that are damaged -----------------------------
+        // Refused with the file named whichever reader takes them (libsndfile's "not a
+        // readable recording", or the CSV and MAT readers' own line- or variable-naming message).
+        {"CSV waveform with a cell that is not a number",
+         text_file("bad-cell.csv", "time [s],accel [g]\n0,0.1\n0.0001,0.2\n0.0002,zero point three\n"),
+         judge + good + " --json " + Q("j-bad-cell.json") + " " + Q("bad-cell.csv"), 1, {}, "bad-cell.csv",
+         "j-bad-cell.json", kQuickS},
+        {"CSV waveform with a short row", text_file("short-row.csv", "fs=12800\n1,2\n3\n4,5\n"),
+         judge + good + " --json " + Q("j-short-row.json") + " " + Q("short-row.csv"), 1, {}, "short-row.csv",
+         "j-short-row.json", kQuickS},
+        {"CSV waveform whose time column jumps",
+         text_file("jump.csv", "t [ms];x\n0;1\n1;2\n2;3\n7;4\n"),
+         judge + good + " --json " + Q("j-jump.json") + " " + Q("jump.csv"), 1, {}, "jump.csv", "j-jump.json", kQuickS},
+        // A MAT-file's text header alone (116 bytes, then nothing).
+        {"MAT-file header and nothing after it",
+         text_file("header-only.mat", "MATLAB 5.0 MAT-file, Platform: GLNXA64, Created on: Mon Jun 10 08:00:00 2024" +
+                                          std::string(40, ' ')),
+         judge + good + " --json " + Q("j-header-only.json") + " " + Q("header-only.mat"), 1, {}, "header-only.mat",
+         "j-header-only.json", kQuickS},
+        // A v5 MAT-file whose one matrix element promises 4000 bytes and holds 16 (the
+        // layout of MathWorks' "MAT-File Format" document: 128-byte header, then tagged elements).
+        {"MAT-file cut inside its first variable",
+         [] {
+             std::string b = "MATLAB 5.0 MAT-file" + std::string(97, ' ');
+             b += std::string(8, '\0');
+             b += std::string("\x00\x01IM", 4);                                     // version 0x0100, little-endian
+             b += std::string("\x0e\x00\x00\x00\xa0\x0f\x00\x00", 8);         // miMATRIX, 4000 bytes
+             b += std::string("\x06\x00\x00\x00\x08\x00\x00\x00\x06\x00\x00\x00\x00\x00\x00\x00", 16);  // flags: double
+             spit(at("cut.mat"), b);
+         },
+         judge + good + " --json " + Q("j-cut-mat.json") + " " + Q("cut.mat"), 1, {}, "cut.mat", "j-cut-mat.json",
+         kQuickS},
+
         // --- a valid WAV cut short ---------------------------------------------------
         // Only "RIFF....WAVE": no fmt chunk at all.
         {"WAV header cut at 12 bytes", text_file("cut12.wav", wav_bytes().substr(0, 12)),
