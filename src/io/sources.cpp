@@ -9,6 +9,7 @@
 #include <fstream>
 
 #include "src/io/errors.hpp"
+#include "src/io/uff58.hpp"
 
 namespace cavitas::app {
 namespace {
@@ -59,6 +60,7 @@ std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadR
                                             const Calibration& calibration) {
     switch (detect_format(path)) {
         case RecordingFormat::sound_file: return std::make_unique<SndfileSource>(path, request.channel, calibration);
+        case RecordingFormat::uff58: return std::make_unique<Uff58Source>(path, request.channel, calibration);
         default: break;
     }
     throw InputError(path + ": this kind of file is not read yet");
@@ -82,6 +84,7 @@ FileSummary describe_recording(const std::string& path, const ReadRequest& reque
             }
             return s;
         }
+        case RecordingFormat::uff58: return describe_uff58(path);
         default: break;
     }
     (void)request;
