@@ -349,10 +349,12 @@ IdLine parse_id_line(std::string_view line, const std::string& where) {
     if (!parse_numbers(t.substr(1), w, f) || f.size() < 4)
         throw InputError(where + "the binary id line does not hold byte order, format, line and byte counts: " +
                          excerpt(line));
-    id.byte_order = static_cast<std::int64_t>(f[0]);
-    id.fp_format = static_cast<std::int64_t>(f[1]);
-    id.ascii_lines = static_cast<std::int64_t>(f[2]);
-    id.n_bytes = f[3] >= 0 && f[3] < 9e18 ? static_cast<std::int64_t>(f[3]) : -1;
+    // A field that is not a whole number in range counts as -1 (refused where it matters).
+    auto whole = [](double v) { return v >= 0 && v < 9e18 && v == std::floor(v) ? static_cast<std::int64_t>(v) : -1; };
+    id.byte_order = whole(f[0]);
+    id.fp_format = whole(f[1]);
+    id.ascii_lines = whole(f[2]);
+    id.n_bytes = whole(f[3]);
     return id;
 }
 
