@@ -11,6 +11,7 @@
 #include "src/io/csv_waveform.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/mat_file.hpp"
+#include "src/io/uff58.hpp"
 
 namespace cavitas::app {
 namespace {
@@ -64,6 +65,7 @@ std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadR
         case RecordingFormat::sound_file: return std::make_unique<SndfileSource>(path, request.channel, calibration);
         case RecordingFormat::csv: return std::make_unique<CsvWaveformSource>(path, request, calibration);
         case RecordingFormat::mat: return std::make_unique<MatSource>(path, request, calibration);
+        case RecordingFormat::uff58: return std::make_unique<Uff58Source>(path, request.channel, calibration);
         default: break;
     }
     throw InputError(path + ": this kind of file is not read yet");
@@ -128,6 +130,7 @@ FileSummary describe_recording(const std::string& path, const ReadRequest& reque
         }
         case RecordingFormat::csv: return describe_csv_waveform(path, request);
         case RecordingFormat::mat: return describe_mat(path);
+        case RecordingFormat::uff58: return describe_uff58(path);
         default: break;
     }
     (void)request;

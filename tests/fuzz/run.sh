@@ -2,9 +2,9 @@
 # Build the libFuzzer targets (clang, ASan + UBSan) and run each one for a
 # while on a scratch copy of the committed seed corpus.
 #
-#   tests/fuzz/run.sh [SECONDS_PER_TARGET]      (default 40)
+#   tests/fuzz/run.sh [SECONDS_PER_TARGET]      (default 32)
 #
-# Eight targets: 40 s each keeps the whole stage (build from ccache included)
+# Nine targets: 32 s each keeps the whole stage (build from ccache included)
 # within about six minutes of CI; .ci/run calls it with no argument.
 #
 # Environment: FUZZ_CXX (default clang++), FUZZ_JOBS (build jobs, default
@@ -15,9 +15,9 @@
 # 2 on a usage error. Needs no network.
 set -euo pipefail
 
-seconds="${1:-40}"
+seconds="${1:-32}"
 if ! [[ "$seconds" =~ ^[0-9]+$ ]] || (( seconds < 1 )); then
-    echo "usage: tests/fuzz/run.sh [SECONDS_PER_TARGET]   (a whole number of seconds, default 40)" >&2
+    echo "usage: tests/fuzz/run.sh [SECONDS_PER_TARGET]   (a whole number of seconds, default 32)" >&2
     exit 2
 fi
 
@@ -32,7 +32,7 @@ CC="${FUZZ_CC:-clang}" CXX="${FUZZ_CXX:-clang++}" cmake -S . -B "$build" \
     -DCAVITAS_FUZZ=ON -DCAVITAS_SANITIZE=ON -DCMAKE_BUILD_TYPE=RelWithDebInfo \
     -DCAVITAS_BUILD_TESTS=OFF -DCAVITAS_BUILD_TOOLS=OFF > "$build/configure.log" 2>&1 ||
     { cat "$build/configure.log" >&2; exit 1; }
-kinds=(recording baseline operating_point manifest report curve merge csv)
+kinds=(recording baseline operating_point manifest report curve merge csv uff)
 cmake --build "$build" --target "${kinds[@]/#/fuzz_}" -j "$jobs"
 
 scratch="$(mktemp -d "${TMPDIR:-/tmp}/cavitas-fuzz.XXXXXX")"
@@ -48,7 +48,7 @@ failed=0
 summaries=()
 # The longest input each target is given: at least its largest seed (a finding is
 # 50-85 kB; the long sidecars are 60 kB); libFuzzer's own default elsewhere.
-declare -A max_len=([operating_point]=65536 [report]=131072 [merge]=16384 [curve]=16384)
+declare -A max_len=([operating_point]=65536 [report]=131072 [merge]=16384 [curve]=16384 [uff]=16384)
 for kind in "${kinds[@]}"; do
     target="fuzz_$kind"
     corpus="$scratch/$kind"

@@ -229,6 +229,28 @@ std::function<void()> all(std::vector<std::function<void()>> steps) {
 
 const std::function<void()> nothing = [] {};
 
+// A UFF dataset 58 (record layout of methods A8) of 8 values; `r6` and `r7`
+// replace records 6 and 7, `data` record 12. Damaged copies are built from it.
+std::string uff58(const std::string& r6 = "    1         0    0         0 P101-DEH           1   1 NONE               0   0",
+                  const std::string& r7 = "         2         8         1  0.00000E+00  1.00000E-03  0.00000E+00",
+                  const std::string& data = "  0.00000E+00  7.07107E-01  1.00000E+00  7.07107E-01  0.00000E+00 -7.07107E-01\n"
+                                            " -1.00000E+00 -7.07107E-01\n    -1\n",
+                  const std::string& r8 = "        17    0    0    0 Time                 s") {
+    return "    -1\n    58\nOW-P101 DE H accel\nNONE\n09-Mar-24 10:15:00\nNONE\nNONE\n" + r6 + "\n" + r7 + "\n" + r8 +
+           "\n        12    0    0    0 Acceleration         m/s^2\n"
+           "         0    0    0    0 NONE                 NONE\n         0    0    0    0 NONE                 NONE\n" +
+           data;
+}
+
+// A 58b dataset whose id line promises 100 real single values; only 30 follow.
+std::string uff58b_cut() {
+    std::string s = "    -1\n    58b     1     2          11         400     0     0           0           0\n";
+    const std::string text = uff58("    1         0    0         0 P101-DEH           1   1 NONE               0   0",
+                                   "         2       100         1  0.00000E+00  1.00000E-03  0.00000E+00", "");
+    s += text.substr(text.find("OW-P101"));
+    return s + std::string(120, '\x3f');
+}
+
 // A stale output from an earlier run: a failing call must leave it byte for byte.
 std::function<void()> stale_output(const std::string& name) {
     return text_file(name, "{\"stale\": \"an earlier run's output, must survive a failed call\"}\n");
@@ -422,6 +444,38 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
              spit(at("wide.au"), b);
          },
          base_o + Q("o-wide.json") + " " + Q("wide.au"), 1, {"not a readable recording"}, "wide.au", "o-wide.json"},
+
+        // --- damaged UFF datasets 58 (methods A8 layout) ------------------------------------------
+        // Each must end in one error line naming the file: today libsndfile refuses them ("not a readable
+        // recording"); once the commands read through open_recording, the UFF reader refuses them naming the
+        // dataset and the problem. No words are required, so the rows hold before and after that change.
+        {"UFF 58b whose binary block is cut short", text_file("cut58b.uff", uff58b_cut()),
+         base_o + Q("o-cut58b.json") + " " + Q("cut58b.uff"), 1, {}, "cut58b.uff", "o-cut58b.json", kQuickS},
+        {"UFF 58 of complex values", text_file("complex.uff", uff58("    1         0    0         0 P101-DEH           1   1 NONE               0   0",
+                                                                   "         5         4         1  0.00000E+00  1.00000E-03  0.00000E+00")),
+         base_o + Q("o-complex.json") + " " + Q("complex.uff"), 1, {}, "complex.uff", "o-complex.json", kQuickS},
+        {"UFF 58 frequency response function",
+         text_file("frf.uff", uff58("    4         0    0         0 P101-DEH           1   1 NONE               0   0")),
+         judge + good + " --json " + Q("j-frf.json") + " " + Q("frf.uff"), 1, {}, "frf.uff", "j-frf.json", kQuickS},
+        {"UFF 58 abscissa increment 0",
+         text_file("dx0.uff", uff58("    1         0    0         0 P101-DEH           1   1 NONE               0   0",
+                                    "         2         8         1  0.00000E+00  0.00000E+00  0.00000E+00")),
+         base_o + Q("o-dx0.json") + " " + Q("dx0.uff"), 1, {}, "dx0.uff", "o-dx0.json", kQuickS},
+        {"UFF 58 over frequency, not time",
+         text_file("hz.uff", uff58("    1         0    0         0 P101-DEH           1   1 NONE               0   0",
+                                   "         2         8         1  0.00000E+00  1.00000E-03  0.00000E+00",
+                                   "  1.0  2.0  3.0  4.0  5.0  6.0\n  7.0  8.0\n    -1\n",
+                                   "        18    0    0    0 Frequency            Hz")),
+         base_o + Q("o-hz.json") + " " + Q("hz.uff"), 1, {}, "hz.uff", "o-hz.json", kQuickS},
+        {"UFF 58 with a value that is not a number",
+         text_file("nan.uff", uff58("    1         0    0         0 P101-DEH           1   1 NONE               0   0",
+                                    "         2         8         1  0.00000E+00  1.00000E-03  0.00000E+00",
+                                    "  1.0  2.0  nan  4.0  5.0  6.0\n  7.0  8.0\n    -1\n")),
+         base_o + Q("o-nan.json") + " " + Q("nan.uff"), 1, {}, "nan.uff", "o-nan.json", kQuickS},
+        {"UFF with a 70 kB line after its delimiter", text_file("longline.uff", "    -1\n" + std::string(70000, '7') + "\n"),
+         base_o + Q("o-longline.json") + " " + Q("longline.uff"), 1, {}, "longline.uff", "o-longline.json", kQuickS},
+        {"UFF holding only a dataset 2411", text_file("nodes.uff", "    -1\n  2411\n         1         1\n    -1\n"),
+         base_o + Q("o-nodes.json") + " " + Q("nodes.uff"), 1, {}, "nodes.uff", "o-nodes.json", kQuickS},
 
         // --- paths that are not regular files ------------------------------------------
         // A folder, even one named like a recording.
