@@ -68,10 +68,15 @@ std::string one_line(const std::string& s) {
 // The operating-point flags, the same on every command that takes them.
 // beside_recording: the command reads NAME.op.toml beside each recording by default.
 // Which channel of a file and how its values become engineering units.
-void add_reading_flags(CLI::App* cmd, ReadRequest& read, CalibrationText& cal, bool learning) {
-    cmd->add_option("--channel", read.channel, "Channel to read, from 0 (a column of a CSV waveform or a MATLAB "
-                                               "matrix, a dataset of a UFF file); 'cavitas info FILE' lists them")
-        ->check(CLI::Range(0, 1023));
+void add_reading_flags(CLI::App* cmd, std::string& channels, CalibrationText& cal, ReadRequest& read, bool learning) {
+    cmd->add_option("--channel", channels,
+                    "Channel(s) to read, from 0: one (2), several (0,1,2: a triaxial sensor) or all. A channel is a "
+                    "sound file's channel, a column of a CSV waveform or a MATLAB matrix, a dataset of a UFF file; "
+                    "'cavitas info FILE' lists them. " +
+                        std::string(learning ? "Several channels are learned into one baseline file, each with its own "
+                                               "statistics."
+                                             : "Several channels are each judged against their own statistics in "
+                                               "the baseline; the point's verdict is the worst channel's."));
     const std::string later = learning ? " Analyses against the baseline use its calibration unless told otherwise."
                                        : " Default: the baseline's, for files whose values come in the unit its did.";
     cmd->add_option("--full-scale", cal.full_scale,
@@ -91,6 +96,14 @@ void add_reading_flags(CLI::App* cmd, ReadRequest& read, CalibrationText& cal, b
     cmd->add_option("--sample-rate", read.sample_rate_hz, "Sample rate, Hz, of a file that does not state it (a CSV "
                                                           "without a time column or rate line, most MATLAB files)")
         ->check(kDecimal)->check(CLI::Range(1.0, 1.0e7));
+}
+
+// --channel: one channel goes to read.channel, a list or "all" to `several`.
+void set_channels(const std::string& text, ReadRequest& read, std::optional<ChannelSelection>& several) {
+    if (text.empty()) return;
+    const ChannelSelection s = parse_channels(text);
+    if (!s.all && s.channels.size() == 1) read.channel = s.channels.front();
+    else several = s;
 }
 
 void add_operating_point_flags(CLI::App* cmd, OperatingPointFlags& f, bool beside_recording) {
@@ -224,7 +237,8 @@ int main(int argc, char** argv) {
         ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     base->add_option("--vanes", bo.vanes, "Impeller vanes (runner blades): blade-pass frequency = vanes x rpm / 60")
         ->check(CLI::Range(0, 200));
-    add_reading_flags(base, bo.read, bo.calibration, true);
+    std::string base_channels;
+    add_reading_flags(base, base_channels, bo.calibration, bo.read, true);
     base->add_option("--sensor-max-hz", bo.sensor_max_hz,
                      "Usable top frequency of the sensor as mounted; the HF band stops there")
         ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
@@ -252,7 +266,8 @@ int main(int argc, char** argv) {
                    "lines are compared in orders); without it the speed is estimated near the baseline's")
         ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     an->add_option("--vanes", ao.vanes, "Impeller vanes (default: the baseline's)")->check(CLI::Range(0, 200));
-    add_reading_flags(an, ao.read, ao.calibration, false);
+    std::string an_channels;
+    add_reading_flags(an, an_channels, ao.calibration, ao.read, false);
     an->add_option("--json", ao.json_output, "Write the finding as JSON to this file (atomically)");
     an->add_option("--sensor-max-hz", ao.sensor_max_hz,
                    "Usable top frequency of the sensor as mounted for this recording; the verdict is indeterminate "
@@ -385,9 +400,14 @@ int main(int argc, char** argv) {
                 bo.rpm = bo.rpms.front();
                 bo.rpms.clear();
             }
+            set_channels(base_channels, bo.read, bo.channels);
             run_baseline(bo, std::cout, std::cerr);
         }
-        if (*an) run_analyze(ao, std::cout, std::cerr);
+        if (*an) {
+            std::optional<ChannelSelection> channels;
+            set_channels(an_channels, ao.read, channels);
+            run_analyze(ao, channels, std::cout, std::cerr);
+        }
         if (*np) run_npsh(no, std::cout);
         if (*inf) run_info(io, std::cout);
         if (*rt) return run_route(ro, std::cout, std::cerr);

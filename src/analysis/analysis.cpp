@@ -244,7 +244,7 @@ void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags
 
 AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
     AnalyzeResult r;
-    r.baseline = read_baseline_file(o.baseline);
+    r.baseline = read_baseline_file(o.baseline, o.read.channel);
     if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
         throw InputError(o.baseline + ": baseline is for machine '" + r.baseline.machine + "', not '" + o.machine +
                          "'; use that machine's baseline");

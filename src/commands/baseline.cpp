@@ -193,28 +193,25 @@ BaselineOptions with_store_visits(BaselineOptions o) {
     return o;
 }
 
-}  // namespace
-
-void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream& err) {
-    const BaselineOptions o = given.from_store ? with_store_visits(given) : given;
-    if (given.from_store)
-        out << "learning from " << o.recordings.size() << " normal visit(s) of " << o.machine << " " << o.point << " in "
-            << *given.from_store << "\n";
-    if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
-    const std::string output = !o.output.empty() ? o.output : o.add_to.value_or("");
-    if (output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
-    {
-        OutputGuard guard;
-        for (const auto& rec : o.recordings) {
-            guard.input(rec, "recording");
-            guard_operating_inputs(guard, o.operating, rec);
-        }
-        if (o.add_to && *o.add_to != output) guard.input(*o.add_to, "baseline added to");
-        if (given.from_store) guard.input(*given.from_store, "results store");
-        guard.output(output);
+// The channels to learn: --channel's (all: every channel of the first
+// recording), else those of the baseline added to, else o.read.channel.
+std::vector<int> learned_channels(const BaselineOptions& o) {
+    if (o.channels) {
+        const auto first = open_recording(o.recordings.front(), o.read, Calibration{});
+        return channels_of(*o.channels, first->info().channels, o.recordings.front());
     }
-    std::optional<models::Baseline> earlier;
-    if (o.add_to) earlier = read_baseline_file(*o.add_to);
+    if (o.add_to) {
+        std::vector<int> list;
+        for (const auto& b : read_baseline_channels(*o.add_to)) list.push_back(b.channel);
+        if (list.size() > 1) return list;
+    }
+    return {o.read.channel};
+}
+
+// One channel's baseline from o.recordings (o.read.channel), added to
+// `earlier` when given. `stated`: how many recordings stated a duty.
+models::Baseline learn_channel(const BaselineOptions& o, const std::optional<models::Baseline>& earlier,
+                               std::ostream& err, std::size_t& stated_count) {
     const double sensor_max = sensor_limit(o.sensor_max_hz, o.mount);
     std::optional<StoredCalibration> cal = o.stored_calibration;
     if (earlier) {
@@ -309,8 +306,48 @@ void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream&
         throw InputError("baseline not written (--strict): " + std::to_string(b.warnings.size()) +
                          " problem(s) with the recordings:" + all);
     }
-    write_file_atomically(output, json_text(baseline_to_json(b), 2) + "\n");
-    write_baseline_summary(out, output, b, stated.size());
+    stated_count = stated.size();
+    return b;
+}
+
+}  // namespace
+
+void run_baseline(const BaselineOptions& given, std::ostream& out, std::ostream& err) {
+    const BaselineOptions o = given.from_store ? with_store_visits(given) : given;
+    if (given.from_store)
+        out << "learning from " << o.recordings.size() << " normal visit(s) of " << o.machine << " " << o.point << " in "
+            << *given.from_store << "\n";
+    if (o.recordings.empty()) throw UsageError("baseline: give at least one known-good recording");
+    const std::string output = !o.output.empty() ? o.output : o.add_to.value_or("");
+    if (output.empty()) throw UsageError("baseline: -o BASELINE.json is required");
+    {
+        OutputGuard guard;
+        for (const auto& rec : o.recordings) {
+            guard.input(rec, "recording");
+            guard_operating_inputs(guard, o.operating, rec);
+        }
+        if (o.add_to && *o.add_to != output) guard.input(*o.add_to, "baseline added to");
+        if (given.from_store) guard.input(*given.from_store, "results store");
+        guard.output(output);
+    }
+    const std::vector<int> channels = learned_channels(o);
+    std::optional<std::vector<models::Baseline>> earlier;
+    if (o.add_to) earlier = read_baseline_channels(*o.add_to);
+    if (earlier && earlier->size() > 1 && earlier->size() != channels.size())
+        throw UsageError("--channel: " + *o.add_to + " holds " + std::to_string(earlier->size()) +
+                         " channels; add recordings of the same channels");
+    std::vector<models::Baseline> learned;
+    std::size_t stated = 0;
+    for (int channel : channels) {
+        BaselineOptions one = o;
+        one.read.channel = channel;
+        std::optional<models::Baseline> before;
+        if (earlier) before = earlier->size() == 1 ? earlier->front() : read_baseline_file(*o.add_to, channel);
+        if (channels.size() > 1) err << "channel " << channel << ":\n";
+        learned.push_back(learn_channel(one, before, err, stated));
+    }
+    write_file_atomically(output, json_text(baseline_channels_to_json(learned), 2) + "\n");
+    for (const auto& b : learned) write_baseline_summary(out, output, b, stated);
 }
 
 }  // namespace cavitas::app

@@ -16,6 +16,8 @@ struct BaselineOptions {
     std::vector<std::string> recordings;
     std::string output;
     ReadRequest read;                 ///< channel and format hints, the same for every recording
+    /// --channel with a list or "all": one baseline per channel, in one file.
+    std::optional<ChannelSelection> channels;
     std::optional<double> rpm;        ///< speed of every recording
     std::vector<double> rpms;         ///< or one speed per recording, in order (overrides rpm)
     int vanes = 0;
@@ -40,7 +42,11 @@ struct BaselineOptions {
 void run_baseline(const BaselineOptions& options, std::ostream& out, std::ostream& err);
 
 /// analyze() + text summary to out + JSON file when asked.
-void run_analyze(const AnalyzeOptions& options, std::ostream& out, std::ostream& err);
+/// Several channels (a list or all): each judged against its own baseline
+/// statistics, the point's verdict the worst; the JSON is the worst channel's
+/// finding with "point" and "channels" (one finding per channel) added.
+void run_analyze(const AnalyzeOptions& options, const std::optional<ChannelSelection>& several, std::ostream& out,
+                 std::ostream& err);
 
 struct NpshOptions {
     OperatingPointFlags operating;
