@@ -180,43 +180,6 @@ double sensor_limit(double sensor_max_hz, const std::string& mount) {
 
 
 
-ChannelSelection parse_channels(const std::string& text) {
-    ChannelSelection s;
-    if (text == "all") {
-        s.all = true;
-        return s;
-    }
-    std::size_t at = 0;
-    while (at <= text.size()) {
-        const std::size_t comma = std::min(text.find(',', at), text.size());
-        const std::string one = text.substr(at, comma - at);
-        const bool digits = !one.empty() && one.size() <= 4 &&
-                            std::all_of(one.begin(), one.end(), [](char c) { return c >= '0' && c <= '9'; });
-        if (!digits || std::stoi(one) > 1023)
-            throw UsageError("--channel '" + text + "': give a channel 0..1023, a list such as 0,1,2, or all");
-        s.channels.push_back(std::stoi(one));
-        at = comma + 1;
-    }
-    std::sort(s.channels.begin(), s.channels.end());
-    if (std::adjacent_find(s.channels.begin(), s.channels.end()) != s.channels.end())
-        throw UsageError("--channel '" + text + "': a channel is named twice");
-    if (s.channels.size() > 64) throw UsageError("--channel '" + text + "': at most 64 channels");
-    return s;
-}
-
-std::vector<int> channels_of(const ChannelSelection& s, int available, const std::string& path) {
-    if (!s.all) {
-        for (int c : s.channels)
-            if (c >= available)
-                throw UsageError("--channel " + std::to_string(c) + ": " + path + " has " + std::to_string(available) +
-                                 " channel(s), numbered 0.." + std::to_string(available - 1));
-        return s.channels;
-    }
-    std::vector<int> all;
-    for (int c = 0; c < std::min(available, 64); ++c) all.push_back(c);
-    return all;
-}
-
 models::Verdict point_verdict(const std::vector<models::Verdict>& channels) {
     using models::Verdict;
     for (Verdict v : {Verdict::developed, Verdict::incipient, Verdict::normal})

@@ -106,18 +106,6 @@ struct AnalyzeResult {
     std::optional<OperatingPointFinding> operating;
 };
 AnalyzeResult analyze(const AnalyzeOptions& options, const Progress& progress = {});
-/// --channel as typed: "2", "0,1,2" or "all" (every channel of the file, or
-/// of the baseline when it holds several).
-struct ChannelSelection {
-    std::vector<int> channels;  ///< ascending, each once (empty with all)
-    bool all = false;
-};
-/// Throws UsageError naming the text.
-ChannelSelection parse_channels(const std::string& text);
-/// The channels `s` names for a file of `available` channels; UsageError for
-/// one the file lacks.
-std::vector<int> channels_of(const ChannelSelection& s, int available, const std::string& path);
-
 /// The point's verdict over its channels: the worst (developed, incipient,
 /// normal), indeterminate only when no channel reached a verdict.
 models::Verdict point_verdict(const std::vector<models::Verdict>& channels);

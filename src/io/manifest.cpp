@@ -127,8 +127,12 @@ Manifest parse_manifest(const std::string& text, const std::string& path) {
         if (auto why = unusable_as_file_name(row.machine)) fail("machine '" + row.machine + "' " + *why);
         if (auto why = unusable_as_file_name(row.point)) fail("point '" + row.point + "' " + *why);
         if (const std::string c = cell("channel"); !c.empty()) {
-            if (auto v = whole(c, 0, 1023)) row.channel = static_cast<int>(*v);
-            else fail("channel '" + c + "' is not a whole number 0 .. 1023");
+            try {
+                row.channels = parse_channels(c);
+                if (!row.channels.all) row.channel = row.channels.channels.front();
+            } catch (const UsageError&) {
+                fail("channel '" + c + "' is not a channel 0 .. 1023, a list such as 0,1,2, or all");
+            }
         }
         if (auto t = parse_iso8601(row.datetime)) row.when = *t;
         else fail("datetime '" + row.datetime + "' is not an ISO 8601 date and time (e.g. 2026-11-02T09:05)");

@@ -8,6 +8,7 @@
 // (100mV/g), gain (10 or 20dB), unit (of a file's values when it states none),
 // mount, sensor_max_hz, and the reading hints variable (a MATLAB file's) and
 // sample_rate_hz (of a file that states none). Any other column is kept and passed through to the outputs.
+// The channel cell may name several channels (0,1,2) or all.
 // Empty cells: channel 0, rpm estimated near the baseline's, vanes from the
 // baseline, operating-point fields not stated.
 #pragma once
@@ -20,6 +21,7 @@
 
 #include "src/io/calibration.hpp"
 #include "src/io/datetime.hpp"
+#include "src/io/sources.hpp"
 #include "src/io/operating_point_io.hpp"
 
 namespace cavitas::app {
@@ -31,7 +33,12 @@ struct ManifestRow {
     std::string path;       ///< resolved against the manifest's folder
     std::string machine;
     std::string point;
-    int channel = 0;
+    int channel = 0;        ///< the first channel named (the only one unless `channels` says more)
+    /// The channel cell: one channel, a list (0,1,2: a triaxial point) or
+    /// all; the route makes one row per channel of it.
+    ChannelSelection channels;
+    /// Set on a row the route made from a cell naming several channels (its finding's name says the channel).
+    bool one_of_several = false;
     std::string datetime;   ///< as written
     Timestamp when;
     std::optional<double> rpm;

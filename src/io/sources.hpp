@@ -32,6 +32,18 @@ struct ReadRequest {
     char csv_decimal = 0;
 };
 
+/// --channel as typed: "2", "0,1,2" or "all" (every channel of the file, or
+/// of the baseline when it holds several).
+struct ChannelSelection {
+    std::vector<int> channels;  ///< ascending, each once (empty with all)
+    bool all = false;
+};
+/// Throws UsageError naming the text.
+ChannelSelection parse_channels(const std::string& text);
+/// The channels `s` names for a file of `available` channels; UsageError for
+/// one the file lacks.
+std::vector<int> channels_of(const ChannelSelection& s, int available, const std::string& path);
+
 /// One channel a file holds, as `cavitas info` lists it.
 struct ChannelSummary {
     int index = 0;

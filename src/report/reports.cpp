@@ -19,6 +19,7 @@
 #include "src/output/format.hpp"
 #include "src/output/plain_text.hpp"
 #include "src/report/plot.hpp"
+#include "src/route/attention.hpp"
 #include "src/route/route.hpp"
 #include "src/route/store.hpp"
 
@@ -463,14 +464,6 @@ json read_json_file(const std::string& path, const char* what, std::size_t max_b
     return j;
 }
 
-int rank(const std::string& verdict, const std::string& agreement) {
-    if (verdict == "developed") return 0;
-    if (verdict == "incipient") return 1;
-    if (verdict == "error") return 2;
-    if (verdict == "indeterminate") return 3;
-    if (agreement == "at_risk") return 4;
-    return 5;
-}
 
 }  // namespace
 
@@ -678,24 +671,13 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
                                                                  : std::string()));
     d.header[2].value = o.machine.empty() ? std::to_string(rows.size()) + " recordings" : o.machine;
     d.header[2].label = o.machine.empty() ? "Recordings" : "Machine";
-    // The latest state of each machine point, worst first.
-    std::map<std::pair<std::string, std::string>, std::vector<const SummaryRow*>> by_point;
-    for (const auto& r : rows) by_point[{r.machine, r.point}].push_back(&r);
+    // The latest state of each machine point and channel, worst first (route/attention: as on the terminal).
+    const std::vector<PointState> states = latest_per_point(rows);
     std::vector<const SummaryRow*> latest;
-    for (auto& [k, list] : by_point) {
-        std::stable_sort(list.begin(), list.end(), [](const SummaryRow* a, const SummaryRow* b) {
-            if (a->failed() != b->failed()) return a->failed();
-            return a->days < b->days;
-        });
-        latest.push_back(list.back());
-    }
-    auto worse = [](const SummaryRow* a, const SummaryRow* b) {
-        const int ra = rank(a->verdict, a->agreement), rb = rank(b->verdict, b->agreement);
-        if (ra != rb) return ra < rb;
-        if (a->confidence != b->confidence) return a->confidence > b->confidence;
-        return a->line < b->line;
-    };
-    std::stable_sort(latest.begin(), latest.end(), worse);
+    for (const auto& st : states) latest.push_back(st.latest);
+    std::map<std::pair<std::string, std::string>, std::vector<const SummaryRow*>> by_point;  // for the history charts
+    for (const auto& r : rows) by_point[{r.machine, r.point}].push_back(&r);
+    auto worse = [](const SummaryRow* a, const SummaryRow* b) { return worse_first(*a, *b); };
     if (!latest.empty()) {
         const SummaryRow& w = *latest.front();
         const bool act = w.verdict == "developed" || w.verdict == "incipient" || w.failed() || w.agreement == "at_risk";
@@ -717,11 +699,25 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     d.paragraph(std::to_string(rows.size()) + " recordings of " + std::to_string(by_point.size()) +
                 " machine points; " + std::to_string(cav) + " point(s) cavitating at their latest visit; " +
                 std::to_string(failed) + " row(s) could not be analysed.");
+    d.heading("Each machine, worst first");
+    doc::Table mt;
+    mt.header = {"machine", "verdict", "points", "channels", "cavitating", "worst point"};
+    mt.widths = {1.4, 1.2, 0.7, 0.8, 0.9, 2.0};
+    mt.numeric = {false, false, true, true, true, false};
+    for (const auto& m : machine_states(states)) {
+        mt.rows.push_back({m.machine, m.worst->verdict, std::to_string(m.points), std::to_string(m.channels),
+                           std::to_string(m.cavitating),
+                           m.worst->point + (m.channels > m.points ? ", channel " + std::to_string(m.worst->channel) : std::string())});
+        mt.row_verdict.push_back(m.worst->verdict);
+    }
+    Block mtb = doc::make(Kind::table);
+    mtb.table = mt;
+    d.blocks.push_back(mtb);
     d.heading("Every recording, worst first");
     doc::Table t;
-    t.header = {"machine", "point", "recorded", "verdict", "conf.", "HF dB", "NPSHa/NPSH3", "since previous", "note"};
-    t.widths = {1.1, 0.7, 1.5, 1.2, 0.6, 0.7, 0.9, 1.7, 2.6};
-    t.numeric = {false, false, false, false, true, true, true, false, false};
+    t.header = {"machine", "point", "ch", "recorded", "verdict", "conf.", "HF dB", "NPSHa/NPSH3", "since previous", "note"};
+    t.widths = {1.1, 0.7, 0.3, 1.5, 1.2, 0.6, 0.7, 0.9, 1.7, 2.3};
+    t.numeric = {false, false, true, false, false, true, true, true, false, false};
     std::vector<const SummaryRow*> all;
     for (const auto& r : rows) all.push_back(&r);
     std::stable_sort(all.begin(), all.end(), worse);
@@ -734,7 +730,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
             note = "NPSH: " + r->agreement + (note.empty() ? "" : "; " + note);
         std::string when = r->datetime.substr(0, 16);
         if (when.size() > 10) when[10] = ' ';
-        t.rows.push_back({r->machine, r->point, when, r->verdict,
+        t.rows.push_back({r->machine, r->point, std::to_string(r->channel), when, r->verdict,
                           r->failed() ? "-" : (r->confidence_grade.empty() ? fixed(r->confidence, 2) : r->confidence_grade),
                           r->hf_rise_db ? signed_fixed(*r->hf_rise_db, 1) : "-",
                           r->margin_ratio ? fixed(*r->margin_ratio, 2) : "-", since, note});

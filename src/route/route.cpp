@@ -26,6 +26,7 @@
 #include "src/output/finding.hpp"
 #include "src/output/format.hpp"
 #include "src/output/plain_text.hpp"
+#include "src/route/attention.hpp"
 
 namespace cavitas::app {
 
@@ -230,7 +231,35 @@ std::string join(const std::vector<std::string>& v, const char* sep) {
 std::string finding_name(const ManifestRow& r) {
     char b[32];
     std::snprintf(b, sizeof b, "L%06zu_", r.line);
-    return std::string(b) + r.machine + "_" + r.point + ".json";
+    const std::string channel = r.one_of_several ? "_ch" + std::to_string(r.channel) : std::string();
+    return std::string(b) + r.machine + "_" + r.point + channel + ".json";
+}
+
+// One row per channel of a manifest row whose channel cell names several (a
+// list, or all: every channel of its file, which is opened to count them).
+std::vector<ManifestRow> rows_per_channel(const ManifestRow& m) {
+    if (!m.error.empty() || (!m.channels.all && m.channels.channels.size() <= 1)) return {m};
+    std::vector<int> list = m.channels.channels;
+    if (m.channels.all) {
+        try {
+            ReadRequest read;
+            read.variable = m.variable;
+            read.sample_rate_hz = m.sample_rate_hz;
+            list = channels_of(m.channels, open_recording(m.path, read, Calibration{})->info().channels, m.path);
+        } catch (const std::exception& e) {
+            ManifestRow bad = m;
+            bad.error = e.what();
+            return {bad};
+        }
+    }
+    std::vector<ManifestRow> out;
+    for (int c : list) {
+        ManifestRow one = m;
+        one.channel = c;
+        one.one_of_several = list.size() > 1;
+        out.push_back(std::move(one));
+    }
+    return out;
 }
 
 SummaryRow start_row(const ManifestRow& m) {
@@ -315,21 +344,10 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
 
 // Worst first: developed, incipient, failed, indeterminate, normal at risk or
 // with other findings, normal.
-int rank_of(const SummaryRow& r) {
-    if (r.verdict == "developed") return 0;
-    if (r.verdict == "incipient") return 1;
-    if (r.failed()) return 2;
-    if (r.verdict == "indeterminate") return 3;
-    if (r.agreement == "at_risk" || !r.other_findings.empty()) return 4;
-    return 5;
-}
-
-bool worse_first(const SummaryRow& a, const SummaryRow& b) {
-    if (rank_of(a) != rank_of(b)) return rank_of(a) < rank_of(b);
-    if (a.confidence != b.confidence) return a.confidence > b.confidence;
-    const double ha = a.hf_rise_db.value_or(-1e9), hb = b.hf_rise_db.value_or(-1e9);
-    if (ha != hb) return ha > hb;
-    return a.line < b.line;
+std::size_t channels_of_point(const std::vector<PointState>& latest, const SummaryRow& r) {
+    return static_cast<std::size_t>(std::count_if(latest.begin(), latest.end(), [&](const PointState& p) {
+        return p.latest->machine == r.machine && p.latest->point == r.point;
+    }));
 }
 
 std::string state_words(const SummaryRow& r) {
@@ -352,30 +370,22 @@ std::string state_words(const SummaryRow& r) {
     return s;
 }
 
-// The latest row of each machine point, worst first, then earlier rows of the route.
+// Each machine's worst channel, then the latest row of each machine point
+// (and channel), worst first, with earlier rows of the route.
 void print_attention(std::ostream& out, const std::vector<SummaryRow>& rows) {
-    std::map<std::pair<std::string, std::string>, std::vector<const SummaryRow*>> by_point;
-    std::vector<const SummaryRow*> unplaced;
-    for (const auto& r : rows) {
-        if (r.machine.empty() || r.point.empty()) unplaced.push_back(&r);
-        else by_point[{r.machine, r.point}].push_back(&r);
-    }
-    std::vector<std::pair<const SummaryRow*, std::vector<const SummaryRow*>>> latest;
-    for (auto& [key, list] : by_point) {
-        std::stable_sort(list.begin(), list.end(), [](const SummaryRow* a, const SummaryRow* b) {
-            if (a->failed() != b->failed()) return a->failed();  // failed rows first: the latest analysed row wins
-            return a->days < b->days;
-        });
-        std::vector<const SummaryRow*> earlier(list.begin(), list.end() - 1);
-        latest.emplace_back(list.back(), earlier);
-    }
-    std::stable_sort(latest.begin(), latest.end(),
-                     [](const auto& a, const auto& b) { return worse_first(*a.first, *b.first); });
+    const std::vector<PointState> latest = latest_per_point(rows);
+    const std::vector<MachineState> machines = machine_states(latest);
+    out << "each machine at its latest visit, worst first:\n";
+    for (const auto& m : machines)
+        out << "  " << m.machine << ": " << m.worst->verdict << " (" << m.points << " point(s), " << m.channels
+            << " channel(s), " << m.cavitating << " cavitating; worst " << m.worst->point << " channel "
+            << m.worst->channel << ")\n";
     out << "latest state of each machine point, worst first:\n";
     int n = 0;
     for (const auto& [r, earlier] : latest) {
-        out << "  " << ++n << ". " << r->machine << "  " << r->point << "  " << r->datetime.substr(0, 16) << "  "
-            << state_words(*r) << "\n";
+        out << "  " << ++n << ". " << r->machine << "  " << r->point
+            << (r->channel != 0 || channels_of_point(latest, *r) > 1 ? "  ch " + std::to_string(r->channel) : std::string())
+            << "  " << r->datetime.substr(0, 16) << "  " << state_words(*r) << "\n";
         for (auto it = earlier.rbegin(); it != earlier.rend(); ++it)
             if (!(*it)->failed())
                 out << "       earlier in this route: " << (*it)->datetime.substr(0, 16) << " " << (*it)->verdict
@@ -399,8 +409,24 @@ std::string rate_text(std::size_t done, double audio_s, double elapsed_s, int jo
     return b;
 }
 
+// Each machine's state at its latest visit, worst first, for route.json.
+json machines_json(const std::vector<SummaryRow>& rows) {
+    json list = json::array();
+    for (const auto& m : machine_states(latest_per_point(rows)))
+        list.push_back({{"machine", m.machine},
+                        {"verdict", m.worst->verdict},
+                        {"points", m.points},
+                        {"channels", m.channels},
+                        {"cavitating_channels", m.cavitating},
+                        {"worst_point", m.worst->point},
+                        {"worst_channel", m.worst->channel},
+                        {"worst_line", m.worst->line}});
+    return list;
+}
+
 void write_summary_files(const std::string& out_dir, const std::vector<SummaryRow>& rows,
-                         const std::vector<std::string>& extra_columns, const ordered_json& run) {
+                         const std::vector<std::string>& extra_columns, ordered_json run) {
+    run["machines"] = machines_json(rows);
     std::string csv = csv_line(summary_columns(extra_columns));
     std::string jsonl;
     for (const auto& r : rows) {
@@ -522,7 +548,8 @@ void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* sto
         if (r.failed()) continue;
         const Visit* best = nullptr;
         for (const auto& v : visits[{r.machine, r.point}]) {
-            if (v.sha256 == r.sha256 && v.channel == r.channel) continue;  // the same recording
+            if (v.channel != r.channel) continue;                            // another axis of the point
+            if (v.sha256 == r.sha256) continue;                              // the same recording
             if (!(v.days < r.days)) continue;
             if (!best || v.days > best->days || (v.days == best->days && v.sha256 > best->sha256)) best = &v;
         }
@@ -556,9 +583,12 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     StagedFolder staged(o.out_dir);
     prepare_out_dir(staged.path());
 
-    std::vector<const ManifestRow*> todo;
+    std::vector<ManifestRow> expanded;
     for (const auto& r : manifest.rows)
-        if (!shard || r.index % shard->second == shard->first - 1) todo.push_back(&r);
+        if (!shard || r.index % shard->second == shard->first - 1)
+            for (auto& one : rows_per_channel(r)) expanded.push_back(std::move(one));
+    std::vector<const ManifestRow*> todo;
+    for (const auto& r : expanded) todo.push_back(&r);
 
     unsigned cores = std::thread::hardware_concurrency();
     if (cores == 0) cores = 1;

@@ -21,6 +21,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "tests/support/axes.hpp"
 #include "tests/support/cli.hpp"
 
 namespace fs = std::filesystem;
@@ -590,49 +591,19 @@ TEST_CASE("info describes a recording: format, channels, rate, length, unit", "[
     CHECK(run("info").status == 2);
 }
 
-namespace {
-
-std::vector<float> read_mono(const fs::path& p) {
-    SF_INFO info{};
-    SNDFILE* f = sf_open(p.string().c_str(), SFM_READ, &info);
-    REQUIRE(f != nullptr);
-    std::vector<float> x(static_cast<std::size_t>(info.frames));
-    sf_readf_float(f, x.data(), info.frames);
-    sf_close(f);
-    return x;
-}
-
-// Three axes of one point as a 3-channel float WAV: axis k = sum of weight * source.
-fs::path write_axes(const std::string& name, const std::array<std::vector<std::pair<float, const std::vector<float>*>>, 3>& axes) {
-    const fs::path p = workdir() / name;
-    SF_INFO info{};
-    info.samplerate = 25600;
-    info.channels = 3;
-    info.format = SF_FORMAT_WAV | SF_FORMAT_FLOAT;
-    const std::size_t n = axes[0].front().second->size();
-    std::vector<float> x(3 * n, 0.0f);
-    for (std::size_t k = 0; k < 3; ++k)
-        for (const auto& [w, src] : axes[k])
-            for (std::size_t i = 0; i < n; ++i) x[3 * i + k] += w * (*src)[i];
-    SNDFILE* f = sf_open(p.string().c_str(), SFM_WRITE, &info);
-    REQUIRE(f != nullptr);
-    sf_writef_float(f, x.data(), static_cast<sf_count_t>(n));
-    sf_close(f);
-    return p;
-}
-
-}  // namespace
 
 TEST_CASE("A triaxial point: cavitation strong on one axis and weak on the others gives the point's verdict with each axis", "[cli]") {
     // The demo's OW-P101 recordings (invented, tools/synth) as axes: healthy
     // visits for the baselines, the developed visit strong on axis 0 and mixed
     // in 20 dB and 26 dB lower on axes 1 and 2.
     const fs::path s = CAVITAS_SAMPLES;
+    using cavitas::test::read_mono;
     const auto b1 = read_mono(s / "OW-P101_baseline_1.wav"), b2 = read_mono(s / "OW-P101_baseline_2.wav");
     const auto ok = read_mono(s / "OW-P101_2026-09-07.wav"), bad = read_mono(s / "OW-P101_2026-11-02.wav");
-    const auto base1 = write_axes("tri_base1.wav", {{{{1.0f, &b1}}, {{0.7f, &b2}}, {{0.5f, &ok}}}});
-    const auto base2 = write_axes("tri_base2.wav", {{{{1.0f, &b2}}, {{0.7f, &ok}}, {{0.5f, &b1}}}});
-    const auto visit = write_axes("tri_visit.wav", {{{{1.0f, &bad}}, {{0.7f, &b1}, {0.07f, &bad}}, {{0.5f, &b2}, {0.025f, &bad}}}});
+    const fs::path base1 = workdir() / "tri_base1.wav", base2 = workdir() / "tri_base2.wav", visit = workdir() / "tri_visit.wav";
+    cavitas::test::write_axes(base1, {{{{1.0f, &b1}}, {{0.7f, &b2}}, {{0.5f, &ok}}}});
+    cavitas::test::write_axes(base2, {{{{1.0f, &b2}}, {{0.7f, &ok}}, {{0.5f, &b1}}}});
+    cavitas::test::write_axes(visit, {{{{1.0f, &bad}}, {{0.7f, &b1}, {0.07f, &bad}}, {{0.5f, &b2}, {0.025f, &bad}}}});
     const fs::path base = workdir() / "tri.json", finding = workdir() / "tri-finding.json";
     Run r = run("baseline --channel all --rpm 1485 --vanes 7 --full-scale 50g -o " + q(base) + " " + q(base1) + " " + q(base2));
     REQUIRE(r.status == 0);

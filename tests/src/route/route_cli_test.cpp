@@ -16,6 +16,7 @@
 
 #include <nlohmann/json.hpp>
 
+#include "tests/support/axes.hpp"
 #include "tests/support/cli.hpp"
 
 #include "src/io/errors.hpp"
@@ -505,4 +506,49 @@ TEST_CASE("route: a locked or read-only store is found before the analysis, with
     CHECK(WEXITSTATUS(rc) == 1);
     CHECK(err.find("read-only") != std::string::npos);
     CHECK_FALSE(fs::exists(workdir() / "out-ro"));
+}
+
+TEST_CASE("route: a triaxial row gives a finding per channel and a machine of two points one verdict", "[route]") {
+    // OW-P101 gets a second point, NDE-T, with a triaxial sensor: three axes
+    // made from the demo's recordings (tests/support/axes.hpp), the visit's
+    // developed cavitation strong on axis 0.
+    const Site& s = site();
+    using cavitas::test::read_mono;
+    const auto b1 = read_mono(s.dir / "OW-P101_baseline_1.wav"), b2 = read_mono(s.dir / "OW-P101_baseline_2.wav");
+    const auto ok = read_mono(s.dir / "OW-P101_2026-09-07.wav"), bad = read_mono(s.dir / "OW-P101_2026-11-02.wav");
+    const fs::path dir = workdir() / "tri";
+    fs::create_directories(dir / "lib" / "OW-P101");
+    cavitas::test::write_axes(dir / "t_base1.wav", {{{{1.0f, &b1}}, {{0.7f, &b2}}, {{0.5f, &ok}}}});
+    cavitas::test::write_axes(dir / "t_base2.wav", {{{{1.0f, &b2}}, {{0.7f, &ok}}, {{0.5f, &b1}}}});
+    cavitas::test::write_axes(dir / "t_visit.wav", {{{{1.0f, &bad}}, {{0.7f, &b1}}, {{0.5f, &b2}}}});
+    fs::copy_file(s.lib / "OW-P101" / "DE-H.json", dir / "lib" / "OW-P101" / "DE-H.json");
+    fs::copy_file(s.dir / "OW-P101_2026-09-07.wav", dir / "OW-P101_2026-09-07.wav");
+    Run r = run("baseline --machine OW-P101 --channel all --rpm 1485 --vanes 7 --full-scale 50g -o " +
+                q(dir / "lib" / "OW-P101" / "NDE-T.json") + " " + q(dir / "t_base1.wav") + " " + q(dir / "t_base2.wav"));
+    REQUIRE(r.status == 0);
+    std::ofstream(dir / "m.csv") << "file,machine,point,channel,datetime,rpm,vanes,full_scale\n"
+                                    "OW-P101_2026-09-07.wav,OW-P101,DE-H,0,2026-11-02T08:00,1485,7,50g\n"
+                                    "t_visit.wav,OW-P101,NDE-T,\"0,1,2\",2026-11-02T08:10,1485,7,50g\n";
+    r = run("route " + q(dir / "m.csv") + " --baselines " + q(dir / "lib") + " --no-store --out " + q(dir / "out"));
+    INFO(r.out << r.err);
+    REQUIRE(r.status == 0);
+    const auto rows = jsonl(dir / "out" / "summary.jsonl");
+    REQUIRE(rows.size() == 4);  // one for DE-H, three for the triaxial line
+    std::set<std::string> names;
+    for (const auto& row : rows) names.insert(row["finding"].get<std::string>());
+    CHECK(names.count("findings/L000003_OW-P101_NDE-T_ch0.json") == 1);
+    CHECK(names.count("findings/L000003_OW-P101_NDE-T_ch2.json") == 1);
+    CHECK(rows[1]["verdict"] == "developed");
+    CHECK(rows[1]["channel"] == 0);
+    // The machine's verdict is its worst channel's, over both points.
+    const json run_json = json::parse(slurp(dir / "out" / "route.json"));
+    REQUIRE(run_json["machines"].size() == 1);
+    const json& m = run_json["machines"][0];
+    CHECK(m["machine"] == "OW-P101");
+    CHECK(m["verdict"] == "developed");
+    CHECK(m["points"] == 2);
+    CHECK(m["channels"] == 4);
+    CHECK(m["worst_point"] == "NDE-T");
+    CHECK(m["worst_channel"] == 0);
+    CHECK(r.out.find("OW-P101: developed (2 point(s), 4 channel(s)") != std::string::npos);
 }
