@@ -285,9 +285,9 @@ struct RecordingAnalyzer::Impl {
         envelope.process(x);
         envelope.segment_psd(seg_psd_out);
         const double bin = setup.fs_hz / static_cast<double>(n);
-        series[SI::hf_level_db].push_back(
+        series[SI::hf_band_level].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));
-        series[SI::lf_level_db].push_back(
+        series[SI::lf_band_level].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.lf.low_hz, setup.lf.high_hz)));
         // Each profile band is a run of adjacent bins (band_first .. + band_count).
         for (std::size_t b = 0; b < band_first.size(); ++b) {
@@ -468,14 +468,14 @@ RecordingAnalysis RecordingAnalyzer::finish() {
         const double fr = shaft_hz(r.rpm);
         auto line = [&](double f) { return envelope_line(ses, ses_bin, f, r.rpm_estimated); };
         const auto l1 = line(fr);
-        set(RI::ses_1x_prominence_db, l1.prominence_db);
+        set(RI::envelope_1x_prominence, l1.prominence_db);
         set(RI::modulation_1x, mean_sq > 0.0 ? l1.amplitude / mean_sq : 0.0);
         if (m.machine.vanes > 0) {
             const double bpf = blade_pass_hz(r.rpm, m.machine.vanes);
             const auto lb = line(bpf);
             const auto l2 = line(2.0 * bpf);
-            set(RI::ses_bpf_prominence_db, lb.prominence_db);
-            set(RI::ses_2bpf_prominence_db, l2.prominence_db);
+            set(RI::envelope_bpf_prominence, lb.prominence_db);
+            set(RI::envelope_2bpf_prominence, l2.prominence_db);
             set(RI::modulation_bpf, mean_sq > 0.0 ? lb.amplitude / mean_sq : 0.0);
         }
         // Strongest SES peaks between 0.3x and 12x (bearing-like search).
@@ -583,7 +583,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
         }
         const double ref_med = median(ref);
         if (nl > 0 && ref_med > 0.0 && low > 0.0)
-            set(RI::ski_slope_db, 10.0 * std::log10(low / static_cast<double>(nl) / ref_med));
+            set(RI::ski_slope, 10.0 * std::log10(low / static_cast<double>(nl) / ref_med));
     }
     set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
     m.clock.lap(Stage::finish);

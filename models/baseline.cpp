@@ -30,7 +30,7 @@ double repeatability_floor_db(const std::string& mount) {
 
 namespace {
 
-bool is_level(SegmentIndicator i) { return i == SegmentIndicator::hf_level_db || i == SegmentIndicator::lf_level_db; }
+bool is_level(SegmentIndicator i) { return i == SegmentIndicator::hf_band_level || i == SegmentIndicator::lf_band_level; }
 
 double log_ratio(double rpm, double rpm_ref) { return rpm > 0.0 && rpm_ref > 0.0 ? std::log10(rpm / rpm_ref) : 0.0; }
 
@@ -72,8 +72,8 @@ SpeedModel speed_model(const std::vector<BaselineSource>& v) {
     m.speeds = distinct_speeds(rpms);
     m.fitted = m.speeds >= kFitSpeeds && m.rpm_high >= kFitSpeedSpan * m.rpm_low;
     if (m.fitted) {
-        m.hf_slope_db_per_decade = fitted_slope(v, SegmentIndicator::hf_level_db, m.rpm_ref);
-        m.lf_slope_db_per_decade = fitted_slope(v, SegmentIndicator::lf_level_db, m.rpm_ref);
+        m.hf_slope_db_per_decade = fitted_slope(v, SegmentIndicator::hf_band_level, m.rpm_ref);
+        m.lf_slope_db_per_decade = fitted_slope(v, SegmentIndicator::lf_band_level, m.rpm_ref);
     }
     return m;
 }
@@ -85,8 +85,8 @@ double SpeedModel::covered_high_rpm() const { return rpm_high * (fitted ? kCover
 
 double SpeedModel::shift_db(SegmentIndicator i, double rpm) const {
     if (rpm_ref <= 0.0 || rpm <= 0.0) return 0.0;
-    if (i == SegmentIndicator::hf_level_db) return hf_slope_db_per_decade * log_ratio(rpm, rpm_ref);
-    if (i == SegmentIndicator::lf_level_db) return lf_slope_db_per_decade * log_ratio(rpm, rpm_ref);
+    if (i == SegmentIndicator::hf_band_level) return hf_slope_db_per_decade * log_ratio(rpm, rpm_ref);
+    if (i == SegmentIndicator::lf_band_level) return lf_slope_db_per_decade * log_ratio(rpm, rpm_ref);
     return 0.0;
 }
 

@@ -14,11 +14,11 @@ struct Level {
     SegmentIndicator indicator;
     const char* name;
 };
-constexpr Level kLevels[] = {{SegmentIndicator::hf_level_db, "HF"}, {SegmentIndicator::lf_level_db, "LF"}};
+constexpr Level kLevels[] = {{SegmentIndicator::hf_band_level, "HF"}, {SegmentIndicator::lf_band_level, "LF"}};
 
 std::string band_text(const Baseline& b, SegmentIndicator i) {
-    const Band& band = i == SegmentIndicator::hf_level_db ? b.setup.hf : b.setup.lf;
-    return fmt("%s band %.0f-%.0f Hz", i == SegmentIndicator::hf_level_db ? "HF" : "LF", band.low_hz, band.high_hz);
+    const Band& band = i == SegmentIndicator::hf_band_level ? b.setup.hf : b.setup.lf;
+    return fmt("%s band %.0f-%.0f Hz", i == SegmentIndicator::hf_band_level ? "HF" : "LF", band.low_hz, band.high_hz);
 }
 
 // The split of one series into before/after that moves the median most, with
@@ -117,7 +117,7 @@ void check_cavitating(const Baseline& b, const std::vector<std::optional<Hydraul
     for (std::size_t k = 0; k < b.sources.size(); ++k) {
         const auto& s = b.sources[k];
         const double kurt = median(s.series[SegmentIndicator::hf_kurtosis]);
-        const double bpf_db = s.recording[static_cast<std::size_t>(RecordingIndicator::ses_bpf_prominence_db)];
+        const double bpf_db = s.recording[static_cast<std::size_t>(RecordingIndicator::envelope_bpf_prominence)];
         const double depth = s.recording[static_cast<std::size_t>(RecordingIndicator::modulation_bpf)];
         const bool locked_line = kurt >= L.cavitating_kurtosis && bpf_db >= L.cavitating_bpf_line_db;
         const bool locked_depth = kurt >= L.strongly_impulsive_kurtosis && depth >= L.cavitating_bpf_depth;
@@ -160,7 +160,7 @@ void check_amount(const Baseline& b, const BaselineCheckLimits& L, std::vector<B
 }  // namespace
 
 double keep_quieter_part(BaselineSource& s, double segment_s, const BaselineCheckLimits& L) {
-    const auto& hf = s.series[SegmentIndicator::hf_level_db];
+    const auto& hf = s.series[SegmentIndicator::hf_band_level];
     const Split sp = best_split(hf);
     if (sp.at == 0 || std::abs(sp.change_db) < std::max(L.step_db, L.step_spreads * std::max(sp.within_db, 0.1)))
         return -1.0;
@@ -176,7 +176,7 @@ std::vector<std::size_t> louder_visits(const Baseline& b, const BaselineCheckLim
     std::vector<std::size_t> out;
     if (b.sources.size() < 2) return out;
     const double limit = disagree_limit_db(b, L);
-    const std::vector<double> at_ref = b.visit_levels_at_ref(SegmentIndicator::hf_level_db);
+    const std::vector<double> at_ref = b.visit_levels_at_ref(SegmentIndicator::hf_band_level);
     if (at_ref.size() < 2) return out;
     if (b.sources.size() == 2) {
         if (std::abs(at_ref[1] - at_ref[0]) > limit) out.push_back(at_ref[1] > at_ref[0] ? 1 : 0);

@@ -83,8 +83,8 @@ std::string khz(double hz) { return fmt("%.1f", hz / 1000.0); }
 // a comparison must not call a fraction of a dB significant. Our choices.
 double sigma_floor(SegmentIndicator i, double median_value) {
     switch (i) {
-        case SegmentIndicator::hf_level_db:
-        case SegmentIndicator::lf_level_db: return 0.5;  // dB
+        case SegmentIndicator::hf_band_level:
+        case SegmentIndicator::lf_band_level: return 0.5;  // dB
         case SegmentIndicator::impulse_rate: return 1.0;  // per s
         case SegmentIndicator::hf_spectral_kurtosis: return 0.05;
         default: return std::max(0.1, 0.05 * std::abs(median_value));
@@ -118,8 +118,8 @@ Comparison compare_segment(Ctx& x, SegmentIndicator i) {
 }
 
 bool is_line_prominence(RecordingIndicator i) {
-    return i == RecordingIndicator::ses_1x_prominence_db || i == RecordingIndicator::ses_bpf_prominence_db ||
-           i == RecordingIndicator::ses_2bpf_prominence_db;
+    return i == RecordingIndicator::envelope_1x_prominence || i == RecordingIndicator::envelope_bpf_prominence ||
+           i == RecordingIndicator::envelope_2bpf_prominence;
 }
 
 Comparison compare_recording(Ctx& x, RecordingIndicator i) {
@@ -264,8 +264,8 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
     auto seg = [&](SI i) { return f.comparisons[static_cast<std::size_t>(i)]; };
     auto rec = [&](RI i) { return f.comparisons[kSegmentIndicatorCount + static_cast<std::size_t>(i)]; };
     Signs s;
-    s.hf = seg(SI::hf_level_db);
-    s.lf = seg(SI::lf_level_db);
+    s.hf = seg(SI::hf_band_level);
+    s.lf = seg(SI::lf_band_level);
     s.kurt = seg(SI::hf_kurtosis);
     s.rate = seg(SI::impulse_rate);
     s.impulsive_kurt = s.kurt.change >= c.kurtosis_rise && s.kurt.z >= c.z_alert;
@@ -309,12 +309,12 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
         };
         if (a.vanes > 0) {
             const double bpf = blade_pass_hz(a.rpm, a.vanes);
-            check(rec(RI::ses_bpf_prominence_db), "BPF", bpf);
+            check(rec(RI::envelope_bpf_prominence), "BPF", bpf);
             // Sparse collapses make a noisy envelope spectrum whose floor hides the
             // line; the depth of modulation (line / mean squared envelope) still
             // shows it. Count it when the depth is well over the baseline's and the
             // line still stands a little over its floor.
-            const Comparison depth = rec(RI::modulation_bpf), prom = rec(RI::ses_bpf_prominence_db);
+            const Comparison depth = rec(RI::modulation_bpf), prom = rec(RI::envelope_bpf_prominence);
             if (!s.modulated && depth.z >= c.z_alert && depth.value >= 2.0 * depth.baseline_median &&
                 prom.value >= c.weak_line_prominence_db && !explained_by_bearing(bpf)) {
                 s.modulated = true;
@@ -322,9 +322,9 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
                                         "line %.1f dB over its floor)",
                                         bpf, depth.value, depth.baseline_median, depth.z, prom.value);
             }
-            check(rec(RI::ses_2bpf_prominence_db), "2xBPF", 2.0 * bpf);
+            check(rec(RI::envelope_2bpf_prominence), "2xBPF", 2.0 * bpf);
         } else {
-            check(rec(RI::ses_1x_prominence_db), "1x", shaft_hz(a.rpm));
+            check(rec(RI::envelope_1x_prominence), "1x", shaft_hz(a.rpm));
         }
     }
     read_gain(a, b, s);

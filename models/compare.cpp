@@ -71,8 +71,8 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
     if (out.before_severity < 0) throw std::invalid_argument("no usable recording before (all indeterminate)");
     if (out.after_severity < 0) throw std::invalid_argument("no usable recording after (all indeterminate)");
 
-    const SegmentIndicator keys[] = {SegmentIndicator::hf_level_db, SegmentIndicator::hf_kurtosis,
-                                     SegmentIndicator::impulse_rate, SegmentIndicator::lf_level_db,
+    const SegmentIndicator keys[] = {SegmentIndicator::hf_band_level, SegmentIndicator::hf_kurtosis,
+                                     SegmentIndicator::impulse_rate, SegmentIndicator::lf_band_level,
                                      SegmentIndicator::hf_spectral_kurtosis, SegmentIndicator::overall_rms};
     const bool visits = usable(before) >= c.min_visits && usable(after) >= c.min_visits;
     for (SegmentIndicator k : keys) {
@@ -96,7 +96,7 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
         ic.cliffs_delta = cliffs_delta(a, b);
         ic.significant = ic.p_value <= c.alpha;
         ic.units = visits ? "recordings" : "segments";
-        if (k == SegmentIndicator::hf_level_db) {
+        if (k == SegmentIndicator::hf_band_level) {
             if (!visits) {
                 ic.widened_db = 1.96 * std::sqrt(2.0) * c.repeatability_db;
                 ic.ci_low -= ic.widened_db;

@@ -12,15 +12,18 @@
 
 namespace cavitas::models {
 
+/// Each indicator has one name: its enumerator here, the same name in the
+/// table of indicators.cpp (info()), and that name with its unit suffix as
+/// the JSON key (hf_band_level -> hf_band_level_db).
 enum class SegmentIndicator : std::size_t {
     overall_rms,          ///< AC rms of the raw signal, signal units
     overall_peak,         ///< max |x - mean|, signal units
     overall_crest,        ///< peak / rms
     overall_kurtosis,     ///< m4 / m2^2 of the raw signal
-    hf_level_db,          ///< HF band power, dB re 1 (signal unit)^2
+    hf_band_level,        ///< HF band power, dB re 1 (signal unit)^2
     hf_kurtosis,          ///< kurtosis of the HF band-passed signal
     hf_crest,             ///< crest factor of the HF band-passed signal
-    lf_level_db,          ///< LF band power (below the HF band), dB re 1 (signal unit)^2
+    lf_band_level,        ///< LF band power (below the HF band), dB re 1 (signal unit)^2
     impulse_rate,         ///< bursts per second above the adaptive threshold in the HF envelope
     hf_spectral_kurtosis, ///< mean spectral kurtosis over the HF band bins
     count
@@ -28,13 +31,13 @@ enum class SegmentIndicator : std::size_t {
 constexpr std::size_t kSegmentIndicatorCount = static_cast<std::size_t>(SegmentIndicator::count);
 
 enum class RecordingIndicator : std::size_t {
-    ses_1x_prominence_db,   ///< squared-envelope line at 1x over its local floor
-    ses_bpf_prominence_db,  ///< ... at BPF
-    ses_2bpf_prominence_db, ///< ... at 2 x BPF
-    modulation_1x,          ///< SES line at 1x / mean squared envelope (gain free)
-    modulation_bpf,         ///< SES line at BPF / mean squared envelope
-    kurtogram_max,          ///< largest mean kurtogram value (band above the blade-pass harmonics)
-    ski_slope_db,           ///< PSD level at 0.5-4 Hz over the median level at 10-100 Hz (sensor settling, cable faults)
+    envelope_1x_prominence,   ///< squared-envelope line at 1x over its local floor
+    envelope_bpf_prominence,  ///< ... at BPF
+    envelope_2bpf_prominence, ///< ... at 2 x BPF
+    modulation_1x,            ///< SES line at 1x / mean squared envelope (gain free)
+    modulation_bpf,           ///< SES line at BPF / mean squared envelope
+    kurtogram_max,            ///< largest mean kurtogram value (band above the blade-pass harmonics)
+    ski_slope,                ///< PSD level at 0.5-4 Hz over the median level at 10-100 Hz (sensor settling, cable faults)
     count
 };
 constexpr std::size_t kRecordingIndicatorCount = static_cast<std::size_t>(RecordingIndicator::count);

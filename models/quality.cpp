@@ -145,8 +145,8 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
                                   ""));
     }
 
-    const double ski = a.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope_db)];
-    const double ski_base = b[RecordingIndicator::ski_slope_db].median;
+    const double ski = a.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope)];
+    const double ski_base = b[RecordingIndicator::ski_slope].median;
     QualityCheck sk = graded("ski_slope", "db", ski, L.ski_warn_db, L.ski_fail_db,
                              fmt("low-frequency rise of %.0f dB (0.5-4 Hz over 10-100 Hz): a settling sensor or a loose "
                                  "mount or cable; let the sensor settle before recording",
@@ -155,7 +155,7 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
                                  "settling, overloaded or faulty, or the cable is; let it settle, check the mount and "
                                  "cable and record again",
                                  ski));
-    const bool has_base = b[RecordingIndicator::ski_slope_db].count > 0;
+    const bool has_base = b[RecordingIndicator::ski_slope].count > 0;
     if (sk.status != CheckStatus::fail && has_base && ski >= ski_base + L.ski_over_baseline_fail_db) {
         sk.status = CheckStatus::fail;
         sk.message = fmt("low-frequency rise %.0f dB over the baseline's (%.0f dB against %.0f dB, a 'ski slope'): the "

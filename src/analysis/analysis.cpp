@@ -205,7 +205,7 @@ void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags
         if (!duty->op.npsh3_curve_name.empty()) guard.input(duty->op.npsh3_curve_name, "NPSH3 curve");
 }
 
-AnalyzeResult analyze(const AnalyzeOptions& o, const Progress& progress) {
+AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     AnalyzeResult r;
     r.baseline = read_baseline_file(o.baseline, o.read.channel);
     if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)

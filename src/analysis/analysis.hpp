@@ -1,5 +1,5 @@
 // The analysis API: what the commands, the route and the comparison ask of a
-// recording. A request in (AnalyzeOptions: the recording, its baseline, its
+// recording. A request in (AnalysisRequest: the recording, its baseline, its
 // stated duty), a typed result out (AnalyzeResult: the recording's analysis,
 // the finding, the operating point read beside it).
 #pragma once
@@ -78,13 +78,14 @@ std::optional<ResolvedOperatingPoint> resolve_operating_point(const OperatingPoi
 /// file, the recording's sidecar, the NPSH3 curve either names.
 void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags, const std::string& recording);
 
-struct AnalyzeOptions {
+/// What is asked of one recording: which file and channel, how its values are
+/// calibrated, which baseline, and what is stated of the machine and its duty.
+struct AnalysisRequest {
     std::string machine;
     double sensor_max_hz = 0.0;
     std::string mount;
     std::string baseline;
     std::string recording;
-    std::optional<std::string> json_output;
     ReadRequest read;
     std::optional<double> rpm;
     std::optional<int> vanes;
@@ -105,7 +106,7 @@ struct AnalyzeResult {
     models::Finding finding;
     std::optional<OperatingPointFinding> operating;
 };
-AnalyzeResult analyze(const AnalyzeOptions& options, const Progress& progress = {});
+AnalyzeResult analyze(const AnalysisRequest& request, const Progress& progress = {});
 /// The point's verdict over its channels: the worst (developed, incipient,
 /// normal), indeterminate only when no channel reached a verdict.
 models::Verdict point_verdict(const std::vector<models::Verdict>& channels);

@@ -42,6 +42,12 @@ struct BaselineOptions {
 void run_baseline(const BaselineOptions& options, std::ostream& out, std::ostream& err);
 
 /// analyze() + text summary to out + JSON file when asked.
+/// The analyze command: an analysis request and where its finding goes.
+struct AnalyzeOptions : AnalysisRequest {
+    std::optional<std::string> json_output;
+};
+
+/// One channel: analyze() + a summary on `out` + the JSON finding when asked.
 /// Several channels (a list or all): each judged against its own baseline
 /// statistics, the point's verdict the worst; the JSON is the worst channel's
 /// finding with "point" and "channels" (one finding per channel) added.

@@ -166,7 +166,7 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
         std::vector<std::pair<models::OperatingPoint, models::Hydraulics>> duties;
         std::vector<double> rpms;
         for (const auto& f : files) {
-            AnalyzeOptions ao;
+            AnalysisRequest ao;
             ao.baseline = o.baseline;
             ao.recording = f;
             ao.machine = o.machine;
@@ -322,7 +322,7 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
             auto hf_segments = [](const Side& sd) {
                 std::vector<double> v;
                 for (const auto& r : sd.results) {
-                    const auto& x = r.recording.analysis.series[models::SegmentIndicator::hf_level_db];
+                    const auto& x = r.recording.analysis.series[models::SegmentIndicator::hf_band_level];
                     v.insert(v.end(), x.begin(), x.end());
                 }
                 return v;

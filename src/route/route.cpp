@@ -294,7 +294,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         if (!fs::exists(base, ec))
             return fail(base.string() + ": no baseline for machine " + m.machine + ", point " + m.point +
                         " (learn one with 'cavitas baseline --machine " + m.machine + " ... -o " + base.string() + "')");
-        AnalyzeOptions ao;
+        AnalysisRequest ao;
         ao.baseline = base.string();
         ao.recording = m.path;
         ao.machine = m.machine;

@@ -127,7 +127,7 @@ int evaluate(const std::string& dir, Scores* scores) {
                 }
             }
             for (const auto& r : g.tests) {
-                app::AnalyzeOptions o;
+                app::AnalysisRequest o;
                 o.baseline = base;
                 o.recording = dir + "/" + r.file;
                 if (r.rpm_given) o.rpm = r.rpm;

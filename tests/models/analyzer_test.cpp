@@ -99,7 +99,7 @@ TEST_CASE("Band levels of white Gaussian noise match its variance", "[models]") 
     const auto a = run(x, setup, 8192);
     const double expected_db = 10 * std::log10(var * (setup.hf.high_hz - setup.hf.low_hz) / (fs / 2));
     double mean_db = 0;
-    for (double v : a.series[SegmentIndicator::hf_level_db]) mean_db += v / static_cast<double>(a.series.segments());
+    for (double v : a.series[SegmentIndicator::hf_band_level]) mean_db += v / static_cast<double>(a.series.segments());
     // 0.2 dB: about 8 Welch frames per 1 s segment, 8 segments, and band-edge bins.
     CHECK_THAT(mean_db, WithinAbs(expected_db, 0.2));
     // Gaussian noise: kurtosis 3 raw and band-passed; 0.15 is about 4 standard errors

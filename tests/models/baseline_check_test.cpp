@@ -19,8 +19,8 @@ RecordingAnalysis steady(double hf_db, std::size_t segments = 10, double rpm = 1
     for (std::size_t k = 0; k < segments; ++k)
         for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i) a.series.values[i].push_back(3.0);
     for (std::size_t k = 0; k < segments; ++k) {
-        a.series[SegmentIndicator::hf_level_db][k] = hf_db + 0.2 * static_cast<double>(k % 3);
-        a.series[SegmentIndicator::lf_level_db][k] = -20.0 + 0.2 * static_cast<double>(k % 2);
+        a.series[SegmentIndicator::hf_band_level][k] = hf_db + 0.2 * static_cast<double>(k % 3);
+        a.series[SegmentIndicator::lf_band_level][k] = -20.0 + 0.2 * static_cast<double>(k % 2);
     }
     return a;
 }
@@ -45,7 +45,7 @@ TEST_CASE("A clean baseline draws no warning", "[models]") {
 
 TEST_CASE("A level step inside a recording is found with its file and time", "[models]") {
     auto a = steady(-40);
-    for (std::size_t k = 6; k < 10; ++k) a.series[SegmentIndicator::hf_level_db][k] += 12.0;
+    for (std::size_t k = 6; k < 10; ++k) a.series[SegmentIndicator::hf_band_level][k] += 12.0;
     const auto w = check_baseline(learned({steady(-40), a}));
     REQUIRE(has(w, "level_step"));
     for (const auto& x : w)
@@ -58,7 +58,7 @@ TEST_CASE("A level step inside a recording is found with its file and time", "[m
 TEST_CASE("A level that wanders without one step is unsteady", "[models]") {
     // The pattern of the real 1200 rpm lab record: -10.6, -0.6, 9.5, 2.4, 9.6 dB (SOURCE.md set).
     auto a = steady(-40, 5);
-    a.series[SegmentIndicator::hf_level_db] = {-10.6, -0.6, 9.5, 2.4, 9.6};
+    a.series[SegmentIndicator::hf_band_level] = {-10.6, -0.6, 9.5, 2.4, 9.6};
     CHECK(has(check_baseline(learned({a})), "unsteady"));
 }
 
@@ -89,7 +89,7 @@ TEST_CASE("A baseline at low NPSH or under the margin guidance is suspected of c
 TEST_CASE("Impulsive HF at blade passage in a known-good record is suspected", "[models]") {
     auto a = steady(-40);
     a.series[SegmentIndicator::hf_kurtosis].assign(10, 5.5);
-    a.recording[static_cast<std::size_t>(RecordingIndicator::ses_bpf_prominence_db)] = 14.0;
+    a.recording[static_cast<std::size_t>(RecordingIndicator::envelope_bpf_prominence)] = 14.0;
     CHECK(has(check_baseline(learned({a, steady(-40)})), "cavitating"));
 }
 

@@ -16,8 +16,8 @@ namespace {
 // Healthy values of each segment indicator, with a small spread.
 double healthy(SI i) {
     switch (i) {
-        case SI::hf_level_db: return -40.0;
-        case SI::lf_level_db: return -20.0;
+        case SI::hf_band_level: return -40.0;
+        case SI::lf_band_level: return -20.0;
         case SI::hf_kurtosis: return 3.0;
         case SI::overall_kurtosis: return 3.0;
         case SI::impulse_rate: return 0.0;
@@ -41,8 +41,8 @@ RecordingAnalysis make(std::size_t segments = 10) {
             const double jitter = 0.2 * (static_cast<double>(k % 5) - 2.0) / 2.0;  // +-0.2 spread
             a.series.values[i].push_back(healthy(static_cast<SI>(i)) + jitter);
         }
-    a.recording[static_cast<std::size_t>(RI::ses_bpf_prominence_db)] = 1.0;
-    a.recording[static_cast<std::size_t>(RI::ses_1x_prominence_db)] = 1.0;
+    a.recording[static_cast<std::size_t>(RI::envelope_bpf_prominence)] = 1.0;
+    a.recording[static_cast<std::size_t>(RI::envelope_1x_prominence)] = 1.0;
     return a;
 }
 
@@ -73,8 +73,8 @@ TEST_CASE("A recording like its baseline is normal", "[models]") {
 
 TEST_CASE("A large HF rise modulated at blade pass is developed cavitation", "[models]") {
     auto a = make();
-    shift(a, SI::hf_level_db, 14.0);
-    set(a, RI::ses_bpf_prominence_db, 12.0);
+    shift(a, SI::hf_band_level, 14.0);
+    set(a, RI::envelope_bpf_prominence, 12.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::developed);
     CHECK(mentions(f.evidence, "+14.0 dB over baseline"));
@@ -84,15 +84,15 @@ TEST_CASE("A large HF rise modulated at blade pass is developed cavitation", "[m
 TEST_CASE("Dense developed cavitation with Gaussian kurtosis is still developed", "[models]") {
     // Kurtosis stays at the baseline's ~3: a kurtosis-only rule would miss this.
     auto a = make();
-    shift(a, SI::hf_level_db, 18.0);
-    shift(a, SI::lf_level_db, 2.5);
-    set(a, RI::ses_bpf_prominence_db, 9.0);
+    shift(a, SI::hf_band_level, 18.0);
+    shift(a, SI::lf_band_level, 2.5);
+    set(a, RI::envelope_bpf_prominence, 9.0);
     CHECK(classify(a, base(), "g").verdict == Verdict::developed);
 }
 
 TEST_CASE("A moderate HF rise with impulsive kurtosis is incipient cavitation", "[models]") {
     auto a = make();
-    shift(a, SI::hf_level_db, 5.0);
+    shift(a, SI::hf_band_level, 5.0);
     shift(a, SI::hf_kurtosis, 4.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::incipient);
@@ -101,7 +101,7 @@ TEST_CASE("A moderate HF rise with impulsive kurtosis is incipient cavitation", 
 
 TEST_CASE("A bearing-like envelope family is not cavitation even with an HF rise", "[models]") {
     auto a = make();
-    shift(a, SI::hf_level_db, 12.0);
+    shift(a, SI::hf_band_level, 12.0);
     shift(a, SI::hf_kurtosis, 6.0);
     const double fr = 1485.0 / 60.0;
     a.envelope_peaks = {{3.58 * fr, 3.58, 18.0}, {7.16 * fr, 7.16, 11.0}};
@@ -120,7 +120,7 @@ TEST_CASE("Envelope lines at integer orders are not read as a bearing", "[models
 
 TEST_CASE("A rise confined to the low band is flow turbulence, not cavitation", "[models]") {
     auto a = make();
-    shift(a, SI::lf_level_db, 8.0);
+    shift(a, SI::lf_band_level, 8.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
     CHECK(mentions(f.other_findings, "turbulence"));
@@ -160,7 +160,7 @@ TEST_CASE("Mains hum is reported and does not make cavitation", "[models]") {
     auto a = make();
     a.mains_hz = 50;
     a.mains_lines = 3;
-    shift(a, SI::lf_level_db, 6.0);
+    shift(a, SI::lf_band_level, 6.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
     CHECK(mentions(f.other_findings, "mains hum at 50 Hz"));
@@ -209,9 +209,9 @@ Baseline base_with_profile() {
 TEST_CASE("Impacts at blade passage beside an LF rise with no HF rise are recirculation, said once", "[models]") {
     // The shut-off case: LF +7.5 dB, sparse impacts, a BPF line; the HF level has not moved.
     auto a = make();
-    shift(a, SI::lf_level_db, 7.5);
+    shift(a, SI::lf_band_level, 7.5);
     shift(a, SI::hf_kurtosis, 3.0);
-    set(a, RI::ses_bpf_prominence_db, 12.0);
+    set(a, RI::envelope_bpf_prominence, 12.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
     CHECK(mentions(f.other_findings, "recirculation"));
@@ -222,23 +222,23 @@ TEST_CASE("Impacts at blade passage beside an LF rise with no HF rise are recirc
 TEST_CASE("Every band up alike, tones included, is a gain change: no verdict", "[models]") {
     auto a = make();
     profile(a, 6.0);
-    shift(a, SI::hf_level_db, 6.0);
-    shift(a, SI::lf_level_db, 6.0);
+    shift(a, SI::hf_band_level, 6.0);
+    shift(a, SI::lf_band_level, 6.0);
     const Finding f = classify(a, base_with_profile(), "g");
     CHECK(f.verdict == Verdict::indeterminate);
     CHECK(mentions(f.reasons, "gain"));
     // The same HF rise with the LF band and the spectrum's low bands unmoved is not a gain change.
     auto c = make();
     profile(c, 0.0);
-    shift(c, SI::hf_level_db, 6.0);
+    shift(c, SI::hf_band_level, 6.0);
     shift(c, SI::hf_kurtosis, 3.0);
     CHECK(classify(c, base_with_profile(), "g").verdict == Verdict::incipient);
 }
 
 TEST_CASE("The LF rise that lifts a developed grade is printed", "[models]") {
     auto a = make();
-    shift(a, SI::hf_level_db, 15.0);
-    shift(a, SI::lf_level_db, 2.5);
+    shift(a, SI::hf_band_level, 15.0);
+    shift(a, SI::lf_band_level, 2.5);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::developed);
     CHECK(mentions(f.evidence, "LF band"));
@@ -249,9 +249,9 @@ TEST_CASE("A bearing family explains an HF rise, its impacts and the blade-pass 
     // An inner-race family at 5.41x with f_r sidebands; the envelope spectrum carries the comb
     // k x 1x at equal height, BPF (7x) among them: no line stands out, so nothing is cavitation.
     auto a = make();
-    shift(a, SI::hf_level_db, 12.0);
+    shift(a, SI::hf_band_level, 12.0);
     shift(a, SI::hf_kurtosis, 5.0);
-    set(a, RI::ses_bpf_prominence_db, 10.0);
+    set(a, RI::envelope_bpf_prominence, 10.0);
     const double fr = 1485.0 / 60.0;
     a.envelope_peaks = {{5.41 * fr, 5.41, 18.0}, {4.41 * fr, 4.41, 10.0}, {6.41 * fr, 6.41, 10.0}};
     a.envelope_bin_hz = 0.25;

@@ -139,7 +139,7 @@ TEST_CASE("Without a full scale a large DC offset only warns", "[models]") {
 
 TEST_CASE("A ski slope warns from 30 dB and fails from 40 dB, or from 15 and 25 dB over the baseline", "[models]") {
     auto a = clean();
-    auto set = [&](double db) { a.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope_db)] = db; };
+    auto set = [&](double db) { a.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope)] = db; };
     set(29.9);
     CHECK(check(a, "ski_slope") == CheckStatus::pass);
     set(30.0);
@@ -150,7 +150,7 @@ TEST_CASE("A ski slope warns from 30 dB and fails from 40 dB, or from 15 and 25 
     CHECK(check(a, "ski_slope") == CheckStatus::fail);
     // 15 dB over the baseline's own value warns even below 30 dB.
     Baseline b = base();
-    b.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope_db)] = {5.0, 1.0, 5.0, 5.0, 2};
+    b.recording[static_cast<std::size_t>(RecordingIndicator::ski_slope)] = {5.0, 1.0, 5.0, 5.0, 2};
     set(19.9);
     CHECK(check(a, "ski_slope", ctx(), b) == CheckStatus::pass);
     set(20.0);

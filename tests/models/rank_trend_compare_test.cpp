@@ -102,8 +102,8 @@ struct FakeRecording {
     RecordingAnalysis analysis;
     Finding finding;
     FakeRecording(std::vector<double> hf_db, Verdict v) {
-        analysis.series[SegmentIndicator::hf_level_db] = hf_db;
-        for (auto i : {SegmentIndicator::hf_kurtosis, SegmentIndicator::impulse_rate, SegmentIndicator::lf_level_db,
+        analysis.series[SegmentIndicator::hf_band_level] = hf_db;
+        for (auto i : {SegmentIndicator::hf_kurtosis, SegmentIndicator::impulse_rate, SegmentIndicator::lf_band_level,
                        SegmentIndicator::hf_spectral_kurtosis, SegmentIndicator::overall_rms})
             analysis.series[i] = std::vector<double>(hf_db.size(), 1.0);
         finding.verdict = v;

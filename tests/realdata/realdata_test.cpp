@@ -287,7 +287,7 @@ TEST_CASE("Lab pump at 1200 rpm: with the suction reading given, the throttled r
             std::snprintf(suction, sizeof suction, "%.4fbar", log_median(log, "PT02_bar"));
             std::snprintf(temperature, sizeof temperature, "%.2fC", log_median(log, "TT01_C"));
             for (int run = 1; run <= 2; ++run) {
-                app::AnalyzeOptions o;
+                app::AnalysisRequest o;
                 o.baseline = base;
                 o.recording = (pump() / (log + "_r" + std::to_string(run) + "_" + channel + ".wav")).string();
                 o.rpm = log_median(log, "RT01_RPM");
@@ -318,7 +318,7 @@ TEST_CASE("Lab pump: the unsteady 1200 rpm healthy record is not taken silently 
         REQUIRE_FALSE(b.warnings.empty());
         for (const auto& w : b.warnings) std::cout << "  1200rpm_healthy_r1_" << channel << ": " << w.check << "\n";
         // Every finding against it repeats the warnings and cannot be sure.
-        app::AnalyzeOptions o;
+        app::AnalysisRequest o;
         o.baseline = base;
         o.recording = (pump() / (std::string("1200rpm_healthy_r2_") + channel + ".wav")).string();
         o.rpm = 1208;
@@ -366,7 +366,7 @@ TEST_CASE("Lab pump: a baseline learned at 700 and 1000 rpm judges the speeds be
     for (const auto& [name, rpm, cavitation] :
          {std::tuple{"1000rpm_healthy_r2", 1011.0, false}, std::tuple{"1000rpm_cav025_r1", 1014.0, true},
           std::tuple{"1000rpm_cav025_r2", 1014.0, true}}) {
-        app::AnalyzeOptions o;
+        app::AnalysisRequest o;
         o.baseline = bo.output;
         o.recording = (pump() / (std::string(name) + "_ch0_acc.wav")).string();
         o.rpm = rpm;
