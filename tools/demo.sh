@@ -2,10 +2,14 @@
 # The demo: the invented Orrin Weir pumping station of the Lowmere Water Trust.
 #   tools/demo.sh [BUILD_DIR]        (default: build)
 #
+#  0. says what the recordings that are not WAV files hold (OW-P101's triaxial point NDE-T:
+#     UFF 58b in volts, a MATLAB file, a CSV waveform in m/s^2), a line each;
 #  1. learns each machine point's baseline from its known-good recordings
-#     (samples/baselines.csv) into a baseline library BUILD_DIR/demo/baselines/MACHINE/POINT.json;
+#     (samples/baselines.csv, with the channels and calibration its columns give) into a
+#     baseline library BUILD_DIR/demo/baselines/MACHINE/POINT.json;
 #  2. analyses the route (samples/route.csv: three dated visits of OW-P101, a repair and
-#     a visit after it, and the other pumps) on all cores, with the history in
+#     a visit after it, its triaxial point NDE-T before and after the repair, and the
+#     other pumps) on all cores, with the history in
 #     BUILD_DIR/demo/baselines/history.sqlite;
 #  3. shows the trend of OW-P101 and compares it before and after its repair;
 #  4. writes work-order reports (HTML and PDF) to BUILD_DIR/demo/reports/;
@@ -26,20 +30,58 @@ lib="$out/baselines"
 rm -rf "$out"
 mkdir -p "$lib"
 
-# Column NAME of a CSV row, by the header's names.
-col() { awk -F, -v name="$1" 'NR == 1 { for (i = 1; i <= NF; i++) c[$i] = i; next } { print $c[name] }' "$2"; }
+# Column NAME of a CSV row, by the header's names (a quoted cell may hold commas: "0,1,2";
+# an absent column gives empty cells).
+col() {
+  awk -v name="$1" '
+    function cells(line, out,   n, i, ch, f, q) {
+      n = 0; f = ""; q = 0
+      for (i = 1; i <= length(line); i++) {
+        ch = substr(line, i, 1)
+        if (q) { if (ch == "\"") { if (substr(line, i + 1, 1) == "\"") { f = f ch; i++ } else q = 0 } else f = f ch }
+        else if (ch == "\"") q = 1
+        else if (ch == ",") { out[++n] = f; f = "" }
+        else f = f ch
+      }
+      out[++n] = f
+      return n
+    }
+    { n = cells($0, f) }
+    NR == 1 { for (i = 1; i <= n; i++) c[f[i]] = i; next }
+    { print ((name in c) ? f[c[name]] : "") }' "$2"
+}
+
+echo "== 0. what the recordings that are not WAV files hold"
+col file "$samples/manifest.csv" | grep -v '\.wav$' | while read -r f; do
+  info=$("$cavitas" info "$samples/$f")
+  first=${info%%$'\n'*}
+  rest=${info#*$'\n'}
+  channel0=${rest%%$'\n'*}
+  echo "$first;${channel0# }"
+done
+echo
 
 echo "== 1. baselines from the known-good recordings ($samples/baselines.csv)"
-paste -d, <(col machine "$samples/baselines.csv") <(col point "$samples/baselines.csv") | sort -u |
-while IFS=, read -r machine point; do
-  rows=$(paste -d, <(col machine "$samples/baselines.csv") <(col point "$samples/baselines.csv") \
-                   <(col file "$samples/baselines.csv") <(col rpm "$samples/baselines.csv") \
-                   <(col vanes "$samples/baselines.csv") <(col full_scale "$samples/baselines.csv") |
-         awk -F, -v m="$machine" -v p="$point" '$1 == m && $2 == p')
-  mapfile -t files < <(awk -F, -v d="$samples" '{ print d "/" $3 }' <<< "$rows")
-  IFS=, read -r _ _ _ rpm vanes full_scale <<< "$(head -n 1 <<< "$rows")"
+b="$samples/baselines.csv"
+paste -d'|' <(col machine "$b") <(col point "$b") | sort -u |
+while IFS='|' read -r machine point; do
+  # The channels and calibration come from the point's first row; only non-empty cells become options.
+  rows=$(paste -d'|' <(col machine "$b") <(col point "$b") <(col file "$b") <(col rpm "$b") <(col vanes "$b") \
+                     <(col channel "$b") <(col full_scale "$b") <(col sensitivity "$b") <(col gain "$b") \
+                     <(col unit "$b") <(col variable "$b") <(col sample_rate_hz "$b") |
+         awk -F'|' -v m="$machine" -v p="$point" '$1 == m && $2 == p')
+  mapfile -t files < <(awk -F'|' -v d="$samples" '{ print d "/" $3 }' <<< "$rows")
+  IFS='|' read -r _ _ _ rpm vanes channel full_scale sensitivity gain unit variable rate <<< "$(head -n 1 <<< "$rows")"
+  opts=()
+  [ -z "$channel" ] || opts+=(--channel "$channel")
+  [ -z "$full_scale" ] || opts+=(--full-scale "$full_scale")
+  [ -z "$sensitivity" ] || opts+=(--sensitivity "$sensitivity")
+  [ -z "$gain" ] || opts+=(--gain "$gain")
+  [ -z "$unit" ] || opts+=(--unit "$unit")
+  [ -z "$variable" ] || opts+=(--variable "$variable")
+  [ -z "$rate" ] || opts+=(--sample-rate "$rate")
   mkdir -p "$lib/$machine"
-  "$cavitas" baseline --machine "$machine" --rpm "$rpm" --vanes "$vanes" --full-scale "$full_scale" \
+  "$cavitas" baseline --machine "$machine" --rpm "$rpm" --vanes "$vanes" "${opts[@]}" \
     -o "$lib/$machine/$point.json" "${files[@]}"
   echo
 done

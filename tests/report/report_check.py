@@ -88,10 +88,12 @@ def outputs(cavitas, samples, schemas, work):
         w.writeframes(b"\0\0" * 25600 * 6)
 
     manifest = os.path.join(site, "route-with-bad-row.csv")
+    # The route's DE-H rows (one channel each, a baseline above); the triaxial NDE-T rows,
+    # whose channel cell lists three channels, are left out.
     with open(os.path.join(site, "route.csv"), encoding="utf-8") as f:
-        text = f.read()
+        text = "".join(line for line in f if ",NDE-T," not in line)
     with open(manifest, "w", encoding="utf-8") as f:
-        f.write(text + "OW-P101_gone.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,9\n")
+        f.write(text + "OW-P101_gone.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,9,,,,\n")
     route = os.path.join(work, "route")
     r = run([cavitas, "route", manifest, "--baselines", lib, "--out", route])
     check("route exits 1 (one row fails, the others are analysed)", r.returncode == 1, r.stderr)

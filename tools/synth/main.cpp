@@ -65,12 +65,15 @@ int main(int argc, char** argv) {
     std::uint64_t demo_seed = 20240611;
     auto* demo = app.add_subcommand(
         "demo",
-        "Write the small demo route (about 6.3 MB): OW-P101 with 2 baselines and visits on 2026-09-07 (healthy), "
+        "Write the small demo route (about 9.5 MB): OW-P101 with 2 baselines and visits on 2026-09-07 (healthy), "
         "10-05 (incipient), 11-02 (developed) and, after a repair, 11-09 (healthy); OW-P102 with 2 baselines, "
         "turbulence and developed cavitation at part load; OW-P103 with 2 baselines and a bearing look-alike. 8 s "
         "each, 16-bit PCM, named like OW-P101_baseline_1.wav and OW-P101_2026-10-05.wav, each with its operating "
-        "point in NAME.op.toml; the NPSH3 curves TAG.npsh3.csv; route manifests manifest.csv (all), baselines.csv "
-        "and route.csv; and truth.csv.");
+        "point in NAME.op.toml; then OW-P101's triaxial point NDE-T (12 800 Hz, 4 s, three axes): 2 baselines as "
+        "UFF 58b in volts (100 mV/g), the developed visit of 11-02 as a MAT-file (N x 3 volts, acc and fs) and the "
+        "visit of 11-09 as a CSV waveform in m/s^2; the NPSH3 curves TAG.npsh3.csv; route manifests manifest.csv "
+        "(all), baselines.csv and route.csv (with the columns sensitivity, unit, variable, sample_rate_hz, and the "
+        "channel list \"0,1,2\" of the triaxial rows); and truth.csv (a row per axis, FILE#CHANNEL).");
     demo->add_option("OUTDIR", demo_dir, "Folder to write into (created if missing)")->required();
     demo->add_option("--seed", demo_seed, "Master seed of the set")->capture_default_str();
 
@@ -167,7 +170,8 @@ int main(int argc, char** argv) {
     try {
         if (*demo) {
             const auto plan = synth::demo_plan(demo_seed);
-            const auto summary = synth::write_set(demo_dir, plan, nullptr, std::cerr, synth::demo_files());
+            const auto summary = synth::write_set(demo_dir, plan, nullptr, std::cerr, synth::demo_files(),
+                                                     synth::SetColumns::demo);
             print_summary("demo", demo_dir, summary);
         } else if (*eval) {
             const auto plan = synth::eval_plan(per_kind, eval_seed);

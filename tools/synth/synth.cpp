@@ -8,6 +8,7 @@
 // result does not depend on the recording's random draw.
 #include "tools/synth/synth.hpp"
 
+#include <matio.h>
 #include <sndfile.h>
 
 #include "models/operating_point.hpp"
@@ -16,6 +17,7 @@
 #include <cmath>
 #include <complex>
 #include <cstdio>
+#include <cstring>
 #include <fstream>
 #include <map>
 #include <memory>
@@ -883,6 +885,126 @@ std::size_t write_wav(const std::string& path, std::span<const float> g, double 
     return clipped;
 }
 
+namespace {
+
+std::size_t check_channels(const std::string& path, const std::vector<std::vector<float>>& channels, double fs_hz,
+                           std::size_t max_channels) {
+    if (channels.empty() || channels.size() > max_channels)
+        throw std::invalid_argument("'" + path + "': give 1.." + std::to_string(max_channels) + " channels");
+    for (const auto& c : channels)
+        if (c.size() != channels.front().size() || c.empty())
+            throw std::invalid_argument("'" + path + "': the channels must be of one non-zero length");
+    if (!(fs_hz > 0.0)) throw std::invalid_argument("'" + path + "': the sample rate must be > 0");
+    return channels.front().size();
+}
+
+// "2026-08-03T09:35:00" as UFF ID line 3 writes a date: "03-Aug-26 09:35:00".
+std::string uff_date(const std::string& iso) {
+    static constexpr std::array<const char*, 12> kMonths{"Jan", "Feb", "Mar", "Apr", "May", "Jun",
+                                                        "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"};
+    const int month = iso.size() >= 19 ? std::stoi(iso.substr(5, 2)) : 0;
+    if (month < 1 || month > 12) throw std::invalid_argument("not a date and time: '" + iso + "'");
+    return iso.substr(8, 2) + "-" + kMonths[static_cast<std::size_t>(month - 1)] + "-" + iso.substr(2, 2) + " " +
+           iso.substr(11, 8);
+}
+
+std::string printf_string(const char* fmt, auto... args) {
+    char buf[256];
+    std::snprintf(buf, sizeof buf, fmt, args...);
+    return buf;
+}
+
+}  // namespace
+
+void write_uff58b(const std::string& path, const std::vector<std::vector<float>>& channels, double fs_hz,
+                  std::string_view unit, std::string_view entity, std::string_view id_line, std::string_view date) {
+    const std::size_t n = check_channels(path, channels, fs_hz, 3);
+    if (entity.size() > 10) throw std::invalid_argument("'" + path + "': the entity name is over 10 characters");
+    std::string text;
+    for (std::size_t c = 0; c < channels.size(); ++c) {
+        const std::size_t bytes = n * sizeof(float);
+        text += "    -1\n";
+        text += printf_string("%6i%c%6i%6i%12i%12zu%6i%6i%12i%12i\n", 58, 'b', 1, 2, 11, bytes, 0, 0, 0, 0);
+        text += std::string(id_line) + " " + "XYZ"[c] + "\n";
+        text += "NONE\n";
+        text += std::string(date) + "\n";
+        text += "NONE\n";
+        text += "NONE\n";
+        const std::string ent(entity);
+        text += printf_string("%5i%10i%5i%10i %-10s%10i%4i %-10s%10i%4i\n", 1, 0, 0, 0, ent.c_str(), 1,
+                              static_cast<int>(c) + 1, "NONE", 0, 0);
+        text += printf_string("%10i%10zu%10i%13.5E%13.5E%13.5E\n", 2, n, 1, 0.0, 1.0 / fs_hz, 0.0);
+        text += printf_string("%10i%5i%5i%5i %-20s %-20s\n", 17, 0, 0, 0, "Time", "s");
+        text += printf_string("%10i%5i%5i%5i %-20s %-20s\n", 12, 0, 0, 0, "Acceleration", std::string(unit).c_str());
+        text += printf_string("%10i%5i%5i%5i %-20s %-20s\n", 0, 0, 0, 0, "NONE", "NONE");
+        text += printf_string("%10i%5i%5i%5i %-20s %-20s\n", 0, 0, 0, 0, "NONE", "NONE");
+        std::string block(bytes, '\0');
+        for (std::size_t i = 0; i < n; ++i) {
+            std::uint32_t u = 0;
+            std::memcpy(&u, &channels[c][i], 4);
+            for (int b = 0; b < 4; ++b) block[4 * i + b] = static_cast<char>((u >> (8 * b)) & 0xFFu);  // little-endian
+        }
+        text += block;
+        text += "\n    -1\n";
+    }
+    write_text_atomically(path, text);
+}
+
+void write_csv_waveform(const std::string& path, const std::vector<std::vector<float>>& channels,
+                        const std::vector<std::string>& names, double fs_hz, std::string_view unit) {
+    const std::size_t n = check_channels(path, channels, fs_hz, 64);
+    if (names.size() != channels.size()) throw std::invalid_argument("'" + path + "': one name a channel");
+    std::string text = "# sample_rate_hz = " + fmt_number(fs_hz, 6) + "\n";
+    for (std::size_t c = 0; c < names.size(); ++c)
+        text += (c ? "," : "") + names[c] + " [" + std::string(unit) + "]";
+    text += '\n';
+    text.reserve(text.size() + n * channels.size() * 11);
+    for (std::size_t i = 0; i < n; ++i) {
+        for (std::size_t c = 0; c < channels.size(); ++c) {
+            if (c) text += ',';
+            text += printf_string("%.5g", static_cast<double>(channels[c][i]));
+        }
+        text += '\n';
+    }
+    write_text_atomically(path, text);
+}
+
+void write_mat(const std::string& path, const std::vector<std::vector<float>>& channels, double fs_hz,
+               const std::string& variable) {
+    const std::size_t n = check_channels(path, channels, fs_hz, 64);
+    const std::string tmp = path + ".tmp";
+    // A header text of our own: libmatio's default carries the time of writing.
+    mat_t* mat = Mat_CreateVer(tmp.c_str(), "MATLAB 5.0 MAT-file, written by cavitas-synth (synthetic demo data)",
+                               MAT_FT_MAT5);
+    if (mat == nullptr) throw std::runtime_error("cannot write '" + path + "': cannot create file");
+    std::vector<float> column_major;
+    column_major.reserve(n * channels.size());
+    for (const auto& c : channels) column_major.insert(column_major.end(), c.begin(), c.end());
+    std::size_t dims[2] = {n, channels.size()};
+    bool ok = true;
+    if (matvar_t* v = Mat_VarCreate(variable.c_str(), MAT_C_SINGLE, MAT_T_SINGLE, 2, dims, column_major.data(), 0)) {
+        ok = Mat_VarWrite(mat, v, MAT_COMPRESSION_NONE) == 0;
+        Mat_VarFree(v);
+    } else {
+        ok = false;
+    }
+    double fs = fs_hz;
+    std::size_t one[2] = {1, 1};
+    if (matvar_t* v = ok ? Mat_VarCreate("fs", MAT_C_DOUBLE, MAT_T_DOUBLE, 2, one, &fs, 0) : nullptr) {
+        ok = Mat_VarWrite(mat, v, MAT_COMPRESSION_NONE) == 0;
+        Mat_VarFree(v);
+    } else {
+        ok = false;
+    }
+    if (Mat_Close(mat) != 0) ok = false;
+    if (!ok) {
+        std::error_code ec;
+        std::filesystem::remove(tmp, ec);
+        throw std::runtime_error("cannot write '" + path + "': libmatio could not write the variables");
+    }
+    rename_into_place(tmp, path);
+}
+
 // ---------------------------------------------------------------------------
 // Sets.
 std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
@@ -955,6 +1077,89 @@ std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
         else op << "npsh3 = \"2.8 m\"\n";
         op << "speed = \"" << fmt_number(r.spec.machine.rpm, 0) << " rpm\"\n";
         if (*it.note) op << "note = \"" << it.note << "\"\n";
+        r.sidecar_toml = op.str();
+        plan.push_back(std::move(r));
+    }
+
+    // OW-P101's triaxial point NDE-T, after the recordings above (so their seeds
+    // and manifest lines stay as they were): a portable three-axis logger at
+    // 12 800 Hz, channels X (radial horizontal), Y (radial vertical), Z (axial).
+    // Each axis has its own seed and a gain (X 0, Y -3, Z -6 dB): the bearing
+    // housing is stiffer vertically and axially. On 11-02 the collapses at the
+    // impeller eye reach X (facing the volute) at full severity (HF +24 dB);
+    // Y and Z receive the same collapse process (rate, modulation) 12 and 15 dB
+    // weaker relative to their own backgrounds, so their HF rise is
+    // 10 log10(1 + (10^(24/10) - 1) 10^(-loss/10)): about 12.3 and 9.5 dB.
+    struct Triaxial {
+        const char* suffix;
+        const char* role;
+        Kind kind;
+        const char* datetime;
+        const char* suction;
+        const char* flow;
+        const char* note;
+        FileFormat format;
+    };
+    const std::array<Triaxial, 4> tri{{
+        {"baseline_1", "baseline", Kind::healthy, "2026-08-03T09:35:00", "-19 kPa", "410 m3/h", "sump at normal level",
+         FileFormat::uff58b},
+        {"baseline_2", "baseline", Kind::healthy, "2026-08-03T09:45:00", "-19 kPa", "410 m3/h", "sump at normal level",
+         FileFormat::uff58b},
+        {"2026-11-02", "test", Kind::developed, "2026-11-02T09:15:00", "-70 kPa", "420 m3/h",
+         "sump drawn down 4 m, suction strainer fouled", FileFormat::mat},
+        {"2026-11-09", "test", Kind::healthy, "2026-11-09T10:25:00", "-17 kPa", "410 m3/h",
+         "after the repair of 2026-11-04: strainer cleaned, sump level control reset", FileFormat::csv},
+    }};
+    constexpr std::array<double, 3> kAxisGainDb{0.0, -3.0, -6.0};
+    constexpr std::array<double, 3> kCollapseLossDb{0.0, 12.0, 15.0};
+    Machine logger = machine_by_tag("OW-P101");
+    logger.fs_hz = 12800.0;
+    for (std::size_t j = 0; j < tri.size(); ++j) {
+        const Triaxial& it = tri[j];
+        PlannedRecording r;
+        r.format = it.format;
+        const char* ext = it.format == FileFormat::uff58b ? ".uff" : it.format == FileFormat::mat ? ".mat" : ".csv";
+        r.file = std::string("OW-P101_NDE-T_") + it.suffix + ext;
+        r.role = it.role;
+        r.point = "NDE-T";
+        r.datetime = it.datetime;
+        const std::uint64_t axis0_seed = derive_seed(seed, items.size() + j);
+        std::optional<FaultParams> x_params;
+        if (it.kind == Kind::developed) x_params = draw_params(Kind::developed, 1.0, axis0_seed);
+        for (std::size_t a = 0; a < 3; ++a) {
+            CaseSpec c;
+            c.machine = logger;
+            c.kind = it.kind;
+            c.duration_s = 4.0;
+            c.seed = a == 0 ? axis0_seed : derive_seed(axis0_seed, a);
+            c.severity = it.kind == Kind::developed ? 1.0 : 0.5;
+            c.gain_db = kAxisGainDb[a];
+            if (x_params) {
+                FaultParams p = *x_params;
+                const double x_ratio = std::pow(10.0, x_params->cavitation.hf_rise_db / 10.0) - 1.0;
+                p.cavitation.hf_rise_db = 10.0 * std::log10(1.0 + x_ratio * std::pow(10.0, -kCollapseLossDb[a] / 10.0));
+                c.params = p;
+            }
+            if (a == 0) r.spec = c;
+            else r.more_axes.push_back(c);
+        }
+        switch (it.format) {
+            case FileFormat::uff58b: r.unit = "V"; r.sensitivity_v_per_g = 0.1; break;
+            case FileFormat::mat: r.unit = "V"; r.sensitivity_v_per_g = 0.1; r.variable = "acc"; break;
+            default: r.unit = "m/s^2"; break;
+        }
+        std::ostringstream op;
+        op << "# operating point of " << r.file << " (invented demo duty)\n"
+           << "suction_pressure = \"" << it.suction << "\"\n"
+           << "pressure_ref = \"gauge\"\n"
+           << "temperature = \"14 C\"\n"
+           << "elevation = \"62 m\"\n"
+           << "gauge_height = \"0.4 m\"\n"
+           << "flow = \"" << it.flow << "\"\n"
+           << "bore = \"300 mm\"\n"
+           << "npsh3_curve = \"OW-P101.npsh3.csv\"\n"
+           << "speed = \"1485 rpm\"\n"
+           << "note = \"" << it.note << "\"\n";
         r.sidecar_toml = op.str();
         plan.push_back(std::move(r));
     }
@@ -1423,6 +1628,7 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
                      const std::vector<SetFile>& files, SetColumns columns) {
     const bool field = columns == SetColumns::field;
+    const bool demo = columns == SetColumns::demo;
     std::error_code ec;
     std::filesystem::create_directories(folder, ec);
     if (ec || !std::filesystem::is_directory(folder))
@@ -1433,7 +1639,9 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
     // baselines.csv and route.csv the known-good ones and the ones to judge.
     const std::string header = std::string("file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,"
                                            "fs_hz,duration_s,seed") +
-                               (field ? ",group,rpm_given,expect,hazard\n" : "\n");
+                               (field  ? ",group,rpm_given,expect,hazard\n"
+                                : demo ? ",sensitivity,unit,variable,sample_rate_hz\n"
+                                       : "\n");
     std::ostringstream manifest, baselines, route, truth;
     manifest << header;
     baselines << header;
@@ -1448,7 +1656,37 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         const PlannedRecording& r = plan[i];
         const Recording rec = synthesize_recording(r.spec);
         const std::filesystem::path path = folder / r.file;
-        const std::size_t clipped = write_wav(path.string(), rec.g, rec.fs_hz, kFullScaleG, sf_format_of(r.encoding));
+        std::size_t clipped = 0;
+        std::vector<Recording> axes{rec};
+        if (r.format == FileFormat::sound) {
+            if (!r.more_axes.empty()) throw std::invalid_argument(r.file + ": a sound file holds one channel here");
+            clipped = write_wav(path.string(), rec.g, rec.fs_hz, kFullScaleG, sf_format_of(r.encoding));
+        } else {
+            if (r.more_axes.size() > 2) throw std::invalid_argument(r.file + ": at most three axes");
+            for (const auto& spec : r.more_axes) {
+                axes.push_back(synthesize_recording(spec));
+                if (axes.back().fs_hz != rec.fs_hz || axes.back().g.size() != rec.g.size())
+                    throw std::invalid_argument(r.file + ": every axis needs the same rate and duration");
+            }
+            const double scale = r.sensitivity_v_per_g > 0.0 ? r.sensitivity_v_per_g
+                                 : r.unit == "m/s^2"         ? 9.80665
+                                                             : 1.0;
+            std::vector<std::vector<float>> values;
+            for (const auto& a : axes) {
+                values.emplace_back(a.g.size());
+                for (std::size_t k = 0; k < a.g.size(); ++k)
+                    values.back()[k] = static_cast<float>(static_cast<double>(a.g[k]) * scale);
+            }
+            const std::vector<std::string> names{"ax", "ay", "az"};  // the axes, at most three (checked above)
+            if (r.format == FileFormat::uff58b)
+                write_uff58b(path.string(), values, rec.fs_hz, r.unit, r.spec.machine.tag,
+                             r.spec.machine.tag + " " + r.point, uff_date(r.datetime));
+            else if (r.format == FileFormat::csv)
+                write_csv_waveform(path.string(), values, {names.begin(), names.begin() + static_cast<long>(values.size())},
+                                   rec.fs_hz, r.unit);
+            else
+                write_mat(path.string(), values, rec.fs_hz, r.variable);
+        }
         if (clipped > 0) {
             ++summary.clipped_files;
             warn << "warning: " << path.string() << ": " << clipped << " samples exceeded the +-" << kFullScaleG
@@ -1457,43 +1695,61 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         ++summary.files;
         const auto size = std::filesystem::file_size(path, ec);
         if (!ec) summary.bytes += size;
-        const Kind k = r.spec.kind;
+        const Kind kind0 = r.spec.kind;
         std::ostringstream row;
-        row << r.file << ',' << r.spec.machine.tag << ',' << r.point << ",0," << r.datetime << ','
-            << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ',' << fmt_number(kFullScaleG, 3) << "g,"
-            << r.role << ',' << label_of(k) << ',' << name_of(k) << ',' << fmt_number(rec.fs_hz, 3) << ','
+        std::string channels = "0";
+        for (std::size_t a = 1; a < axes.size(); ++a) channels += "," + std::to_string(a);
+        const bool sound = r.format == FileFormat::sound;
+        row << r.file << ',' << r.spec.machine.tag << ',' << r.point << ','
+            << (axes.size() > 1 ? '"' + channels + '"' : channels) << ',' << r.datetime << ',' << fmt_number(rec.rpm, 3) << ',' << r.spec.machine.vanes << ','
+            << (sound ? fmt_number(kFullScaleG, 3) + "g" : std::string()) << ','
+            << r.role << ',' << label_of(kind0) << ',' << name_of(kind0) << ',' << fmt_number(rec.fs_hz, 3) << ','
             << fmt_number(r.spec.duration_s, 6) << ',' << r.spec.seed;
         if (field) row << ',' << r.group << ',' << (r.rpm_given ? 1 : 0) << ',' << r.expect << ',' << r.hazard;
+        if (demo) {
+            // Only what a file does not state: a sensitivity for volts, a MAT-file's unit and variable.
+            const bool mat = r.format == FileFormat::mat;
+            row << ',' << (r.sensitivity_v_per_g > 0.0 ? fmt_number(r.sensitivity_v_per_g * 1000.0, 3) + "mV/g" : "")
+                << ',' << (mat ? (r.unit == "m/s^2" ? std::string("m/s2") : r.unit) : std::string()) << ','
+                << (mat ? r.variable : std::string()) << ',';
+        }
         row << '\n';
         manifest << row.str();
         (r.role == "baseline" ? baselines : route) << row.str();
-        const FaultParams& p = rec.params;
-        const bool cav = k == Kind::incipient || k == Kind::developed;
-        auto col = [](bool on, double v, int dec) { return on ? fmt_number(v, dec) : std::string(); };
-        truth << r.file << ',' << name_of(k) << ',' << col(k != Kind::healthy, r.spec.severity, 3) << ','
-              << col(cav, p.cavitation.collapse_rate_per_s, 2) << ',' << col(cav, p.cavitation.bpf_depth, 4) << ','
-              << col(cav, p.cavitation.shaft_depth, 4) << ','
-              << (cav                     ? fmt_number(p.cavitation.hf_rise_db, 3)
-                  : k == Kind::bearing    ? fmt_number(p.bearing.hf_rise_db, 3)
-                  : k == Kind::inner_race ? fmt_number(p.inner_race.hf_rise_db, 3)
-                                          : "")
-              << ',' << col(k == Kind::developed, p.cavitation.lf_rise_db, 3) << ','
-              << col(k == Kind::bearing, p.bearing.order, 4) << ',' << col(k == Kind::bearing, p.bearing.slip_frac, 4) << ','
-              << col(k == Kind::turbulence, p.turbulence.lf_rise_db, 3) << ',' << col(k == Kind::mains, p.mains.mains_hz, 3)
-              << ',' << col(k == Kind::mains, p.mains.amplitude_g, 4) << ','
-              << col(k == Kind::speed, 100.0 * p.speed.offset_frac, 3) << ','
-              << col(cav || k == Kind::bearing || k == Kind::inner_race, rec.pulse_amplitude_g, 6);
-        if (field) {
-            const bool inner = k == Kind::inner_race;
-            const CaseSpec& c = r.spec;
-            truth << ',' << col(inner, p.inner_race.order, 4) << ',' << col(inner, p.inner_race.slip_frac, 4) << ','
-                  << col(inner, p.inner_race.load_depth, 4) << ',' << col(inner, p.inner_race.load_depth_2x, 4) << ','
-                  << fmt_number(c.level_speed_exponent_hf, 3) << ',' << fmt_number(c.level_speed_exponent_lf, 3) << ','
-                  << fmt_number(c.gain_db, 3) << ',' << fmt_number(c.tilt_db_per_decade, 3) << ','
-                  << col(c.step_db > 0.0, c.step_at_s, 3) << ',' << col(c.step_db > 0.0, c.step_db, 3) << ','
-                  << col(r.sidecar_npsha_m > 0.0, r.sidecar_npsha_m, 3);
+        // One truth row a channel; a file of several axes names each as FILE#CHANNEL.
+        for (std::size_t ai = 0; ai < axes.size(); ++ai) {
+            const Recording& axis = axes[ai];
+            const CaseSpec& spec = ai == 0 ? r.spec : r.more_axes[ai - 1];
+            const Kind k = spec.kind;
+            const FaultParams& p = axis.params;
+            const bool cav = k == Kind::incipient || k == Kind::developed;
+            auto col = [](bool on, double v, int dec) { return on ? fmt_number(v, dec) : std::string(); };
+            truth << (axes.size() > 1 ? r.file + "#" + std::to_string(ai) : r.file) << ',' << name_of(k) << ','
+                  << col(k != Kind::healthy, spec.severity, 3) << ','
+                  << col(cav, p.cavitation.collapse_rate_per_s, 2) << ',' << col(cav, p.cavitation.bpf_depth, 4) << ','
+                  << col(cav, p.cavitation.shaft_depth, 4) << ','
+                  << (cav                     ? fmt_number(p.cavitation.hf_rise_db, 3)
+                      : k == Kind::bearing    ? fmt_number(p.bearing.hf_rise_db, 3)
+                      : k == Kind::inner_race ? fmt_number(p.inner_race.hf_rise_db, 3)
+                                              : "")
+                  << ',' << col(k == Kind::developed, p.cavitation.lf_rise_db, 3) << ','
+                  << col(k == Kind::bearing, p.bearing.order, 4) << ',' << col(k == Kind::bearing, p.bearing.slip_frac, 4) << ','
+                  << col(k == Kind::turbulence, p.turbulence.lf_rise_db, 3) << ',' << col(k == Kind::mains, p.mains.mains_hz, 3)
+                  << ',' << col(k == Kind::mains, p.mains.amplitude_g, 4) << ','
+                  << col(k == Kind::speed, 100.0 * p.speed.offset_frac, 3) << ','
+                  << col(cav || k == Kind::bearing || k == Kind::inner_race, axis.pulse_amplitude_g, 6);
+            if (field) {
+                const bool inner = k == Kind::inner_race;
+                const CaseSpec& c = spec;
+                truth << ',' << col(inner, p.inner_race.order, 4) << ',' << col(inner, p.inner_race.slip_frac, 4) << ','
+                      << col(inner, p.inner_race.load_depth, 4) << ',' << col(inner, p.inner_race.load_depth_2x, 4) << ','
+                      << fmt_number(c.level_speed_exponent_hf, 3) << ',' << fmt_number(c.level_speed_exponent_lf, 3) << ','
+                      << fmt_number(c.gain_db, 3) << ',' << fmt_number(c.tilt_db_per_decade, 3) << ','
+                      << col(c.step_db > 0.0, c.step_at_s, 3) << ',' << col(c.step_db > 0.0, c.step_db, 3) << ','
+                      << col(r.sidecar_npsha_m > 0.0, r.sidecar_npsha_m, 3);
+            }
+            truth << '\n';
         }
-        truth << '\n';
         if (!r.sidecar_toml.empty())
             write_text_atomically(folder / (path.stem().string() + ".op.toml"), r.sidecar_toml);
         if (progress) progress(i + 1, plan.size());

@@ -257,6 +257,36 @@ std::string extension_of(Encoding encoding);             ///< ".wav" or ".flac"
 std::size_t write_wav(const std::string& path, std::span<const float> g, double fs_hz,
                       double full_scale_g, int sf_format);
 
+/// Writes channels of values (each the same length, in `unit`) as a UFF file
+/// of one dataset 58b per channel (binary, little-endian IEEE single), in the
+/// layout of the SDRL description that src/io/uff58 reads: the "-1" line, the
+/// 58b id line (58, b, 1, 2, 11 ASCII lines, byte count, 0, 0, 0, 0), ID lines
+/// 1..5, record 6 (time response, response entity `entity`, node 1, direction
+/// +1 X, +2 Y, +3 Z by channel, up to three channels), record 7 (real single, N,
+/// even spacing, 0, 1/fs, 0), records 8..11 (Time in s; Acceleration in `unit`,
+/// e.g. "V" or "m/s^2"), the N values, then "\n    -1\n". `id_line` is ID line 1,
+/// `date` ID line 3 (DD-MMM-YY HH:MM:SS). Written to path + ".tmp", then renamed.
+void write_uff58b(const std::string& path, const std::vector<std::vector<float>>& channels, double fs_hz,
+                  std::string_view unit, std::string_view entity, std::string_view id_line, std::string_view date);
+/// Writes channels as a CSV time waveform: a rate line "# sample_rate_hz = FS",
+/// a header of "NAME [unit]" cells (names[c]), then one row a sample, each value
+/// with 5 significant digits.
+void write_csv_waveform(const std::string& path, const std::vector<std::vector<float>>& channels,
+                        const std::vector<std::string>& names, double fs_hz, std::string_view unit);
+/// Writes a MATLAB v5 MAT-file (libmatio, uncompressed, a fixed header text so
+/// that the file is the same on every run) holding `variable`, an N x C single
+/// matrix (channel c in column c), and the scalar double `fs`.
+void write_mat(const std::string& path, const std::vector<std::vector<float>>& channels, double fs_hz,
+               const std::string& variable);
+
+/// How a planned recording is written.
+enum class FileFormat {
+    sound,   ///< WAV or FLAC (Encoding), one channel in g / kFullScaleG
+    uff58b,  ///< write_uff58b, one dataset per channel
+    csv,     ///< write_csv_waveform
+    mat,     ///< write_mat, variable PlannedRecording::variable
+};
+
 /// One file of a set.
 struct PlannedRecording {
     std::string file;  ///< relative to the set's folder
@@ -277,6 +307,15 @@ struct PlannedRecording {
     std::string hazard;     ///< baseline rows: none / step / cavitating / low_npsh / short
     /// NPSHa the sidecar states (computed by models/ from its own text); 0 = no sidecar.
     double sidecar_npsha_m = 0;
+
+    // Files other than a sound file (the demo's; default: a sound file of `spec`).
+    FileFormat format = FileFormat::sound;
+    /// Channels 1, 2, ... of a multi-axis point (channel 0 is `spec`); not for sound files.
+    std::vector<CaseSpec> more_axes{};
+    /// Unit the values are written in: "g", "m/s^2", or "V" with sensitivity_v_per_g.
+    std::string unit = "g";
+    double sensitivity_v_per_g = 0;  ///< > 0: values are volts, g * this
+    std::string variable = "acc";    ///< the MAT-file's matrix
 };
 
 /// Further text files of a set (NPSH3 curves): name and contents.
@@ -289,7 +328,16 @@ struct SetFile {
 /// 16-bit PCM: OW-P101 (2 baselines, then visits on 2026-09-07 healthy,
 /// 10-05 incipient, 11-02 developed, a repair, 11-09 healthy), OW-P102
 /// (2 baselines, turbulence, developed at part load), OW-P103 (2 baselines,
-/// a bearing look-alike); all at point DE-H.
+/// a bearing look-alike); all at point DE-H. Then OW-P101's triaxial point
+/// NDE-T (a portable three-axis logger at 12 800 Hz, 4 s a recording; X radial
+/// horizontal, Y radial vertical, Z axial): 2 baselines (healthy, each axis
+/// its own seed, axis gains X 0, Y -3, Z -6 dB) as UFF 58b in volts (100 mV/g),
+/// the visit of 2026-11-02 as a MAT-file (N x 3 volts, variable acc, fs) and
+/// that of 2026-11-09 as CSV in m/s^2. On 11-02 the cavitation is developed at
+/// full severity (HF +24 dB on X); the casing carries the collapses to the Y
+/// and Z axes 12 and 15 dB weaker, relative to those axes' own backgrounds,
+/// than to X (the same collapse process - rate and modulation - each axis its
+/// own realisation), which leaves HF rises of about 12.3 dB on Y and 9.5 dB on Z.
 /// Each recording has its operating point in a sidecar (the invented duty of
 /// the Orrin Weir station, elevation 62 m: OW-P101 lifts 14 C raw water from
 /// the weir sump, the sump drawn down on the incipient and developed days;
@@ -351,6 +399,7 @@ struct SetSummary {
 /// Which columns the manifests and truth.csv of a set have.
 enum class SetColumns {
     standard,  ///< the demo and evaluation sets'
+    demo,      ///< the standard ones, then sensitivity,unit,variable,sample_rate_hz (the demo set's)
     field,     ///< and the field set's: manifests + group,rpm_given,expect,hazard;
                ///< truth.csv + the inner-race, speed-scaling, re-mount, step and sidecar NPSHa values
 };

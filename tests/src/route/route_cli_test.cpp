@@ -68,6 +68,13 @@ const Site& site() {
                               " --full-scale 50g -o " + q(st.lib / m.machine / "DE-H.json") + " " + files);
             REQUIRE(r.status == 0);
         }
+        // The route's DE-H rows (one channel each, a baseline above); the triaxial
+        // NDE-T rows, whose channel cell lists three channels, are left out.
+        std::istringstream in(slurp(st.dir / "route.csv"));
+        std::string line, text;
+        while (std::getline(in, line))
+            if (line.find(",NDE-T,") == std::string::npos) text += line + "\n";
+        std::ofstream(st.dir / "route-deh.csv") << text;
         return st;
     }();
     return s;
@@ -78,11 +85,11 @@ const Site& site() {
 fs::path mixed_manifest() {
     const Site& s = site();
     std::ofstream(s.dir / "notes.wav") << "this is not a recording\n";
-    std::string text = slurp(s.dir / "route.csv");
-    text += "OW-P101_2026-09-07.wav,OW-P101,DE-H,0,2026-09-31T08:00,1485,7,50g,test,normal,healthy,25600,8,1\n";
-    text += "OW-P101_lost.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,2\n";
-    text += "notes.wav,OW-P102,DE-H,0,2026-11-16T09:00,2960,5,50g,test,normal,healthy,51200,8,3\n";
-    text += "OW-P103_2026-09-07.wav,OW-P104,DE-H,0,2026-11-16T10:00,985,6,50g,test,normal,healthy,12800,8,4\n";
+    std::string text = slurp(s.dir / "route-deh.csv");
+    text += "OW-P101_2026-09-07.wav,OW-P101,DE-H,0,2026-09-31T08:00,1485,7,50g,test,normal,healthy,25600,8,1,,,,\n";
+    text += "OW-P101_lost.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,2,,,,\n";
+    text += "notes.wav,OW-P102,DE-H,0,2026-11-16T09:00,2960,5,50g,test,normal,healthy,51200,8,3,,,,\n";
+    text += "OW-P103_2026-09-07.wav,OW-P104,DE-H,0,2026-11-16T10:00,985,6,50g,test,normal,healthy,12800,8,4,,,,\n";
     const fs::path m = s.dir / "mixed.csv";
     std::ofstream(m) << text;
     return m;
@@ -211,7 +218,7 @@ TEST_CASE("route: a summary line with a channel no recording can have is refused
 TEST_CASE("history: importing a route twice adds no rows, and trend reads it", "[route]") {
     const Site& s = site();
     const fs::path store = workdir() / "twice.sqlite";
-    const std::string args = "route " + q(s.dir / "route.csv") + " --baselines " + q(s.lib) + " --store " + q(store);
+    const std::string args = "route " + q(s.dir / "route-deh.csv") + " --baselines " + q(s.lib) + " --store " + q(store);
     const Run first = run(args + " --out " + q(workdir() / "out-t1"));
     CHECK(first.status == 0);
     CHECK(first.out.find("(7 new, 0 already there") != std::string::npos);
@@ -350,7 +357,7 @@ void check_consistent(const fs::path& out) {
 // The demo route's first `rows` data rows, as a manifest of its own.
 fs::path first_rows(const std::string& name, std::size_t rows) {
     const Site& s = site();
-    std::istringstream in(slurp(s.dir / "route.csv"));
+    std::istringstream in(slurp(s.dir / "route-deh.csv"));
     std::string line, text;
     for (std::size_t k = 0; k <= rows && std::getline(in, line); ++k) text += line + "\n";
     const fs::path p = s.dir / name;
@@ -365,7 +372,7 @@ TEST_CASE("route: killed midway, the earlier route's outputs stay whole, and a r
     const fs::path out = workdir() / "out-killed";
     const fs::path a = first_rows("route-a.csv", 2);
     // Every demo row, and each one twice, so the kill lands while findings are being written.
-    std::string b_text = slurp(s.dir / "route.csv");
+    std::string b_text = slurp(s.dir / "route-deh.csv");
     {
         std::istringstream in(b_text);
         std::string line, rows;
