@@ -78,6 +78,11 @@ def outputs(cavitas, samples, schemas, work):
                  "-o", os.path.join(lib, machine, "DE-H.json"),
                  os.path.join(site, machine + "_baseline_1.wav"), os.path.join(site, machine + "_baseline_2.wav")])
         check(f"baseline {machine}", r.returncode == 0, r.stderr)
+    # OW-P101's triaxial point NDE-T: UFF 58b files in volts, a 100 mV/g sensor (samples/baselines.csv).
+    r = run([cavitas, "baseline", "--machine", "OW-P101", "--channel", "all", "--rpm", "1485", "--vanes", "7",
+             "--sensitivity", "100mV/g", "-o", os.path.join(lib, "OW-P101", "NDE-T.json"),
+             os.path.join(site, "OW-P101_NDE-T_baseline_1.uff"), os.path.join(site, "OW-P101_NDE-T_baseline_2.uff")])
+    check("baseline OW-P101 NDE-T (three channels)", r.returncode == 0, r.stderr)
 
     # A silent recording: the quality gate must make it indeterminate.
     silent = os.path.join(site, "OW-P101_silent.wav")
@@ -88,10 +93,9 @@ def outputs(cavitas, samples, schemas, work):
         w.writeframes(b"\0\0" * 25600 * 6)
 
     manifest = os.path.join(site, "route-with-bad-row.csv")
-    # The route's DE-H rows (one channel each, a baseline above); the triaxial NDE-T rows,
-    # whose channel cell lists three channels, are left out.
+    # The demo route (WAV, UFF 58b, CSV and MATLAB recordings; a triaxial point) and a row that fails.
     with open(os.path.join(site, "route.csv"), encoding="utf-8") as f:
-        text = "".join(line for line in f if ",NDE-T," not in line)
+        text = f.read()
     with open(manifest, "w", encoding="utf-8") as f:
         f.write(text + "OW-P101_gone.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,9,,,,\n")
     route = os.path.join(work, "route")
@@ -138,12 +142,34 @@ def outputs(cavitas, samples, schemas, work):
             validate(fv, json.load(f), f"route finding {name}")
     with open(os.path.join(route, "summary.jsonl"), encoding="utf-8") as f:
         rows = [json.loads(line) for line in f if line.strip()]
-    check("summary.jsonl holds every manifest row", len(rows) == 8, str(len(rows)))
+    # 7 rows of one channel, 2 triaxial rows of three channels each, the failing row.
+    check("summary.jsonl holds every manifest row, one per channel", len(rows) == 14, str(len(rows)))
+    tri = {(r["datetime"][:10], r["channel"]): r["verdict"] for r in rows if r["point"] == "NDE-T"}
+    check("the triaxial visit (a MATLAB file in volts) is developed on its X axis",
+          tri.get(("2026-11-02", 0)) == "developed", str(tri))
+    check("after the repair (a CSV in m/s2, judged against a baseline learned from volts) every axis is normal",
+          all(tri.get(("2026-11-09", c)) == "normal" for c in (0, 1, 2)), str(tri))
     check("one row is an error with its reason", sum(r["verdict"] == "error" for r in rows) == 1)
     for row in rows:
         validate(rv, row, f"route row line {row.get('line')} ({row.get('verdict')})")
     with open(os.path.join(route, "route.json"), encoding="utf-8") as f:
-        validate(runv, json.load(f), "route.json")
+        run_doc = json.load(f)
+    validate(runv, run_doc, "route.json")
+    p101 = [m for m in run_doc.get("machines", []) if m["machine"] == "OW-P101"]
+    check("route.json gives OW-P101 one state over its 2 points and 4 channels",
+          len(p101) == 1 and p101[0]["points"] == 2 and p101[0]["channels"] == 4, str(p101))
+    # The triaxial visit analysed as one point: the point's verdict and a finding per channel.
+    point = os.path.join(work, "finding-point.json")
+    r = run([cavitas, "analyze", "--channel", "all", "--sensitivity", "100mV/g", "--unit", "V", "--variable", "acc",
+             "--baseline", os.path.join(lib, "OW-P101", "NDE-T.json"), "--json", point,
+             os.path.join(site, "OW-P101_NDE-T_2026-11-02.mat")])
+    check("analyze --channel all of the triaxial MATLAB file", r.returncode == 0, r.stderr)
+    with open(point, encoding="utf-8") as f:
+        point_doc = json.load(f)
+    validate(fv, point_doc, "finding of a point of three channels")
+    check("the point is developed, worst on channel 0, with a finding per channel",
+          point_doc.get("point", {}).get("verdict") == "developed" and point_doc["point"]["worst_channel"] == 0
+          and len(point_doc.get("channels", [])) == 3, str(point_doc.get("point")))
     with open(compare, encoding="utf-8") as f:
         validate(cv, json.load(f), "compare.json")
     # A schema that cannot fail checks nothing: a spoiled finding must be refused.
