@@ -1,7 +1,5 @@
 // cavitas: is this pump or turbine cavitating, judged against its own baseline?
 #include <CLI/CLI.hpp>
-#include <malloc.h>
-#include <sys/mman.h>
 #include <unistd.h>
 
 #include <cstdint>
@@ -11,6 +9,7 @@
 #include <sstream>
 
 #include "src/commands/commands.hpp"
+#include "src/commands/process_tuning.hpp"
 #include "src/io/errors.hpp"
 #include "src/output/plain_text.hpp"
 #include "src/io/plan_store.hpp"
@@ -149,44 +148,12 @@ const char* kNpshHelp =
     "length m, cm, mm, ft, in; temperature C, F, K; flow m3/h, m3/s, L/s, L/min, gpm (US);\n"
     "density kg/m3, g/cm3, lb/ft3. A number without a unit is refused.";
 
-// Grow the heap once by 64 MiB and ask the kernel to back it with 2 MiB pages
-// where it can (a hint; ignored where transparent huge pages are off). One
-// analyze touches some 20 MB of fresh DSP buffers; in 4 KiB pages that was
-// about 2 000 page faults, a tenth of a one-minute analysis on the development
-// machine (see DEVELOPERS.md, "Speed"). Pages never touched are never resident.
-void heap_in_huge_pages() {
-    constexpr std::uintptr_t kPad = std::uintptr_t{64} << 20, kHuge = std::uintptr_t{2} << 20;
-    const auto before = reinterpret_cast<std::uintptr_t>(sbrk(0));
-    mallopt(M_TOP_PAD, static_cast<int>(kPad));
-    // More than the heap has spare, so it grows by this and the pad (volatile:
-    // a malloc whose result is never used may be elided by the compiler).
-    void* volatile first = std::malloc(kHuge);
-    const auto after = reinterpret_cast<std::uintptr_t>(sbrk(0));
-    mallopt(M_TOP_PAD, 128 << 10);  // glibc's default for any later growth
-    const std::uintptr_t lo = (before + kHuge - 1) & ~(kHuge - 1), hi = after & ~(kHuge - 1);
-    if (before != std::uintptr_t(-1) && hi > lo) madvise(reinterpret_cast<void*>(lo), hi - lo, MADV_HUGEPAGE);
-    std::free(first);
-}
-
 }  // namespace
 
 int main(int argc, char** argv) {
     // Text from file names, manifests and notes reaches the terminal escaped (src/output/plain_text.hpp).
     const TerminalText terminal_out(std::cout), terminal_err(std::cerr);
-    // Keep freed buffers in the heap for the next recording instead of handing
-    // them back to the kernel: an analyzer allocates some 15 MB of DSP buffers,
-    // and a route that returned them after every recording would fault them in
-    // again (page faults were a third of route's time). Memory stays bounded
-    // by the analyzers alive at once, one per job.
-    mallopt(M_MMAP_THRESHOLD, 32 << 20);
-    mallopt(M_TRIM_THRESHOLD, 512 << 20);
-    // One heap for all threads: route's jobs allocate only when an analyzer is
-    // built (never per segment), so they do not contend for it, and their
-    // buffers land in the heap below rather than in per-thread arenas of 4 KiB
-    // pages (measured: route on 2 jobs went from 1.53x to 1.73x the throughput
-    // of 1 job, 16 recordings of 10 s at 96 kHz).
-    mallopt(M_ARENA_MAX, 1);
-    heap_in_huge_pages();
+    tune_process_memory();  // src/commands/process_tuning.hpp says why
     CLI::App app{kIntro, "cavitas"};
     app.require_subcommand(1);
     app.set_version_flag("--version", std::string("cavitas ") + kVersion);
