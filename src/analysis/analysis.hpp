@@ -15,6 +15,7 @@
 #include "models/classifier.hpp"
 #include "models/margin_reading.hpp"
 #include "models/operating_point.hpp"
+#include "models/severity.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/operating_point_io.hpp"
 #include "src/io/output_guard.hpp"
@@ -90,7 +91,26 @@ struct AnalyzeOptions {
     std::optional<int> vanes;
     CalibrationText calibration;
     OperatingPointFlags operating;
+    std::optional<std::string> zones;  ///< --zones FILE: the analyst's severity zones
 };
+
+/// Overall velocity of the recording (its averaged spectrum integrated), and
+/// its severity zone when a zone file was given. Context only: the verdict
+/// never reads it.
+struct VelocityFinding {
+    std::optional<double> overall_rms_mm_s;  ///< nullopt: see unavailable
+    std::string unavailable;                 ///< why there is no velocity
+    double band_low_hz = models::kSeverityBandLowHz;
+    double band_high_hz = models::kSeverityBandHighHz;
+    double low_cut_hz = models::kVelocityLowCutHz;
+    std::optional<models::SeverityZones> zones;
+    std::optional<models::SeverityZone> zone;
+};
+
+/// From the recording's mean PSD: velocity only when it is calibrated in
+/// acceleration (g, m/s2); the band from `zones` when given, else 10-1000 Hz;
+/// the low cut 10 Hz, or the band's low edge when that is lower.
+VelocityFinding velocity_finding(const AnalyzedRecording& rec, const std::optional<models::SeverityZones>& zones);
 
 /// The operating point of an analysed recording beside its verdict.
 struct OperatingPointFinding {
@@ -104,6 +124,7 @@ struct AnalyzeResult {
     models::Baseline baseline;
     models::Finding finding;
     std::optional<OperatingPointFinding> operating;
+    VelocityFinding velocity;
 };
 AnalyzeResult analyze(const AnalyzeOptions& options, const Progress& progress = {});
 /// --channel as typed: "2", "0,1,2" or "all" (every channel of the file, or

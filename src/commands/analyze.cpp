@@ -14,6 +14,7 @@ void run_analyze(const AnalyzeOptions& o, std::ostream& out, std::ostream& err) 
         guard.input(o.recording, "recording");
         guard.input(o.baseline, "baseline");
         guard_operating_inputs(guard, o.operating, o.recording);
+        if (o.zones) guard.input(*o.zones, "zone file");
         guard.output(*o.json_output);
     }
     const AnalyzeResult r = analyze(o, stderr_progress(o.recording, err));
