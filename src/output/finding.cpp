@@ -130,12 +130,16 @@ json amplitude_spectrum_to_json(const AnalyzeResult& r) {
         const double si2 = u->si_per_unit * u->si_per_unit;
         std::vector<double> psd_si(psd.begin(), psd.end());
         for (double& v : psd_si) v *= si2;
+        // Velocity lines up to the velocity band's top only: above it they are not used.
+        psd_si.resize(std::min(psd_si.size(),
+                               static_cast<std::size_t>(std::floor(r.velocity.band_high_hz / a.psd_bin_hz)) + 1));
         std::vector<double> velocity = models::line_rms(models::velocity_psd(psd_si, a.psd_bin_hz, r.velocity.low_cut_hz),
                                                         a.psd_enbw_hz);
         for (double& v : velocity) v *= 1000.0;  // m/s -> mm/s
         double vbin = a.psd_bin_hz;
         thin_by_largest(velocity, vbin, kAmplitudePointsWritten);
         j["velocity_rms_mm_s"] = velocity;
+        j["velocity_bin_hz"] = vbin;
         j["velocity_low_cut_hz"] = r.velocity.low_cut_hz;
     }
     thin_by_largest(amplitude, bin_hz, kAmplitudePointsWritten);

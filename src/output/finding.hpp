@@ -53,8 +53,10 @@ void write_levels_summary(std::ostream& out, const AnalyzeResult& r);
 /// The plots' "amplitude_spectrum": the averaged spectrum as RMS amplitude per
 /// line in the calibrated unit, and velocity per line (mm/s RMS) when in acceleration.
 nlohmann::json amplitude_spectrum_to_json(const AnalyzeResult& r);
-/// Lines written at most (thinned by their larger neighbour above this).
-inline constexpr std::size_t kAmplitudePointsWritten = 16384;
+/// Acceleration lines written at most (thinned by their larger neighbour above
+/// this); velocity lines are written at the analysis's resolution up to the
+/// velocity band's top (1000 lines a 1 s segment), thinned above this too.
+inline constexpr std::size_t kAmplitudePointsWritten = 4096;
 
 /// The envelope spectrum as a finding keeps it for reports: at most this many
 /// lines (long segments and a high blade-pass frequency give more; a report

@@ -235,12 +235,12 @@ Figure line_spectrum_figure(const json& as, bool velocity) {
     f.aspect = 0.42;
     f.draw = [as, velocity, unit](cairo_t* cr, double w, double h) {
         const auto y = nums(as, velocity ? "velocity_rms_mm_s" : "rms");
-        const double bin = num(as, "bin_hz", 1.0);
+        const double bin = velocity && num(as, "velocity_bin_hz") > 0.0 ? num(as, "velocity_bin_hz") : num(as, "bin_hz", 1.0);
         plot::Chart c;
         c.title = velocity ? "Velocity spectrum" : "Amplitude spectrum";
         plot::Series s;
         s.name = "this recording (mean)";
-        const double top_hz = velocity ? 1000.0 : static_cast<double>(y.size()) * bin;
+        const double top_hz = static_cast<double>(y.size()) * bin;
         double hi = 0.0;
         for (std::size_t k = 1; k < y.size() && static_cast<double>(k) * bin <= top_hz; ++k) {
             s.x.push_back(static_cast<double>(k) * bin);
@@ -1065,6 +1065,8 @@ const json& checked_finding(const json& f, const std::string& origin) {
         const std::size_t n = number_array(as, "rms", origin, "plots.amplitude_spectrum", budget);
         number_array(as, "velocity_rms_mm_s", origin, "plots.amplitude_spectrum", budget, Values::any, false);
         if (n > 0) checked_number(as, "bin_hz", origin, "plots.amplitude_spectrum.bin_hz", 1e-9, kMaxHz);
+        if (as.contains("velocity_bin_hz"))
+            checked_number(as, "velocity_bin_hz", origin, "plots.amplitude_spectrum.velocity_bin_hz", 1e-9, kMaxHz);
     }
     const json& kg = field(plots, "kurtogram");
     const json& rows = field(kg, "rows");

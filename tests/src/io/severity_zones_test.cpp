@@ -1,8 +1,10 @@
 // The analyst's severity zone file (src/io/severity_zones.hpp).
 #include <catch2/catch.hpp>
 
+#include <cmath>
 #include <string>
 
+#include "src/analysis/analysis.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/severity_zones.hpp"
 
@@ -66,4 +68,27 @@ TEST_CASE("Malformed zone files are refused naming the file, the key and the val
     }
     const std::string long_source = "source = \"" + std::string(201, 'x') + "\"\na_b_mm_s = 1\nb_c_mm_s = 2\nc_d_mm_s = 3\n";
     CHECK_THROWS_WITH(app::parse_severity_zones(long_source, "zones.toml"), Contains("201 bytes long"));
+}
+
+TEST_CASE("Velocity is given only for recordings calibrated in acceleration, and says why not otherwise", "[severity]") {
+    // A flat acceleration PSD of 1e-4 g^2/Hz on 1 Hz lines: the overall in 10-1000 Hz is
+    // sqrt(sum 1e-4 g0^2 / (2 pi f)^2) (calculus), the same sum done here by hand.
+    app::AnalyzedRecording rec;
+    rec.analysis.setup.fs_hz = 25600.0;
+    rec.analysis.mean_psd.assign(12801, 1e-4);
+    rec.analysis.psd_bin_hz = 1.0;
+    rec.analysis.psd_enbw_hz = 1.5;
+    rec.info.calibration.unit = "g";
+    double sum = 0.0;
+    for (int k = 10; k <= 1000; ++k) sum += 1e-4 * 9.80665 * 9.80665 / std::pow(2.0 * M_PI * k, 2);
+    const app::VelocityFinding v = app::velocity_finding(rec, std::nullopt);
+    REQUIRE(v.overall_rms_mm_s);
+    CHECK(*v.overall_rms_mm_s == Catch::Detail::Approx(1000.0 * std::sqrt(sum)).epsilon(1e-12));
+    CHECK_FALSE(v.zone);
+    for (const char* unit : {"FS", "V", "Pa", ""}) {
+        rec.info.calibration.unit = unit;
+        const app::VelocityFinding none = app::velocity_finding(rec, std::nullopt);
+        CHECK_FALSE(none.overall_rms_mm_s);
+        CHECK_THAT(none.unavailable, Contains("not calibrated in acceleration"));
+    }
 }
