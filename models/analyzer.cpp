@@ -13,6 +13,7 @@
 #include "signal/lanes.hpp"
 #include "signal/spectral_kurtosis.hpp"
 #include "signal/spectrum.hpp"
+#include "signal/window.hpp"
 #include "signal/stats.hpp"
 
 namespace cavitas::models {
@@ -153,6 +154,7 @@ struct RecordingAnalyzer::Impl {
     // The segment's PSD comes from the envelope analyzer's transform of the same
     // segment (one Hann-windowed frame of the whole segment, 1/segment_s resolution).
     std::vector<double> seg_psd_out;
+    std::vector<double> psd_sum;  // the segment PSDs summed, for the recording's mean PSD
     // The fine PSD (speed search, mains lines, ski slope) only needs the low
     // part of the spectrum: it runs on the signal decimated to about 8 kHz.
     dsp::Decimator fine_decimator;
@@ -189,6 +191,7 @@ struct RecordingAnalyzer::Impl {
           quality(dsp::QualityConfig{fs_value, 0.999, 3,
                                      std::max<std::size_t>(16, static_cast<std::size_t>(std::lround(kDropoutRunS * s.fs_hz)))}),
           seg_psd_out(n / 2 + 1),
+          psd_sum(n / 2 + 1, 0.0),
           fine_decimator(dsp::DecimatorConfig{fine_factor(s.fs_hz, fid)}),
           fine_block(kPushChunk / fine_factor(s.fs_hz, fid) + 2),
           fine_psd(dsp::WelchConfig{fine_size(s.fs_hz / static_cast<double>(fine_factor(s.fs_hz, fid)),
@@ -284,6 +287,7 @@ struct RecordingAnalyzer::Impl {
 
         envelope.process(x);
         envelope.segment_psd(seg_psd_out);
+        for (std::size_t k = 0; k < psd_sum.size(); ++k) psd_sum[k] += seg_psd_out[k];
         const double bin = setup.fs_hz / static_cast<double>(n);
         series[SI::hf_band_level].push_back(
             dsp::power_db(dsp::band_power(seg_psd_out, bin, setup.hf.low_hz, setup.hf.high_hz)));
@@ -440,6 +444,12 @@ RecordingAnalysis RecordingAnalyzer::finish() {
     const double mean_sq = m.mean_sq_env_sum / static_cast<double>(segs);
     const double ses_bin = m.envelope.bin_hz();
     r.spectrum.center_hz = m.band_center_hz;
+    {
+        r.mean_psd.resize(m.psd_sum.size());
+        for (std::size_t k = 0; k < r.mean_psd.size(); ++k) r.mean_psd[k] = m.psd_sum[k] / static_cast<double>(segs);
+        r.psd_bin_hz = m.setup.fs_hz / static_cast<double>(m.n);
+        r.psd_enbw_hz = dsp::enbw_bins(dsp::hann_periodic(m.n)) * r.psd_bin_hz;
+    }
     r.spectrum.segment_db = m.profile_db;
     {
         // For reports: up to past the third blade-pass harmonic and 12x (the bearing-like

@@ -153,6 +153,12 @@ struct RecordingAnalysis {
     double duration_s = 0.0;
     double level_reference = 1.0;  ///< dB reference (1 signal unit)
     SpectrumProfile spectrum;
+    /// The segments' PSD averaged (linear power), bins from 0 Hz at psd_bin_hz,
+    /// one-sided density in (signal unit)^2/Hz; psd_enbw_hz is the segment
+    /// window's equivalent noise bandwidth (models/severity.hpp uses both).
+    std::vector<double> mean_psd;
+    double psd_bin_hz = 0.0;
+    double psd_enbw_hz = 0.0;
     std::vector<double> envelope_spectrum;  ///< averaged squared-envelope amplitude, bins from 0 Hz (truncated for reports)
     double envelope_bin_hz = 0.0;
     double mean_squared_envelope = 0.0;

@@ -365,10 +365,10 @@ Attribution attribute(const Signs& s) {
 void say_signs(const RecordingAnalysis& a, const Signs& s, const Attribution& at, const Finding& in, Finding& f) {
     const std::string band = khz(a.setup.hf.low_hz) + "-" + khz(a.setup.hf.high_hz) + " kHz";
     if (s.hf_alert)
-        f.evidence.push_back(fmt("HF band %s %+.1f dB over baseline (z = %.1f, spread %.1f dB)", band.c_str(), s.hf.change,
+        f.evidence.push_back(fmt("HF band %s %+.1f dB re baseline (z = %.1f, spread %.1f dB)", band.c_str(), s.hf.change,
                                  s.hf.z, s.hf.baseline_sigma));
     else
-        f.evidence.push_back(fmt("HF band %s %+.1f dB against baseline (z = %.1f, spread %.1f dB): within the baseline's "
+        f.evidence.push_back(fmt("HF band %s %+.1f dB re baseline (z = %.1f, spread %.1f dB): within the baseline's "
                                  "range",
                                  band.c_str(), s.hf.change, s.hf.z, s.hf.baseline_sigma));
     if (s.impulsive_kurt)
@@ -384,7 +384,7 @@ void say_signs(const RecordingAnalysis& a, const Signs& s, const Attribution& at
                                  k.baseline_median));
     }
     if (at.lf_support)
-        f.evidence.push_back(fmt("LF band %.0f-%.0f Hz %+.1f dB beside the HF rise: flow unsteadiness of attached cavities "
+        f.evidence.push_back(fmt("LF band %.0f-%.0f Hz %+.1f dB re baseline beside the HF rise: flow unsteadiness of attached cavities "
                                  "(supports the grade)",
                                  a.setup.lf.low_hz, a.setup.lf.high_hz, s.lf.change));
     if (at.hf_rise == Cause::bearing && s.hf_alert)
@@ -408,7 +408,7 @@ void say_lookalikes(const RecordingAnalysis& a, const Signs& s, const Attributio
     if (s.lf_alert && !s.hf_alert && !s.mains) {
         const bool claimed = at.impulses == Cause::recirculation || at.lines == Cause::recirculation;
         f.other_findings.push_back(
-            fmt("LF band %.0f-%.0f Hz %+.1f dB with no HF rise: flow turbulence or recirculation%s; check the flow "
+            fmt("LF band %.0f-%.0f Hz %+.1f dB re baseline with no HF rise: flow turbulence or recirculation%s; check the flow "
                 "against the pump's minimum continuous flow and the operating point",
                 a.setup.lf.low_hz, a.setup.lf.high_hz, s.lf.change,
                 claimed ? " at low flow, with impacts at blade passage (recirculation at the vane inlets can erode "

@@ -26,4 +26,9 @@ double window_power_sum(std::span<const double> w) {
     return s;
 }
 
+double enbw_bins(std::span<const double> w) {
+    const double s = window_sum(w);
+    return s != 0.0 ? static_cast<double>(w.size()) * window_power_sum(w) / (s * s) : 0.0;
+}
+
 }  // namespace cavitas::dsp

@@ -16,5 +16,9 @@ std::vector<double> hann_periodic(std::size_t n);
 double window_sum(std::span<const double> w);
 /// Sum of w[k]^2 (used for PSD density scaling).
 double window_power_sum(std::span<const double> w);
+/// Equivalent noise bandwidth in bins: n * sum w^2 / (sum w)^2 (1.5 for Hann).
+/// A density PSD times ENBW in Hz (bins x bin width) gives a bin-centred
+/// sine's mean square at its line.
+double enbw_bins(std::span<const double> w);
 
 }  // namespace cavitas::dsp

@@ -242,6 +242,11 @@ int main(int argc, char** argv) {
         ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
     an->add_option("--mount", ao.mount, "Sensor mounting for this recording: handheld, magnet, adhesive or stud (see baseline --help)")
         ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
+    an->add_option("--zones", ao.zones,
+                   "TOML file of severity zone boundaries (source = \"standard, part, edition, class\", "
+                   "a_b_mm_s, b_c_mm_s, c_d_mm_s, optional band_hz = [10, 1000]): the overall velocity's zone is "
+                   "printed as context; it never changes the cavitation verdict")
+        ->type_name("FILE");
     add_operating_point_flags(an, ao.operating, true);
 
     InfoOptions io;
@@ -280,6 +285,10 @@ int main(int argc, char** argv) {
     rt->add_option("--store", ro.store, "Results store (SQLite), created on first use; default BASELINES/history.sqlite")
         ->type_name("FILE");
     rt->add_flag("--no-store", ro.no_store, "Do not record the results in the store");
+    rt->add_option("--zones", ro.zones,
+                   "Severity zone file (TOML, as analyze --zones) for every row's overall velocity; default "
+                   "BASELINES/severity_zones.toml when it exists. Context only: verdicts do not depend on it")
+        ->type_name("FILE");
     rt->add_option("--jobs", ro.jobs, "Recordings analysed at once (default: one per core)")->check(CLI::Range(1, 1024));
     rt->add_option("--shard", ro.shard,
                    "Analyse only share K of N of the manifest rows (rows K, K+N, K+2N, ...), e.g. 2/8 in a cluster job "

@@ -1,6 +1,7 @@
 // The analysis API: a recording, its baseline and its stated duty in, a
 // finding out. Used by analyze, baseline, route and compare alike.
 #include "src/analysis/analysis.hpp"
+#include "src/io/severity_zones.hpp"
 
 #include <unistd.h>
 
@@ -205,6 +206,35 @@ void guard_operating_inputs(OutputGuard& guard, const OperatingPointFlags& flags
         if (!duty->op.npsh3_curve_name.empty()) guard.input(duty->op.npsh3_curve_name, "NPSH3 curve");
 }
 
+VelocityFinding velocity_finding(const AnalyzedRecording& rec, const std::optional<models::SeverityZones>& zones) {
+    VelocityFinding v;
+    v.zones = zones;
+    if (zones) {
+        v.band_low_hz = zones->band_low_hz;
+        v.band_high_hz = zones->band_high_hz;
+    }
+    v.low_cut_hz = std::min(models::kVelocityLowCutHz, v.band_low_hz);
+    const std::string& unit_name = rec.info.calibration.unit;
+    const std::optional<SignalUnit> unit = signal_unit(unit_name);
+    const auto& a = rec.analysis;
+    if (!unit || unit->quantity != SignalQuantity::acceleration) {
+        v.unavailable = "the recording is not calibrated in acceleration (" + (unit_name.empty() ? std::string("raw") : unit_name) + ")";
+    } else if (a.mean_psd.empty() || !(a.psd_bin_hz > 0.0)) {
+        v.unavailable = "no averaged spectrum";
+    } else if (v.band_high_hz > 0.5 * a.setup.fs_hz) {
+        v.unavailable = "the sample rate (" + std::to_string(static_cast<long>(a.setup.fs_hz)) +
+                        " Hz) does not reach the band's top (" + std::to_string(static_cast<long>(v.band_high_hz)) + " Hz)";
+    } else {
+        const double si2 = unit->si_per_unit * unit->si_per_unit;
+        std::vector<double> psd_si(a.mean_psd.size());
+        for (std::size_t k = 0; k < psd_si.size(); ++k) psd_si[k] = a.mean_psd[k] * si2;
+        v.overall_rms_mm_s = 1000.0 * models::overall_velocity_rms_m_s(psd_si, a.psd_bin_hz, v.band_low_hz,
+                                                                       v.band_high_hz, v.low_cut_hz);
+        if (zones) v.zone = models::zone_of(*v.overall_rms_mm_s, *zones);
+    }
+    return v;
+}
+
 AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     AnalyzeResult r;
     r.baseline = read_baseline_file(o.baseline, o.read.channel);
@@ -213,6 +243,8 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
                          "'; use that machine's baseline");
     // The operating point first: a mistyped reading fails before the analysis.
     std::optional<ResolvedOperatingPoint> duty = resolve_operating_point(o.operating, o.recording);
+    const std::optional<models::SeverityZones> zones =
+        o.zones ? std::optional(read_severity_zones(*o.zones)) : std::nullopt;
     models::MachineContext machine;
     machine.rpm = o.rpm;
     if (!machine.rpm && duty && duty->op.rpm) machine.rpm = duty->op.rpm;
@@ -225,6 +257,7 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     ctx.channel = o.read.channel;
     ctx.sensor_max_hz = sensor_limit(o.sensor_max_hz, o.mount);
     r.finding = models::classify(r.recording.analysis, r.baseline, ctx);
+    r.velocity = velocity_finding(r.recording, zones);
     if (duty) {
         OperatingPointFinding of;
         of.resolved = std::move(*duty);

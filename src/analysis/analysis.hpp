@@ -15,6 +15,7 @@
 #include "models/classifier.hpp"
 #include "models/margin_reading.hpp"
 #include "models/operating_point.hpp"
+#include "models/severity.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/operating_point_io.hpp"
 #include "src/io/output_guard.hpp"
@@ -91,7 +92,26 @@ struct AnalysisRequest {
     std::optional<int> vanes;
     CalibrationText calibration;
     OperatingPointFlags operating;
+    std::optional<std::string> zones;  ///< --zones FILE: the analyst's severity zones
 };
+
+/// Overall velocity of the recording (its averaged spectrum integrated), and
+/// its severity zone when a zone file was given. Context only: the verdict
+/// never reads it.
+struct VelocityFinding {
+    std::optional<double> overall_rms_mm_s;  ///< nullopt: see unavailable
+    std::string unavailable;                 ///< why there is no velocity
+    double band_low_hz = models::kSeverityBandLowHz;
+    double band_high_hz = models::kSeverityBandHighHz;
+    double low_cut_hz = models::kVelocityLowCutHz;
+    std::optional<models::SeverityZones> zones;
+    std::optional<models::SeverityZone> zone;
+};
+
+/// From the recording's mean PSD: velocity only when it is calibrated in
+/// acceleration (g, m/s2); the band from `zones` when given, else 10-1000 Hz;
+/// the low cut 10 Hz, or the band's low edge when that is lower.
+VelocityFinding velocity_finding(const AnalyzedRecording& rec, const std::optional<models::SeverityZones>& zones);
 
 /// The operating point of an analysed recording beside its verdict.
 struct OperatingPointFinding {
@@ -105,6 +125,7 @@ struct AnalyzeResult {
     models::Baseline baseline;
     models::Finding finding;
     std::optional<OperatingPointFinding> operating;
+    VelocityFinding velocity;
 };
 AnalyzeResult analyze(const AnalysisRequest& request, const Progress& progress = {});
 /// The point's verdict over its channels: the worst (developed, incipient,

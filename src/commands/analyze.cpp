@@ -21,6 +21,7 @@ void guard_analyze(const AnalyzeOptions& o) {
     guard.input(o.recording, "recording");
     guard.input(o.baseline, "baseline");
     guard_operating_inputs(guard, o.operating, o.recording);
+    if (o.zones) guard.input(*o.zones, "zone file");
     guard.output(*o.json_output);
 }
 

@@ -1,6 +1,7 @@
 #include "src/output/finding.hpp"
 
 #include "src/io/baseline_io.hpp"
+#include "src/io/calibration.hpp"
 #include "src/io/datetime.hpp"
 #include "src/output/format.hpp"
 
@@ -8,9 +9,11 @@
 #include <cmath>
 #include <cstdio>
 #include <ostream>
+#include <span>
 
 #include "models/hydraulics.hpp"
 #include "models/machine.hpp"
+#include "models/severity.hpp"
 
 namespace cavitas::app {
 
@@ -73,6 +76,114 @@ void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
 
 }  // namespace
 
+std::optional<AbsoluteLevelReference> absolute_level_reference(const std::string& unit) {
+    const std::optional<SignalUnit> u = signal_unit(unit);
+    if (!u) return std::nullopt;
+    if (u->quantity == SignalQuantity::acceleration)
+        return AbsoluteLevelReference{"re_1um_s2", "dB re 1 µm/s²",
+                                      models::reference_offset_db(u->si_per_unit, models::kIso1683AccelerationRefM_s2)};
+    if (u->quantity == SignalQuantity::pressure)
+        return AbsoluteLevelReference{"re_1upa", "dB re 1 µPa",
+                                      models::reference_offset_db(u->si_per_unit, models::kIso1683WaterPressureRefPa)};
+    return std::nullopt;
+}
+
+json velocity_to_json(const VelocityFinding& v) {
+    if (!v.overall_rms_mm_s) return {{"unavailable", v.unavailable}};
+    json j = {{"overall_rms_mm_s", *v.overall_rms_mm_s},
+              {"band_low_hz", v.band_low_hz},
+              {"band_high_hz", v.band_high_hz},
+              {"low_cut_hz", v.low_cut_hz},
+              {"how", "the averaged acceleration spectrum integrated line by line, v = a / (2 pi f), above the low cut"}};
+    if (v.zones && v.zone) {
+        const auto& z = *v.zones;
+        j["zone"] = {{"name", models::zone_letter(*v.zone)},
+                     {"meaning", models::zone_meaning(*v.zone)},
+                     {"source", z.source},
+                     {"a_b_mm_s", z.a_b_mm_s},
+                     {"b_c_mm_s", z.b_c_mm_s},
+                     {"c_d_mm_s", z.c_d_mm_s},
+                     {"boundary_rule", "a value on a boundary belongs to the upper zone"},
+                     {"note", "severity zones are context from the analyst's zone file; they do not change the "
+                              "cavitation verdict"}};
+    }
+    return j;
+}
+
+json amplitude_spectrum_to_json(const AnalyzeResult& r) {
+    const auto& a = r.recording.analysis;
+    const std::string& unit = r.recording.info.calibration.unit;
+    if (a.mean_psd.empty() || !(a.psd_bin_hz > 0.0)) return json::object();
+    // Up to the analysis's usable top (the HF band's top edge).
+    const std::size_t keep =
+        std::min(a.mean_psd.size(), static_cast<std::size_t>(std::floor(a.setup.hf.high_hz / a.psd_bin_hz)) + 1);
+    const std::span<const double> psd(a.mean_psd.data(), keep);
+    std::vector<double> amplitude = models::line_rms(psd, a.psd_enbw_hz);
+    double bin_hz = a.psd_bin_hz;
+    json j = {{"line_hz", a.psd_bin_hz},
+              {"enbw_hz", a.psd_enbw_hz},
+              {"unit", unit.empty() ? "raw" : unit},
+              {"amplitude_reference", "RMS amplitude per line, " + (unit.empty() ? std::string("raw") : unit) +
+                                          " (sqrt of PSD x the window's noise bandwidth)"}};
+    const std::optional<SignalUnit> u = signal_unit(unit);
+    if (u && u->quantity == SignalQuantity::acceleration) {
+        const double si2 = u->si_per_unit * u->si_per_unit;
+        std::vector<double> psd_si(psd.begin(), psd.end());
+        for (double& v : psd_si) v *= si2;
+        // Velocity lines up to the velocity band's top only: above it they are not used.
+        psd_si.resize(std::min(psd_si.size(),
+                               static_cast<std::size_t>(std::floor(r.velocity.band_high_hz / a.psd_bin_hz)) + 1));
+        std::vector<double> velocity = models::line_rms(models::velocity_psd(psd_si, a.psd_bin_hz, r.velocity.low_cut_hz),
+                                                        a.psd_enbw_hz);
+        for (double& v : velocity) v *= 1000.0;  // m/s -> mm/s
+        double vbin = a.psd_bin_hz;
+        thin_by_largest(velocity, vbin, kAmplitudePointsWritten);
+        j["velocity_rms_mm_s"] = velocity;
+        j["velocity_bin_hz"] = vbin;
+        j["velocity_low_cut_hz"] = r.velocity.low_cut_hz;
+    }
+    thin_by_largest(amplitude, bin_hz, kAmplitudePointsWritten);
+    j["bin_hz"] = bin_hz;
+    j["rms"] = amplitude;
+    if (const auto ref = absolute_level_reference(unit)) j["absolute_reference"] = ref->text;
+    return j;
+}
+
+void write_levels_summary(std::ostream& out, const AnalyzeResult& r) {
+    const auto& a = r.recording.analysis;
+    const std::string& unit = r.recording.info.calibration.unit;
+    const std::optional<AbsoluteLevelReference> ref = absolute_level_reference(unit);
+    auto level = [&](const char* key) -> std::optional<double> {
+        for (const auto& c : r.finding.comparisons)
+            if (c.key == key) return c.value;
+        return std::nullopt;
+    };
+    auto shown = [&](double db) {
+        return ref ? fixed(db + ref->offset_db, 1) + " " + ref->text
+                   : fixed(db, 1) + " dB re 1 " + (unit.empty() ? std::string("raw") : unit) + "²";
+    };
+    const auto hf = level("hf_band_level_db"), lf = level("lf_band_level_db");
+    if (hf || lf) {
+        out << "  levels     ";
+        if (hf) out << " HF " << fixed(a.setup.hf.low_hz, 0) << "-" << fixed(a.setup.hf.high_hz, 0) << " Hz " << shown(*hf);
+        if (hf && lf) out << ",";
+        if (lf) out << " LF " << fixed(a.setup.lf.low_hz, 0) << "-" << fixed(a.setup.lf.high_hz, 0) << " Hz " << shown(*lf);
+        out << " (rises above are dB re baseline)\n";
+    }
+    const auto& v = r.velocity;
+    if (!v.overall_rms_mm_s) {
+        out << "  velocity    not given: " << v.unavailable << "\n";
+        return;
+    }
+    out << "  velocity    overall velocity " << fixed(*v.overall_rms_mm_s, 2) << " mm/s RMS (" << fixed(v.band_low_hz, 0)
+        << "-" << fixed(v.band_high_hz, 0) << " Hz)";
+    if (v.zones && v.zone)
+        out << ": zone " << models::zone_letter(*v.zone) << " by " << v.zones->source << " (your zone file)\n"
+            << "              zone " << models::zone_letter(*v.zone) << ": " << models::zone_meaning(*v.zone)
+            << "; context only, it does not change the cavitation verdict";
+    out << "\n";
+}
+
 json plots_to_json(const AnalyzeResult& r) {
     const auto& a = r.recording.analysis;
     const auto& b = r.baseline;
@@ -111,6 +222,7 @@ json plots_to_json(const AnalyzeResult& r) {
           {"mean_squared_envelope", a.mean_squared_envelope},
           {"shaft_hz", a.rpm > 0.0 ? models::shaft_hz(a.rpm) : 0.0},
           {"bpf_hz", a.rpm > 0.0 && a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0}}},
+        {"amplitude_spectrum", amplitude_spectrum_to_json(r)},
         {"kurtogram",
          {{"rows", rows},
           {"chosen",
@@ -151,12 +263,30 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
         out << "  baseline warnings (from " << baseline_path << "):\n";
         for (const auto& w : f.baseline_warnings) out << "    - " << w.message << "\n";
     }
+    write_levels_summary(out, r);
     if (r.operating) write_operating_point(out, *r.operating);
     if (cavitating(f.verdict)) {
         out << "  caution:\n";
         for (const auto& s : models::cavitation_cautions()) out << "    ! " << s << "\n";
     }
 }
+
+namespace {
+
+// The bands' levels in dB re the ISO 1683 reference of the unit, beside the
+// existing levels in dB re 1 unit squared; rises are dB re baseline.
+void add_absolute_band_levels(json& bands, const AnalyzeResult& r) {
+    bands["rise_reference"] = "dB re baseline";
+    const auto ref = absolute_level_reference(r.recording.info.calibration.unit);
+    if (!ref) return;
+    bands["absolute_level_reference"] = ref->text + " (ISO 1683:2015)";
+    for (const auto& c : r.finding.comparisons) {
+        if (c.key == "hf_band_level_db") bands["hf_level_db_" + ref->key_suffix] = c.value + ref->offset_db;
+        if (c.key == "lf_band_level_db") bands["lf_level_db_" + ref->key_suffix] = c.value + ref->offset_db;
+    }
+}
+
+}  // namespace
 
 json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
     const auto& in = r.recording.info;
@@ -260,6 +390,8 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
           {"recordings", b.sources.size()},
           {"rpm", b.rpm}}},
     };
+    j["velocity"] = velocity_to_json(r.velocity);
+    add_absolute_band_levels(j["bands"], r);
     j["plots"] = plots_to_json(r);
     if (r.operating) {
         json op = hydraulics_to_json(r.operating->resolved);

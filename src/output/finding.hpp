@@ -3,6 +3,7 @@
 
 #include <cstddef>
 #include <iosfwd>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -34,6 +35,28 @@ void write_npsh_account(std::ostream& out, const ResolvedOperatingPoint& duty);
 /// What `baseline` prints of the operating point it was learned at.
 void write_operating_point_summary(std::ostream& out, const models::OperatingPointSummary& s, std::size_t stated,
                                    std::size_t recordings);
+
+/// A level's absolute reference by ISO 1683:2015 (methods notes A7) for a
+/// signal unit: acceleration dB re 1 um/s2, pressure (hydrophone) dB re 1 uPa.
+struct AbsoluteLevelReference {
+    std::string key_suffix;  ///< "re_1um_s2" or "re_1upa"
+    std::string text;        ///< "dB re 1 µm/s²" or "dB re 1 µPa"
+    double offset_db = 0.0;  ///< add to a level in dB re 1 (unit) squared
+};
+/// nullopt for FS, V and raw: no absolute reference applies.
+std::optional<AbsoluteLevelReference> absolute_level_reference(const std::string& unit);
+/// The finding's "velocity": overall RMS velocity, band, low cut and zone, or
+/// why there is none.
+nlohmann::json velocity_to_json(const VelocityFinding& v);
+/// The summary's lines on levels (with their references) and velocity.
+void write_levels_summary(std::ostream& out, const AnalyzeResult& r);
+/// The plots' "amplitude_spectrum": the averaged spectrum as RMS amplitude per
+/// line in the calibrated unit, and velocity per line (mm/s RMS) when in acceleration.
+nlohmann::json amplitude_spectrum_to_json(const AnalyzeResult& r);
+/// Acceleration lines written at most (thinned by their larger neighbour above
+/// this); velocity lines are written at the analysis's resolution up to the
+/// velocity band's top (1000 lines a 1 s segment), thinned above this too.
+inline constexpr std::size_t kAmplitudePointsWritten = 4096;
 
 /// The envelope spectrum as a finding keeps it for reports: at most this many
 /// lines (long segments and a high blade-pass frequency give more; a report

@@ -222,6 +222,78 @@ Figure spectrum_figure(const json& sp, const std::string& title, const std::stri
     return f;
 }
 
+// The averaged spectrum as RMS amplitude per line: acceleration in its unit,
+// or velocity in mm/s RMS (from the low cut up) when the finding carries it.
+Figure line_spectrum_figure(const json& as, bool velocity) {
+    Figure f;
+    const std::string unit = str(as, "unit");
+    const double low_cut = num(as, "velocity_low_cut_hz");
+    f.caption = velocity
+                    ? "Velocity spectrum: the averaged acceleration spectrum integrated line by line (v = a / 2 pi f), "
+                      "mm/s RMS per line, lines below " + fixed(low_cut, 0) + " Hz left out."
+                    : "Amplitude spectrum: the averaged spectrum as RMS amplitude per line, " + unit +
+                          " (a sine of amplitude A shows A / 1.414 at its line).";
+    f.aspect = 0.42;
+    f.draw = [as, velocity, unit](cairo_t* cr, double w, double h) {
+        const auto y = nums(as, velocity ? "velocity_rms_mm_s" : "rms");
+        const double bin = velocity && num(as, "velocity_bin_hz") > 0.0 ? num(as, "velocity_bin_hz") : num(as, "bin_hz", 1.0);
+        plot::Chart c;
+        c.title = velocity ? "Velocity spectrum" : "Amplitude spectrum";
+        plot::Series s;
+        s.name = "this recording (mean)";
+        const double top_hz = static_cast<double>(y.size()) * bin;
+        double hi = 0.0;
+        for (std::size_t k = 1; k < y.size() && static_cast<double>(k) * bin <= top_hz; ++k) {
+            s.x.push_back(static_cast<double>(k) * bin);
+            s.y.push_back(y[k]);
+            hi = std::max(hi, y[k]);
+        }
+        c.x.lo = 0.0;
+        c.x.hi = std::max(bin, std::min(top_hz, static_cast<double>(y.size()) * bin));
+        c.x.label = "frequency, Hz";
+        c.y.lo = 0.0;
+        c.y.hi = hi > 0.0 ? hi * 1.1 : 1.0;
+        c.y.label = velocity ? "velocity, mm/s RMS" : "amplitude, " + unit + " RMS";
+        c.series.push_back(s);
+        plot::draw_chart(cr, w, h, c);
+    };
+    return f;
+}
+
+// The finding's overall velocity, its zone and the absolute band levels, in
+// words with their units and references.
+std::vector<std::string> levels_sentences(const json& f) {
+    std::vector<std::string> items;
+    const json& bands = field(f, "bands");
+    const std::string abs_ref = str(bands, "absolute_level_reference");
+    if (!abs_ref.empty()) {
+        for (const auto& [key, label] : {std::pair<std::string, std::string>{"hf", "HF"}, {"lf", "LF"}}) {
+            for (const char* suffix : {"re_1um_s2", "re_1upa"}) {
+                const std::string k = key + "_level_db_" + suffix;
+                if (bands.contains(k) && bands[k].is_number())
+                    items.push_back(label + " band " + fixed(num(bands, (key + "_low_hz").c_str()), 0) + "-" +
+                                    fixed(num(bands, (key + "_high_hz").c_str()), 0) + " Hz: " +
+                                    fixed(bands[k].get<double>(), 1) + " " + abs_ref);
+            }
+        }
+    }
+    const json& v = field(f, "velocity");
+    if (v.is_object() && v.contains("overall_rms_mm_s") && v["overall_rms_mm_s"].is_number()) {
+        std::string t = "Overall velocity " + fixed(num(v, "overall_rms_mm_s"), 2) + " mm/s RMS (" +
+                        fixed(num(v, "band_low_hz"), 0) + "-" + fixed(num(v, "band_high_hz"), 0) + " Hz, lines below " +
+                        fixed(num(v, "low_cut_hz"), 0) + " Hz left out)";
+        const json& z = field(v, "zone");
+        if (z.is_object() && !str(z, "name").empty())
+            t += ": zone " + str(z, "name") + " by " + str(z, "source") + " (the analyst's zone file; boundaries " +
+                 fixed(num(z, "a_b_mm_s"), 1) + " / " + fixed(num(z, "b_c_mm_s"), 1) + " / " + fixed(num(z, "c_d_mm_s"), 1) +
+                 " mm/s), " + str(z, "meaning") + ". Zones are context: they do not change the cavitation verdict";
+        items.push_back(t + ".");
+    } else if (v.is_object() && !str(v, "unavailable").empty()) {
+        items.push_back("No velocity: " + str(v, "unavailable") + ".");
+    }
+    return items;
+}
+
 Figure envelope_figure(const json& es) {
     Figure f;
     f.caption = "Squared-envelope spectrum of the HF band, in dB over its median (the floor). Cavitation that "
@@ -382,6 +454,21 @@ doc::Table indicator_table(const json& finding) {
     return t;
 }
 
+// Velocity, zone and absolute levels, and the line spectra they come from.
+void add_levels_section(Document& d, const json& f, const json& plots) {
+    const auto items = levels_sentences(f);
+    if (!items.empty()) {
+        d.paragraph("Levels in the trade's units, with their references:");
+        d.bullets(items);
+    }
+    const json& as = field(plots, "amplitude_spectrum");
+    if (as.is_object() && as.contains("rms")) {
+        std::vector<Figure> figs{line_spectrum_figure(as, false)};
+        if (as.contains("velocity_rms_mm_s")) figs.push_back(line_spectrum_figure(as, true));
+        for (auto& fig : figs) d.blocks.push_back(doc::figures_block({fig}));
+    }
+}
+
 void add_finding_sections(Document& d, const json& f, bool full) {
     const std::string verdict = str(f, "verdict");
     const json op = f.contains("operating_point") ? field(f, "operating_point") : json::object();
@@ -419,10 +506,14 @@ void add_finding_sections(Document& d, const json& f, bool full) {
         d.blocks.push_back(doc::figures_block({envelope_figure(field(plots, "envelope_spectrum"))}));
         d.blocks.push_back(doc::figures_block({kurtogram_figure(field(plots, "kurtogram"))}));
     }
+    add_levels_section(d, f, plots);
     Block tb = doc::make(Kind::table);
     tb.table = indicator_table(f);
-    d.paragraph("Indicators: the recording's value (median over its segments), the baseline's median and spread "
-                "(1.4826 x MAD), the change, and the threshold the verdict uses.");
+    d.paragraph(std::string("Indicators: the recording's value (median over its segments), the baseline's median and spread "
+                "(1.4826 x MAD), the change, and the threshold the verdict uses. Levels are in ") +
+                (str(field(f, "bands"), "level_reference").empty() ? std::string("dB")
+                                                                   : str(field(f, "bands"), "level_reference")) +
+                "; changes of levels are dB re baseline.");
     d.blocks.push_back(tb);
     const auto others = strs(f, "other_findings");
     const auto warnings = strs(field(f, "quality"), "warnings");
@@ -964,6 +1055,14 @@ const json& checked_finding(const json& f, const std::string& origin) {
                 bad(origin, name, "would mark more than " + std::to_string(kMaxEnvelopeOrders) +
                                       " orders on an envelope spectrum up to " + fixed(top, 0) + " Hz");
         }
+    }
+    const json& as = field(plots, "amplitude_spectrum");
+    if (as.is_object() && as.contains("rms")) {
+        const std::size_t n = number_array(as, "rms", origin, "plots.amplitude_spectrum", budget);
+        number_array(as, "velocity_rms_mm_s", origin, "plots.amplitude_spectrum", budget, Values::any, false);
+        if (n > 0) checked_number(as, "bin_hz", origin, "plots.amplitude_spectrum.bin_hz", 1e-9, kMaxHz);
+        if (as.contains("velocity_bin_hz"))
+            checked_number(as, "velocity_bin_hz", origin, "plots.amplitude_spectrum.velocity_bin_hz", 1e-9, kMaxHz);
     }
     const json& kg = field(plots, "kurtogram");
     const json& rows = field(kg, "rows");

@@ -1,4 +1,5 @@
 #include "src/route/route.hpp"
+#include "src/io/severity_zones.hpp"
 
 #include <unistd.h>
 
@@ -278,7 +279,8 @@ SummaryRow start_row(const ManifestRow& m) {
 // One manifest row, start to finish. A failure of the row's inputs becomes its
 // reason; only a finding that cannot be written throws.
 SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std::string& baselines,
-                       const std::string& out_dir) {
+                       const std::string& out_dir,
+                       const std::optional<std::string>& zones) {
     SummaryRow row = start_row(m);
     auto fail = [&row](const std::string& why) {
         row.verdict = "error";
@@ -311,6 +313,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         origin.file = manifest.path + ":" + std::to_string(m.line);
         origin.base_dir = manifest.dir;
         ao.operating.origin = origin;
+        ao.zones = zones;
         const AnalyzeResult r = analyze(ao);
         const auto& f = r.finding;
         row.verdict = models::to_string(f.verdict);
@@ -560,6 +563,24 @@ void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* sto
     }
 }
 
+namespace {
+
+// The severity zone file of a route: --zones, else BASELINES/severity_zones.toml
+// when there is one; read once here so that a bad file stops the route before
+// any analysis (each row reads it again, a few hundred bytes).
+std::optional<std::string> route_zones_file(const RouteOptions& o) {
+    std::optional<std::string> path = o.zones;
+    if (!path) {
+        std::error_code ec;
+        const fs::path beside = fs::path(o.baselines) / kSeverityZonesFileName;
+        if (fs::exists(beside, ec)) path = beside.string();
+    }
+    if (path) (void)read_severity_zones(*path);
+    return path;
+}
+
+}  // namespace
+
 int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     using clock = std::chrono::steady_clock;
     const auto started = clock::now();
@@ -580,6 +601,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
         store = std::make_unique<HistoryStore>(store_path);
         store->check_writable();
     }
+    const std::optional<std::string> zones = route_zones_file(o);
     StagedFolder staged(o.out_dir);
     prepare_out_dir(staged.path());
 
@@ -607,7 +629,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
             const std::size_t i = next.fetch_add(1);
             if (i >= todo.size()) return;
             try {
-                rows[i] = analyse_row(*todo[i], manifest, o.baselines, staged.path());
+                rows[i] = analyse_row(*todo[i], manifest, o.baselines, staged.path(), zones);
             } catch (...) {
                 std::lock_guard<std::mutex> lock(done_mutex);
                 if (!write_error) write_error = std::current_exception();

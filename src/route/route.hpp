@@ -68,6 +68,9 @@ struct RouteOptions {
     bool no_store = false;
     int jobs = 0;                      ///< 0: one per core
     std::optional<std::string> shard;  ///< "K/N"
+    /// --zones FILE: severity zones for every row's velocity (default
+    /// BASELINES/severity_zones.toml when it exists).
+    std::optional<std::string> zones;
 };
 
 /// Analyse the route. Returns the exit status: 0 every row analysed, 1 when a

@@ -77,7 +77,7 @@ TEST_CASE("A large HF rise modulated at blade pass is developed cavitation", "[m
     set(a, RI::envelope_bpf_prominence, 12.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::developed);
-    CHECK(mentions(f.evidence, "+14.0 dB over baseline"));
+    CHECK(mentions(f.evidence, "+14.0 dB re baseline"));
     CHECK(mentions(f.evidence, "BPF 173.2 Hz"));
 }
 

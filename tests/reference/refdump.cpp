@@ -27,6 +27,8 @@
 #include <nlohmann/json.hpp>
 
 #include "models/calibration.hpp"
+#include "models/severity.hpp"
+#include "signal/window.hpp"
 #include "models/rank_tests.hpp"
 #include "signal/decimate.hpp"
 #include "signal/envelope.hpp"
@@ -313,6 +315,31 @@ json run_pav(const std::string& name, const std::vector<double>& y, const std::v
     return {{"name", name}, {"y", y}, {"weight", w}, {"fit", cavitas::models::pav(y, w)}};
 }
 
+// RMS amplitude per line and overall velocity (models/severity) from a Welch PSD
+// of tones: a bin-centred sine and a multi-tone acceleration signal in m/s2.
+json run_line_rms(const std::string& name, const std::vector<std::pair<double, double>>& tones, std::size_t segment) {
+    const std::size_t n = static_cast<std::size_t>(kFs) * 4;
+    std::vector<double> x(n);
+    for (std::size_t i = 0; i < n; ++i)
+        for (const auto& [amplitude, hz] : tones)
+            x[i] += amplitude * std::sin(2.0 * std::numbers::pi * hz * static_cast<double>(i) / kFs + 0.7);
+    dsp::WelchPsd welch(dsp::WelchConfig{segment}, kFs);
+    welch.push(std::span<const double>(x));
+    const std::vector<double> psd = welch.psd();
+    const double enbw_hz = dsp::enbw_bins(dsp::hann_periodic(segment)) * welch.bin_hz();
+    json t = json::array();
+    for (const auto& [amplitude, hz] : tones) t.push_back({{"amplitude", amplitude}, {"hz", hz}});
+    return {{"name", name},
+            {"segment", segment},
+            {"fs_hz", kFs},
+            {"phase", 0.7},
+            {"samples", n},
+            {"tones", t},
+            {"enbw_hz", enbw_hz},
+            {"line_rms", cavitas::models::line_rms(psd, enbw_hz)},
+            {"overall_velocity_m_s", cavitas::models::overall_velocity_rms_m_s(psd, welch.bin_hz(), 10.0, 1000.0, 10.0)}};
+}
+
 json build() {
     Gaussian g(kSeed);
 
@@ -442,6 +469,8 @@ json build() {
             y.push_back(0.05 * i + c());
             w.push_back(0.5 + 1.5 * c.open_uniform());
         }
+        j["line_rms"] = json::array({run_line_rms("sine_400hz", {{2.5, 400.0}}, 2560),
+                                     run_line_rms("tones_50_300_2000hz", {{1.0, 50.0}, {2.0, 300.0}, {5.0, 2000.0}}, 25600)});
         j["pav"] = json::array({run_pav("review_example", {1, 0, 1, 0, 0, 1}, {}),
                                 run_pav("trend_60", y, {}),
                                 run_pav("trend_60_weighted", y, w)});

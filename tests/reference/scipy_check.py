@@ -426,6 +426,46 @@ def check_pav(rep, entry):
     rep.check(f"pav/{name}/fit", f"scipy.optimize.lsq_linear bvls [{SCIPY}]", normwise(fit, c @ ref.x), TOL_F64)
 
 
+def check_line_rms(rep, entry):
+    """RMS amplitude per line and overall velocity (models/severity) against scipy.signal.welch.
+
+    scaling='spectrum' gives each line's mean square (a bin-centred sine of amplitude A:
+    A^2/2 at its line), so sqrt of it is the RMS amplitude per line cavitas shows; the
+    overall velocity is sum(Pxx_density / (2 pi f)^2) * df over 10-1000 Hz."""
+    name = entry["name"]
+    n, fs, phase = entry["segment"], entry["fs_hz"], entry["phase"]
+    t = np.arange(entry["samples"], dtype=np.float64) / fs
+    x = np.zeros_like(t)
+    for tone in entry["tones"]:
+        x += tone["amplitude"] * np.sin(2 * np.pi * tone["hz"] * t + phase)
+    kw = dict(window="hann", nperseg=n, noverlap=n // 2, detrend="constant", return_onesided=True)
+    f, spec = scipy.signal.welch(x, fs, scaling="spectrum", **kw)
+    _, dens = scipy.signal.welch(x, fs, scaling="density", **kw)
+    got = np.asarray(entry["line_rms"], dtype=np.float64)
+    if not same_length(rep, f"line_rms/{name}", got, f):
+        return
+    # Compared as powers (line_rms^2 against Pxx): a square root would magnify the
+    # rounding noise of the near-empty lines between the tones.
+    rep.check(f"line_rms/{name}/per_line", f"scipy.signal.welch spectrum = line_rms^2 [{SCIPY}]",
+              pointwise(got ** 2, spec, 1e-9), TOL_F64)
+    df = f[1] - f[0]
+    for tone in entry["tones"]:
+        k = int(round(tone["hz"] / df))
+        # A bin-centred sine: A / sqrt(2) at its line, exactly (no scalloping).
+        rep.check(f"line_rms/{name}/{tone['hz']:g}hz_is_A_over_root2", "A/sqrt(2) (definition of RMS)",
+                  rel(got[k], tone["amplitude"] / math.sqrt(2.0)), 1e-9)
+    band = (f >= 10.0) & (f <= 1000.0)
+    ref = math.sqrt(float(np.sum(dens[band] / (2 * np.pi * f[band]) ** 2) * df))
+    rep.check(f"line_rms/{name}/overall_velocity", f"sum(welch density/(2 pi f)^2)*df [{SCIPY}]",
+              rel(entry["overall_velocity_m_s"], ref), TOL_F64)
+    hand = math.sqrt(sum((tn["amplitude"] / (2 * math.pi * tn["hz"])) ** 2 / 2 for tn in entry["tones"]
+                         if 10.0 <= tn["hz"] <= 1000.0))
+    # The hand sum of the in-band tones: within 1 % (the window spreads a tone over lines whose
+    # 1/f^2 weights differ slightly; our tolerance).
+    rep.check(f"line_rms/{name}/overall_velocity_hand_sum", "sqrt(sum (A/(2 pi f))^2/2) (calculus)",
+              rel(entry["overall_velocity_m_s"], hand), 1e-2)
+
+
 def main(argv):
     if len(argv) != 2:
         print("usage: scipy_check.py REFDUMP.json")
@@ -452,7 +492,7 @@ def main(argv):
         if not doc.get("decimate"):
             rep.fail("structure/decimate", "refdump JSON", "section missing or empty")
         for key, fn in {"rank_sum": check_rank_sum, "trend": check_trend, "reliability": check_reliability,
-                        "platt": check_platt, "pav": check_pav}.items():
+                        "platt": check_platt, "pav": check_pav, "line_rms": check_line_rms}.items():
             entries = doc.get(key, [])
             if not entries:
                 rep.fail(f"structure/{key}", "refdump JSON", "section missing or empty")

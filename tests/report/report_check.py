@@ -216,6 +216,12 @@ def outputs(cavitas, samples, schemas, work):
         check(f"{name}.pdf text says the verdict", expected_words[kind] in text, expected_words[kind])
         check(f"{name}.pdf text carries the cautions", "lock out and tag out" in text)
         check(f"{name}.pdf text names the work order", "WO-2611-0042" in text)
+        if kind in ("normal", "incipient", "developed"):
+            # A finding calibrated in g (--full-scale 50g): velocity in mm/s RMS and absolute
+            # levels re the ISO 1683:2015 reference (methods notes A7) are shown with their references.
+            for what in ("mm/s RMS", "dB re 1 µm/s²", "dB re baseline"):
+                check(f"{name}.pdf text shows '{what}'", what in text, what)
+                check(f"{name}.html shows '{what}'", what in page, what)
     # Letter paper.
     letter = os.path.join(reports, "finding-developed-letter.pdf")
     r = run([cavitas, "report", findings["developed"], "--pdf", letter, "--paper", "letter"])

@@ -631,3 +631,58 @@ TEST_CASE("A triaxial point: cavitation strong on one axis and weak on the other
     r = run("analyze --channel 3 --baseline " + q(base) + " " + q(visit));
     CHECK(r.status == 1);
 }
+
+TEST_CASE("analyze --zones: overall velocity in mm/s RMS, its zone from the analyst's file, the verdict unchanged",
+          "[cli][severity]") {
+    // Tones over faint noise (0.002 FS, adding about 0.1 mm/s in quadrature): 0.01 FS at 24.75 Hz and 0.02 FS at 173.25 Hz, full scale 50 g,
+    // so 0.5 g and 1 g. Hand sum (calculus, v = a / (2 pi f), RMS = peak / sqrt 2):
+    // sqrt(sum (A g0 / (2 pi f))^2 / 2); 2 % for the window's leakage of lines that are not bin-centred (our choice).
+    const fs::path b = workdir() / "zones-base.json";
+    const fs::path g1 = make_wav("zones-good1.wav", 21, 0.002), g2 = make_wav("zones-good2.wav", 22, 0.002),
+                   test = make_wav("zones-today.wav", 23, 0.002);
+    Run r = run("baseline --rpm 1485 --vanes 7 --full-scale 50g -o " + q(b) + " " + q(g1) + " " + q(g2));
+    REQUIRE(r.status == 0);
+    const double g0 = 9.80665, pi = std::numbers::pi;
+    const double v1 = 0.5 * g0 / (2 * pi * 24.75), v2 = 1.0 * g0 / (2 * pi * 173.25);
+    const double hand_mm_s = 1000.0 * std::sqrt((v1 * v1 + v2 * v2) / 2.0);  // about 23.2 mm/s
+
+    const fs::path zones = workdir() / "zones.toml";
+    {
+        std::ofstream z(zones);
+        z << "# zones of a made-up class, for this test only\n"
+             "source = \"test class, made up\"\nband_hz = [10, 1000]\na_b_mm_s = 5\nb_c_mm_s = 20\nc_d_mm_s = 40\n";
+    }
+    const fs::path j = workdir() / "zones-finding.json", plain = workdir() / "zones-plain.json";
+    r = run("analyze --baseline " + q(b) + " --rpm 1485 --zones " + q(zones) + " --json " + q(j) + " " + q(test));
+    INFO(r.err);
+    REQUIRE(r.status == 0);
+    const auto f = nlohmann::json::parse(slurp(j));
+    const auto& v = f["velocity"];
+    CHECK_THAT(v["overall_rms_mm_s"].get<double>(), Catch::Matchers::WithinRel(hand_mm_s, 0.02));
+    CHECK(v["band_low_hz"] == 10.0);
+    CHECK(v["band_high_hz"] == 1000.0);
+    CHECK(v["low_cut_hz"] == 10.0);
+    CHECK(v["zone"]["name"] == "C");
+    CHECK(v["zone"]["source"] == "test class, made up");
+    CHECK(v["zone"]["b_c_mm_s"] == 20.0);
+    CHECK(r.out.find("mm/s RMS (10-1000 Hz): zone C by test class, made up (your zone file)") != std::string::npos);
+    CHECK(r.out.find("dB re 1 µm/s²") != std::string::npos);
+    CHECK(f["bands"].contains("hf_level_db_re_1um_s2"));
+    CHECK(f["bands"]["rise_reference"] == "dB re baseline");
+    // The 1 g tone at 173.25 Hz: about 0.707 g RMS at its line, less the scalloping of a line
+    // a quarter bin off centre (Hann: under 0.3 dB there, so within 5 %).
+    const auto& amp = f["plots"]["amplitude_spectrum"];
+    CHECK(amp["unit"] == "g");
+    const double bin = amp["bin_hz"].get<double>();
+    const auto k = static_cast<std::size_t>(std::lround(173.0 / bin));
+    CHECK_THAT(amp["rms"][k].get<double>(), Catch::Matchers::WithinRel(1.0 / std::sqrt(2.0), 0.05));
+
+    // Without the zone file: the same velocity, no zone, the same verdict.
+    r = run("analyze --baseline " + q(b) + " --rpm 1485 --json " + q(plain) + " " + q(test));
+    REQUIRE(r.status == 0);
+    const auto p = nlohmann::json::parse(slurp(plain));
+    CHECK_FALSE(p["velocity"].contains("zone"));
+    CHECK(p["velocity"]["overall_rms_mm_s"].get<double>() == v["overall_rms_mm_s"].get<double>());
+    CHECK(p["verdict"] == f["verdict"]);
+    CHECK(p["confidence"] == f["confidence"]);
+}

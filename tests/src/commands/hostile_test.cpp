@@ -504,6 +504,34 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          base_o + Q("o-stale.json") + " " + Q("good1.wav") + " " + Q("cut12.wav"), 1, {"not a readable recording"},
          "cut12.wav", "o-stale.json"},
 
+        // --- severity zone files (analyze --zones) -----------------------------------------
+        // Boundaries out of order would place every value in a wrong zone.
+        {"zone file with boundaries out of order",
+         text_file("zones-order.toml", "source = \"test class\"\na_b_mm_s = 4.5\nb_c_mm_s = 2.8\nc_d_mm_s = 7.1\n"),
+         judge + good + " --zones " + Q("zones-order.toml") + " --json " + Q("j-zones-order.json") + " " + today, 1,
+         {"b_c_mm_s = 2.8", "a_b_mm_s = 4.5"}, "zones-order.toml", "j-zones-order.json"},
+        // Limits without a source cannot be judged by the reader of the finding.
+        {"zone file without a source",
+         text_file("zones-nosource.toml", "a_b_mm_s = 2.8\nb_c_mm_s = 4.5\nc_d_mm_s = 7.1\n"),
+         judge + good + " --zones " + Q("zones-nosource.toml") + " --json " + Q("j-zones-nosource.json") + " " + today,
+         1, {"source is missing"}, "zones-nosource.toml", "j-zones-nosource.json", kQuickS},
+        // A negative boundary, a band past 10 kHz, and no TOML at all.
+        {"zone file with a negative boundary",
+         text_file("zones-neg.toml", "source = \"x\"\na_b_mm_s = -2.8\nb_c_mm_s = 4.5\nc_d_mm_s = 7.1\n"),
+         judge + good + " --zones " + Q("zones-neg.toml") + " --json " + Q("j-zones-neg.json") + " " + today, 1,
+         {"a_b_mm_s = -2.8"}, "zones-neg.toml", "j-zones-neg.json", kQuickS},
+        {"zone file band past 10 kHz",
+         text_file("zones-band.toml",
+                   "source = \"x\"\nband_hz = [10, 20000]\na_b_mm_s = 2.8\nb_c_mm_s = 4.5\nc_d_mm_s = 7.1\n"),
+         judge + good + " --zones " + Q("zones-band.toml") + " --json " + Q("j-zones-band.json") + " " + today, 1,
+         {"band_hz", "20000"}, "zones-band.toml", "j-zones-band.json", kQuickS},
+        {"zone file that is not TOML", text_file("zones-json.toml", "{\"a_b_mm_s\": 2.8}\n"),
+         judge + good + " --zones " + Q("zones-json.toml") + " --json " + Q("j-zones-json.json") + " " + today, 1,
+         {"not valid TOML"}, "zones-json.toml", "j-zones-json.json", kQuickS},
+        {"zone file missing", nothing,
+         judge + good + " --zones " + Q("zones-absent.toml") + " --json " + Q("j-zones-absent.json") + " " + today, 1,
+         {"zones-absent.toml"}, "zones-absent.toml", "j-zones-absent.json", kQuickS},
+
         // --- operating points (sidecar files, curves, flags) ------------------------------
         // A sidecar that is a folder, beside a good recording.
         {"a directory as sidecar",

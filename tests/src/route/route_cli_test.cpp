@@ -559,3 +559,44 @@ TEST_CASE("route: a triaxial row gives a finding per channel and a machine of tw
     CHECK(m["worst_channel"] == 0);
     CHECK(r.out.find("OW-P101: developed (2 point(s), 4 channel(s)") != std::string::npos);
 }
+
+TEST_CASE("route: the library's severity_zones.toml gives every finding its zone, --zones overrides it, a bad one stops the route",
+          "[route][severity]") {
+    const Site& s = site();
+    // A library of its own, so that the other tests' findings stay without zones.
+    const fs::path lib = workdir() / "zones-lib";
+    fs::create_directories(lib / "OW-P101");
+    fs::copy_file(s.lib / "OW-P101" / "DE-H.json", lib / "OW-P101" / "DE-H.json", fs::copy_options::overwrite_existing);
+    const std::string route = slurp(s.dir / "route.csv");
+    std::string text = route.substr(0, route.find('\n') + 1);
+    text += "OW-P101_2026-11-02.wav,OW-P101,DE-H,0,2026-11-02T08:40,1485,7,50g,test,developed,cavitation,25600,8,1,,,,\n";
+    const fs::path manifest = s.dir / "zones-route.csv";
+    std::ofstream(manifest) << text;
+    // Made-up boundaries (this test only) that put the recording's ~3.9 mm/s in zone C, then in zone B.
+    std::ofstream(lib / "severity_zones.toml") << "source = \"library class, made up\"\na_b_mm_s = 1\nb_c_mm_s = 2\nc_d_mm_s = 10\n";
+    const fs::path other = workdir() / "zones-other.toml";
+    std::ofstream(other) << "source = \"command-line class, made up\"\na_b_mm_s = 2\nb_c_mm_s = 8\nc_d_mm_s = 16\n";
+
+    const fs::path out1 = workdir() / "zones-out1", out2 = workdir() / "zones-out2", out3 = workdir() / "zones-out3";
+    Run r = run("route " + q(manifest) + " --baselines " + q(lib) + " --no-store --out " + q(out1));
+    INFO(r.err);
+    REQUIRE(r.status == 0);
+    std::vector<fs::path> findings;
+    for (const auto& e : fs::directory_iterator(out1 / "findings")) findings.push_back(e.path());
+    REQUIRE(findings.size() == 1);
+    const json f1 = json::parse(slurp(findings[0]));
+    CHECK(f1["velocity"]["zone"]["source"] == "library class, made up");
+    CHECK(f1["velocity"]["zone"]["name"] == "C");
+
+    r = run("route " + q(manifest) + " --baselines " + q(lib) + " --zones " + q(other) + " --no-store --out " + q(out2));
+    REQUIRE(r.status == 0);
+    const json f2 = json::parse(slurp(out2 / "findings" / findings[0].filename()));
+    CHECK(f2["velocity"]["zone"]["source"] == "command-line class, made up");
+    CHECK(f2["velocity"]["zone"]["name"] == "B");
+    CHECK(f2["verdict"] == f1["verdict"]);  // zones never move the verdict
+
+    std::ofstream(lib / "severity_zones.toml") << "source = \"x\"\na_b_mm_s = 3\nb_c_mm_s = 2\nc_d_mm_s = 10\n";
+    r = run("route " + q(manifest) + " --baselines " + q(lib) + " --no-store --out " + q(out3));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("severity_zones.toml: b_c_mm_s = 2 must be above a_b_mm_s = 3") != std::string::npos);
+}
