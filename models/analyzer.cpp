@@ -7,6 +7,7 @@
 #include <string>
 
 #include "models/machine.hpp"
+#include "signal/bandpass.hpp"
 #include "signal/envelope.hpp"
 #include "signal/decimate.hpp"
 #include "signal/impulses.hpp"
@@ -57,6 +58,12 @@ double segment_for_record(double duration_s, double segment_s, double rpm) {
     if (duration_s >= static_cast<double>(kShortCaptureSegments) * segment_s) return segment_s;
     const double wanted = duration_s / static_cast<double>(kShortCaptureSegments);
     return std::min(segment_s, std::max(wanted, shortest_segment_s(rpm)));
+}
+
+std::size_t excerpt_samples(double fs_hz, double rpm, std::size_t segment_samples) {
+    const double s = std::max(kExcerptS, rpm > 0.0 ? kExcerptRevolutions * 60.0 / rpm : 0.0);
+    const auto want = static_cast<std::size_t>(std::lround(s * fs_hz));
+    return std::min({want, kExcerptMaxSamples, segment_samples});
 }
 
 double min_record_s(std::size_t segments, double rpm) {
@@ -182,6 +189,18 @@ struct RecordingAnalyzer::Impl {
     // block by far (about half of all the work when run on every segment).
     std::size_t kurtogram_stride = 1;
     std::size_t segment_index = 0;
+    // The waveform excerpt (WaveformExcerpt): the best segment's stretch so far,
+    // with up to excerpt_pad samples on each side for the band-pass to settle
+    // in; band-passed once, in finish(). Buffers sized here: nothing grows.
+    std::size_t excerpt_len = 0;
+    std::size_t excerpt_pad = 0;
+    std::optional<dsp::ZeroPhaseBandPass> excerpt_filter;
+    std::vector<float> excerpt_buf;  // raw samples, pads included
+    std::size_t excerpt_pad_before = 0;
+    double excerpt_kurtosis = 0.0;
+    double excerpt_start_s = 0.0;
+    std::size_t excerpt_segment = 0;
+    bool excerpt_taken = false;
 
     Impl(const AnalysisSetup& s, const MachineContext& m, double fs_value, std::size_t expected, Fidelity fid)
         : setup(s),
@@ -212,6 +231,7 @@ struct RecordingAnalyzer::Impl {
           full_scale(fs_value) {
         for (auto& v : series.values) v.reserve(1024);
         make_profile_bands();
+        init_excerpt();
         const std::size_t expected_segments = expected / n;
         if (fid == Fidelity::fast && expected_segments > kKurtogramSegments)
             kurtogram_stride = (expected_segments + kKurtogramSegments - 1) / kKurtogramSegments;
@@ -274,6 +294,58 @@ struct RecordingAnalyzer::Impl {
         return std::max<std::size_t>(want, 64);
     }
 
+    void init_excerpt() {
+        // The speed given, else the speed searched near (the baseline's): only the
+        // excerpt's length depends on it.
+        const double rpm = machine.rpm && *machine.rpm > 0.0 ? *machine.rpm : machine.rpm_hint;
+        excerpt_len = excerpt_samples(setup.fs_hz, rpm, n);
+        try {
+            excerpt_filter.emplace(dsp::BandPassConfig{setup.hf.low_hz, setup.hf.high_hz}, setup.fs_hz);
+            excerpt_pad = excerpt_filter->settle_samples();
+        } catch (const std::invalid_argument&) {
+            excerpt_filter.reset();  // a band the band-pass cannot make: no excerpt
+        }
+        excerpt_buf.reserve(excerpt_len + 2 * excerpt_pad);
+    }
+
+    // Keep this segment's stretch around its largest HF-band envelope value when
+    // its HF-band kurtosis is the highest so far (the first on a tie).
+    void consider_excerpt(double hf_kurtosis) {
+        if (excerpt_taken && !(hf_kurtosis > excerpt_kurtosis)) return;
+        const auto env = envelope.squared_envelope();
+        if (env.empty() || excerpt_len == 0) return;
+        const auto peak = static_cast<std::size_t>(std::max_element(env.begin(), env.end()) - env.begin());
+        const double peak_s = static_cast<double>(peak) / envelope.envelope_rate_hz();
+        const auto centre = std::min(n - 1, static_cast<std::size_t>(std::lround(peak_s * setup.fs_hz)));
+        const std::size_t start = std::min(centre - std::min(centre, excerpt_len / 2), n - excerpt_len);
+        const std::size_t before = std::min(excerpt_pad, start);
+        const std::size_t after = std::min(excerpt_pad, n - start - excerpt_len);
+        excerpt_buf.assign(segment.begin() + static_cast<std::ptrdiff_t>(start - before),
+                           segment.begin() + static_cast<std::ptrdiff_t>(start + excerpt_len + after));
+        excerpt_pad_before = before;
+        excerpt_kurtosis = hf_kurtosis;
+        excerpt_segment = segment_index;
+        excerpt_start_s = (static_cast<double>(segment_index) * static_cast<double>(n) + static_cast<double>(start)) / setup.fs_hz;
+        excerpt_taken = true;
+    }
+
+    WaveformExcerpt finish_excerpt() {
+        WaveformExcerpt e;
+        if (!excerpt_taken || !excerpt_filter) return e;
+        e.start_s = excerpt_start_s;
+        e.fs_hz = setup.fs_hz;
+        e.segment = excerpt_segment;
+        e.segment_kurtosis = excerpt_kurtosis;
+        e.band = setup.hf;
+        const auto first = excerpt_buf.begin() + static_cast<std::ptrdiff_t>(excerpt_pad_before);
+        e.raw.assign(first, first + static_cast<std::ptrdiff_t>(excerpt_len));
+        std::vector<float> filtered(excerpt_buf.size());
+        excerpt_filter->process(excerpt_buf, filtered);
+        const auto f0 = filtered.begin() + static_cast<std::ptrdiff_t>(excerpt_pad_before);
+        e.hf.assign(f0, f0 + static_cast<std::ptrdiff_t>(excerpt_len));
+        return e;
+    }
+
     void analyse_segment() {
         using SI = SegmentIndicator;
         const std::span<const float> x(segment.data(), n);
@@ -300,6 +372,7 @@ struct RecordingAnalyzer::Impl {
         }
 
         series[SI::hf_kurtosis].push_back(envelope.band_kurtosis());
+        consider_excerpt(envelope.band_kurtosis());
         series[SI::hf_crest].push_back(envelope.band_crest());
         envelope.add_envelope_power(ses_power_sum);
         mean_sq_env_sum += envelope.mean_squared_envelope();
@@ -596,6 +669,7 @@ RecordingAnalysis RecordingAnalyzer::finish() {
             set(RI::ski_slope, 10.0 * std::log10(low / static_cast<double>(nl) / ref_med));
     }
     set(RI::kurtogram_max, r.kurtogram_band.kurtosis);
+    r.excerpt = m.finish_excerpt();
     m.clock.lap(Stage::finish);
     return r;
 }

@@ -132,6 +132,35 @@ struct KurtogramRow {
     std::vector<double> mean;  ///< band b centred at (b + 0.5) x bandwidth
 };
 
+/// A short stretch of the most impulsive segment, for a person to look at: the
+/// segment whose HF-band kurtosis (SegmentIndicator::hf_kurtosis) is the
+/// highest, cut around the largest value of its squared HF-band envelope.
+/// The HF-band kurtosis rather than the raw kurtosis or the impulse rate: it is
+/// measured in the band the excerpt is filtered to, shaft and vane lines do not
+/// dilute it, and it is defined for every segment (a rate of bursts over a
+/// threshold is 0 for many and ties). Empty when no segment was complete or the
+/// band-pass cannot be made at the rate (an HF band reaching 0.49 fs).
+struct WaveformExcerpt {
+    double start_s = 0.0;           ///< first sample's time from the start of the recording
+    double fs_hz = 0.0;
+    std::size_t segment = 0;        ///< segment index (from 0) it was cut from
+    double segment_kurtosis = 0.0;  ///< that segment's HF-band kurtosis
+    Band band;                      ///< pass band of `hf`
+    std::vector<float> raw;         ///< samples as recorded (signal units)
+    std::vector<float> hf;          ///< the same samples band-passed (zero-phase Butterworth, order 4 + 4)
+    bool empty() const { return raw.empty(); }
+};
+
+/// The excerpt lasts kExcerptS or kExcerptRevolutions shaft revolutions, whichever
+/// is longer, and at most kExcerptMaxSamples samples (and one segment): enough to
+/// see whether impacts repeat once a revolution or at blade pass, small enough to
+/// draw and to keep in a finding. Our choice.
+constexpr double kExcerptS = 0.05;
+constexpr double kExcerptRevolutions = 3.0;
+constexpr std::size_t kExcerptMaxSamples = 4096;
+/// Samples in the excerpt at fs_hz and rpm (0 = unknown) for segments of segment_samples.
+std::size_t excerpt_samples(double fs_hz, double rpm, std::size_t segment_samples);
+
 struct RecordingAnalysis {
     AnalysisSetup setup;
     SegmentSeries series;
@@ -165,6 +194,7 @@ struct RecordingAnalysis {
     std::vector<KurtogramRow> kurtogram_map;
     double full_scale = 0.0;       ///< |x| of a full-scale sample in signal units (0 = unknown, float files)
     double quantum = 0.0;          ///< quantisation step of an integer file, signal units (0 = float or unknown)
+    WaveformExcerpt excerpt;       ///< the most impulsive segment's short waveform
 };
 
 /// Where an analyzer's time went, in seconds of wall time per stage (for

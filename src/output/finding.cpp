@@ -184,6 +184,34 @@ void write_levels_summary(std::ostream& out, const AnalyzeResult& r) {
     out << "\n";
 }
 
+std::vector<double> rounded_to_peak(const std::vector<float>& x, int digits) {
+    double peak = 0.0;
+    for (const float v : x) peak = std::max(peak, std::abs(static_cast<double>(v)));
+    std::vector<double> out(x.begin(), x.end());
+    if (!(peak > 0.0) || !std::isfinite(peak)) return out;
+    // Decimals that give the peak `digits` significant digits; dividing an integer by
+    // an exact power of ten gives the double nearest that decimal, which the JSON
+    // writer prints in its shortest form.
+    const int decimals = digits - 1 - static_cast<int>(std::floor(std::log10(peak)));
+    const double scale = std::pow(10.0, std::abs(decimals));
+    for (double& v : out) v = decimals >= 0 ? std::round(v * scale) / scale : std::round(v / scale) * scale;
+    return out;
+}
+
+json waveform_to_json(const AnalyzeResult& r) {
+    const auto& e = r.recording.analysis.excerpt;
+    if (e.empty()) return nullptr;
+    return {{"start_s", e.start_s},
+            {"sample_rate_hz", e.fs_hz},
+            {"unit", r.recording.info.calibration.unit},
+            {"segment", e.segment},
+            {"segment_kurtosis", e.segment_kurtosis},
+            {"hf_low_hz", e.band.low_hz},
+            {"hf_high_hz", e.band.high_hz},
+            {"raw", rounded_to_peak(e.raw, kWaveformDigits)},
+            {"hf", rounded_to_peak(e.hf, kWaveformDigits)}};
+}
+
 json plots_to_json(const AnalyzeResult& r) {
     const auto& a = r.recording.analysis;
     const auto& b = r.baseline;
@@ -214,7 +242,7 @@ json plots_to_json(const AnalyzeResult& r) {
     json rows = json::array();
     for (const auto& kr : a.kurtogram_map)
         rows.push_back({{"level", kr.level}, {"bandwidth_hz", kr.bandwidth_hz}, {"mean", kr.mean}});
-    return {
+    json plots = {
         {"spectrum", spectrum},
         {"envelope_spectrum",
          {{"bin_hz", envelope_bin_hz},
@@ -233,6 +261,8 @@ json plots_to_json(const AnalyzeResult& r) {
           {"hf_low_hz", a.setup.hf.low_hz},
           {"hf_high_hz", a.setup.hf.high_hz}}},
     };
+    if (json w = waveform_to_json(r); !w.is_null()) plots["waveform"] = std::move(w);
+    return plots;
 }
 
 void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string& baseline_path) {

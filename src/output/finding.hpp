@@ -23,6 +23,17 @@ nlohmann::json finding_to_json(const AnalyzeResult& r, const std::string& baseli
 /// averaged squared-envelope spectrum, the kurtogram's mean map (the finding's "plots").
 nlohmann::json plots_to_json(const AnalyzeResult& r);
 
+/// The most impulsive segment's short waveform (the finding's plots.waveform):
+/// start_s, sample_rate_hz, unit, segment, segment_kurtosis, hf_low_hz,
+/// hf_high_hz, raw and hf, the samples in the calibrated unit rounded to
+/// kWaveformDigits significant digits of the excerpt's largest |value|. Null
+/// when the analysis kept none.
+nlohmann::json waveform_to_json(const AnalyzeResult& r);
+inline constexpr int kWaveformDigits = 6;
+/// x as doubles rounded to `digits` significant digits of its largest |value|
+/// (smaller values keep the same decimals, so they print shorter).
+std::vector<double> rounded_to_peak(const std::vector<float>& x, int digits);
+
 /// The derived hydraulics with units in the keys (npsha_m, vapour_pressure_pa,
 /// density_kg_m3, velocity_head_m, absolute_suction_pa, margin_m, margin_ratio,
 /// ...) and the stated inputs; shared by `npsh --json` and the finding's

@@ -315,6 +315,17 @@ Chart drawable(const Chart& in) {
 
 }  // namespace
 
+void draw_stacked(cairo_t* cr, double width, double height, const std::vector<Chart>& charts) {
+    if (charts.empty()) return;
+    const double each = height / static_cast<double>(charts.size());
+    for (std::size_t i = 0; i < charts.size(); ++i) {
+        cairo_save(cr);
+        cairo_translate(cr, 0.0, each * static_cast<double>(i));
+        draw_chart(cr, width, each, charts[i]);
+        cairo_restore(cr);
+    }
+}
+
 void draw_chart(cairo_t* cr, double width, double height, const Chart& chart) {
     const Chart c = drawable(chart);
     set(cr, {1, 1, 1});

@@ -85,6 +85,9 @@ struct Chart {
 
 /// Draw a chart into the rectangle (0, 0, width, height) of cr, in points.
 void draw_chart(cairo_t* cr, double width, double height, const Chart& chart);
+/// Charts one above the other in the rectangle (0, 0, width, height), each
+/// getting an equal share of the height (traces that share their x axis).
+void draw_stacked(cairo_t* cr, double width, double height, const std::vector<Chart>& charts);
 
 /// A map of cells (the kurtogram): rows from the top, each with cells spanning
 /// the x axis evenly; a colour bar on the right; an optional outlined cell.

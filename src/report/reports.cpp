@@ -376,6 +376,63 @@ Figure kurtogram_figure(const json& kg) {
     return f;
 }
 
+// The most impulsive segment's waveform (plots.waveform): the raw trace above the
+// HF band-passed one, both against milliseconds from the excerpt's first sample;
+// dashed lines one shaft revolution apart when the speed is known, so that the
+// eye can tell impacts locked to the rotation from bursts scattered across it.
+Figure waveform_figure(const json& w, double shaft_hz) {
+    const double fs = num(w, "sample_rate_hz", 1.0), start_s = num(w, "start_s");
+    const double lo_hz = num(w, "hf_low_hz"), hi_hz = num(w, "hf_high_hz");
+    const std::string unit = str(w, "unit").empty() ? "signal units" : str(w, "unit");
+    const std::size_t n = field(w, "raw").is_array() ? field(w, "raw").size() : 0;
+    const double span_ms = 1000.0 * static_cast<double>(n) / fs;
+    const std::string band = fixed(lo_hz, 0) + "-" + fixed(hi_hz, 0) + " Hz";
+    Figure f;
+    f.caption = "Waveform of the most impulsive stretch of the recording: " + fixed(span_ms, 1) + " ms starting " +
+                fixed(start_s, 3) + " s into the recording, from the segment with the highest HF-band kurtosis (" +
+                fixed(num(w, "segment_kurtosis"), 2) + "; 3 for noise without impacts), centred on its largest HF-band "
+                "peak. Top: as recorded; bottom: band-passed to the HF band, " + band + "." +
+                (shaft_hz > 0.0 ? " Dashed lines are one shaft revolution apart." : "") +
+                " A guide to reading it: sharp impacts at a regular spacing (once a revolution, or at a steady rate) "
+                "point towards bearing damage or rubbing; bursts at irregular moments, spread across the revolution, "
+                "point towards cavitation. The verdict above rests on the indicators, not on this picture.";
+    f.aspect = 0.62;
+    f.draw = [w, fs, unit, band, span_ms, shaft_hz](cairo_t* cr, double width, double height) {
+        auto chart = [&](const char* key, const std::string& title, const std::string& name) {
+            const auto y = nums(w, key);
+            plot::Chart c;
+            c.title = title;
+            plot::Series s;
+            s.name = name;
+            s.width = 0.7;
+            double top = 0.0;
+            for (std::size_t i = 0; i < y.size(); ++i) {
+                s.x.push_back(1000.0 * static_cast<double>(i) / fs);
+                s.y.push_back(y[i]);
+                top = std::max(top, std::abs(y[i]));
+            }
+            if (!(top > 0.0)) top = 1.0;
+            c.x.lo = 0.0;
+            c.x.hi = span_ms > 0.0 ? span_ms : 1.0;
+            c.x.label = "time from the excerpt's start, ms";
+            c.y.lo = -1.1 * top;
+            c.y.hi = 1.1 * top;
+            c.y.label = "amplitude, " + unit;
+            const double rev_ms = shaft_hz > 0.0 ? 1000.0 / shaft_hz : 0.0;
+            if (rev_ms > 0.0 && span_ms / rev_ms <= 64.0)
+                for (int k = 1; k * rev_ms < c.x.hi; ++k)
+                    c.markers.push_back({k * rev_ms, "", plot::palette::marker_shaft, false});
+            c.series.push_back(std::move(s));
+            if (rev_ms > 0.0) c.series.push_back({{}, {}, "one shaft revolution", plot::palette::marker_shaft, 1.0, true, false, {}});
+            return c;
+        };
+        plot::draw_stacked(cr, width, height,
+                           {chart("raw", "Waveform as recorded", "raw signal"),
+                            chart("hf", "Waveform band-passed to the HF band, " + band, "HF band " + band)});
+    };
+    return f;
+}
+
 struct TrendPoint {
     double days;
     double hf;
@@ -469,6 +526,13 @@ void add_levels_section(Document& d, const json& f, const json& plots) {
     }
 }
 
+// The waveform chart of a finding page; findings written before it existed have none.
+void add_waveform_section(Document& d, const json& plots) {
+    if (!plots.contains("waveform")) return;
+    const double shaft_hz = num(field(plots, "envelope_spectrum"), "shaft_hz");
+    d.blocks.push_back(doc::figures_block({waveform_figure(field(plots, "waveform"), shaft_hz)}));
+}
+
 void add_finding_sections(Document& d, const json& f, bool full) {
     const std::string verdict = str(f, "verdict");
     const json op = f.contains("operating_point") ? field(f, "operating_point") : json::object();
@@ -507,6 +571,7 @@ void add_finding_sections(Document& d, const json& f, bool full) {
         d.blocks.push_back(doc::figures_block({kurtogram_figure(field(plots, "kurtogram"))}));
     }
     add_levels_section(d, f, plots);
+    add_waveform_section(d, plots);
     Block tb = doc::make(Kind::table);
     tb.table = indicator_table(f);
     d.paragraph(std::string("Indicators: the recording's value (median over its segments), the baseline's median and spread "
@@ -1017,6 +1082,30 @@ void check_band_plot(const json& j, const std::string& where, std::initializer_l
     for (const char* k : {"hf_low_hz", "hf_high_hz"}) checked_number(j, k, origin, where + "." + k, 0.0, kMaxHz);
 }
 
+// plots.waveform: absent (older findings), or an object whose two traces are
+// arrays of the same length, 2 .. kMaxWaveformPoints finite numbers, at a positive
+// sample rate, with a band and a start that are finite and in range.
+constexpr std::size_t kMaxWaveformPoints = 8192;  // a trace; cavitas writes at most 4096
+constexpr double kMaxStartS = 1e9;                // s into a recording (31 years)
+void check_waveform(const json& plots, const std::string& origin, PointBudget& budget) {
+    const json& w = field(plots, "waveform");
+    if (w.is_null()) return;
+    const std::string where = "plots.waveform";
+    if (!w.is_object()) bad(origin, where, "is not an object");
+    const std::size_t n = number_array(w, "raw", origin, where, budget, Values::any, true, kMaxWaveformPoints);
+    const std::size_t m = number_array(w, "hf", origin, where, budget, Values::any, true, kMaxWaveformPoints);
+    if (m != n) bad(origin, where + ".hf", "has " + std::to_string(m) + " values for the " + std::to_string(n) + " of raw");
+    if (n < 2) bad(origin, where + ".raw", "has fewer than 2 values");
+    const double fs = checked_number(w, "sample_rate_hz", origin, where + ".sample_rate_hz", 0.0, kMaxHz);
+    if (!(fs >= 1.0)) bad(origin, where + ".sample_rate_hz", "is missing or below 1 Hz");
+    checked_number(w, "start_s", origin, where + ".start_s", 0.0, kMaxStartS);
+    checked_number(w, "segment_kurtosis", origin, where + ".segment_kurtosis", 0.0, 1e12);
+    for (const char* k : {"hf_low_hz", "hf_high_hz"}) checked_number(w, k, origin, where + "." + k, 0.0, kMaxHz);
+    const json& unit = field(w, "unit");
+    if (!unit.is_null() && (!unit.is_string() || unit.get<std::string>().size() > 64))
+        bad(origin, where + ".unit", "is not a unit of at most 64 characters");
+}
+
 const json& checked_finding(const json& f, const std::string& origin) {
     static const std::set<std::string> verdicts{"normal", "incipient", "developed", "indeterminate"};
     if (!f.is_object()) bad(origin, "schema", "belongs to a document that is not an object");
@@ -1081,6 +1170,7 @@ const json& checked_finding(const json& f, const std::string& origin) {
     for (const char* k : {"center_hz", "bandwidth_hz"})
         checked_number(field(kg, "chosen"), k, origin, std::string("plots.kurtogram.chosen.") + k, 0.0, kMaxHz);
     checked_number(field(kg, "chosen"), "level", origin, "plots.kurtogram.chosen.level", -1.0, 64.0);
+    check_waveform(plots, origin, budget);
     return f;
 }
 

@@ -78,6 +78,13 @@ edit("finding_huge_levels.json", normal, lambda d: sp(d).update(level_db=[1e300]
 edit("finding_verdict_number.json", normal, lambda d: d.update(verdict=3))
 edit("finding_evidence_markup.json", normal,
      lambda d: d.update(evidence=["<script>alert(1)</script>", "a & b < c"]))
+wf = lambda d: d["plots"]["waveform"]
+edit("finding_waveform_9000.json", normal, lambda d: wf(d).update(raw=[0.1] * 9000, hf=[0.1] * 9000))
+edit("finding_waveform_text.json", normal, lambda d: wf(d).update(hf="0.1 0.2", sample_rate_hz="fast"))
+edit("finding_waveform_null_value.json", normal, lambda d: wf(d)["raw"].__setitem__(1, None))
+edit("finding_waveform_unequal.json", normal, lambda d: wf(d).update(hf=wf(d)["hf"][:7]))
+edit("finding_waveform_rate_zero.json", normal, lambda d: wf(d).update(sample_rate_hz=0))
+edit("finding_waveform_huge.json", normal, lambda d: wf(d).update(raw=[1e300] * len(wf(d)["raw"]), start_s=1e300))
 edit("compare_no_plots.json", compare, lambda d: d.pop("plots"))
 edit("compare_segments_empty.json", compare, lambda d: d["plots"].update(hf_segments_db={"before": [], "after": []}))
 edit("compare_short_after_db.json", compare, lambda d: d["plots"].update(after_db=d["plots"]["after_db"][:5]))

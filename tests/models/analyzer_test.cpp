@@ -116,3 +116,56 @@ TEST_CASE("Non-finite samples are counted and zeroed before any block sees them"
     CHECK(a.quality.non_finite == 2);
     for (double v : a.series[SegmentIndicator::overall_rms]) CHECK(std::isfinite(v));
 }
+
+TEST_CASE("The waveform excerpt comes from the segment with a burst of impacts, around the largest", "[models]") {
+    // Six 1 s segments of tones and noise; segment 3 alone holds a burst of
+    // five decaying 9 kHz ring-downs (impacts exciting a resonance), the largest at
+    // 3.4321 s. The excerpt must come from segment 3 and hold that impact.
+    const double fs = 25600.0;
+    const auto setup = choose_setup(fs, 0);
+    auto x = tones_and_noise(fs, 6.0, 11);
+    const double impacts_s[] = {3.30, 3.35, 3.4321, 3.45, 3.50};
+    const double heights[] = {0.6, 0.7, 1.5, 0.8, 0.6};
+    for (std::size_t k = 0; k < 5; ++k) {
+        const auto at = static_cast<std::size_t>(std::lround(impacts_s[k] * fs));
+        for (std::size_t i = 0; i < 200; ++i) {
+            const double t = static_cast<double>(i) / fs;
+            x[at + i] += static_cast<float>(heights[k] * std::exp(-t / 0.0008) * std::sin(2 * std::numbers::pi * 9000.0 * t));
+        }
+    }
+    const RecordingAnalysis r = run(x, setup, 4096);
+    const WaveformExcerpt& e = r.excerpt;
+    REQUIRE_FALSE(e.empty());
+    CHECK(e.segment == 3);
+    CHECK(e.start_s >= 3.0);
+    CHECK(e.start_s + static_cast<double>(e.raw.size()) / fs <= 4.0 + 1e-9);
+    // Length: 3 revolutions at 1485 rpm (0.1212 s) is longer than 50 ms; capped at 4096 samples.
+    CHECK(e.raw.size() == excerpt_samples(fs, 1485, setup.segment_size()));
+    CHECK(e.raw.size() == 3103);
+    CHECK(excerpt_samples(96000, 1485, 96000) == kExcerptMaxSamples);
+    CHECK(excerpt_samples(25600, 0, 25600) == 1280);  // 50 ms
+    CHECK(e.hf.size() == e.raw.size());
+    CHECK(e.fs_hz == fs);
+    CHECK(e.band.low_hz == setup.hf.low_hz);
+    CHECK(e.band.high_hz == setup.hf.high_hz);
+    CHECK_THAT(e.segment_kurtosis, WithinAbs(r.series[SegmentIndicator::hf_kurtosis][3], 1e-12));
+    for (std::size_t s = 0; s < r.series.segments(); ++s) CHECK(r.series[SegmentIndicator::hf_kurtosis][s] <= e.segment_kurtosis);
+    // The largest impact lies inside the excerpt, and the band-passed excerpt peaks
+    // within a ring-down (200 samples) after it.
+    const double big_s = impacts_s[2];
+    CHECK(big_s >= e.start_s);
+    CHECK(big_s < e.start_s + static_cast<double>(e.raw.size()) / fs);
+    std::size_t at = 0;
+    for (std::size_t i = 0; i < e.hf.size(); ++i)
+        if (std::abs(e.hf[i]) > std::abs(e.hf[at])) at = i;
+    const double peak_s = e.start_s + static_cast<double>(at) / fs;
+    CHECK(peak_s >= big_s - 1e-3);
+    CHECK(peak_s <= big_s + 200.0 / fs);
+    // The raw excerpt is the recording's samples, unchanged.
+    const auto first = static_cast<std::size_t>(std::lround(e.start_s * fs));
+    for (std::size_t i = 0; i < e.raw.size(); i += 97) CHECK(e.raw[i] == x[first + i]);
+    // Streaming in other blocks gives the same excerpt.
+    const RecordingAnalysis b = run(x, setup, 1000);
+    CHECK(b.excerpt.raw == e.raw);
+    CHECK(b.excerpt.hf == e.hf);
+}

@@ -172,6 +172,21 @@ def outputs(cavitas, samples, schemas, work):
           and len(point_doc.get("channels", [])) == 3, str(point_doc.get("point")))
     with open(compare, encoding="utf-8") as f:
         validate(cv, json.load(f), "compare.json")
+    # The most impulsive segment's waveform (plots.waveform): both traces, of one
+    # length, inside the recording (the analyzer's excerpt, models/analyzer.hpp).
+    for verdict, path in findings.items():
+        with open(path, encoding="utf-8") as f:
+            doc = json.load(f)
+        w = doc.get("plots", {}).get("waveform", {})
+        keys = ("start_s", "sample_rate_hz", "unit", "segment_kurtosis", "hf_low_hz", "hf_high_hz", "raw", "hf")
+        check(f"finding ({verdict}) has plots.waveform with its keys", all(k in w for k in keys), sorted(w))
+        if all(k in w for k in keys):
+            n = len(w["raw"])
+            check(f"finding ({verdict}) waveform traces are of one length, 2 .. 4096 values",
+                  n == len(w["hf"]) and 2 <= n <= 4096, f"{n} and {len(w['hf'])}")
+            check(f"finding ({verdict}) waveform lies inside the recording",
+                  0.0 <= w["start_s"] and w["start_s"] + n / w["sample_rate_hz"] <= doc["input"]["duration_s"] + 1e-6,
+                  f"{w['start_s']} s + {n} samples")
     # A schema that cannot fail checks nothing: a spoiled finding must be refused.
     with open(findings["developed"], encoding="utf-8") as f:
         spoiled = json.load(f)
@@ -222,6 +237,39 @@ def outputs(cavitas, samples, schemas, work):
             for what in ("mm/s RMS", "dB re 1 µm/s²", "dB re baseline"):
                 check(f"{name}.pdf text shows '{what}'", what in text, what)
                 check(f"{name}.html shows '{what}'", what in page, what)
+        if name.startswith("finding-"):
+            # The finding page's waveform chart: its two titles and its caption.
+            check(f"{name}.pdf shows the waveform as recorded and band-passed",
+                  "Waveform as recorded" in text and "Waveform band-passed to the HF band" in text)
+            check(f"{name}.html captions the waveform", "Waveform of the most impulsive stretch" in page)
+    # A finding written before the waveform existed (no plots.waveform) still reports, without the chart.
+    with open(findings["developed"], encoding="utf-8") as f:
+        older = json.load(f)
+    del older["plots"]["waveform"]
+    older_path = os.path.join(work, "finding-without-waveform.json")
+    with open(older_path, "w", encoding="utf-8") as f:
+        json.dump(older, f)
+    older_html = os.path.join(reports, "finding-without-waveform.html")
+    r = run([cavitas, "report", older_path, "--html", older_html])
+    check("a finding without plots.waveform reports", r.returncode == 0, r.stderr)
+    if r.returncode == 0:
+        with open(older_html, encoding="utf-8") as f:
+            page = f.read()
+        check("... with its verdict and no waveform chart",
+              "Developed cavitation" in page and "Waveform of the most impulsive stretch" not in page)
+    # A waveform longer than the report reads is refused with the field named.
+    spoiled = json.loads(json.dumps(older))
+    with open(findings["developed"], encoding="utf-8") as f:
+        spoiled["plots"]["waveform"] = json.load(f)["plots"]["waveform"]
+    spoiled["plots"]["waveform"]["raw"] = [0.0] * 8193
+    spoiled["plots"]["waveform"]["hf"] = [0.0] * 8193
+    spoiled_path = os.path.join(work, "finding-long-waveform.json")
+    with open(spoiled_path, "w", encoding="utf-8") as f:
+        json.dump(spoiled, f)
+    r = run([cavitas, "report", spoiled_path, "--html", os.path.join(reports, "never.html")])
+    check("a waveform of 8193 values is refused naming the field",
+          r.returncode != 0 and "plots.waveform.raw" in r.stderr and not os.path.exists(os.path.join(reports, "never.html")),
+          r.stderr)
     # Letter paper.
     letter = os.path.join(reports, "finding-developed-letter.pdf")
     r = run([cavitas, "report", findings["developed"], "--pdf", letter, "--paper", "letter"])

@@ -19,6 +19,7 @@
 #include <filesystem>
 #include <fstream>
 #include <functional>
+#include <limits>
 #include <numbers>
 #include <optional>
 #include <random>
@@ -966,6 +967,36 @@ TEST_CASE("Every hostile input ends in the contracted exit status with one error
          edited_finding("f-shaft.json", [](nlohmann::json& j) { j["plots"]["envelope_spectrum"]["shaft_hz"] = 1e-9; }),
          "report " + Q("f-shaft.json") + " --html " + Q("r-shaft.html"), 1, {"shaft_hz", "2000 orders"},
          "f-shaft.json", "r-shaft.html", kQuickS},
+        // plots.waveform (the most impulsive segment's excerpt): wrong types, too long, not finite, unequal.
+        {"report: a waveform of 9000 values",
+         edited_finding("f-wf-long.json",
+                        [](nlohmann::json& j) {
+                            j["plots"]["waveform"]["raw"] = std::vector<double>(9000, 0.1);
+                            j["plots"]["waveform"]["hf"] = std::vector<double>(9000, 0.1);
+                        }),
+         "report " + Q("f-wf-long.json") + " --html " + Q("r-wf-long.html"), 1, {"plots.waveform.raw", "at most 8192"},
+         "f-wf-long.json", "r-wf-long.html", kQuickS},
+        {"report: a waveform trace that is text",
+         edited_finding("f-wf-text.json", [](nlohmann::json& j) { j["plots"]["waveform"]["hf"] = "0.1 0.2"; }),
+         "report " + Q("f-wf-text.json") + " --html " + Q("r-wf-text.html"), 1, {"plots.waveform.hf", "not an array"},
+         "f-wf-text.json", "r-wf-text.html", kQuickS},
+        {"report: a waveform with a NaN (written as null)",
+         edited_finding("f-wf-nan.json",
+                        [](nlohmann::json& j) { j["plots"]["waveform"]["raw"][1] = std::numeric_limits<double>::quiet_NaN(); }),
+         "report " + Q("f-wf-nan.json") + " --html " + Q("r-wf-nan.html"), 1, {"plots.waveform.raw", "finite number"},
+         "f-wf-nan.json", "r-wf-nan.html", kQuickS},
+        {"report: waveform traces of unequal length",
+         edited_finding("f-wf-short.json", [](nlohmann::json& j) { j["plots"]["waveform"]["hf"].erase(0); }),
+         "report " + Q("f-wf-short.json") + " --html " + Q("r-wf-short.html"), 1, {"plots.waveform.hf", "values for the"},
+         "f-wf-short.json", "r-wf-short.html", kQuickS},
+        {"report: a waveform at a sample rate of 0 Hz",
+         edited_finding("f-wf-fs.json", [](nlohmann::json& j) { j["plots"]["waveform"]["sample_rate_hz"] = 0.0; }),
+         "report " + Q("f-wf-fs.json") + " --html " + Q("r-wf-fs.html"), 1, {"plots.waveform.sample_rate_hz", "below 1 Hz"},
+         "f-wf-fs.json", "r-wf-fs.html", kQuickS},
+        {"report: a waveform that is a number",
+         edited_finding("f-wf-num.json", [](nlohmann::json& j) { j["plots"]["waveform"] = 3; }),
+         "report " + Q("f-wf-num.json") + " --html " + Q("r-wf-num.html"), 1, {"plots.waveform", "not an object"},
+         "f-wf-num.json", "r-wf-num.html", kQuickS},
         {"report: 1001 evidence sentences",
          edited_finding("f-ev.json",
                         [](nlohmann::json& j) { j["evidence"] = std::vector<std::string>(1001, "a sentence"); }),

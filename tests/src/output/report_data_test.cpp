@@ -24,3 +24,19 @@ TEST_CASE("thin_by_largest halves the bins by their larger amplitude until they 
     CHECK(small.size() == 100);
     CHECK(small_bin == 0.5);
 }
+
+// A finding's waveform (plots.waveform) keeps 6 significant digits of the excerpt's
+// largest value; smaller values keep the same decimals (src/output: rounded_to_peak).
+TEST_CASE("rounded_to_peak keeps the peak's significant digits and the same decimals for the rest", "[report]") {
+    const std::vector<float> x{1.2345678f, 0.00012345678f, -0.5f, 0.0f};
+    const auto r = cavitas::app::rounded_to_peak(x, cavitas::app::kWaveformDigits);
+    REQUIRE(r.size() == 4);
+    CHECK(r[0] == 1.23457);   // 6 significant digits: 5 decimals
+    CHECK(r[1] == 0.00012);   // the same 5 decimals
+    CHECK(r[2] == -0.5);
+    CHECK(r[3] == 0.0);
+    const auto big = cavitas::app::rounded_to_peak(std::vector<float>{123456789.0f, 1234.0f}, 6);
+    CHECK(big[0] == 123457000.0);  // 6 significant digits of 1.23456789e8
+    CHECK(big[1] == 1000.0);
+    CHECK(cavitas::app::rounded_to_peak(std::vector<float>{0.0f, 0.0f}, 6) == std::vector<double>{0.0, 0.0});
+}
