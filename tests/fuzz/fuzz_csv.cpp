@@ -19,14 +19,13 @@
 
 #include "src/io/csv_waveform.hpp"
 #include "src/io/errors.hpp"
+#include "tests/fuzz/source_reads.hpp"
 
 namespace {
 
 using cavitas::app::Calibration;
 using cavitas::app::CsvWaveformSource;
 using cavitas::app::ReadRequest;
-
-constexpr std::size_t kBlocks[] = {1, 7, 300, 4096, 8193};
 
 [[noreturn]] void bug(const char* what, const std::string& detail) {
     std::fprintf(stderr, "\nfuzz_csv: BUG: %s: %s\n", what, detail.c_str());
@@ -41,19 +40,7 @@ void read_all(CsvWaveformSource& source) {
         source.columns().size() != static_cast<std::size_t>(info.channels))
         bug("an invalid layout accepted", info.format + ", fs " + std::to_string(info.fs_hz) + " Hz, " +
                                               std::to_string(info.frames) + " frames");
-    std::vector<float> block(8193);
-    std::size_t total = 0;
-    for (std::size_t i = 0;; ++i) {
-        const std::size_t want = kBlocks[i % std::size(kBlocks)];
-        const std::size_t got = source.read(std::span<float>(block.data(), want));
-        if (got > want) bug("read() overran its block", std::to_string(got) + " for " + std::to_string(want));
-        for (std::size_t k = 0; k < got; ++k)
-            if (!std::isfinite(block[k])) bug("a sample that is not finite", std::to_string(block[k]));
-        if (got == 0) break;
-        total += got;
-    }
-    if (total != info.frames)
-        bug("read a different count than frames", std::to_string(total) + " vs " + std::to_string(info.frames));
+    cavitas::fuzz::read_whole_channel(source, bug);
 }
 
 void one(std::span<const std::byte> bytes, const ReadRequest& request) {

@@ -19,6 +19,7 @@
 #include <vector>
 
 #include "src/io/errors.hpp"
+#include "tests/fuzz/source_reads.hpp"
 #include "src/io/uff58.hpp"
 
 namespace {
@@ -28,8 +29,6 @@ using cavitas::app::InputError;
 using cavitas::app::Uff58Source;
 
 constexpr int kMaxChannels = 8;  // each opening indexes the whole input again
-constexpr std::size_t kBlocks[] = {1, 7, 8191, 8192, 8193, 300, 4096};
-
 [[noreturn]] void bug(const char* what, const std::string& detail) {
     std::fprintf(stderr, "\nfuzz_uff: BUG: %s: %s\n", what, detail.c_str());
     std::fflush(stderr);
@@ -46,19 +45,7 @@ cavitas::app::RecordingInfo read_channel(std::span<const std::byte> bytes, int c
                                                           std::to_string(info.frames) + " frames, channel " +
                                                           std::to_string(info.channel) + " of " +
                                                           std::to_string(info.channels));
-    std::vector<float> block(8193);
-    std::size_t total = 0;
-    for (std::size_t i = 0;; ++i) {
-        const std::size_t want = kBlocks[i % std::size(kBlocks)];
-        const std::size_t got = source.read(std::span<float>(block.data(), want));
-        if (got > want) bug("read() overran its block", std::to_string(got) + " for " + std::to_string(want));
-        for (std::size_t k = 0; k < got; ++k)
-            if (!std::isfinite(block[k])) bug("a sample is not finite", "sample " + std::to_string(total + k));
-        if (got == 0) break;
-        total += got;
-    }
-    if (total != info.frames)
-        bug("read() delivered another count than frames", std::to_string(total) + " of " + std::to_string(info.frames));
+    cavitas::fuzz::read_whole_channel(source, bug);
     return info;
 }
 
