@@ -852,8 +852,9 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     std::size_t failed = 0, cav = 0;
     for (const auto* r : latest) cav += r->verdict == "developed" || r->verdict == "incipient";
     for (const auto& r : rows) failed += r.failed();
-    d.paragraph(std::to_string(rows.size()) + " recordings of " + std::to_string(by_point.size()) +
-                " machine points; " + std::to_string(cav) + " point(s) cavitating at their latest visit; " +
+    d.paragraph(std::to_string(rows.size()) + " rows (one per recording and channel) of " +
+                std::to_string(by_point.size()) + " machine points, " + std::to_string(latest.size()) +
+                " channels in all; " + std::to_string(cav) + " channel(s) cavitating at their latest visit; " +
                 std::to_string(failed) + " row(s) could not be analysed.");
     d.heading("Each machine, worst first");
     doc::Table mt;
@@ -872,7 +873,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     d.heading("Every recording, worst first");
     doc::Table t;
     t.header = {"machine", "point", "ch", "recorded", "verdict", "conf.", "HF dB", "NPSHa/NPSH3", "since previous", "note"};
-    t.widths = {1.1, 0.7, 0.3, 1.5, 1.2, 0.6, 0.7, 0.9, 1.7, 2.3};
+    t.widths = {1.1, 0.7, 0.4, 1.5, 1.2, 0.6, 0.7, 0.9, 1.7, 2.2};
     t.numeric = {false, false, true, false, false, true, true, true, false, false};
     std::vector<const SummaryRow*> all;
     for (const auto& r : rows) all.push_back(&r);
