@@ -6,6 +6,7 @@
 #include <cstdlib>
 
 #include <iostream>
+#include <map>
 #include <sstream>
 
 #include "src/commands/commands.hpp"
@@ -66,6 +67,17 @@ std::string one_line(const std::string& s) {
 
 // The operating-point flags, the same on every command that takes them.
 // beside_recording: the command reads NAME.op.toml beside each recording by default.
+// A CSV waveform's delimiter and decimal mark, when detection is not wanted.
+void add_csv_flags(CLI::App* cmd, ReadRequest& read) {
+    static const std::map<std::string, char> delimiters{{",", ','}, {";", ';'}, {"tab", '\t'}, {"space", ' '}};
+    static const std::map<std::string, char> decimals{{".", '.'}, {",", ','}};
+    cmd->add_option("--csv-delimiter", read.csv_delimiter,
+                    "Field delimiter of a CSV waveform: ',', ';', tab or space (default: detected)")
+        ->transform(CLI::CheckedTransformer(delimiters));
+    cmd->add_option("--csv-decimal", read.csv_decimal, "Decimal mark of a CSV waveform: '.' or ',' (default: detected)")
+        ->transform(CLI::CheckedTransformer(decimals));
+}
+
 // Which channel of a file and how its values become engineering units.
 void add_reading_flags(CLI::App* cmd, std::string& channels, CalibrationText& cal, ReadRequest& read, bool learning) {
     cmd->add_option("--channel", channels,
@@ -95,6 +107,7 @@ void add_reading_flags(CLI::App* cmd, std::string& channels, CalibrationText& ca
     cmd->add_option("--sample-rate", read.sample_rate_hz, "Sample rate, Hz, of a file that does not state it (a CSV "
                                                           "without a time column or rate line, most MATLAB files)")
         ->check(kDecimal)->check(CLI::Range(1.0, 1.0e7));
+    add_csv_flags(cmd, read);
 }
 
 // --channel: one channel goes to read.channel, a list or "all" to `several`.
@@ -258,6 +271,7 @@ int main(int argc, char** argv) {
     inf->add_option("files", io.files, "Recordings (WAV/FLAC, UFF 58/58b, CSV, MATLAB .mat)")->required();
     inf->add_option("--sample-rate", io.read.sample_rate_hz, "Sample rate, Hz, of a file that does not state it")
         ->check(kDecimal)->check(CLI::Range(1.0, 1.0e7));
+    add_csv_flags(inf, io.read);
     inf->add_option("--json", io.json_output, "Also write what was found as JSON to this file (atomically)")
         ->type_name("FILE");
 

@@ -686,3 +686,17 @@ TEST_CASE("analyze --zones: overall velocity in mm/s RMS, its zone from the anal
     CHECK(p["verdict"] == f["verdict"]);
     CHECK(p["confidence"] == f["confidence"]);
 }
+
+TEST_CASE("info reads a CSV waveform with a given delimiter and decimal comma, and refuses one that cannot be told apart", "[cli]") {
+    // ';' between fields and ',' as decimal mark: a common export of spreadsheets set to a European locale
+    // (common practice, no source).
+    const fs::path csv = workdir() / "eu.csv";
+    std::ofstream(csv) << "# sample_rate_hz = 1000\nax [g];ay [g]\n0,5;1,5\n-0,5;2,0\n0,25;0,1\n";
+    Run r = run("info --csv-delimiter ';' --csv-decimal , " + q(csv));
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("decimal comma, 2 channels") != std::string::npos);
+    CHECK(r.out.find("channel 1 'ay': 1000 Hz, 3 samples") != std::string::npos);
+    r = run("info --csv-delimiter , --csv-decimal , " + q(csv));
+    CHECK(r.status == 2);
+    CHECK(r.err.find("cannot be told from the delimiter") != std::string::npos);
+}
