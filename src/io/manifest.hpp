@@ -5,7 +5,7 @@
 // datetime (ISO 8601), rpm, vanes. Optional: the operating-point keys of a
 // sidecar file (suction_pressure, temperature, flow, ...; see
 // operating_point_io.hpp), the sensor columns full_scale (50g), sensitivity
-// (100mV/g), gain (10 or 20dB), unit (of a file's values when it states none),
+// (100mV/g; one per channel of a row naming several: 100.2mV/g;98.7mV/g;101.5mV/g), gain (10 or 20dB), unit (of a file's values when it states none),
 // mount, sensor_max_hz, and the reading hints variable (a MATLAB file's) and
 // sample_rate_hz (of a file that states none). Any other column is kept and passed through to the outputs.
 // The channel cell may name several channels (0,1,2) or all.

@@ -253,11 +253,26 @@ std::vector<ManifestRow> rows_per_channel(const ManifestRow& m) {
             return {bad};
         }
     }
+    // A sensitivity per channel: "100.2mV/g;98.7mV/g;101.5mV/g", in the order of the channels.
+    std::vector<std::string> sensitivities;
+    if (m.calibration.sensitivity && m.calibration.sensitivity->find(';') != std::string::npos) {
+        std::string rest = *m.calibration.sensitivity;
+        for (std::size_t at; (at = rest.find(';')) != std::string::npos; rest.erase(0, at + 1))
+            sensitivities.push_back(rest.substr(0, at));
+        sensitivities.push_back(rest);
+        if (sensitivities.size() != list.size()) {
+            ManifestRow bad = m;
+            bad.error = "sensitivity names " + std::to_string(sensitivities.size()) + " channels' sensitivities for " +
+                        std::to_string(list.size()) + " channels; give one for all or one per channel, in order";
+            return {bad};
+        }
+    }
     std::vector<ManifestRow> out;
-    for (int c : list) {
+    for (std::size_t k = 0; k < list.size(); ++k) {
         ManifestRow one = m;
-        one.channel = c;
+        one.channel = list[k];
         one.one_of_several = list.size() > 1;
+        if (!sensitivities.empty()) one.calibration.sensitivity = sensitivities[k];
         out.push_back(std::move(one));
     }
     return out;

@@ -558,6 +558,20 @@ TEST_CASE("route: a triaxial row gives a finding per channel and a machine of tw
     CHECK(m["worst_point"] == "NDE-T");
     CHECK(m["worst_channel"] == 0);
     CHECK(r.out.find("OW-P101: developed (2 point(s), 4 channel(s)") != std::string::npos);
+
+    // One sensitivity per axis: a full scale of 5 V over 100 mV/g is the baseline's 50 g per full scale
+    // (5 V / 0.1 V/g, hand computation), so the verdicts stay; two sensitivities for three channels fail the row.
+    std::ofstream(dir / "m2.csv") << "file,machine,point,channel,datetime,rpm,vanes,full_scale,sensitivity\n"
+                                     "t_visit.wav,OW-P101,NDE-T,\"0,1,2\",2026-11-02T08:10,1485,7,5V,100mV/g;100mV/g;100mV/g\n"
+                                     "t_visit.wav,OW-P101,NDE-T,\"0,1,2\",2026-11-03T08:10,1485,7,5V,100mV/g;100mV/g\n";
+    r = run("route " + q(dir / "m2.csv") + " --baselines " + q(dir / "lib") + " --no-store --out " + q(dir / "out2"));
+    CHECK(r.status == 1);  // the bad row fails on its own
+    const auto rows2 = jsonl(dir / "out2" / "summary.jsonl");
+    REQUIRE(rows2.size() == 4);
+    CHECK(rows2[0]["verdict"] == "developed");
+    CHECK(rows2[0]["channel"] == 0);
+    CHECK(rows2[3]["verdict"] == "error");
+    CHECK(rows2[3]["reason"].get<std::string>().find("2 channels' sensitivities for 3 channels") != std::string::npos);
 }
 
 TEST_CASE("route: the library's severity_zones.toml gives every finding its zone, --zones overrides it, a bad one stops the route",
