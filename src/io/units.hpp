@@ -8,12 +8,16 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 
 namespace cavitas::app {
 
 /// "50g" -> {50, "g"}; "9.81m/s2" -> {9.81, "m/s2"}; "2000Pa" -> {2000, "Pa"}.
 /// Without a calibration samples stay in full-scale units, {1, "FS"}.
 struct Calibration {
+    Calibration() = default;
+    Calibration(double full_scale_value, std::string unit_name, std::string how = {})
+        : full_scale(full_scale_value), unit(std::move(unit_name)), account(std::move(how)) {}
     /// Engineering units per unit of the file's values: per full-scale
     /// sample for a sound file, per stated unit (or volt) for other files.
     double full_scale = 1.0;
