@@ -201,10 +201,10 @@ Calibration resolve_calibration(const CalibrationText& text, const std::string& 
     Calibration c;
     if (!text.empty()) {
         c = from_flags(text, *values, path);
-    } else if (stored && signal_unit(stored->values_unit) &&
-               signal_unit(stored->values_unit)->name == values->name) {
+    } else if (const auto learned = stored ? signal_unit(stored->values_unit) : std::nullopt;
+               learned && learned->name == values->name) {
         c = stored->calibration;
-        c.full_scale *= values->si_per_unit / signal_unit(stored->values_unit)->si_per_unit;
+        c.full_scale *= values->si_per_unit / learned->si_per_unit;
         c.account = c.account.empty() ? "the baseline's calibration" : c.account + " (the baseline's)";
         return c;
     } else {

@@ -7,6 +7,7 @@
 #include <cctype>
 #include <cstring>
 #include <fstream>
+#include <stdexcept>
 
 #include "src/io/csv_waveform.hpp"
 #include "src/io/errors.hpp"
@@ -59,16 +60,25 @@ RecordingFormat detect_format(const std::string& path) {
     return RecordingFormat::sound_file;
 }
 
-std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadRequest& request,
-                                            const Calibration& calibration) {
-    switch (detect_format(path)) {
+namespace {
+
+// The reader of `format` (all cases of the enumeration are handled).
+std::unique_ptr<AudioSource> open_as(RecordingFormat format, const std::string& path, const ReadRequest& request,
+                                     const Calibration& calibration) {
+    switch (format) {
         case RecordingFormat::sound_file: return std::make_unique<SndfileSource>(path, request.channel, calibration);
         case RecordingFormat::csv: return std::make_unique<CsvWaveformSource>(path, request, calibration);
         case RecordingFormat::mat: return std::make_unique<MatSource>(path, request, calibration);
         case RecordingFormat::uff58: return std::make_unique<Uff58Source>(path, request.channel, calibration);
-        default: break;
     }
-    throw InputError(path + ": this kind of file is not read yet");
+    throw std::logic_error("open_as: unknown format");
+}
+
+}  // namespace
+
+std::unique_ptr<AudioSource> open_recording(const std::string& path, const ReadRequest& request,
+                                            const Calibration& calibration) {
+    return open_as(detect_format(path), path, request, calibration);
 }
 
 namespace {
@@ -100,12 +110,13 @@ private:
 std::unique_ptr<AudioSource> open_calibrated(const std::string& path, const ReadRequest& request,
                                              const CalibrationText& text,
                                              const std::optional<StoredCalibration>& stored) {
-    if (detect_format(path) == RecordingFormat::sound_file) {
+    const RecordingFormat format = detect_format(path);
+    if (format == RecordingFormat::sound_file) {
         // libsndfile's samples are fractions of full scale; the reader applies the calibration itself.
         const Calibration c = resolve_calibration(text, "FS", path, stored);
         return std::make_unique<SndfileSource>(path, request.channel, c);
     }
-    auto source = open_recording(path, request, Calibration{1.0, "", ""});
+    auto source = open_as(format, path, request, Calibration{1.0, "", ""});
     const Calibration c = resolve_calibration(text, source->info().stated_unit, path, stored);
     return std::make_unique<ScaledSource>(std::move(source), c);
 }
@@ -168,10 +179,8 @@ FileSummary describe_recording(const std::string& path, const ReadRequest& reque
         case RecordingFormat::csv: return describe_csv_waveform(path, request);
         case RecordingFormat::mat: return describe_mat(path);
         case RecordingFormat::uff58: return describe_uff58(path);
-        default: break;
     }
-    (void)request;
-    throw InputError(path + ": this kind of file is not read yet");
+    throw std::logic_error("describe_recording: unknown format");
 }
 
 }  // namespace cavitas::app
