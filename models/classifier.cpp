@@ -43,7 +43,7 @@ void assign_grade(Finding& f) {
     }
     for (const auto& w : f.warnings) f.grade_reasons.push_back(w);
     const bool baseline = !f.baseline_warnings.empty();
-    if (f.hydraulic_only || f.confidence < 0.6 || (baseline && f.grade_reasons.size() > 1))
+    if (f.hydraulic_only || f.off_duty || f.confidence < 0.6 || (baseline && f.grade_reasons.size() > 1))
         f.grade = ConfidenceGrade::low;
     else if (f.confidence >= 0.85 && f.grade_reasons.empty())
         f.grade = ConfidenceGrade::high;
@@ -53,6 +53,18 @@ void assign_grade(Finding& f) {
         f.grade_reasons.push_back(fmt("the evidence is not clear-cut: findings like this are right about %.0f %% of the "
                                       "time on the labelled evaluation sets",
                                       100.0 * f.confidence));
+}
+
+const char* to_string(Concern c) {
+    switch (c) {
+        case Concern::bearing_impacts: return "bearing_impacts";
+        case Concern::flow_unsteadiness: return "flow_unsteadiness";
+        case Concern::recirculation: return "recirculation";
+        case Concern::speed_change: return "speed_change";
+        case Concern::mains_pickup: return "mains_pickup";
+        case Concern::off_duty: return "off_duty";
+    }
+    return "";
 }
 
 const std::vector<std::string>& cavitation_cautions() {
@@ -396,24 +408,25 @@ void say_signs(const RecordingAnalysis& a, const Signs& s, const Attribution& at
 
 void say_lookalikes(const RecordingAnalysis& a, const Signs& s, const Attribution& at, Finding& f) {
     if (s.mains)
-        f.other_findings.push_back(fmt("mains hum at %.0f Hz with %d harmonic line(s): electrical pickup (check cable shield "
+        f.other_findings.push_back({Concern::mains_pickup, fmt("mains hum at %.0f Hz with %d harmonic line(s): electrical pickup (check cable shield "
                                        "and grounding), not cavitation",
-                                       a.mains_hz, a.mains_lines - 1));
+                                       a.mains_hz, a.mains_lines - 1)});
     if (s.bearing)
         f.other_findings.push_back(
-            fmt("periodic impacts at %.2fx shaft speed (%.1f Hz, %.1f dB over the envelope floor) %s: bearing-like "
+            {Concern::bearing_impacts, fmt("periodic impacts at %.2fx shaft speed (%.1f Hz, %.1f dB over the envelope floor) %s: bearing-like "
                 "(non-integer order)%s; check the bearings",
                 s.b_order, s.b_hz, s.b_prom, s.b_family.c_str(),
-                at.hf_rise == Cause::cavitation ? ", beside the cavitation: both are present" : ", not cavitation"));
+                at.hf_rise == Cause::cavitation ? ", beside the cavitation: both are present" : ", not cavitation")});
     if (s.lf_alert && !s.hf_alert && !s.mains) {
         const bool claimed = at.impulses == Cause::recirculation || at.lines == Cause::recirculation;
         f.other_findings.push_back(
-            fmt("LF band %.0f-%.0f Hz %+.1f dB re baseline with no HF rise: flow turbulence or recirculation%s; check the flow "
+            {claimed ? Concern::recirculation : Concern::flow_unsteadiness,
+             fmt("LF band %.0f-%.0f Hz %+.1f dB re baseline with no HF rise: flow turbulence or recirculation%s; check the flow "
                 "against the pump's minimum continuous flow and the operating point",
                 a.setup.lf.low_hz, a.setup.lf.high_hz, s.lf.change,
                 claimed ? " at low flow, with impacts at blade passage (recirculation at the vane inlets can erode "
                           "them if it persists)"
-                        : ""));
+                        : "")});
     }
 }
 
@@ -499,9 +512,10 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
     }
     const double speed_change = a.rpm > 0.0 && b.rpm > 0.0 ? a.rpm / b.rpm - 1.0 : 0.0;
     if (std::abs(speed_change) >= 0.01 && b.speed.speeds <= 1)
-        f.other_findings.push_back(fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: levels brought to "
-                                       "this speed (a speed change, not cavitation), envelope lines compared in orders",
-                                       a.rpm, 100.0 * speed_change, b.rpm));
+        f.other_findings.push_back({Concern::speed_change,
+                                    fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: levels brought "
+                                        "to this speed (a speed change, not cavitation), envelope lines compared in orders",
+                                        a.rpm, 100.0 * speed_change, b.rpm)});
 
     // Steps 2-4: the signs, their causes, the grade.
     const Signs s = read_signs(a, b, c, f);

@@ -82,11 +82,29 @@ struct ConfidenceCalibration {
 extern const ConfidenceCalibration kConfidenceCalibration;
 double calibrated_confidence(double raw_score, const ConfidenceCalibration& c = kConfidenceCalibration);
 /// high: confidence >= 0.85 with nothing that lowered it; low: under 0.6, or
-/// a verdict resting on the operating point alone, or a baseline with
-/// warnings and another doubt; moderate otherwise. A baseline with warnings
+/// a verdict resting on the operating point alone, or a duty far from the
+/// baseline's, or a baseline with warnings and another doubt; moderate otherwise. A baseline with warnings
 /// never allows high. Sets grade and reasons from the finding's warnings and
 /// baseline warnings.
 void assign_grade(Finding& finding);
+
+/// What a finding other than cavitation points at: each one says its kind,
+/// so that the next steps can follow it (models/actions.hpp).
+enum class Concern {
+    bearing_impacts,    ///< a non-integer-order impact family in the envelope
+    flow_unsteadiness,  ///< an LF rise with no HF rise
+    recirculation,      ///< the LF rise with impacts at blade passage
+    speed_change,       ///< a speed off the baseline's, levels brought to it
+    mains_pickup,       ///< mains hum lines
+    off_duty,           ///< a flow off the baseline's (models/operating_point.hpp)
+};
+const char* to_string(Concern c);
+
+/// A finding of its own beside the verdict: its kind and the words for a person.
+struct OtherFinding {
+    Concern concern;
+    std::string text;
+};
 
 /// One indicator set beside the baseline.
 struct Comparison {
@@ -107,7 +125,7 @@ struct Finding {
     ConfidenceGrade grade = ConfidenceGrade::low;
     std::vector<std::string> grade_reasons;  ///< why not high
     std::vector<std::string> evidence;
-    std::vector<std::string> other_findings;
+    std::vector<OtherFinding> other_findings;
     std::vector<std::string> warnings;       ///< things that lowered the confidence
     std::vector<std::string> reasons;        ///< why indeterminate (what to do)
     std::vector<Comparison> comparisons;
@@ -118,6 +136,7 @@ struct Finding {
     double bearing_order = 0.0;
     std::vector<BaselineWarning> baseline_warnings;  ///< repeated from the baseline: they limit the confidence
     bool hydraulic_only = false;             ///< cavitation said by the operating point alone (grade_with_margin)
+    bool off_duty = false;                   ///< the duty is far from the baseline's: not valid there (grade low)
 };
 
 /// context: the recording's unit token ("g", "m/s2", "Pa", "FS"; also used in the

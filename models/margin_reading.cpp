@@ -139,10 +139,12 @@ bool grade_with_margin(Finding& f, const Hydraulics& h) {
     return true;
 }
 
-void flag_operating_point_differences(Finding& f, const std::vector<std::string>& differences) {
+void flag_operating_point_differences(Finding& f, const std::vector<DutyDifference>& differences) {
     for (const auto& d : differences) {
-        f.warnings.push_back(d);
+        f.other_findings.push_back({Concern::off_duty, d.text});
+        f.warnings.push_back(d.brief + " (see other findings)");
         f.raw_score *= 0.85;
+        f.off_duty |= d.far;
     }
     if (differences.empty() || f.verdict == Verdict::indeterminate) return;
     f.confidence = calibrated_confidence(f.raw_score);

@@ -48,8 +48,10 @@ constexpr double kNearBoilingNpshM = 1.0;
 /// when the verdict was raised.
 bool grade_with_margin(Finding& finding, const Hydraulics& h);
 
-/// Differences from the baseline's operating point lower the confidence like
-/// a quality warning (x 0.85 each) and are listed under the finding's warnings.
-void flag_operating_point_differences(Finding& finding, const std::vector<std::string>& differences);
+/// Differences from the baseline's operating point are findings of their own
+/// (Concern::off_duty) and lower the confidence like a quality warning (x 0.85
+/// each, listed under the finding's warnings); a duty far from the baseline's
+/// makes the grade low (the baseline is not valid there).
+void flag_operating_point_differences(Finding& finding, const std::vector<DutyDifference>& differences);
 
 }  // namespace cavitas::models

@@ -227,20 +227,35 @@ OperatingPointSummary summarize(const std::vector<std::pair<OperatingPoint, Hydr
     return s;
 }
 
-std::vector<std::string> compare_with_baseline(const OperatingPointSummary& b, const OperatingPoint& now,
-                                               const OperatingPointLimits& limits) {
-    std::vector<std::string> out;
-    if (b.flow_m3_s && now.flow_m3_s && *b.flow_m3_s > 0.0) {
-        const double change = (*now.flow_m3_s - *b.flow_m3_s) / *b.flow_m3_s;
-        if (std::abs(change) > limits.flow_change)
-            out.push_back(fmt("baseline learned at %.4g m3/h, this recording at %.4g m3/h ", *b.flow_m3_s * kM3sToM3h,
-                              *now.flow_m3_s * kM3sToM3h) +
-                          fmt("(%+.0f %%, more than %.0f %%): flow noise and the NPSH the pump needs change with flow, so "
-                              "the baseline may not apply; learn one at this duty point",
-                              100.0 * change, 100.0 * limits.flow_change));
-    } else if (b.flow_m3_s && now.flow_m3_s && *b.flow_m3_s == 0.0 && *now.flow_m3_s > 0.0) {
-        out.push_back("baseline learned at zero flow (shut valve), this recording with flow: the baseline does not apply");
+std::vector<DutyDifference> compare_with_baseline(const OperatingPointSummary& b, const OperatingPoint& now,
+                                                  const OperatingPointLimits& limits) {
+    std::vector<DutyDifference> out;
+    if (!b.flow_m3_s || !now.flow_m3_s) return out;
+    const double then_m3h = *b.flow_m3_s * kM3sToM3h, now_m3h = *now.flow_m3_s * kM3sToM3h;
+    if (*b.flow_m3_s == 0.0) {
+        if (*now.flow_m3_s > 0.0)
+            out.push_back({"baseline learned at zero flow (shut valve), this recording with flow: the baseline does not "
+                           "apply at this duty; learn one at this duty point",
+                           "baseline learned at zero flow", true});
+        return out;
     }
+    const double share = *now.flow_m3_s / *b.flow_m3_s;
+    if (std::abs(share - 1.0) <= limits.flow_change) return out;
+    const bool far = share < limits.far_flow_share || share > 1.0 / limits.far_flow_share;
+    const std::string both = fmt("baseline learned at %.4g m3/h, this recording at %.4g m3/h (%.0f %% of the baseline's "
+                                 "flow, %+.0f %%)",
+                                 then_m3h, now_m3h, 100.0 * share, 100.0 * (share - 1.0));
+    if (far)
+        out.push_back({"duty far from the baseline's: " + both +
+                           ": the baseline is not valid at this duty (part-load recirculation or run-out change the "
+                           "spectrum); re-measure at the baseline's duty, or learn a baseline at this one",
+                       "the duty is far from the baseline's: " + both, true});
+    else
+        out.push_back({"duty off the baseline's: " + both +
+                           fmt(", more than %.0f %%: flow noise and the NPSH the pump needs change with flow, so the "
+                               "baseline may not apply; re-measure at the baseline's duty, or learn a baseline at this one",
+                               100.0 * limits.flow_change),
+                       "the duty is off the baseline's: " + both, false});
     return out;
 }
 

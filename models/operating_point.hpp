@@ -86,13 +86,27 @@ struct OperatingPointLimits {
     /// climb steeply with flow away from the best-efficiency point; as for speed,
     /// our choice is 10 %.
     double flow_change = 0.10;
+    /// Flow under this share of the baseline's, or over its inverse: the
+    /// baseline does not apply at all (suction recirculation and flow noise of
+    /// part load, or run-out, change the spectrum the baseline describes). The
+    /// allowable operating region of ANSI/HI 9.6.3 spans roughly 70-120 % of
+    /// the best-efficiency flow (from memory); half the baseline's flow is our
+    /// choice of "far outside it" whatever the baseline's own duty.
+    double far_flow_share = 0.5;
+};
+
+/// A way the recording's duty differs from the baseline's.
+struct DutyDifference {
+    std::string text;   ///< the finding in words, with both duties and what to do
+    std::string brief;  ///< one clause for the list of what lowered the confidence
+    bool far = false;   ///< beyond far_flow_share: the baseline is not valid at this duty
 };
 
 /// Differences between the baseline's operating point and this recording's
-/// that make the comparison doubtful: one sentence each (empty when comparable
-/// or when either side is not stated). Speed is judged by the quality gate
+/// that make the comparison doubtful (empty when comparable or when either
+/// side is not stated). Speed is judged by the quality gate
 /// (models/quality.hpp), which sees the speed the analysis used.
-std::vector<std::string> compare_with_baseline(const OperatingPointSummary& baseline, const OperatingPoint& now,
-                                               const OperatingPointLimits& limits = {});
+std::vector<DutyDifference> compare_with_baseline(const OperatingPointSummary& baseline, const OperatingPoint& now,
+                                                  const OperatingPointLimits& limits = {});
 
 }  // namespace cavitas::models

@@ -235,6 +235,24 @@ VelocityFinding velocity_finding(const AnalyzedRecording& rec, const std::option
     return v;
 }
 
+namespace {
+
+std::optional<models::MarginContext> margin_context(const std::optional<OperatingPointFinding>& of) {
+    if (!of) return std::nullopt;
+    models::MarginContext m;
+    m.agreement = of->reading.agreement;
+    const auto& h = of->resolved.hydraulics;
+    if (h.npsh) m.npsha_m = h.npsh->npsha_m;
+    if (h.margin) {
+        m.margin_ratio = h.margin->ratio;
+        m.below_guidance = h.margin->margin_class == models::MarginClass::thin ||
+                           h.margin->margin_class == models::MarginClass::below_npsh3;
+    }
+    return m;
+}
+
+}  // namespace
+
 AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     AnalyzeResult r;
     r.baseline = read_baseline_file(o.baseline, o.read.channel);
@@ -265,8 +283,10 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
         of.reading = models::read_margin(r.finding.verdict, of.resolved.hydraulics);
         of.baseline_differences = models::compare_with_baseline(r.baseline.operating_point, of.resolved.op);
         models::flag_operating_point_differences(r.finding, of.baseline_differences);
+        r.operator_note = of.resolved.op.note;
         r.operating = std::move(of);
     }
+    r.actions = models::plan_actions(r.finding, margin_context(r.operating));
     return r;
 }
 

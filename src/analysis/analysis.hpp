@@ -10,6 +10,7 @@
 #include <string>
 #include <vector>
 
+#include "models/actions.hpp"
 #include "models/analyzer.hpp"
 #include "models/baseline.hpp"
 #include "models/classifier.hpp"
@@ -117,7 +118,7 @@ VelocityFinding velocity_finding(const AnalyzedRecording& rec, const std::option
 struct OperatingPointFinding {
     ResolvedOperatingPoint resolved;
     models::MarginReading reading;
-    std::vector<std::string> baseline_differences;  ///< also in the finding's warnings
+    std::vector<models::DutyDifference> baseline_differences;  ///< also the finding's off-duty findings
 };
 
 struct AnalyzeResult {
@@ -126,6 +127,8 @@ struct AnalyzeResult {
     models::Finding finding;
     std::optional<OperatingPointFinding> operating;
     VelocityFinding velocity;
+    std::vector<models::Action> actions;  ///< what to do, soonest first (models/actions.hpp)
+    std::string operator_note;            ///< the operator's own words (sidecar or manifest `note`)
 };
 AnalyzeResult analyze(const AnalysisRequest& request, const Progress& progress = {});
 /// The point's verdict over its channels: the worst (developed, incipient,

@@ -71,7 +71,6 @@ void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
     for (const auto& n : of.reading.notes) out << "    - " << n << "\n";
     // Differences from the baseline's duty are listed under "lowered confidence" above.
     for (const auto& n : h.notes) out << "    . " << n << "\n";
-    if (!op.note.empty()) out << "    note        " << op.note << "\n";
 }
 
 }  // namespace
@@ -287,7 +286,13 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
     }
     if (!f.other_findings.empty()) {
         out << "  other findings:\n";
-        for (const auto& s : f.other_findings) out << "    - " << s << "\n";
+        for (const auto& o : f.other_findings) out << "    - " << o.text << "\n";
+    }
+    if (!r.operator_note.empty()) out << "  operator's note: " << r.operator_note << "\n";
+    if (!r.actions.empty()) {
+        out << "  what to do (priority, re-check within):\n";
+        for (const auto& act : r.actions)
+            out << "    > " << models::to_string(act.priority) << ", " << act.recheck_days << " d: " << act.step << "\n";
     }
     if (!f.baseline_warnings.empty()) {
         out << "  baseline warnings (from " << baseline_path << "):\n";
@@ -314,6 +319,27 @@ void add_absolute_band_levels(json& bands, const AnalyzeResult& r) {
         if (c.key == "hf_band_level_db") bands["hf_level_db_" + ref->key_suffix] = c.value + ref->offset_db;
         if (c.key == "lf_band_level_db") bands["lf_level_db_" + ref->key_suffix] = c.value + ref->offset_db;
     }
+}
+
+json other_findings_to_json(const std::vector<models::OtherFinding>& found) {
+    json out = json::array();
+    for (const auto& o : found) out.push_back(o.text);
+    return out;
+}
+
+json actions_to_json(const std::vector<models::Action>& actions) {
+    json out = json::array();
+    for (const auto& a : actions) {
+        json j = {{"topic", models::to_string(a.topic)},
+                  {"priority", models::to_string(a.priority)},
+                  {"priority_rank", models::rank(a.priority)},
+                  {"recheck_days", a.recheck_days},
+                  {"step", a.step},
+                  {"basis", a.basis}};
+        if (a.concern) j["concern"] = models::to_string(*a.concern);
+        out.push_back(std::move(j));
+    }
+    return out;
 }
 
 }  // namespace
@@ -388,7 +414,9 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"confidence_grade", models::to_string(f.grade)},
         {"confidence_reasons", f.grade_reasons},
         {"evidence", f.evidence},
-        {"other_findings", f.other_findings},
+        {"other_findings", other_findings_to_json(f.other_findings)},
+        {"actions", actions_to_json(r.actions)},
+        {"operator_note", r.operator_note},
         {"baseline_warnings", warnings_to_json(f.baseline_warnings)},
         {"cautions", cavitating(f.verdict) ? json(models::cavitation_cautions()) : json::array()},
         {"indicators", indicators},
@@ -428,7 +456,9 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         op["agreement"] = models::to_string(r.operating->reading.agreement);
         op["summary"] = r.operating->reading.summary;
         op["reading_notes"] = r.operating->reading.notes;
-        op["baseline_differences"] = r.operating->baseline_differences;
+        json differences = json::array();
+        for (const auto& d : r.operating->baseline_differences) differences.push_back(d.text);
+        op["baseline_differences"] = differences;
         j["operating_point"] = op;
     }
     return j;

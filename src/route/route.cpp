@@ -53,6 +53,61 @@ std::string get_str(const json& j, const char* key) {
     return j[key].get<std::string>();
 }
 
+constexpr int kMaxRecheckDays = 3650;  // ten years: anything longer is not a re-check
+
+json actions_to_json(const std::vector<RowAction>& actions) {
+    json out = json::array();
+    for (const auto& a : actions) {
+        ordered_json j;
+        j["topic"] = a.topic;
+        if (!a.concern.empty()) j["concern"] = a.concern;
+        j["priority"] = a.priority;
+        j["priority_rank"] = a.priority_rank;
+        j["recheck_days"] = a.recheck_days;
+        j["step"] = a.step;
+        j["basis"] = a.basis;
+        out.push_back(json(j));
+    }
+    return out;
+}
+
+RowAction action_from_json(const json& j) {
+    static const std::map<std::string, int> ranks{{"urgent", 1}, {"soon", 2}, {"planned", 3}, {"watch", 4}};
+    if (!j.is_object()) throw std::invalid_argument("'actions' holds an entry that is not an object");
+    RowAction a;
+    a.topic = get_str(j, "topic");
+    a.concern = get_str(j, "concern");
+    a.priority = get_str(j, "priority");
+    const auto rank = ranks.find(a.priority);
+    if (rank == ranks.end()) throw std::invalid_argument("an action's 'priority' is not urgent, soon, planned or watch");
+    a.priority_rank = rank->second;
+    const double days = get_opt(j, "recheck_days").value_or(-1.0);
+    if (!(days >= 0 && days <= kMaxRecheckDays && days == std::floor(days)))
+        throw std::invalid_argument("an action's 'recheck_days' is not a whole number of days 0 .. 3650");
+    a.recheck_days = static_cast<int>(days);
+    a.step = get_str(j, "step");
+    if (a.step.empty()) throw std::invalid_argument("an action's 'step' is empty");
+    a.basis = get_str(j, "basis");
+    return a;
+}
+
+RowAction row_action(const models::Action& a) {
+    RowAction r;
+    r.topic = models::to_string(a.topic);
+    if (a.concern) r.concern = models::to_string(*a.concern);
+    r.priority = models::to_string(a.priority);
+    r.priority_rank = models::rank(a.priority);
+    r.recheck_days = a.recheck_days;
+    r.step = a.step;
+    r.basis = a.basis;
+    return r;
+}
+
+// "soon, re-check within 14 d: Check the bearings ..." - one action in a CSV cell or a line.
+std::string action_words(const RowAction& a) {
+    return a.priority + ", re-check within " + std::to_string(a.recheck_days) + " d: " + a.step;
+}
+
 }  // namespace
 
 json SummaryRow::to_json() const {
@@ -78,6 +133,8 @@ json SummaryRow::to_json() const {
     put_opt(j, "margin_ratio", margin_ratio);
     j["agreement"] = agreement;
     j["other_findings"] = other_findings;
+    j["note"] = note;
+    j["actions"] = actions_to_json(actions);
     put_opt(j, "duration_s", duration_s);
     j["sha256"] = sha256;
     j["baseline"] = baseline;
@@ -139,6 +196,13 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
         r.margin_ratio = get_opt(j, "margin_ratio");
         r.agreement = get_str(j, "agreement");
         r.other_findings = get_str(j, "other_findings");
+        r.note = get_str(j, "note");
+        if (j.contains("actions")) {
+            if (!j["actions"].is_array()) throw std::invalid_argument("'actions' is not an array");
+            for (const auto& a : j["actions"]) r.actions.push_back(action_from_json(a));
+            std::stable_sort(r.actions.begin(), r.actions.end(),
+                             [](const RowAction& a, const RowAction& b) { return a.priority_rank < b.priority_rank; });
+        }
         r.duration_s = get_opt(j, "duration_s");
         r.sha256 = get_str(j, "sha256");
         r.baseline = get_str(j, "baseline");
@@ -163,13 +227,30 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
     }
 }
 
+namespace {
+
+int soonest_recheck_days(const SummaryRow& r) {
+    int days = kMaxRecheckDays;
+    for (const auto& a : r.actions) days = std::min(days, a.recheck_days);
+    return days;
+}
+
+std::string joined_actions(const SummaryRow& r) {
+    std::string s;
+    for (const auto& a : r.actions) s += (s.empty() ? "" : " | ") + action_words(a);
+    return s;
+}
+
+}  // namespace
+
 std::vector<std::string> summary_columns(const std::vector<std::string>& extra_columns) {
     std::vector<std::string> c = {"line",        "file",         "machine",       "point",
                                   "channel",     "datetime",     "verdict",       "confidence",
                                   "hf_rise_db",  "hf_kurtosis",  "impulse_rate_per_s", "lf_rise_db",
                                   "bpf_modulation", "npsha_m",   "margin_ratio",  "agreement",
                                   "previous_datetime", "previous_verdict", "hf_rise_change_db", "other_findings",
-                                  "reason",      "sha256",       "finding"};
+                                  "reason",      "sha256",       "finding",       "note",
+                                  "priority",    "recheck_days", "actions"};
     c.insert(c.end(), extra_columns.begin(), extra_columns.end());
     return c;
 }
@@ -197,7 +278,11 @@ std::vector<std::string> summary_cells(const SummaryRow& r) {
                                   r.other_findings,
                                   r.reason,
                                   r.sha256,
-                                  r.finding};
+                                  r.finding,
+                                  r.note,
+                                  r.actions.empty() ? std::string() : r.actions.front().priority,
+                                  r.actions.empty() ? std::string() : std::to_string(soonest_recheck_days(r)),
+                                  joined_actions(r)};
     for (const auto& [k, v] : r.extra) c.push_back(v);
     return c;
 }
@@ -340,7 +425,9 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         row.impulse_rate_per_s = comparison(f, "impulse_rate_per_s", false);
         row.lf_rise_db = comparison(f, "lf_band_level_db", true);
         row.bpf_modulation = comparison(f, "modulation_bpf_ratio", false);
-        row.other_findings = join(f.other_findings, "; ");
+        for (const auto& o : f.other_findings) row.other_findings += (row.other_findings.empty() ? "" : "; ") + o.text;
+        row.note = r.operator_note;
+        for (const auto& a : r.actions) row.actions.push_back(row_action(a));
         row.duration_s = r.recording.analysis.duration_s;
         row.sha256 = r.recording.sha256;
         if (r.operating) {

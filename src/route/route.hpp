@@ -27,6 +27,17 @@ inline constexpr const char* kSummarySchema = "cavitas.route-row/1";
 /// summary may open or copy, never a path that leaves the folder.
 bool is_finding_path(const std::string& path);
 
+/// One action of a row's finding (models/actions.hpp), as the summary keeps it.
+struct RowAction {
+    std::string topic;       ///< cavitation, suction_margin, other_finding, cannot_judge, baseline
+    std::string concern;     ///< the other finding's kind (empty otherwise)
+    std::string priority;    ///< urgent, soon, planned, watch
+    int priority_rank = 4;   ///< 1 urgent .. 4 watch
+    int recheck_days = 0;
+    std::string step;
+    std::string basis;
+};
+
 struct SummaryRow {
     std::size_t line = 0;          ///< manifest line
     std::string file;              ///< as in the manifest
@@ -42,6 +53,8 @@ struct SummaryRow {
     std::optional<double> npsha_m, margin_ratio;
     std::string agreement;         ///< margin reading, empty without an operating point
     std::string other_findings;    ///< joined with "; "
+    std::string note;              ///< the operator's words (sidecar or manifest `note`)
+    std::vector<RowAction> actions;  ///< soonest first
     std::optional<double> duration_s;
     std::string sha256;
     std::string baseline;          ///< path of the baseline used
@@ -51,6 +64,8 @@ struct SummaryRow {
     std::vector<std::pair<std::string, std::string>> extra;  ///< passed-through manifest columns
 
     bool failed() const { return verdict == "error"; }
+    /// The soonest action's rank, 5 when there is none (1 urgent .. 4 watch).
+    int soonest_rank() const { return actions.empty() ? 5 : actions.front().priority_rank; }
     nlohmann::json to_json() const;
     /// Throws InputError naming `where` on a line that is not a summary row.
     static SummaryRow from_json(const nlohmann::json& j, const std::string& where);

@@ -62,6 +62,13 @@ bool mentions(const std::vector<std::string>& lines, const std::string& word) {
     return std::any_of(lines.begin(), lines.end(), [&](const std::string& s) { return s.find(word) != std::string::npos; });
 }
 
+// An other finding of the given kind whose words mention `word`.
+bool mentions(const std::vector<OtherFinding>& found, Concern kind, const std::string& word) {
+    return std::any_of(found.begin(), found.end(), [&](const OtherFinding& o) {
+        return o.concern == kind && o.text.find(word) != std::string::npos;
+    });
+}
+
 }  // namespace
 
 TEST_CASE("A recording like its baseline is normal", "[models]") {
@@ -108,7 +115,7 @@ TEST_CASE("A bearing-like envelope family is not cavitation even with an HF rise
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
     CHECK(f.bearing_like);
-    CHECK(mentions(f.other_findings, "bearing-like"));
+    CHECK(mentions(f.other_findings, Concern::bearing_impacts, "bearing-like"));
 }
 
 TEST_CASE("Envelope lines at integer orders are not read as a bearing", "[models]") {
@@ -123,7 +130,7 @@ TEST_CASE("A rise confined to the low band is flow turbulence, not cavitation", 
     shift(a, SI::lf_band_level, 8.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
-    CHECK(mentions(f.other_findings, "turbulence"));
+    CHECK(mentions(f.other_findings, Concern::flow_unsteadiness, "turbulence"));
 }
 
 TEST_CASE("Overloaded, NaN-bearing, unit- or rate-mismatched recordings are indeterminate with a reason", "[models]") {
@@ -153,7 +160,7 @@ TEST_CASE("A small speed change is reported and does not make cavitation", "[mod
     a.rpm = 1485.0 * 1.03;
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
-    CHECK(mentions(f.other_findings, "speed change"));
+    CHECK(mentions(f.other_findings, Concern::speed_change, "speed change"));
 }
 
 TEST_CASE("Mains hum is reported and does not make cavitation", "[models]") {
@@ -163,8 +170,8 @@ TEST_CASE("Mains hum is reported and does not make cavitation", "[models]") {
     shift(a, SI::lf_band_level, 6.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
-    CHECK(mentions(f.other_findings, "mains hum at 50 Hz"));
-    CHECK_FALSE(mentions(f.other_findings, "turbulence"));
+    CHECK(mentions(f.other_findings, Concern::mains_pickup, "mains hum at 50 Hz"));
+    CHECK_FALSE(mentions(f.other_findings, Concern::flow_unsteadiness, "turbulence"));
 }
 
 TEST_CASE("Indicator keys carry their units", "[models]") {
@@ -214,7 +221,7 @@ TEST_CASE("Impacts at blade passage beside an LF rise with no HF rise are recirc
     set(a, RI::envelope_bpf_prominence, 12.0);
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
-    CHECK(mentions(f.other_findings, "recirculation"));
+    CHECK(mentions(f.other_findings, Concern::recirculation, "recirculation"));
     CHECK_FALSE(mentions(f.evidence, "sparse collapses"));
     CHECK(mentions(f.evidence, "explained by recirculation"));
 }
@@ -259,7 +266,7 @@ TEST_CASE("A bearing family explains an HF rise, its impacts and the blade-pass 
     for (int k = 1; k <= 16; ++k) a.envelope_spectrum[static_cast<std::size_t>(std::lround(k * fr / 0.25))] = 3.0;
     const Finding f = classify(a, base(), "g");
     CHECK(f.verdict == Verdict::normal);
-    CHECK(mentions(f.other_findings, "not cavitation"));
+    CHECK(mentions(f.other_findings, Concern::bearing_impacts, "not cavitation"));
     CHECK(mentions(f.evidence, "explained by the bearing"));
     CHECK_FALSE(mentions(f.evidence, "envelope line at BPF"));
 }

@@ -258,7 +258,8 @@ TEST_CASE("A baseline learned at another flow is flagged", "[models][hydraulics]
     now.flow_m3_s = 0.080;  // -29 %
     const auto d = compare_with_baseline(s, now);
     REQUIRE(d.size() == 1);
-    CHECK_THAT(d.front(), Contains("403.2 m3/h") && Contains("288 m3/h") && Contains("-29 %"));
+    CHECK_THAT(d.front().text, Contains("403.2 m3/h") && Contains("288 m3/h") && Contains("-29 %"));
+    CHECK_FALSE(d.front().far);  // 71 % of the baseline's flow: off, not far (far_flow_share 0.5, our choice)
     now.flow_m3_s.reset();  // not stated now: nothing to compare
     CHECK(compare_with_baseline(s, now).empty());
     Finding f;
@@ -270,6 +271,31 @@ TEST_CASE("A baseline learned at another flow is flagged", "[models][hydraulics]
     CHECK_THAT(f.confidence, WithinAbs(calibrated_confidence(0.9 * 0.85), 1e-12));
     CHECK(f.warnings.size() == 1);
     CHECK(f.grade != ConfidenceGrade::high);
+    // The difference is a finding of its own, kind off_duty, with both flows in it.
+    REQUIRE(f.other_findings.size() == 1);
+    CHECK(f.other_findings.front().concern == Concern::off_duty);
+    CHECK_THAT(f.other_findings.front().text, Contains("288 m3/h"));
+}
+
+TEST_CASE("A duty far from the baseline's is a finding of its own and makes the grade low", "[models][hydraulics]") {
+    OperatingPoint b, now;
+    b.flow_m3_s = 159.0 / 3600.0;  // the demo's OW-P102: baseline at 159 m3/h
+    now.flow_m3_s = 55.0 / 3600.0;  // a throttled valve: 35 % of it (computed: 55 / 159 = 0.346)
+    const auto d = compare_with_baseline(summarize({{b, {}}}), now);
+    REQUIRE(d.size() == 1);
+    CHECK(d.front().far);  // under half the baseline's flow (far_flow_share 0.5, our choice)
+    CHECK_THAT(d.front().text, Contains("35 % of the baseline's flow") && Contains("not valid at this duty"));
+    Finding f;
+    f.verdict = Verdict::developed;
+    f.raw_score = 0.97;
+    f.confidence = calibrated_confidence(0.97);
+    flag_operating_point_differences(f, d);
+    CHECK(f.grade == ConfidenceGrade::low);
+    // At 150 % of the baseline's flow: off, not yet far; beyond 1 / 0.5 = 200 %: far (run-out side).
+    now.flow_m3_s = 1.5 * 159.0 / 3600.0;
+    CHECK_FALSE(compare_with_baseline(summarize({{b, {}}}), now).front().far);
+    now.flow_m3_s = 2.1 * 159.0 / 3600.0;
+    CHECK(compare_with_baseline(summarize({{b, {}}}), now).front().far);
 }
 
 // grade_with_margin: NPSH3 is the 3 % head-drop point (ANSI/HI 14.6), so at or
