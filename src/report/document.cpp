@@ -6,6 +6,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <map>
+#include <sstream>
+#include <utility>
 
 #include "src/report/plot.hpp"
 
@@ -35,19 +38,57 @@ std::string css_colour(const plot::Rgb& c) {
     return b;
 }
 
+// A long path or identifier may wrap after its slashes, where a path is broken by convention.
+constexpr std::size_t kLongToken = 30;
+
+// One word: a browser may break after a hyphen ("OW-P101"), so a word with one is kept whole.
+std::string whole_word(const std::string& w) {
+    return w.find('-') == std::string::npos ? escape(w) : "<span class=\"nb\">" + escape(w) + "</span>";
+}
+
+// Escaped text whose words never break inside; a long path wraps after its slashes only.
+std::string breakable(const std::string& s) {
+    std::string out, word;
+    auto flush = [&] {
+        if (word.size() > kLongToken && word.find('/') != std::string::npos) {
+            std::size_t from = 0;
+            for (std::size_t at = word.find('/'); at != std::string::npos; at = word.find('/', from)) {
+                out += whole_word(word.substr(from, at + 1 - from)) + "<wbr>";
+                from = at + 1;
+            }
+            out += whole_word(word.substr(from));
+        } else {
+            out += whole_word(word);
+        }
+        word.clear();
+    };
+    for (const char c : s) {
+        if (c == ' ' || c == '\n' || c == '\t') {
+            flush();
+            out += c;
+        } else {
+            word += c;
+        }
+    }
+    flush();
+    return out;
+}
+
 const char* kCss = R"css(
 :root { --ink: #22262e; --muted: #5b616b; --rule: #d5d8dd; --soft: #f3f4f6; }
 * { box-sizing: border-box; }
 body { margin: 0; background: #fff; color: var(--ink);
        font: 10.5pt/1.45 "DejaVu Sans", "Segoe UI", Helvetica, Arial, sans-serif; }
-main { max-width: 180mm; margin: 0 auto; padding: 10mm 4mm 14mm; }
+main { margin: 0; padding: 8mm 4vw 14mm; }
+p, ul { max-width: 120ch; }
 h1 { font-size: 17pt; margin: 0 0 2mm; letter-spacing: .01em; }
 h2 { font-size: 12.5pt; margin: 7mm 0 2mm; padding-bottom: 1mm; border-bottom: 1.5pt solid var(--ink); }
 p { margin: 1.5mm 0; }
-.fields { display: grid; grid-template-columns: max-content 1fr max-content 1fr; gap: 1mm 4mm;
+.fields { display: grid; grid-template-columns: max-content minmax(0, 1fr) max-content minmax(0, 1fr); gap: 1mm 4mm;
           padding: 2.5mm 3mm; background: var(--soft); border-left: 3pt solid var(--ink); margin: 2mm 0 4mm; }
 .fields dt { color: var(--muted); font-size: 8.5pt; text-transform: uppercase; letter-spacing: .05em; align-self: center; }
-.fields dd { margin: 0; font-weight: 600; }
+.fields dd { margin: 0; font-weight: 600; min-width: 0; overflow-wrap: anywhere; }  /* hashes and paths */
+@media (max-width: 700px) { .fields { grid-template-columns: max-content minmax(0, 1fr); } }
 .verdict { color: #fff; padding: 3mm 4mm; margin: 3mm 0; border-radius: 1.5mm; }
 .verdict .head { font-size: 15pt; font-weight: 700; letter-spacing: .02em; }
 .verdict .detail { font-size: 10pt; margin-top: 1mm; }
@@ -55,8 +96,10 @@ ul { margin: 1mm 0; padding-left: 5mm; }
 li { margin: .6mm 0; }
 .cautions { border: 1pt solid #a3342a; border-left: 4pt solid #a3342a; padding: 2mm 3mm; margin: 3mm 0; background: #fbf3f1; }
 .cautions strong { color: #a3342a; }
-table { width: 100%; border-collapse: collapse; margin: 2mm 0 3mm; font-size: 8.8pt; table-layout: fixed; }
-th, td { overflow-wrap: anywhere; }
+.table-box { overflow-x: auto; margin: 2mm 0 3mm; }
+table { width: 100%; border-collapse: collapse; font-size: 8.8pt; table-layout: auto; }
+th, td { overflow-wrap: normal; word-break: normal; hyphens: manual; }
+td.num, .nb { white-space: nowrap; }
 th { text-align: left; background: var(--soft); border-bottom: 1pt solid var(--ink); padding: 1mm 1.5mm; }
 td { border-bottom: .5pt solid var(--rule); padding: .9mm 1.5mm; vertical-align: top; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; }
@@ -69,7 +112,9 @@ footer { margin-top: 8mm; padding-top: 2mm; border-top: .5pt solid var(--rule); 
 .page-break { break-after: page; page-break-after: always; height: 0; }
 @media print {
   @page { margin: 14mm; }
-  main { max-width: none; padding: 0; }
+  main { padding: 0; }
+  .table-box { overflow: visible; }
+  td { overflow-wrap: anywhere; }  /* on paper a hash or a path may break; on screen its box scrolls */
   h2 { break-after: avoid; page-break-after: avoid; }
   tr { break-inside: avoid; page-break-inside: avoid; }
   .verdict, .cautions, .fields { -webkit-print-color-adjust: exact; print-color-adjust: exact; }
@@ -84,7 +129,7 @@ std::string to_html(const Document& d) {
                     "</style>\n</head>\n<body>\n<main>\n<h1>" + escape(d.title) + "</h1>\n";
     if (!d.header.empty()) {
         h += "<dl class=\"fields\">";
-        for (const auto& f : d.header) h += "<dt>" + escape(f.label) + "</dt><dd>" + escape(f.value) + "</dd>";
+        for (const auto& f : d.header) h += "<dt>" + escape(f.label) + "</dt><dd>" + breakable(f.value) + "</dd>";
         h += "</dl>\n";
     }
     int fig = 0;
@@ -96,43 +141,33 @@ std::string to_html(const Document& d) {
     for (const auto& b : d.blocks) {
         switch (b.kind) {
             case Kind::heading: h += "<h2>" + escape(b.text) + "</h2>\n"; break;
-            case Kind::paragraph: h += "<p>" + escape(b.text) + "</p>\n"; break;
+            case Kind::paragraph: h += "<p>" + breakable(b.text) + "</p>\n"; break;
             case Kind::bullets:
                 h += "<ul>";
-                for (const auto& i : b.items) h += "<li>" + escape(i) + "</li>";
+                for (const auto& i : b.items) h += "<li>" + breakable(i) + "</li>";
                 h += "</ul>\n";
                 break;
             case Kind::cautions:
                 h += "<div class=\"cautions\"><strong>" + escape(b.text) + "</strong><ul>";
-                for (const auto& i : b.items) h += "<li>" + escape(i) + "</li>";
+                for (const auto& i : b.items) h += "<li>" + breakable(i) + "</li>";
                 h += "</ul></div>\n";
                 break;
             case Kind::verdict:
                 h += "<div class=\"verdict\" style=\"background:" + css_colour(plot::palette::verdict(b.verdict)) +
-                     "\"><div class=\"head\">" + escape(b.text) + "</div><div class=\"detail\">" + escape(b.detail) +
+                     "\"><div class=\"head\">" + escape(b.text) + "</div><div class=\"detail\">" + breakable(b.detail) +
                      "</div></div>\n";
                 break;
             case Kind::fields:
                 h += "<dl class=\"fields\">";
-                for (const auto& f : b.fields) h += "<dt>" + escape(f.label) + "</dt><dd>" + escape(f.value) + "</dd>";
+                for (const auto& f : b.fields) h += "<dt>" + escape(f.label) + "</dt><dd>" + breakable(f.value) + "</dd>";
                 h += "</dl>\n";
                 break;
             case Kind::table: {
                 const Table& t = b.table;
                 const bool marks = !t.row_verdict.empty();
-                h += "<table>";
-                if (t.widths.size() == t.header.size()) {
-                    double sum = 0.0;
-                    for (double w : t.widths) sum += w;
-                    h += "<colgroup>";
-                    if (marks) h += "<col style=\"width:1.2%\">";
-                    for (double w : t.widths) {
-                        char cw[48];
-                        std::snprintf(cw, sizeof cw, "<col style=\"width:%.1f%%\">", (marks ? 98.8 : 100.0) * w / sum);
-                        h += cw;
-                    }
-                    h += "</colgroup>";
-                }
+                // Columns take the width their words need (no word is ever broken on screen); a table
+                // wider than the window scrolls inside its own box, never the page.
+                h += "<div class=\"table-box\"><table>";
                 h += "<thead><tr>";
                 if (marks) h += "<th class=\"mark\"></th>";
                 for (std::size_t c = 0; c < t.header.size(); ++c)
@@ -149,10 +184,10 @@ std::string to_html(const Document& d) {
                     }
                     for (std::size_t c = 0; c < t.rows[r].size(); ++c)
                         h += std::string("<td") + (c < t.numeric.size() && t.numeric[c] ? " class=\"num\"" : "") + ">" +
-                             escape(t.rows[r][c]) + "</td>";
+                             breakable(t.rows[r][c]) + "</td>";
                     h += "</tr>";
                 }
-                h += "</tbody></table>\n";
+                h += "</tbody></table></div>\n";
                 break;
             }
             case Kind::figures:
@@ -163,7 +198,7 @@ std::string to_html(const Document& d) {
             case Kind::page_break: h += "<div class=\"page-break\"></div>\n"; break;
         }
     }
-    h += "<footer>" + escape(d.footer) + "</footer>\n</main>\n</body>\n</html>\n";
+    h += "<footer>" + breakable(d.footer) + "</footer>\n</main>\n</body>\n</html>\n";
     return h;
 }
 
@@ -296,16 +331,63 @@ struct Pdf {
         }
     }
 
-    void table(const Table& t) {
-        const bool marks = !t.row_verdict.empty();
-        const double mark_w = marks ? 5.0 : 0.0;
+    // The width of one unbroken line of text.
+    double line_width(const std::string& text, double size, bool bold) {
+        PangoLayout* l = layout(text, size, bold, 1.0);
+        pango_layout_set_width(l, -1);
+        int lw = 0, lh = 0;
+        pango_layout_get_size(l, &lw, &lh);
+        g_object_unref(l);
+        return static_cast<double>(lw) / PANGO_SCALE;
+    }
+    // The widest word of each column (header in bold) plus padding: narrower, and a word would break inside.
+    std::vector<double> widest_words(const Table& t, double size, double pad) {
+        std::vector<double> m(t.header.size(), 0.0);
+        std::map<std::pair<std::string, bool>, double> seen;
+        auto take = [&](const std::vector<std::string>& cells, bool bold) {
+            for (std::size_t c = 0; c < cells.size() && c < m.size(); ++c) {
+                std::istringstream words(cells[c]);
+                for (std::string word; words >> word;) {
+                    auto [it, fresh] = seen.try_emplace({word, bold}, 0.0);
+                    if (fresh) it->second = line_width(word, size, bold);
+                    m[c] = std::max(m[c], it->second + 2 * pad + 0.5);
+                }
+            }
+        };
+        take(t.header, true);
+        for (const auto& r : t.rows) take(r, false);
+        return m;
+    }
+    // The table's relative widths, widened where a column's widest word needs it and narrowed where
+    // there is room to spare; only when the words alone do not fit are they scaled (and then break).
+    std::vector<double> column_widths(const Table& t, double avail, double size, double pad) {
         std::vector<double> w(t.header.size(), 1.0);
         if (t.widths.size() == t.header.size()) w = t.widths;
         double sum = 0.0;
         for (double v : w) sum += v;
-        const double avail = width() - mark_w;
         for (double& v : w) v = v / sum * avail;
+        const std::vector<double> least = widest_words(t, size, pad);
+        double wanted = 0.0, least_total = 0.0;
+        for (std::size_t c = 0; c < w.size(); ++c) {
+            w[c] = std::max(w[c], least[c]);
+            wanted += w[c];
+            least_total += least[c];
+        }
+        if (wanted <= avail) return w;
+        if (least_total >= avail) {
+            for (std::size_t c = 0; c < w.size(); ++c) w[c] = least[c] * avail / least_total;
+            return w;
+        }
+        const double cut = (wanted - avail) / (wanted - least_total);  // the share of each column's slack given up
+        for (std::size_t c = 0; c < w.size(); ++c) w[c] -= (w[c] - least[c]) * cut;
+        return w;
+    }
+
+    void table(const Table& t) {
+        const bool marks = !t.row_verdict.empty();
+        const double mark_w = marks ? 5.0 : 0.0;
         const double pad = 3.0, size = 7.6;
+        const std::vector<double> w = column_widths(t, width() - mark_w, size, pad);
         auto row_height = [&](const std::vector<std::string>& cells, bool bold) {
             double h = 0.0;
             for (std::size_t c = 0; c < cells.size() && c < w.size(); ++c)

@@ -155,13 +155,17 @@ std::string signed_or_plain(double v, bool db) { return db ? signed_fixed(v, 1) 
 
 std::vector<Field> header_fields(const ReportOptions& o, const std::string& machine, const std::string& point,
                                  const std::string& date) {
-    auto or_dash = [](const std::string& s) { return s.empty() ? std::string("-") : s; };
-    return {{"Work order", or_dash(o.work_order)},
-            {"Site", or_dash(o.site)},
-            {"Machine", or_dash(o.machine.empty() ? machine : o.machine)},
-            {"Point", or_dash(o.point.empty() ? point : o.point)},
-            {"Recorded", or_dash(o.date.empty() ? date : o.date)},
-            {"Analyst", or_dash(o.analyst)}};
+    // Only what is known: a field with nothing to say is left out, not shown as "-".
+    std::vector<Field> all = {{"Work order", o.work_order},
+                              {"Site", o.site},
+                              {"Machine", o.machine.empty() ? machine : o.machine},
+                              {"Point", o.point.empty() ? point : o.point},
+                              {"Recorded", o.date.empty() ? date : o.date},
+                              {"Analyst", o.analyst}};
+    std::vector<Field> known;
+    for (auto& f : all)
+        if (!f.value.empty()) known.push_back(std::move(f));
+    return known;
 }
 
 Block cautions_block() {
@@ -533,6 +537,20 @@ void add_waveform_section(Document& d, const json& plots) {
     d.blocks.push_back(doc::figures_block({waveform_figure(field(plots, "waveform"), shaft_hz)}));
 }
 
+// "Soon, re-check within 7 days: Look beyond ..." (with the basis when it is not ours).
+std::string action_line(const std::string& priority, int recheck_days, const std::string& step, const std::string& basis) {
+    std::string s = priority.empty() ? std::string("-") : priority;
+    s[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(s[0])));
+    s += ", re-check within " + std::to_string(recheck_days) + (recheck_days == 1 ? " day: " : " days: ") + step;
+    if (basis.rfind("our choice", 0) != 0 && !basis.empty()) s += " (" + basis + ")";
+    return s;
+}
+
+constexpr const char* kActionsLegend =
+    "Priorities: urgent - act within a day; soon - within a week; planned - at the next planned stop or visit; "
+    "watch - nothing to do but re-measure. Priorities and re-check intervals are cavitas defaults (our choice) "
+    "unless marked otherwise: set your site's own.";
+
 void add_finding_sections(Document& d, const json& f, bool full) {
     const std::string verdict = str(f, "verdict");
     const json op = f.contains("operating_point") ? field(f, "operating_point") : json::object();
@@ -555,8 +573,24 @@ void add_finding_sections(Document& d, const json& f, bool full) {
         d.paragraph("The operating point beside the verdict:");
         d.bullets(items);
     }
+    const auto others = strs(f, "other_findings");
+    if (!others.empty()) {
+        d.paragraph("Other findings (each with its own action below; they do not change the cavitation verdict):");
+        d.bullets(others);
+    }
+    if (!str(f, "operator_note").empty()) d.paragraph("Operator's note: \"" + str(f, "operator_note") + "\"");
     d.heading("What to do next");
-    d.bullets(next_steps(verdict, agreement));
+    if (f.contains("actions")) {
+        std::vector<std::string> lines;
+        for (const auto& a : field(f, "actions"))
+            lines.push_back(action_line(str(a, "priority"), static_cast<int>(num(a, "recheck_days")), str(a, "step"),
+                                        str(a, "basis")));
+        if (lines.empty()) lines.push_back("No action: nothing found needs one; keep to the route interval.");
+        d.bullets(lines);
+        d.paragraph(kActionsLegend);
+    } else {
+        d.bullets(next_steps(verdict, agreement));  // a finding of an older cavitas, without actions
+    }
     d.blocks.push_back(cautions_block());
     if (!full) return;
     const json plots = f.contains("plots") ? field(f, "plots") : json::object();
@@ -580,12 +614,7 @@ void add_finding_sections(Document& d, const json& f, bool full) {
                                                                    : str(field(f, "bands"), "level_reference")) +
                 "; changes of levels are dB re baseline.");
     d.blocks.push_back(tb);
-    const auto others = strs(f, "other_findings");
     const auto warnings = strs(field(f, "quality"), "warnings");
-    if (!others.empty()) {
-        d.paragraph("Other findings (look-alikes that do not change the verdict):");
-        d.bullets(others);
-    }
     if (!warnings.empty()) {
         d.paragraph("What lowered the confidence:");
         d.bullets(warnings);
@@ -792,6 +821,127 @@ Document compare_document(const json& c, const ReportOptions& o) {
     return d;
 }
 
+namespace {
+
+std::string point_label(const SummaryRow& r, bool with_channel) {
+    return r.machine + " " + r.point + (with_channel ? ", channel " + std::to_string(r.channel) : std::string());
+}
+
+bool several_channels(const std::vector<const SummaryRow*>& latest, const SummaryRow& r) {
+    return std::count_if(latest.begin(), latest.end(), [&](const SummaryRow* x) {
+               return x->machine == r.machine && x->point == r.point;
+           }) > 1;
+}
+
+// The banner names the first row of the table under it (route/attention: one order) and says why.
+Block route_banner(const SummaryRow& w) {
+    const bool act = w.verdict == "developed" || w.verdict == "incipient" || w.failed() || !w.actions.empty();
+    if (!act) return verdict_block("normal", "No machine point needs action on this route",
+                                   "Every point's latest visit is like its baseline, with nothing else found; keep to "
+                                   "the route interval.");
+    std::string detail = "Why first: " + attention_reason(w) + " (see 'What to do, point by point').";
+    if (!w.note.empty()) detail += " Operator's note: \"" + w.note + "\".";
+    const bool cavitating = w.verdict == "developed" || w.verdict == "incipient";
+    return verdict_block(cavitating || w.failed() ? w.verdict : "indeterminate",
+                         "Look at first: " + w.machine + " " + w.point + " - " +
+                             (cavitating || w.failed() ? headline(w.verdict) : "a finding to act on"),
+                         detail);
+}
+
+std::string when_words(const std::string& datetime) {
+    std::string when = datetime.substr(0, 16);
+    if (when.size() > 10) when[10] = ' ';
+    return when;
+}
+
+std::string since_words(const SummaryRow& r) {
+    if (r.previous_datetime.empty()) return "-";
+    std::string since = r.previous_datetime.substr(0, 10) + " " + r.previous_verdict;
+    if (r.hf_rise_change_db) since += ", " + signed_fixed(*r.hf_rise_change_db, 1) + " dB";
+    return since;
+}
+
+// Each point's latest visit, in the order of attention: the banner's point is row 1.
+void add_latest_table(Document& d, const std::vector<const SummaryRow*>& latest) {
+    d.heading("Each point at its latest visit, in the order to look at them");
+    doc::Table t;
+    t.header = {"#", "machine", "point", "recorded", "verdict", "confidence", "HF dB", "NPSHa m", "NPSHa / NPSH3",
+                "since previous visit", "first step"};
+    t.widths = {0.35, 1.0, 0.9, 1.3, 1.1, 1.0, 0.7, 0.8, 0.8, 1.6, 1.1};
+    t.numeric = {true, false, false, false, false, false, true, true, true, false, false};
+    int n = 0;
+    for (const auto* r : latest) {
+        t.rows.push_back({std::to_string(++n), r->machine,
+                          r->point + (several_channels(latest, *r) ? " ch " + std::to_string(r->channel) : std::string()),
+                          when_words(r->datetime), r->verdict,
+                          r->failed() ? "-" : (r->confidence_grade.empty() ? fixed(r->confidence, 2) : r->confidence_grade),
+                          r->hf_rise_db ? signed_fixed(*r->hf_rise_db, 1) : "-", r->npsha_m ? fixed(*r->npsha_m, 2) : "-",
+                          r->margin_ratio ? fixed(*r->margin_ratio, 2) : "-", since_words(*r),
+                          r->actions.empty() ? "-" : r->actions.front().priority});
+        t.row_verdict.push_back(r->verdict);
+    }
+    Block tb = doc::make(Kind::table);
+    tb.table = t;
+    d.blocks.push_back(tb);
+    d.paragraph("HF dB: the high-frequency band level in dB re the point's own baseline. NPSHa: net positive suction "
+                "head available at the visit, m of liquid; NPSHa / NPSH3: its ratio to the pump's 3 % head-drop NPSH. "
+                "Since previous visit: the date and verdict of the point's visit before, and the change of the HF "
+                "level since then. First step: the priority of the point's soonest action (below).");
+}
+
+// Every point with something to act on, numbered as in the table: the operator's note, the other findings and
+// the actions, each whole.
+void add_point_actions(Document& d, const std::vector<const SummaryRow*>& latest) {
+    d.heading("What to do, point by point");
+    int n = 0, shown = 0;
+    for (const auto* r : latest) {
+        ++n;
+        if (r->actions.empty() && r->note.empty() && r->other_findings.empty() && !r->failed()) continue;
+        ++shown;
+        d.paragraph(std::to_string(n) + ". " + point_label(*r, several_channels(latest, *r)) + ", " +
+                    when_words(r->datetime) + " - " + attention_reason(*r));
+        std::vector<std::string> items;
+        if (!r->note.empty()) items.push_back("Operator's note: \"" + r->note + "\"");
+        if (r->failed()) items.push_back("Put right why this row failed, then analyse it again: " + r->reason);
+        for (const auto& a : r->actions) items.push_back(action_line(a.priority, a.recheck_days, a.step, a.basis));
+        if (!r->other_findings.empty()) items.push_back("Other findings: " + r->other_findings);
+        d.bullets(items);
+    }
+    if (shown == 0) d.paragraph("No machine point needs action; keep to the route interval.");
+    d.bullets({"Re-measure every point that was acted on, and compare before and after (cavitas compare)."});
+    d.paragraph(kActionsLegend);
+}
+
+// The route's earlier visits of each point, newest first within a point, in the points' order of attention.
+void add_earlier_table(Document& d, const std::vector<PointState>& states) {
+    std::map<std::pair<std::string, std::string>, int> channels;  // of each point
+    for (const auto& st : states) ++channels[{st.latest->machine, st.latest->point}];
+    doc::Table t;
+    t.header = {"machine", "point", "recorded", "verdict", "confidence", "HF dB", "NPSHa m", "NPSHa / NPSH3", "note"};
+    t.widths = {1.0, 0.9, 1.3, 1.1, 1.0, 0.7, 0.8, 0.8, 3.0};
+    t.numeric = {false, false, false, false, false, true, true, true, false};
+    for (const auto& st : states) {
+        for (auto it = st.earlier.rbegin(); it != st.earlier.rend(); ++it) {
+            const SummaryRow& r = **it;
+            std::string note = r.failed() ? r.reason : r.note;
+            const bool several = channels[{r.machine, r.point}] > 1;
+            t.rows.push_back({r.machine, r.point + (several ? " ch " + std::to_string(r.channel) : std::string()),
+                              when_words(r.datetime), r.verdict,
+                              r.failed() ? "-" : (r.confidence_grade.empty() ? fixed(r.confidence, 2) : r.confidence_grade),
+                              r.hf_rise_db ? signed_fixed(*r.hf_rise_db, 1) : "-", r.npsha_m ? fixed(*r.npsha_m, 2) : "-",
+                              r.margin_ratio ? fixed(*r.margin_ratio, 2) : "-", note.empty() ? "-" : note});
+            t.row_verdict.push_back(r.verdict);
+        }
+    }
+    if (t.rows.empty()) return;
+    d.heading("Earlier visits on this route");
+    Block tb = doc::make(Kind::table);
+    tb.table = t;
+    d.blocks.push_back(tb);
+}
+
+}  // namespace
+
 Document route_document(const std::string& folder, const ReportOptions& o) {
     const json run = read_json_file((fs::path(folder) / "route.json").string(), "route run file", kMaxRouteRunBytes);
     if (str(run, "schema") != "cavitas.route/1") throw InputError(folder + "/route.json: not a cavitas route run");
@@ -825,30 +975,14 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     d.header = header_fields(o, "", "", first.substr(0, 10) + (last.substr(0, 10) != first.substr(0, 10)
                                                                  ? " .. " + last.substr(0, 10)
                                                                  : std::string()));
-    d.header[2].value = o.machine.empty() ? std::to_string(rows.size()) + " recordings" : o.machine;
-    d.header[2].label = o.machine.empty() ? "Recordings" : "Machine";
+    if (o.machine.empty()) d.header.push_back({"Recordings", std::to_string(rows.size()) + " recordings"});
     // The latest state of each machine point and channel, worst first (route/attention: as on the terminal).
     const std::vector<PointState> states = latest_per_point(rows);
     std::vector<const SummaryRow*> latest;
     for (const auto& st : states) latest.push_back(st.latest);
     std::map<std::pair<std::string, std::string>, std::vector<const SummaryRow*>> by_point;  // for the history charts
     for (const auto& r : rows) by_point[{r.machine, r.point}].push_back(&r);
-    auto worse = [](const SummaryRow* a, const SummaryRow* b) { return worse_first(*a, *b); };
-    if (!latest.empty()) {
-        const SummaryRow& w = *latest.front();
-        const bool act = w.verdict == "developed" || w.verdict == "incipient" || w.failed() || w.agreement == "at_risk";
-        std::string detail = act ? plain_detail(w.verdict, w.confidence_grade) : "No machine point needs attention for cavitation.";
-        if (act && w.agreement == "unexplained_by_margin")
-            detail += " The NPSH margin is large" + (w.margin_ratio ? " (" + fixed(*w.margin_ratio, 1) + " x NPSH3)" : std::string()) +
-                      ", so suction pressure alone does not explain it: look for suction recirculation at low flow, "
-                      "air drawn in, or a blockage.";
-        else if (act && w.agreement == "at_risk")
-            detail += " The NPSH margin is thin: cavitation can start with a small change of duty.";
-        d.blocks.push_back(verdict_block(act ? w.verdict : "normal",
-                                         act ? "Look at first: " + w.machine + " " + w.point + " - " + headline(w.verdict)
-                                             : "No cavitation on this route",
-                                         detail));
-    }
+    if (!latest.empty()) d.blocks.push_back(route_banner(*latest.front()));
     std::size_t failed = 0, cav = 0;
     for (const auto* r : latest) cav += r->verdict == "developed" || r->verdict == "incipient";
     for (const auto& r : rows) failed += r.failed();
@@ -870,42 +1004,9 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     Block mtb = doc::make(Kind::table);
     mtb.table = mt;
     d.blocks.push_back(mtb);
-    d.heading("Every recording, worst first");
-    doc::Table t;
-    t.header = {"machine", "point", "ch", "recorded", "verdict", "conf.", "HF dB", "NPSHa/NPSH3", "since previous", "note"};
-    t.widths = {1.1, 0.7, 0.4, 1.5, 1.2, 0.6, 0.7, 0.9, 1.7, 2.2};
-    t.numeric = {false, false, true, false, false, true, true, true, false, false};
-    std::vector<const SummaryRow*> all;
-    for (const auto& r : rows) all.push_back(&r);
-    std::stable_sort(all.begin(), all.end(), worse);
-    for (const auto* r : all) {
-        std::string since = r->previous_datetime.empty() ? "-" : r->previous_datetime.substr(0, 10) + ": " + r->previous_verdict;
-        if (r->hf_rise_change_db) since += ", " + signed_fixed(*r->hf_rise_change_db, 1) + " dB";
-        std::string note = r->failed() ? r->reason : r->other_findings;
-        note = shortened(note, 140);
-        if (!r->agreement.empty() && r->agreement != "consistent" && r->agreement != "margin_unknown")
-            note = "NPSH: " + r->agreement + (note.empty() ? "" : "; " + note);
-        std::string when = r->datetime.substr(0, 16);
-        if (when.size() > 10) when[10] = ' ';
-        t.rows.push_back({r->machine, r->point, std::to_string(r->channel), when, r->verdict,
-                          r->failed() ? "-" : (r->confidence_grade.empty() ? fixed(r->confidence, 2) : r->confidence_grade),
-                          r->hf_rise_db ? signed_fixed(*r->hf_rise_db, 1) : "-",
-                          r->margin_ratio ? fixed(*r->margin_ratio, 2) : "-", since, note});
-        t.row_verdict.push_back(r->verdict);
-    }
-    Block tb = doc::make(Kind::table);
-    tb.table = t;
-    d.blocks.push_back(tb);
-    d.heading("What to do next");
-    std::vector<std::string> steps;
-    for (const auto* r : latest) {
-        if (!(r->verdict == "developed" || r->verdict == "incipient" || r->agreement == "at_risk" || r->failed())) continue;
-        const auto s = next_steps(r->verdict, r->agreement);
-        steps.push_back(r->machine + " " + r->point + ": " + s.front());
-    }
-    if (steps.empty()) steps.push_back("No machine point needs action for cavitation; keep to the route interval.");
-    steps.push_back("Re-measure every point that was acted on, and compare before and after (cavitas compare).");
-    d.bullets(steps);
+    add_latest_table(d, latest);
+    add_point_actions(d, latest);
+    add_earlier_table(d, states);
     d.blocks.push_back(cautions_block());
 
     // History of each point: this route's visits and, when a store is at hand, the earlier ones.
@@ -1107,12 +1208,32 @@ void check_waveform(const json& plots, const std::string& origin, PointBudget& b
         bad(origin, where + ".unit", "is not a unit of at most 64 characters");
 }
 
+// The actions a report prints: each an object with a priority cavitas writes, a
+// whole number of days and a step in words.
+void check_actions(const json& f, const std::string& origin) {
+    static const std::set<std::string> priorities{"urgent", "soon", "planned", "watch"};
+    if (!f.contains("actions")) return;
+    const json& a = field(f, "actions");
+    if (!a.is_array() || a.size() > kMaxSentences)
+        bad(origin, "actions", "is not a list of at most " + std::to_string(kMaxSentences) + " actions");
+    for (const auto& x : a) {
+        if (!x.is_object()) bad(origin, "actions", "holds an entry that is not an object");
+        if (!field(x, "priority").is_string() || !priorities.count(field(x, "priority").get<std::string>()))
+            bad(origin, "actions[].priority", "is not urgent, soon, planned or watch");
+        checked_number(x, "recheck_days", origin, "actions[].recheck_days", 0.0, 3650.0);
+        if (!field(x, "step").is_string()) bad(origin, "actions[].step", "is missing or not text");
+        if (x.contains("basis") && !field(x, "basis").is_string()) bad(origin, "actions[].basis", "is not text");
+    }
+}
+
 const json& checked_finding(const json& f, const std::string& origin) {
     static const std::set<std::string> verdicts{"normal", "incipient", "developed", "indeterminate"};
     if (!f.is_object()) bad(origin, "schema", "belongs to a document that is not an object");
     if (!field(f, "verdict").is_string() || !verdicts.count(field(f, "verdict").get<std::string>()))
         bad(origin, "verdict", "is missing or not one of normal, incipient, developed, indeterminate");
     for (const char* k : {"evidence", "other_findings", "cautions"}) check_sentences(f, k, origin);
+    check_actions(f, origin);
+    if (f.contains("operator_note") && !field(f, "operator_note").is_string()) bad(origin, "operator_note", "is not text");
     if (!field(field(f, "input"), "path").is_string()) bad(origin, "input.path", "is missing or not text");
     if (!field(f, "quality").is_object()) bad(origin, "quality", "is missing or not an object");
     for (const char* k : {"reasons", "warnings"}) check_sentences(field(f, "quality"), k, origin, "quality", false);

@@ -15,8 +15,22 @@ namespace cavitas::app {
 /// with a concern (a thin NPSH margin or another finding), 5 normal.
 int severity_rank(const SummaryRow& r);
 
-/// Worse rank first; then higher confidence, larger HF rise, earlier line.
+/// How thin the hydraulic margin is: 0 thin (NPSHa under kNearBoilingNpshM,
+/// NPSHa/NPSH3 under the 1.1 guidance minimum of ANSI/HI 9.6.1, or a normal
+/// verdict at risk), 1 not known, 2 known and within guidance.
+int margin_tier(const SummaryRow& r);
+
+/// The one order of attention, for the terminal, the report's banner and its
+/// table alike: verdict (severity_rank), then hydraulic margin (margin_tier,
+/// then the smaller NPSHa/NPSH3), then the soonest action, then the trend
+/// (the larger HF rise since the previous visit), then higher confidence,
+/// larger HF rise, earlier line.
 bool worse_first(const SummaryRow& a, const SummaryRow& b);
+
+/// Why a row stands where it does, in words specific to it: the verdict and
+/// its HF rise, the margin, the change since the previous visit, the first
+/// action. One sentence for the report's banner and the terminal.
+std::string attention_reason(const SummaryRow& r);
 
 /// The latest row of one channel of one measurement point (an analysed row
 /// wins over a failed one), and the earlier rows of the route, oldest first.

@@ -491,6 +491,8 @@ void print_attention(std::ostream& out, const std::vector<SummaryRow>& rows) {
         out << "  " << ++n << ". " << r->machine << "  " << r->point
             << (r->channel != 0 || channels_of_point(latest, *r) > 1 ? "  ch " + std::to_string(r->channel) : std::string())
             << "  " << r->datetime.substr(0, 16) << "  " << state_words(*r) << "\n";
+        if (!r->note.empty()) out << "       operator's note: " << r->note << "\n";
+        for (const auto& a : r->actions) out << "       > " << action_words(a) << "\n";
         for (auto it = earlier.rbegin(); it != earlier.rend(); ++it)
             if (!(*it)->failed())
                 out << "       earlier in this route: " << (*it)->datetime.substr(0, 16) << " " << (*it)->verdict

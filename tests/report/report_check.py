@@ -13,7 +13,10 @@ Usage:
   report_check.py browser WORK
       loads each HTML report of WORK in headless Chromium (Debian's chromium):
       it must render (a screenshot of real content), log no console error, and
-      print to PDF with the verdict in its text.
+      print to PDF with the verdict in its text; laid out 1000 px wide, no word
+      of a table cell or a list item may break across lines and the page may
+      not scroll sideways (a copy of the page with a measuring script, whose
+      result is read back from the DOM).
 
 One line per check, then "N passed, M failed". Exit 0 all pass, 1 a failure,
 77 when a tool is missing (jsonschema, poppler-utils, chromium).
@@ -326,6 +329,62 @@ def png_content(path):
     return width, height, inked / float(width * height)
 
 
+# Run in a copy of a report (the reports themselves carry no script): every word of every table
+# cell and list item measured with a DOM Range; a word whose text takes more than one line box
+# is broken inside. The page's own width against the window's says whether it scrolls sideways.
+LAYOUT_SCRIPT = r"""
+<script>
+(function () {
+  const broken = [];
+  for (const el of document.querySelectorAll('th, td, li, .verdict .detail')) {
+    const walker = document.createTreeWalker(el, NodeFilter.SHOW_TEXT);
+    for (let node = walker.nextNode(); node; node = walker.nextNode()) {
+      // Words between blanks; a word longer than 30 characters may wrap after its slashes (a path).
+      const re = /\S+/g;
+      const pieces = [];
+      let w;
+      while ((w = re.exec(node.data)) !== null) {
+        if (w[0].length > 30 && w[0].includes('/')) {
+          let at = w.index;
+          for (const part of w[0].split(/(?<=\/)/)) { pieces.push({index: at, 0: part}); at += part.length; }
+        } else {
+          pieces.push({index: w.index, 0: w[0]});
+        }
+      }
+      for (const m of pieces) {
+        if (m[0].length === 0) continue;
+        const r = document.createRange();
+        r.setStart(node, m.index);
+        r.setEnd(node, m.index + m[0].length);
+        const tops = new Set(Array.from(r.getClientRects()).filter(b => b.width > 0).map(b => Math.round(b.top)));
+        if (tops.size > 1) broken.push(m[0]);
+      }
+    }
+  }
+  const out = document.createElement('pre');
+  out.id = 'layout-check';
+  out.textContent = JSON.stringify({broken: broken.slice(0, 20), count: broken.length,
+                                    page_width: document.documentElement.scrollWidth, window_width: window.innerWidth});
+  document.body.appendChild(out);
+})();
+</script>
+"""
+
+
+def layout_of(chromium, flags, html, width):
+    with open(html, encoding="utf-8") as f:
+        page = f.read()
+    probe = html[:-len(".html")] + ".layout-probe.html"
+    with open(probe, "w", encoding="utf-8") as f:
+        f.write(page.replace("</body>", LAYOUT_SCRIPT + "</body>"))
+    r = run([chromium, *flags, f"--window-size={width},1200", "--dump-dom", "file://" + os.path.abspath(probe)],
+            timeout=120)
+    m = re.search(r'<pre id="layout-check">(.*?)</pre>', r.stdout, flags=re.S)
+    if not m:
+        return None
+    return json.loads(m.group(1).replace("&quot;", '"').replace("&amp;", "&").replace("&lt;", "<").replace("&gt;", ">"))
+
+
 def browser(work):
     chromium = shutil.which("chromium") or shutil.which("chromium-browser")
     if not chromium:
@@ -359,6 +418,12 @@ def browser(work):
             w, h, inked = png_content(shot)
             check(f"{name}: the screenshot shows a page ({w}x{h}, {100 * inked:.1f} % inked)",
                   w >= 1000 and h >= 1600 and inked > 0.05, f"{w}x{h}, {inked:.3f}")
+        lay = layout_of(chromium, flags, html, 1000)
+        if check(f"{name}: the layout probe ran", lay is not None):
+            check(f"{name}: at 1000 px no word of a cell or list item breaks inside ({lay['count']} do)",
+                  lay["count"] == 0, ", ".join(lay["broken"][:8]))
+            check(f"{name}: at 1000 px the page does not scroll sideways ({lay['page_width']} px wide)",
+                  lay["page_width"] <= lay["window_width"], f"{lay['page_width']} > {lay['window_width']}")
         r = run([chromium, *flags, "--no-pdf-header-footer", f"--print-to-pdf={printed}", "file://" + html], timeout=120)
         if check(f"{name}: prints to PDF", os.path.exists(printed), r.stderr[-300:]):
             text = words(run(["pdftotext", printed, "-"]).stdout)
