@@ -9,8 +9,10 @@
 #include <map>
 #include <sstream>
 
+#include "src/commands/analyst_review.hpp"
 #include "src/commands/commands.hpp"
 #include "src/commands/process_tuning.hpp"
+#include "src/io/analyst.hpp"
 #include "src/io/errors.hpp"
 #include "src/output/plain_text.hpp"
 #include "src/io/plan_store.hpp"
@@ -50,6 +52,7 @@ const char* kIntro =
     "  cavitas analyze  --baseline P101.json --rpm 1490 --json finding.json today.wav\n"
     "  cavitas npsh     --suction-pressure 35kPa --temperature 60C --flow 120m3/h --bore 150mm --npsh3 4.2m\n"
     "  cavitas info     export.uff       (what a file holds: channels, rates, lengths, units)\n"
+    "  cavitas review   finding.json --override normal --reason \"valve throttled that day\"\n"
     "\n"
     "Exit status: 0 a verdict was reached (indeterminate included), 1 unreadable or\n"
     "invalid input, 2 a usage error.";
@@ -137,6 +140,29 @@ void add_operating_point_flags(CLI::App* cmd, OperatingPointFlags& f, bool besid
         ->group("Operating point")
         ->type_name("FILE");
 }
+
+// --analyst, the same on every command that records who ran it.
+void add_analyst_flag(CLI::App* cmd, std::optional<std::string>& analyst, const std::string& where) {
+    cmd->add_option("--analyst", analyst,
+                    "Who runs this, recorded in " + where + " with the host name (default: the login name: $USER, $LOGNAME "
+                    "or the account's)")
+        ->type_name("NAME");
+}
+
+const char* kReviewHelp =
+    "An analyst's decision on a finding: agree with its verdict, or override it with another and say why.\n"
+    "The finding itself is never changed: the review is kept beside it in FINDING.reviews.json (the\n"
+    "finding's file name and SHA-256, then every review in order: when, who, on which host, agree or\n"
+    "override, the verdict decided, cavitas's original verdict and the reason). A second review is\n"
+    "appended. A finding whose bytes no longer match the SHA-256 its reviews recorded is refused.\n"
+    "'cavitas report' shows cavitas's verdict and the reviews side by side; a route run again into its\n"
+    "folder keeps the reviews of findings it makes again unchanged (route --help).\n"
+    "\n"
+    "  cavitas review finding.json --agree --analyst \"R. Okafor\"\n"
+    "  cavitas review route-2026-11/findings/L000012_OW-P102_DE-H.json --override incipient \\\n"
+    "                 --reason \"suction valve half shut during the recording; re-measure at duty\"\n"
+    "\n"
+    "Exit status: 0 recorded, 1 the finding or its reviews file cannot be used, 2 a usage error.";
 
 const char* kNpshHelp =
     "NPSH available at the impeller-eye datum from a suction-gauge reading, its margin over the\n"
@@ -261,6 +287,8 @@ int main(int argc, char** argv) {
                    "printed as context; it never changes the cavitation verdict")
         ->type_name("FILE");
     add_operating_point_flags(an, ao.operating, true);
+    std::optional<std::string> an_analyst;
+    add_analyst_flag(an, an_analyst, "the finding's \"provenance\"");
 
     InfoOptions io;
     auto* inf = app.add_subcommand(
@@ -292,7 +320,9 @@ int main(int argc, char** argv) {
         "manifest row, failures with their reason), OUT/findings/ (each recording's JSON finding) and\n"
         "OUT/route.json, records every analysed recording in the results store, and prints the latest\n"
         "state of each machine point, worst first. A bad row never stops the others; the exit status is\n"
-        "1 when any row failed.");
+        "1 when any row failed. Run again into the same OUT, analyst reviews there ('cavitas review') follow\n"
+        "each finding made again from the same recording, channel and baseline with the same verdict; any\n"
+        "other review stops the run before OUT is replaced, naming it (--discard-reviews drops them).");
     rt->add_option("manifest", ro.manifest, "Route manifest (CSV)")->required()->type_name("MANIFEST.csv");
     rt->add_option("--out", ro.out_dir, "Output folder (created when missing)")->required()->type_name("DIR");
     rt->add_option("--baselines", ro.baselines, "Baseline library: BASELINES/MACHINE/POINT.json")->required()->type_name("DIR");
@@ -308,6 +338,11 @@ int main(int argc, char** argv) {
                    "Analyse only share K of N of the manifest rows (rows K, K+N, K+2N, ...), e.g. 2/8 in a cluster job "
                    "array; the store is not written, 'cavitas merge' joins the shards")
         ->type_name("K/N");
+    add_analyst_flag(rt, ro.analyst, "route.json and every finding");
+    rt->add_flag("--discard-reviews", ro.discard_reviews,
+                 "Replace OUT even where analyst reviews (findings/NAME.reviews.json) cannot follow their findings; "
+                 "without it such a run stops before OUT is replaced, naming them. Reviews of findings made again "
+                 "from the same recording, channel and baseline with the same verdict always follow them");
 
     MergeOptions mo;
     auto* mg = app.add_subcommand("merge",
@@ -317,6 +352,21 @@ int main(int argc, char** argv) {
     mg->add_option("--out", mo.out_dir, "Output folder for the merged summary and findings")->required()->type_name("DIR");
     std::optional<std::string> merge_store;
     mg->add_option("--store", merge_store, "Results store to record the merged route in (SQLite)")->type_name("FILE");
+    add_analyst_flag(mg, mo.analyst, "route.json");
+    mg->add_flag("--discard-reviews", mo.discard_reviews,
+                 "Replace OUT even where analyst reviews cannot follow their findings (as route --discard-reviews)");
+
+    AnalystReviewOptions arv;
+    auto* rv = app.add_subcommand("review", kReviewHelp);
+    rv->add_option("finding", arv.finding, "The finding: analyze --json, or a route's findings/NAME.json")
+        ->required()
+        ->type_name("FINDING.json");
+    rv->add_flag("--agree", arv.agree, "Agree with the finding's verdict");
+    rv->add_option("--override", arv.override_verdict,
+                   "Override the verdict: normal, incipient, developed or indeterminate (needs --reason)")
+        ->type_name("VERDICT");
+    rv->add_option("--reason", arv.reason, "Why: what you saw or know that the recording does not say")->type_name("TEXT");
+    add_analyst_flag(rv, arv.analyst, "the review");
 
     TrendOptions to;
     auto* tr = app.add_subcommand(
@@ -396,6 +446,7 @@ int main(int argc, char** argv) {
         if (*an) {
             std::optional<ChannelSelection> channels;
             set_channels(an_channels, ao.read, channels);
+            ao.analyst = identify_analyst(an_analyst);
             run_analyze(ao, channels, std::cout, std::cerr);
         }
         if (*np) run_npsh(no, std::cout);
@@ -406,6 +457,7 @@ int main(int argc, char** argv) {
             mo.no_store = !merge_store;
             return run_merge(mo, std::cout, std::cerr);
         }
+        if (*rv) run_analyst_review(arv, std::cout);
         if (*tr) run_trend(to, std::cout);
         if (*cp) run_compare(co, std::cout, std::cerr);
         if (*rp) run_report(rpo, std::cout);

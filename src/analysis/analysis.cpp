@@ -255,7 +255,8 @@ std::optional<models::MarginContext> margin_context(const std::optional<Operatin
 
 AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     AnalyzeResult r;
-    r.baseline = read_baseline_file(o.baseline, o.read.channel);
+    r.analyst = o.analyst ? *o.analyst : identify_analyst(std::nullopt);
+    r.baseline = read_baseline_file(o.baseline, o.read.channel, &r.baseline_sha256);
     if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
         throw InputError(o.baseline + ": baseline is for machine '" + r.baseline.machine + "', not '" + o.machine +
                          "'; use that machine's baseline");

@@ -17,6 +17,7 @@
 #include "models/margin_reading.hpp"
 #include "models/operating_point.hpp"
 #include "models/severity.hpp"
+#include "src/io/analyst.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/operating_point_io.hpp"
 #include "src/io/output_guard.hpp"
@@ -94,6 +95,8 @@ struct AnalysisRequest {
     CalibrationText calibration;
     OperatingPointFlags operating;
     std::optional<std::string> zones;  ///< --zones FILE: the analyst's severity zones
+    /// Who runs the analysis (identify_analyst); unset: the environment's login name.
+    std::optional<Analyst> analyst;
 };
 
 /// Overall velocity of the recording (its averaged spectrum integrated), and
@@ -129,6 +132,8 @@ struct AnalyzeResult {
     VelocityFinding velocity;
     std::vector<models::Action> actions;  ///< what to do, soonest first (models/actions.hpp)
     std::string operator_note;            ///< the operator's own words (sidecar or manifest `note`)
+    Analyst analyst;              ///< who ran it, on which host (the finding's provenance)
+    std::string baseline_sha256;  ///< of the baseline file's bytes as read
 };
 AnalyzeResult analyze(const AnalysisRequest& request, const Progress& progress = {});
 /// The point's verdict over its channels: the worst (developed, incipient,

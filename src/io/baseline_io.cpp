@@ -392,8 +392,8 @@ json baseline_channels_to_json(const std::vector<Baseline>& channels) {
             {"channels", list}};
 }
 
-std::vector<Baseline> read_baseline_channels(const std::string& path) {
-    const std::string text = read_text_file(path, "baseline file");
+std::vector<Baseline> read_baseline_channels(const std::string& path, std::string* sha256) {
+    const std::string text = read_text_file(path, "baseline file", 64u << 20, sha256);
     json j = json::parse(text, nullptr, false);
     if (j.is_discarded()) throw InputError(path + ": baseline is not valid JSON (corrupt or truncated)");
     if (!j.is_object() || !j.contains("schema") || j["schema"] != kBaselineChannelsSchema) return {baseline_from_json(j, path)};
@@ -409,8 +409,8 @@ std::vector<Baseline> read_baseline_channels(const std::string& path) {
     return out;
 }
 
-Baseline read_baseline_file(const std::string& path, std::optional<int> channel) {
-    std::vector<Baseline> all = read_baseline_channels(path);
+Baseline read_baseline_file(const std::string& path, std::optional<int> channel, std::string* sha256) {
+    std::vector<Baseline> all = read_baseline_channels(path, sha256);
     if (all.size() == 1) return std::move(all.front());
     std::string list;
     for (const auto& b : all) {

@@ -26,11 +26,13 @@ inline constexpr const char* kBaselineChannelsSchema = "cavitas.baseline-channel
 nlohmann::json baseline_channels_to_json(const std::vector<models::Baseline>& channels);
 
 /// Every channel's baseline in a file (one for a plain baseline). Throws InputError.
-std::vector<models::Baseline> read_baseline_channels(const std::string& path);
+/// sha256 (when given) receives the SHA-256 of the file's bytes as read.
+std::vector<models::Baseline> read_baseline_channels(const std::string& path, std::string* sha256 = nullptr);
 
 /// The baseline of `channel` in a file; a plain baseline serves whatever
 /// channel is asked (the classifier notes a differing channel), a file of
 /// several channels only its own, else InputError listing them.
-models::Baseline read_baseline_file(const std::string& path, std::optional<int> channel = std::nullopt);
+models::Baseline read_baseline_file(const std::string& path, std::optional<int> channel = std::nullopt,
+                                    std::string* sha256 = nullptr);
 
 }  // namespace cavitas::app

@@ -384,6 +384,14 @@ void require_recording_file(const std::string& path) {
 
 std::string AudioSource::sha256() { return sha256_file(info().path); }
 
+std::string sha256_bytes(std::string_view bytes) {
+    unsigned char md[EVP_MAX_MD_SIZE];
+    unsigned int len = 0;
+    if (EVP_Digest(bytes.data(), bytes.size(), md, &len, EVP_sha256(), nullptr) != 1)
+        throw InputError("SHA-256 unavailable");
+    return hex_of(md, len);
+}
+
 std::string sha256_file(const std::string& path) {
     std::ifstream in(path, std::ios::binary);
     if (!in) throw InputError(path + ": cannot open for hashing: " + std::strerror(errno));

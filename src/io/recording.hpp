@@ -15,6 +15,7 @@
 #include <span>
 #include <cmath>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "src/io/units.hpp"
@@ -112,5 +113,7 @@ void require_recording_file(const std::string& path);
 
 /// SHA-256 of a file's bytes as 64 lowercase hex digits; throws InputError.
 std::string sha256_file(const std::string& path);
+/// SHA-256 of bytes already read (a baseline or a finding as parsed), 64 lowercase hex digits.
+std::string sha256_bytes(std::string_view bytes);
 
 }  // namespace cavitas::app

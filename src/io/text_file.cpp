@@ -7,6 +7,7 @@
 #include <sstream>
 
 #include "src/io/errors.hpp"
+#include "src/io/recording.hpp"
 
 namespace cavitas::app {
 
@@ -61,7 +62,8 @@ std::optional<std::string> from_utf16(const std::string& text) {
 
 }  // namespace
 
-std::string read_text_file(const std::string& path, const std::string& what, std::size_t max_bytes) {
+std::string read_text_file(const std::string& path, const std::string& what, std::size_t max_bytes,
+                           std::string* sha256) {
     namespace fs = std::filesystem;
     std::error_code ec;
     const fs::file_status st = fs::status(path, ec);
@@ -78,6 +80,7 @@ std::string read_text_file(const std::string& path, const std::string& what, std
     ss << in.rdbuf();
     if (in.bad()) throw InputError(path + ": cannot read " + what);
     std::string text = ss.str();
+    if (sha256) *sha256 = sha256_bytes(text);
     if (auto utf8 = from_utf16(text)) text = std::move(*utf8);
     if (const auto nul = text.find('\0'); nul != std::string::npos)
         throw InputError(path + ":" + std::to_string(1 + std::count(text.begin(), text.begin() + static_cast<std::ptrdiff_t>(nul), '\n')) +

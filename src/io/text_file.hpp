@@ -12,6 +12,9 @@ namespace cavitas::app {
 /// UTF-16 text (with a byte-order mark, or ASCII with every other byte zero)
 /// comes back as UTF-8. Throws InputError: no such file, a directory, not a
 /// regular file, larger than max_bytes, unreadable, a NUL byte (binary data).
-std::string read_text_file(const std::string& path, const std::string& what, std::size_t max_bytes = 64u << 20);
+/// sha256 (when given) receives the SHA-256 of the file's bytes as read, before
+/// any conversion: the hash of exactly what was parsed.
+std::string read_text_file(const std::string& path, const std::string& what, std::size_t max_bytes = 64u << 20,
+                           std::string* sha256 = nullptr);
 
 }  // namespace cavitas::app

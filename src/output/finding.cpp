@@ -448,6 +448,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
           {"recordings", b.sources.size()},
           {"rpm", b.rpm}}},
     };
+    j["provenance"] = provenance_to_json(r, baseline_path);
     j["velocity"] = velocity_to_json(r.velocity);
     add_absolute_band_levels(j["bands"], r);
     j["plots"] = plots_to_json(r);
@@ -462,6 +463,16 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         j["operating_point"] = op;
     }
     return j;
+}
+
+json provenance_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
+    return {{"analyst", r.analyst.name},
+            {"analyst_source", r.analyst.source},
+            {"host", r.analyst.host},
+            {"cavitas_version", kVersion},
+            {"baseline_path", baseline_path},
+            {"baseline_sha256", r.baseline_sha256},
+            {"baseline_created_utc", r.baseline.created_utc}};
 }
 
 json hydraulics_to_json(const ResolvedOperatingPoint& duty) {

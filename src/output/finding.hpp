@@ -18,6 +18,10 @@ inline constexpr const char* kFindingSchema = "cavitas.finding/1";
 inline constexpr const char* kNpshSchema = "cavitas.npsh/1";
 
 void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string& baseline_path);
+/// The finding's "provenance": who ran the analysis and with what: analyst,
+/// analyst_source, host, cavitas_version, baseline_path, baseline_sha256 (of
+/// its bytes as read) and baseline_created_utc. When: the finding's created_utc.
+nlohmann::json provenance_to_json(const AnalyzeResult& r, const std::string& baseline_path);
 nlohmann::json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path);
 /// The data a report draws: the spectrum profile against the baseline's, the
 /// averaged squared-envelope spectrum, the kurtogram's mean map (the finding's "plots").

@@ -18,6 +18,7 @@
 #include "src/io/text_file.hpp"
 #include "src/output/format.hpp"
 #include "src/output/plain_text.hpp"
+#include "src/output/reviews.hpp"
 #include "src/report/plot.hpp"
 #include "src/route/attention.hpp"
 #include "src/route/route.hpp"
@@ -643,6 +644,121 @@ std::vector<Field> finding_provenance(const json& f) {
             {"Report", utc_now() + " by cavitas " + std::string(kVersion)}};
 }
 
+// ---- the audit trail: who analysed, and the analysts' reviews kept beside a finding ----------
+
+// Reviews shown at most (the latest), and a reason's length on the page.
+constexpr std::size_t kReviewsShown = 50;
+constexpr std::size_t kReasonShownBytes = 600;
+
+std::string short_sha(const std::string& sha) { return sha.size() > 16 ? sha.substr(0, 16) + "..." : sha; }
+
+// The finding's "provenance": who ran the analysis, where, and the baseline's bytes.
+void add_analyst_fields(std::vector<Field>& fields, const json& f) {
+    const json& p = field(f, "provenance");
+    if (!p.is_object()) return;
+    fields.push_back({"Analyst", str(p, "analyst") + " on " + str(p, "host") + " (name from " +
+                                     str(p, "analyst_source") + "), " + str(f, "created_utc") + ", cavitas " +
+                                     str(p, "cavitas_version")});
+    fields.push_back({"Baseline SHA-256", short_sha(str(p, "baseline_sha256")) + " of " + str(p, "baseline_path") +
+                                              ", made " + str(p, "baseline_created_utc")});
+}
+
+std::string review_line(const Review& r) {
+    std::string s = r.reviewed_utc + ", " + r.analyst + " (" + r.host + "): " +
+                    (r.decision == "agree" ? "agrees with " + r.verdict
+                                           : "overrides " + r.original_verdict + " with " + r.verdict);
+    if (!r.reason.empty()) s += ". Why: " + shortened(valid_utf8(r.reason), kReasonShownBytes);
+    return s;
+}
+
+// The reviews of the finding at finding_path (its bytes hashing to finding_sha256),
+// as blocks to stand under cavitas's verdict; none when it has no reviews file.
+std::vector<Block> review_blocks(const std::string& finding_path, const std::string& finding_sha256) {
+    const std::string path = reviews_path_for(finding_path);
+    std::error_code ec;
+    if (!fs::exists(path, ec)) return {};
+    const ReviewsFile file = read_reviews_file(path);
+    std::vector<Block> out;
+    if (file.finding_sha256 != finding_sha256) {
+        out.push_back(doc::make(Kind::paragraph, "Analyst reviews: " + path + " holds reviews of another version of this "
+                                                 "finding (SHA-256 " + short_sha(file.finding_sha256) + ", this one " +
+                                                 short_sha(finding_sha256) + "); they are not shown."));
+        return out;
+    }
+    if (file.reviews.empty()) return out;
+    const Review& last = file.reviews.back();
+    out.push_back(doc::make(Kind::paragraph, "Analyst review (kept beside the finding in " +
+                                                 fs::path(path).filename().string() +
+                                                 "; the finding above is cavitas's, unchanged):"));
+    Block fb = doc::make(Kind::fields);
+    fb.fields = {{"cavitas said", last.original_verdict},
+                 {"Analyst decided", last.verdict + (last.decision == "agree" ? " (agrees)" : " (overrides cavitas)")},
+                 {"By", last.analyst + " on " + last.host + ", " + last.reviewed_utc}};
+    if (!last.reason.empty()) fb.fields.push_back({"Why", shortened(valid_utf8(last.reason), kReasonShownBytes)});
+    out.push_back(fb);
+    if (file.reviews.size() > 1 || !file.carried_over.empty()) {
+        Block list = doc::make(Kind::bullets);
+        const std::size_t first = file.reviews.size() > kReviewsShown ? file.reviews.size() - kReviewsShown : 0;
+        for (std::size_t k = first; k < file.reviews.size(); ++k) list.items.push_back(review_line(file.reviews[k]));
+        for (const auto& c : file.carried_over)
+            list.items.push_back(c.carried_utc + ": these reviews followed the finding when it was " +
+                                 shortened(valid_utf8(c.note), kReasonShownBytes));
+        out.push_back(doc::make(Kind::paragraph, "Every review, oldest first" +
+                                                     (first > 0 ? " (the latest " + std::to_string(kReviewsShown) + ")"
+                                                                : std::string()) + ":"));
+        out.push_back(list);
+    }
+    return out;
+}
+
+// The reviews beside the finding, right under cavitas's verdict (both shown).
+void add_finding_reviews(Document& d, const std::string& finding_path, const std::string& finding_sha256) {
+    std::vector<Block> blocks = review_blocks(finding_path, finding_sha256);
+    if (blocks.empty()) return;
+    auto at = std::find_if(d.blocks.begin(), d.blocks.end(), [](const Block& b) { return b.kind == Kind::verdict; });
+    at = at == d.blocks.end() ? d.blocks.begin() : at + 1;
+    d.blocks.insert(at, blocks.begin(), blocks.end());
+}
+
+// A route's reviewed findings: machine, point, what cavitas said, the latest decision, who and why.
+void add_route_reviews(Document& d, const std::string& folder, const std::vector<SummaryRow>& rows) {
+    doc::Table t;
+    t.header = {"machine", "point", "ch", "cavitas said", "review", "analyst", "reviewed", "reason"};
+    t.widths = {1.1, 0.7, 0.4, 1.0, 1.3, 1.1, 1.4, 3.0};
+    t.numeric = {false, false, true, false, false, false, false, false};
+    for (const auto& r : rows) {
+        if (r.finding.empty()) continue;
+        const std::string finding = (fs::path(folder) / r.finding).string();
+        std::error_code ec;
+        if (!fs::exists(reviews_path_for(finding), ec)) continue;
+        const ReviewsFile file = read_reviews_file(reviews_path_for(finding));
+        std::string sha;
+        (void)read_text_file(finding, "finding file", kMaxDocumentBytes, &sha);
+        if (file.reviews.empty()) continue;
+        const Review& last = file.reviews.back();
+        const bool same = file.finding_sha256 == sha;
+        t.rows.push_back({r.machine, r.point, std::to_string(r.channel), r.verdict,
+                          same ? (last.decision == "agree" ? "agree: " : "override: ") + last.verdict
+                               : "not shown: of another version of the finding",
+                          same ? last.analyst : "-", same ? last.reviewed_utc.substr(0, 16) : "-",
+                          same ? shortened(valid_utf8(last.reason), 200) : "-"});
+        t.row_verdict.push_back(same ? last.verdict : "");
+    }
+    if (t.rows.empty()) return;
+    d.heading("Analyst reviews");
+    d.paragraph("Findings an analyst reviewed (cavitas review), each with cavitas's verdict and the latest decision; "
+                "the reviews are kept beside the findings (findings/NAME.reviews.json), which stay as cavitas wrote them.");
+    Block tb = doc::make(Kind::table);
+    tb.table = t;
+    d.blocks.push_back(tb);
+}
+
+// Who ran the route (route.json's "provenance"), among the route's sources.
+void add_run_analyst(std::vector<Field>& fields, const json& run) {
+    const json& p = field(run, "provenance");
+    if (p.is_object()) fields.push_back({"Route run by", str(p, "analyst") + " on " + str(p, "host")});
+}
+
 json read_json_file(const std::string& path, const char* what, std::size_t max_bytes) {
     const json j = json::parse(read_text_file(path, what, max_bytes), nullptr, false);
     if (j.is_discarded()) throw InputError(path + ": not valid JSON");
@@ -661,6 +777,7 @@ Document finding_document(const json& f, const ReportOptions& o) {
     d.heading("Where this comes from");
     Block pv = doc::make(Kind::fields);
     pv.fields = finding_provenance(f);
+    add_analyst_fields(pv.fields, f);
     d.blocks.push_back(pv);
     d.footer = "cavitas finding report. Generated from " + str(field(f, "input"), "path") + ".";
     return d;
@@ -1049,6 +1166,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
         if (plots.contains("envelope_spectrum"))
             d.blocks.push_back(doc::figures_block({envelope_figure(field(plots, "envelope_spectrum"))}));
     }
+    add_route_reviews(d, folder, rows);
     d.heading("Where this comes from");
     Block pv = doc::make(Kind::fields);
     pv.fields = {{"Manifest", str(run, "manifest")},
@@ -1057,6 +1175,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
                  {"Analysed", str(run, "finished_utc") + " by cavitas " + str(run, "cavitas_version")},
                  {"Findings", (fs::path(folder) / "findings").string()},
                  {"Report", utc_now() + " by cavitas " + std::string(kVersion)}};
+    add_run_analyst(pv.fields, run);
     d.blocks.push_back(pv);
     doc::Table hashes;
     hashes.header = {"line", "recording", "SHA-256"};
@@ -1226,6 +1345,16 @@ void check_actions(const json& f, const std::string& origin) {
     }
 }
 
+// An edited finding's provenance may not make the report lay out megabytes of text.
+void check_provenance(const json& f, const std::string& origin) {
+    const json& p = field(f, "provenance");
+    if (p.is_null()) return;
+    if (!p.is_object() || p.size() > 64) bad(origin, "provenance", "is not an object of at most 64 members");
+    for (const auto& [key, value] : p.items())
+        if (value.is_string() && value.get_ref<const std::string&>().size() > 4096)
+            bad(origin, "provenance." + key, "is longer than 4096 bytes");
+}
+
 const json& checked_finding(const json& f, const std::string& origin) {
     static const std::set<std::string> verdicts{"normal", "incipient", "developed", "indeterminate"};
     if (!f.is_object()) bad(origin, "schema", "belongs to a document that is not an object");
@@ -1239,6 +1368,7 @@ const json& checked_finding(const json& f, const std::string& origin) {
     for (const char* k : {"reasons", "warnings"}) check_sentences(field(f, "quality"), k, origin, "quality", false);
     check_sentences(field(f, "operating_point"), "reading_notes", origin, "operating_point", false);
     check_table(f, "baseline_warnings", origin);
+    check_provenance(f, origin);
     const json& ind = field(f, "indicators");
     if (ind.is_object() && ind.size() > kMaxTableRows)
         bad(origin, "indicators", "has " + std::to_string(ind.size()) + " entries (at most " +
@@ -1358,6 +1488,7 @@ void render_report(const ReportOptions& given, std::ostream& out) {
         OutputGuard guard;
         std::error_code ec;
         guard.input(o.input, "report input");
+        guard.input(reviews_path_for(o.input), "reviews of the report input");
         if (fs::is_directory(o.input, ec))  // a route folder: every file it holds is read or may be
             for (auto it = fs::recursive_directory_iterator(o.input, ec); !ec && it != fs::recursive_directory_iterator();
                  it.increment(ec))
@@ -1370,7 +1501,9 @@ void render_report(const ReportOptions& given, std::ostream& out) {
     if (fs::is_directory(o.input, ec)) {
         d = route_document(o.input, o);
     } else {
-        d = document_from_text(read_text_file(o.input, "report input", kMaxDocumentBytes), o.input, o);
+        std::string sha;
+        d = document_from_text(read_text_file(o.input, "report input", kMaxDocumentBytes, &sha), o.input, o);
+        add_finding_reviews(d, o.input, sha);
     }
     // Both files or neither: a PDF that cannot be written leaves no new HTML behind.
     StagedFiles files;

@@ -28,6 +28,7 @@
 #include "src/output/format.hpp"
 #include "src/output/plain_text.hpp"
 #include "src/route/attention.hpp"
+#include "src/route/carry_reviews.hpp"
 
 namespace cavitas::app {
 
@@ -380,7 +381,7 @@ SummaryRow start_row(const ManifestRow& m) {
 // reason; only a finding that cannot be written throws.
 SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std::string& baselines,
                        const std::string& out_dir,
-                       const std::optional<std::string>& zones) {
+                       const std::optional<std::string>& zones, const Analyst& who) {
     SummaryRow row = start_row(m);
     auto fail = [&row](const std::string& why) {
         row.verdict = "error";
@@ -414,6 +415,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         origin.base_dir = manifest.dir;
         ao.operating.origin = origin;
         ao.zones = zones;
+        ao.analyst = who;
         const AnalyzeResult r = analyze(ao);
         const auto& f = r.finding;
         row.verdict = models::to_string(f.verdict);
@@ -514,6 +516,11 @@ std::string rate_text(std::size_t done, double audio_s, double elapsed_s, int jo
                   jobs == 1 ? "" : "s", elapsed_s > 0 ? static_cast<double>(done) / elapsed_s : 0.0,
                   elapsed_s > 0 ? audio_s / elapsed_s : 0.0);
     return b;
+}
+
+// Who ran the route (or the merge), for route.json.
+json run_provenance(const Analyst& who) {
+    return {{"analyst", who.name}, {"analyst_source", who.source}, {"host", who.host}};
 }
 
 // Each machine's state at its latest visit, worst first, for route.json.
@@ -689,6 +696,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     using clock = std::chrono::steady_clock;
     const auto started = clock::now();
     const std::string started_utc = utc_now();
+    const Analyst who = identify_analyst(o.analyst);
     std::optional<std::pair<std::size_t, std::size_t>> shard;
     if (o.shard) shard = parse_shard(*o.shard);
     if (o.jobs < 0 || o.jobs > 1024) throw UsageError("--jobs " + std::to_string(o.jobs) + ": use 1 .. 1024 (0 = one per core)");
@@ -733,7 +741,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
             const std::size_t i = next.fetch_add(1);
             if (i >= todo.size()) return;
             try {
-                rows[i] = analyse_row(*todo[i], manifest, o.baselines, staged.path(), zones);
+                rows[i] = analyse_row(*todo[i], manifest, o.baselines, staged.path(), zones, who);
             } catch (...) {
                 std::lock_guard<std::mutex> lock(done_mutex);
                 if (!write_error) write_error = std::current_exception();
@@ -797,8 +805,10 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     run["finished_utc"] = utc_now();
     run["elapsed_s"] = elapsed;
     run["audio_s"] = audio_s;
-    // One unit: the summaries beside the findings, the store in one transaction,
-    // then the folder swapped in. A failure on the way leaves the old outputs whole.
+    run["provenance"] = run_provenance(who);
+    // One unit: the reviews carried over, the summaries beside the findings, the store in
+    // one transaction, then the folder swapped in. A failure on the way leaves the old outputs whole.
+    const ReviewCarry carry = carry_reviews(o.out_dir, staged.path(), o.discard_reviews);
     write_summary_files(staged.path(), rows, manifest.extra_columns, run);
     std::size_t added = 0, updated = 0;
     if (store) added = import_rows(*store, rows, staged.path(), updated);
@@ -811,6 +821,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     out << "summary: " << (fs::path(o.out_dir) / "summary.csv").string() << ", "
         << (fs::path(o.out_dir) / "summary.jsonl").string() << "; findings in " << (fs::path(o.out_dir) / "findings").string()
         << "/\n";
+    print_review_carry(out, carry, o.out_dir);
     if (store) out << "history: " << store_path << " (" << added << " new, " << updated << " already there and updated)\n";
     else if (shard) out << "history: not written by a shard; 'cavitas merge' writes it once all shards are done\n";
     return analysed == rows.size() ? 0 : 1;
@@ -818,6 +829,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
 
 int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     if (o.shard_dirs.empty()) throw UsageError("merge: name the output folders of the shards");
+    const Analyst who = identify_analyst(o.analyst);
     std::string manifest_sha, manifest_path;
     std::size_t manifest_rows = 0, shard_count = 0;
     std::vector<std::string> extra_columns;
@@ -936,6 +948,8 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     run["failed"] = merged.size() - analysed;
     run["finished_utc"] = utc_now();
     run["audio_s"] = audio_s;
+    run["provenance"] = run_provenance(who);
+    const ReviewCarry carry = carry_reviews(o.out_dir, staged.path(), o.discard_reviews);
     write_summary_files(staged.path(), merged, extra_columns, run);
     std::size_t added = 0, updated = 0;
     if (store) added = import_rows(*store, merged, staged.path(), updated);
@@ -943,6 +957,7 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     out << "merged " << shard_count << " shard(s) of " << manifest_path << ": " << merged.size() << " recording(s), "
         << analysed << " analysed, " << merged.size() - analysed << " failed\n";
     print_attention(out, merged);
+    print_review_carry(out, carry, o.out_dir);
     if (store) out << "history: " << *o.store << " (" << added << " new, " << updated << " already there and updated)\n";
     return analysed == merged.size() ? 0 : 1;
 }

@@ -86,6 +86,10 @@ struct RouteOptions {
     /// --zones FILE: severity zones for every row's velocity (default
     /// BASELINES/severity_zones.toml when it exists).
     std::optional<std::string> zones;
+    std::optional<std::string> analyst;  ///< --analyst: recorded in route.json and every finding
+    /// --discard-reviews: replace the folder even where its analyst reviews
+    /// cannot follow their findings (src/route/carry_reviews.hpp).
+    bool discard_reviews = false;
 };
 
 /// Analyse the route. Returns the exit status: 0 every row analysed, 1 when a
@@ -98,6 +102,8 @@ struct MergeOptions {
     std::string out_dir;
     std::optional<std::string> store;
     bool no_store = true;
+    std::optional<std::string> analyst;
+    bool discard_reviews = false;
 };
 /// Merge the outputs of route --shard runs of one manifest into one summary,
 /// as a run without shards would have written it. Exit status as run_route.

@@ -22,6 +22,7 @@ One line per check, then "N passed, M failed". Exit 0 all pass, 1 a failure,
 77 when a tool is missing (jsonschema, poppler-utils, chromium).
 """
 
+import hashlib
 import json
 import os
 import re
@@ -102,7 +103,7 @@ def outputs(cavitas, samples, schemas, work):
     with open(manifest, "w", encoding="utf-8") as f:
         f.write(text + "OW-P101_gone.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,9,,,,\n")
     route = os.path.join(work, "route")
-    r = run([cavitas, "route", manifest, "--baselines", lib, "--out", route])
+    r = run([cavitas, "route", manifest, "--baselines", lib, "--out", route, "--analyst", "R. Okafor"])
     check("route exits 1 (one row fails, the others are analysed)", r.returncode == 1, r.stderr)
 
     compare = os.path.join(work, "compare.json")
@@ -116,7 +117,7 @@ def outputs(cavitas, samples, schemas, work):
                          ("developed", "OW-P101_2026-11-02.wav"), ("indeterminate", "OW-P101_silent.wav")):
         out = os.path.join(work, f"finding-{verdict}.json")
         r = run([cavitas, "analyze", "--baseline", os.path.join(lib, "OW-P101", "DE-H.json"), "--json", out,
-                 os.path.join(site, rec)])
+                 "--analyst", "R. Okafor", os.path.join(site, rec)])
         check(f"analyze {rec}", r.returncode == 0, r.stderr)
         with open(out, encoding="utf-8") as f:
             doc = json.load(f)
@@ -137,6 +138,7 @@ def outputs(cavitas, samples, schemas, work):
 
     fv, rv, runv, cv = (schema("finding.schema.json"), schema("route-row.schema.json"), schema("route.schema.json"),
                         schema("compare.schema.json"))
+    reviews_v = schema("reviews.schema.json")
     for verdict, path in findings.items():
         with open(path, encoding="utf-8") as f:
             validate(fv, json.load(f), f"finding ({verdict})")
@@ -197,6 +199,42 @@ def outputs(cavitas, samples, schemas, work):
     del spoiled["input"]["sha256"]
     check("schema refuses a finding with an unknown verdict and no SHA-256", len(list(fv.iter_errors(spoiled))) >= 2)
 
+    # ---- the audit trail: provenance and reviews ----
+    base_file = os.path.join(lib, "OW-P101", "DE-H.json")
+    with open(base_file, "rb") as f:
+        base_sha = hashlib.sha256(f.read()).hexdigest()  # Python's hashlib, independent of cavitas
+    with open(base_file, encoding="utf-8") as f:
+        base_created = json.load(f)["created_utc"]
+    with open(findings["developed"], encoding="utf-8") as f:
+        prov = json.load(f).get("provenance", {})
+    check("the finding's provenance names the analyst given with --analyst", prov.get("analyst") == "R. Okafor", str(prov))
+    check("... the baseline's SHA-256 as hashlib computes it", prov.get("baseline_sha256") == base_sha,
+          f"{prov.get('baseline_sha256')} vs {base_sha}")
+    check("... and the baseline's created_utc", prov.get("baseline_created_utc") == base_created)
+    check("route.json names the analyst given with --analyst",
+          run_doc.get("provenance", {}).get("analyst") == "R. Okafor", str(run_doc.get("provenance")))
+    with open(findings["developed"], "rb") as f:
+        developed_bytes = f.read()
+    reason = "suction valve half shut for a test that hour"
+    r = run([cavitas, "review", findings["developed"], "--override", "incipient", "--reason", reason,
+             "--analyst", "J. Ng"])
+    check("review --override of the developed finding", r.returncode == 0, r.stderr)
+    with open(findings["developed"], "rb") as f:
+        check("the review left the finding's bytes as they were", f.read() == developed_bytes)
+    reviews_path = findings["developed"][:-len(".json")] + ".reviews.json"
+    with open(reviews_path, encoding="utf-8") as f:
+        validate(reviews_v, json.load(f), "reviews of the developed finding")
+    spoiled_reviews = {"schema": "cavitas.reviews/1", "finding": "x.json", "finding_sha256": "0" * 64,
+                       "reviews": [{"reviewed_utc": "2026-11-17T09:00:00Z", "analyst": "J. Ng", "decision": "override",
+                                    "verdict": "normal", "original_verdict": "developed", "reason": ""}]}
+    check("schema refuses an override without a reason", len(list(reviews_v.iter_errors(spoiled_reviews))) >= 1)
+    p102 = [row for row in rows if row["machine"] == "OW-P102" and row["verdict"] == "developed"]
+    route_reason = "bearing replaced the day before; recheck next week"
+    if check("the route has a developed OW-P102 finding to review", len(p102) >= 1):
+        r = run([cavitas, "review", os.path.join(route, p102[0]["finding"]), "--override", "incipient",
+                 "--reason", route_reason, "--analyst", "J. Ng"])
+        check("review of a route finding", r.returncode == 0, r.stderr)
+
     # ---- reports ----
     reports = os.path.join(work, "reports")
     os.makedirs(reports, exist_ok=True)
@@ -240,6 +278,17 @@ def outputs(cavitas, samples, schemas, work):
             for what in ("mm/s RMS", "dB re 1 µm/s²", "dB re baseline"):
                 check(f"{name}.pdf text shows '{what}'", what in text, what)
                 check(f"{name}.html shows '{what}'", what in page, what)
+        if name == "finding-developed":
+            # cavitas's verdict and the analyst's decision side by side (the review above), and who analysed it.
+            for what in ("Developed cavitation", "cavitas said developed", "incipient (overrides cavitas)", reason,
+                         "J. Ng", "R. Okafor on ", base_sha[:16]):
+                check(f"{name}.pdf text shows '{what}'", what in text, what)
+        if kind == "route":
+            for what in ("Analyst reviews", "J. Ng", "Route run by R. Okafor"):
+                check(f"{name}.pdf text shows '{what}'", what in text, what)
+            # Table cells wrap in the PDF: the whole cells are read in the HTML.
+            for what in ("override: incipient", route_reason):
+                check(f"{name}.html shows '{what}' in the reviews table", what in page, what)
         if name.startswith("finding-"):
             # The finding page's waveform chart: its two titles and its caption.
             check(f"{name}.pdf shows the waveform as recorded and band-passed",

@@ -614,3 +614,66 @@ TEST_CASE("route: the library's severity_zones.toml gives every finding its zone
     CHECK(r.status == 1);
     CHECK(r.err.find("severity_zones.toml: b_c_mm_s = 2 must be above a_b_mm_s = 3") != std::string::npos);
 }
+
+TEST_CASE("route: --analyst is recorded in route.json and every finding, and reviews survive a re-run only when they still apply",
+          "[route][review]") {
+    const Site& s = site();
+    // A library of its own: one of its baselines is learned again below.
+    const fs::path lib = workdir() / "lib-reviews";
+    fs::remove_all(lib);
+    fs::copy(s.lib, lib, fs::copy_options::recursive);
+    fs::remove(lib / "history.sqlite");
+    const fs::path out = workdir() / "out-reviews";
+    const std::string route = "route " + q(s.dir / "route-deh.csv") + " --baselines " + q(lib) + " --no-store --out " + q(out);
+    REQUIRE(run(route + " --analyst 'R. Okafor'").status == 0);
+    const json run_doc = json::parse(slurp(out / "route.json"));
+    CHECK(run_doc["provenance"]["analyst"] == "R. Okafor");  // as given above
+    CHECK(run_doc["provenance"]["analyst_source"] == "--analyst");
+    std::string developed;  // a developed finding of OW-P102 (the demo's scenario, tools/synth)
+    for (const auto& row : jsonl(out / "summary.jsonl")) {
+        const json f = json::parse(slurp(out / row["finding"].get<std::string>()));
+        CHECK(f["provenance"]["analyst"] == "R. Okafor");
+        if (row["machine"] == "OW-P102" && row["verdict"] == "developed") developed = row["finding"];
+    }
+    REQUIRE_FALSE(developed.empty());
+    const fs::path finding = out / developed;
+    const fs::path reviews = out / (developed.substr(0, developed.size() - 5) + ".reviews.json");
+    REQUIRE(run("review " + q(finding) + " --override incipient --reason 'valve test that hour' --analyst 'J. Ng'").status == 0);
+    const json reviewed = json::parse(slurp(reviews));
+    const std::string old_sha = reviewed["finding_sha256"];
+
+    // Again into the same folder, nothing changed: the finding is made again (a new
+    // created_utc, so new bytes) and its review follows it, rebound to the new bytes.
+    Run r = run(route + " --analyst 'R. Okafor'");
+    INFO(r.err);
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("reviews kept") != std::string::npos);
+    REQUIRE(fs::exists(reviews));
+    json carried = json::parse(slurp(reviews));
+    CHECK(carried["reviews"] == reviewed["reviews"]);
+    const fs::path sums = workdir() / "finding-sum.txt";
+    REQUIRE(std::system(("sha256sum " + q(finding) + " > " + q(sums)).c_str()) == 0);  // coreutils, independent
+    CHECK(carried["finding_sha256"] == slurp(sums).substr(0, 64));
+    REQUIRE(carried["carried_over"].size() == 1);
+    CHECK(carried["carried_over"][0]["from_finding_sha256"] == old_sha);
+
+    // OW-P102's baseline learned again from one recording: the review no longer applies.
+    // The run stops before the folder is replaced, naming the reviewed finding.
+    r = run("baseline --machine OW-P102 --rpm 2960 --vanes 5 --full-scale 50g -o " + q(lib / "OW-P102" / "DE-H.json") +
+            " " + q(s.dir / "OW-P102_baseline_1.wav"));
+    REQUIRE(r.status == 0);
+    const std::string summary_before = slurp(out / "summary.jsonl"), reviews_before = slurp(reviews);
+    r = run(route);
+    CHECK(r.status == 1);
+    CHECK(r.err.find(developed) != std::string::npos);
+    CHECK(r.err.find("baseline changed") != std::string::npos);
+    CHECK(r.err.find("--discard-reviews") != std::string::npos);
+    CHECK(slurp(out / "summary.jsonl") == summary_before);
+    CHECK(slurp(reviews) == reviews_before);
+    // Asked to, it replaces the folder and says which reviews it dropped.
+    r = run(route + " --discard-reviews");
+    CHECK(r.status == 0);
+    CHECK(r.out.find("reviews dropped") != std::string::npos);
+    CHECK(r.out.find(developed) != std::string::npos);
+    CHECK_FALSE(fs::exists(reviews));
+}
