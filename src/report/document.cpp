@@ -340,6 +340,16 @@ struct Pdf {
         g_object_unref(l);
         return static_cast<double>(lw) / PANGO_SCALE;
     }
+    static std::string widest_piece(const std::string& path) {
+        std::string widest;
+        std::size_t from = 0;
+        while (from < path.size()) {
+            const std::size_t at = std::min(path.find('/', from), path.size() - 1);
+            if (at + 1 - from > widest.size()) widest = path.substr(from, at + 1 - from);
+            from = at + 1;
+        }
+        return widest;
+    }
     // The widest word of each column (header in bold) plus padding: narrower, and a word would break inside.
     std::vector<double> widest_words(const Table& t, double size, double pad) {
         std::vector<double> m(t.header.size(), 0.0);
@@ -348,6 +358,9 @@ struct Pdf {
             for (std::size_t c = 0; c < cells.size() && c < m.size(); ++c) {
                 std::istringstream words(cells[c]);
                 for (std::string word; words >> word;) {
+                    // A long path may wrap after its slashes (as in the HTML): its widest piece counts.
+                    if (word.size() > kLongToken && word.find('/') != std::string::npos)
+                        word = widest_piece(word);
                     auto [it, fresh] = seen.try_emplace({word, bold}, 0.0);
                     if (fresh) it->second = line_width(word, size, bold);
                     m[c] = std::max(m[c], it->second + 2 * pad + 0.5);

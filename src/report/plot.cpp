@@ -17,6 +17,7 @@ Rgb palette::verdict(const std::string& v) {
     if (v == "incipient") return {0.80, 0.53, 0.13};     // ochre
     if (v == "developed") return {0.64, 0.20, 0.16};     // brick
     if (v == "indeterminate") return {0.42, 0.44, 0.50};  // slate
+    if (v == "action") return {0.22, 0.36, 0.62};        // steel blue: normal, but another finding needs action
     return {0.35, 0.10, 0.35};                           // error: aubergine
 }
 

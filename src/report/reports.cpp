@@ -995,7 +995,7 @@ void add_latest_table(Document& d, const std::vector<const SummaryRow*>& latest)
                           r->hf_rise_db ? signed_fixed(*r->hf_rise_db, 1) : "-", r->npsha_m ? fixed(*r->npsha_m, 2) : "-",
                           r->margin_ratio ? fixed(*r->margin_ratio, 2) : "-", since_words(*r),
                           r->actions.empty() ? "-" : r->actions.front().priority});
-        t.row_verdict.push_back(r->verdict);
+        t.row_verdict.push_back(r->verdict == "normal" && !r->actions.empty() ? "action" : r->verdict);
     }
     Block tb = doc::make(Kind::table);
     tb.table = t;
@@ -1003,7 +1003,8 @@ void add_latest_table(Document& d, const std::vector<const SummaryRow*>& latest)
     d.paragraph("HF dB: the high-frequency band level in dB re the point's own baseline. NPSHa: net positive suction "
                 "head available at the visit, m of liquid; NPSHa / NPSH3: its ratio to the pump's 3 % head-drop NPSH. "
                 "Since previous visit: the date and verdict of the point's visit before, and the change of the HF "
-                "level since then. First step: the priority of the point's soonest action (below).");
+                "level since then. First step: the priority of the point's soonest action (below). The stripe is the "
+                "verdict's colour, blue where the verdict is normal but another finding needs action.");
 }
 
 // Every point with something to act on, numbered as in the table: the operator's note, the other findings and
@@ -1025,8 +1026,8 @@ void add_point_actions(Document& d, const std::vector<const SummaryRow*>& latest
         d.bullets(items);
     }
     if (shown == 0) d.paragraph("No machine point needs action; keep to the route interval.");
-    d.bullets({"Re-measure every point that was acted on, and compare before and after (cavitas compare)."});
-    d.paragraph(kActionsLegend);
+    d.paragraph("After any work: re-measure every point that was acted on, and compare before and after (cavitas "
+                "compare). " + std::string(kActionsLegend));
 }
 
 // The route's earlier visits of each point, newest first within a point, in the points' order of attention.
@@ -1092,7 +1093,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     d.header = header_fields(o, "", "", first.substr(0, 10) + (last.substr(0, 10) != first.substr(0, 10)
                                                                  ? " .. " + last.substr(0, 10)
                                                                  : std::string()));
-    if (o.machine.empty()) d.header.push_back({"Recordings", std::to_string(rows.size()) + " recordings"});
+    if (o.machine.empty()) d.header.push_back({"Rows", std::to_string(rows.size()) + " (recordings x channels)"});
     // The latest state of each machine point and channel, worst first (route/attention: as on the terminal).
     const std::vector<PointState> states = latest_per_point(rows);
     std::vector<const SummaryRow*> latest;
@@ -1116,7 +1117,7 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
         mt.rows.push_back({m.machine, m.worst->verdict, std::to_string(m.points), std::to_string(m.channels),
                            std::to_string(m.cavitating),
                            m.worst->point + (m.channels > m.points ? ", channel " + std::to_string(m.worst->channel) : std::string())});
-        mt.row_verdict.push_back(m.worst->verdict);
+        mt.row_verdict.push_back(m.worst->verdict == "normal" && !m.worst->actions.empty() ? "action" : m.worst->verdict);
     }
     Block mtb = doc::make(Kind::table);
     mtb.table = mt;

@@ -15,7 +15,7 @@ int severity_rank(const SummaryRow& r) {
     if (r.verdict == "incipient") return 1;
     if (r.failed()) return 2;
     if (r.verdict == "indeterminate") return 3;
-    if (r.agreement == "at_risk" || !r.other_findings.empty()) return 4;
+    if (r.agreement == "at_risk" || !r.other_findings.empty() || !r.actions.empty()) return 4;
     return 5;
 }
 

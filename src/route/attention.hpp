@@ -12,7 +12,7 @@
 namespace cavitas::app {
 
 /// 0 developed, 1 incipient, 2 a row that failed, 3 indeterminate, 4 normal
-/// with a concern (a thin NPSH margin or another finding), 5 normal.
+/// with a concern (a thin NPSH margin, another finding or an action), 5 normal.
 int severity_rank(const SummaryRow& r);
 
 /// How thin the hydraulic margin is: 0 thin (NPSHa under kNearBoilingNpshM,

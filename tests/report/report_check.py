@@ -55,6 +55,21 @@ def words(text):
     return re.sub(r"\s+", " ", text)
 
 
+def broken_words(html, pdf_raw_text):
+    """Words of the HTML's table cells and list items that the PDF splits inside ("develope d")."""
+    cells = re.findall(r"<(?:td|th|li)[^>]*>(.*?)</(?:td|th|li)>", html, flags=re.S)
+    vocabulary = set()
+    for cell in cells:
+        vocabulary.update(re.findall(r"\b[A-Za-z]{5,}\b", re.sub(r"<[^>]+>", "", cell)))
+    text = words(pdf_raw_text)
+    found = []
+    for w in sorted(vocabulary):
+        if any(re.search(rf"(?<![A-Za-z-]){re.escape(w[:k])} {re.escape(w[k:])}(?![A-Za-z-])", text)
+               for k in range(2, len(w) - 1)):
+            found.append(w)
+    return found
+
+
 def finish():
     print(f"{PASSED} passed, {FAILED} failed")
     return 1 if FAILED else 0
@@ -283,7 +298,28 @@ def outputs(cavitas, samples, schemas, work):
             for what in ("Developed cavitation", "cavitas said developed", "incipient (overrides cavitas)", reason,
                          "J. Ng", "R. Okafor on ", base_sha[:16]):
                 check(f"{name}.pdf text shows '{what}'", what in text, what)
+        raw = run(["pdftotext", "-raw", pdf, "-"]).stdout  # cells in drawing order: a wrapped cell reads whole
+        broken = broken_words(page, raw)
+        check(f"{name}.pdf breaks no word of a table cell or list item inside ({len(broken)} broken)", not broken,
+              ", ".join(broken[:6]))
         if kind == "route":
+            # Every finding's actions and the operator's words, whole (the demo's OW-P103 bearing family,
+            # OW-P102's throttled valve and duty, its large margin pointing at recirculation).
+            for what in ("What to do, point by point", "Check the bearings: impacts repeat at 3.31x shaft speed",
+                         "bearing-like (non-integer order), not cavitation; check the bearings",
+                         "discharge valve throttled for a network test", "35 % of the baseline's flow",
+                         "suction recirculation at part load is the first suspect", "re-check within 14 days",
+                         "Earlier visits on this route", "sump drawn down 4 m, suction strainer fouled"):
+                check(f"{name}.pdf text shows '{what}'", what in text or what in words(raw), what)
+                check(f"{name}.html shows '{what}'", what in words(re.sub(r"<[^>]+>", "", page)), what)
+            check(f"{name}: no note is cut short", "…" not in text and not re.search(r"[A-Za-z]\.\.\.", text))
+            check(f"{name}: no empty header field", "Point -" not in text and "Machine -" not in text)
+            # The banner's point is the first row of the table under it (one order of attention).
+            latest = page.find("Each point at its latest visit")
+            first_row = page[page.find("<tbody>", latest):page.find("</tr>", page.find("<tbody>", latest))]
+            check(f"{name}: the banner's point OW-P102 DE-H is the table's first row",
+                  "Look at first: OW-P102 DE-H" in page and "OW-P102" in first_row and "DE-H" in first_row,
+                  re.sub(r"<[^>]+>", " ", first_row)[:120])
             for what in ("Analyst reviews", "J. Ng", "Route run by R. Okafor"):
                 check(f"{name}.pdf text shows '{what}'", what in text, what)
             # Table cells wrap in the PDF: the whole cells are read in the HTML.

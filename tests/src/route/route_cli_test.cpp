@@ -677,3 +677,50 @@ TEST_CASE("route: --analyst is recorded in route.json and every finding, and rev
     CHECK(r.out.find(developed) != std::string::npos);
     CHECK_FALSE(fs::exists(reviews));
 }
+
+// The order of attention (src/route/attention.hpp): at the same verdict, a point whose
+// suction head is near boiling comes before one with a large NPSH margin, whatever the
+// manifest's order; the report's banner names the first row of its table. The same
+// recording (OW-P101's developed visit) is read as two points, so that nothing but the
+// margin differs: at -99.5 kPa gauge the absolute suction pressure (about 1.1 kPa) is
+// below water's vapour pressure at 14 C (1.6 kPa, IAPWS-IF97), so NPSHa is the velocity
+// and gauge heads alone, under a metre (computed from the definition of NPSHa).
+TEST_CASE("route: a point near boiling is looked at before one with a large margin, and the banner is the table's first row",
+          "[route]") {
+    const Site& s = site();
+    fs::create_directories(s.lib / "OW-P101");
+    fs::copy_file(s.lib / "OW-P101" / "DE-H.json", s.lib / "OW-P101" / "DE-V.json", fs::copy_options::overwrite_existing);
+    const fs::path manifest = s.dir / "margins.csv";
+    std::ofstream(manifest) << "file,machine,point,channel,datetime,rpm,vanes,full_scale,suction_pressure\n"
+                               "OW-P101_2026-11-02.wav,OW-P101,DE-V,0,2026-11-02T09:05,1485,7,50g,300kPa\n"
+                               "OW-P101_2026-11-02.wav,OW-P101,DE-H,0,2026-11-02T09:05,1485,7,50g,-99.5kPa\n";
+    const fs::path out = workdir() / "margins-out";
+    const Run r = run("route " + q(manifest) + " --baselines " + q(s.lib) + " --no-store --jobs 1 --out " + q(out));
+    REQUIRE(r.status == 0);
+    const auto rows = jsonl(out / "summary.jsonl");
+    REQUIRE(rows.size() == 2);
+    for (const auto& row : rows) REQUIRE(row["verdict"] == "developed");
+    const json& near_boiling = rows[0]["point"] == "DE-H" ? rows[0] : rows[1];
+    const json& large = rows[0]["point"] == "DE-H" ? rows[1] : rows[0];
+    CHECK(near_boiling["npsha_m"].get<double>() < 1.0);
+    CHECK(large["margin_ratio"].get<double>() > 5.0);
+    // The terminal lists DE-H first.
+    const auto first = r.out.find("1. OW-P101  DE-H"), second = r.out.find("2. OW-P101  DE-V");
+    CHECK(first != std::string::npos);
+    CHECK(second != std::string::npos);
+    CHECK(first < second);
+    // The report's banner and the first row of the table beneath it name the same point.
+    const fs::path html = workdir() / "margins.html";
+    REQUIRE(run("report " + q(out) + " --html " + q(html)).status == 0);
+    const std::string page = slurp(html);
+    CHECK(page.find("Look at first: OW-P101 DE-H") != std::string::npos);
+    CHECK(page.find("near boiling at the impeller eye") != std::string::npos);
+    const auto table = page.find("Each point at its latest visit");
+    REQUIRE(table != std::string::npos);
+    const auto body = page.find("<tbody>", table);
+    const auto row_end = page.find("</tr>", body);
+    REQUIRE(body != std::string::npos);
+    const std::string first_row = page.substr(body, row_end - body);
+    CHECK(first_row.find("DE-H") != std::string::npos);
+    CHECK(first_row.find("DE-V") == std::string::npos);
+}
