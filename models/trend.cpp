@@ -12,7 +12,7 @@ namespace cavitas::models {
 TrendJudgement judge_hf_trend(const std::vector<TrendPoint>& all, const TrendConfig& c) {
     std::vector<TrendPoint> pts;
     for (const auto& p : all)
-        if (p.usable && std::isfinite(p.hf_rise_db)) pts.push_back(p);
+        if (p.usable && std::isfinite(p.hf_rise_db) && (!c.since_days || p.days >= *c.since_days)) pts.push_back(p);
     std::stable_sort(pts.begin(), pts.end(), [](const TrendPoint& a, const TrendPoint& b) { return a.days < b.days; });
     if (pts.size() > c.window) pts.erase(pts.begin(), pts.end() - static_cast<std::ptrdiff_t>(c.window));
     TrendJudgement j;

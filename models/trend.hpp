@@ -9,6 +9,9 @@
 // p <= `alpha`; rank methods, because one odd visit (a re-mounted sensor)
 // must not make or break a trend. With 4 visits the smallest possible p is
 // 1/24 = 0.042, so 4 is the fewest that can ever be significant at 0.05.
+// A repair resets the history: with `since_days` (the point's last
+// maintenance event) only the visits at or after it are judged, so that a
+// slope never runs through the repair.
 #pragma once
 
 #include <optional>
@@ -28,6 +31,7 @@ struct TrendConfig {
     std::size_t min_points = 4;
     double alpha = 0.05;
     double alert_db = 3.0;     ///< the classifier's HF alert (ClassifierConfig::hf_alert_db)
+    std::optional<double> since_days;  ///< judge only visits at or after this time (the last event), days
 };
 
 struct TrendJudgement {

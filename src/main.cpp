@@ -11,6 +11,7 @@
 
 #include "src/commands/analyst_review.hpp"
 #include "src/commands/commands.hpp"
+#include "src/commands/event.hpp"
 #include "src/commands/process_tuning.hpp"
 #include "src/io/analyst.hpp"
 #include "src/io/errors.hpp"
@@ -322,7 +323,9 @@ int main(int argc, char** argv) {
         "state of each machine point, worst first. A bad row never stops the others; the exit status is\n"
         "1 when any row failed. Run again into the same OUT, analyst reviews there ('cavitas review') follow\n"
         "each finding made again from the same recording, channel and baseline with the same verdict; any\n"
-        "other review stops the run before OUT is replaced, naming it (--discard-reviews drops them).");
+        "other review stops the run before OUT is replaced, naming it (--discard-reviews drops them).\n"
+        "An event column records a repair in the store at the row's datetime\n"
+        "(a row with an event and no file is an event only; see 'cavitas event').");
     rt->add_option("manifest", ro.manifest, "Route manifest (CSV)")->required()->type_name("MANIFEST.csv");
     rt->add_option("--out", ro.out_dir, "Output folder (created when missing)")->required()->type_name("DIR");
     rt->add_option("--baselines", ro.baselines, "Baseline library: BASELINES/MACHINE/POINT.json")->required()->type_name("DIR");
@@ -374,7 +377,10 @@ int main(int argc, char** argv) {
         "The history of a machine's measurement points from the results store: the HF level over the\n"
         "baseline, verdicts, impulse rate and NPSH margin per visit, and whether the HF level is rising\n"
         "(Theil-Sen slope and a one-sided Mann-Kendall test over the last visits) before it crosses\n"
-        "into an incipient verdict.");
+        "into an incipient verdict. Each point is judged on the visits at or after its last maintenance\n"
+        "event ('cavitas event'); the events are listed between the visits.\n"
+        "\n"
+        "  cavitas trend OW-P101 DE-H --baselines lib --json trend.json");
     tr->add_option("machine", to.machine, "Machine tag")->required();
     tr->add_option("point", to.point, "Measurement point (default: every point of the machine)");
     tr->add_option("--store", to.store, "Results store (SQLite) written by 'route'")->type_name("FILE");
@@ -383,6 +389,30 @@ int main(int argc, char** argv) {
     tr->add_option("--csv", to.csv_output, "Write the history as CSV")->type_name("FILE");
     tr->add_option("--window", to.window, "Visits judged for the trend (default 6)")->check(CLI::Range(4, 1000));
 
+    EventOptions eo;
+    auto* ev = app.add_subcommand(
+        "event",
+        "Record a repair or change of a machine in the results store: a replaced impeller, a cleaned\n"
+        "strainer, a re-set level control. From then on 'trend' judges the point on the visits since its\n"
+        "last event (a slope never runs through a repair), the route's change since the previous visit\n"
+        "stops at it, report charts mark it, and 'compare --around-event' compares the visits either side.\n"
+        "Without POINT the event concerns every point of the machine. Recording the same event again adds\n"
+        "nothing. A route manifest's event column records events too.\n"
+        "\n"
+        "  cavitas event OW-P101 --date 2026-11-04 --what \"impeller replaced\" --baselines lib\n"
+        "  cavitas event OW-P101 DE-H --date 2026-11-04T14:30 --what \"sensor re-mounted\" --store history.sqlite\n"
+        "  cavitas event OW-P101 --list --baselines lib");
+    ev->add_option("machine", eo.machine, "Machine tag, as the route manifest names it")->required();
+    ev->add_option("point", eo.point, "Measurement point (default: every point of the machine)");
+    ev->add_option("--date", eo.date,
+                   "When the work was done, ISO 8601: a date (2026-11-04, taken as its midnight) or a date-time "
+                   "(2026-11-04T14:30); visits at or after it count as after it")
+        ->type_name("DATE");
+    ev->add_option("--what", eo.what, "What was done, in a few words (one line)")->type_name("TEXT");
+    ev->add_flag("--list", eo.list, "List the machine's events (with POINT: that point's and the machine's) and their numbers");
+    ev->add_option("--store", eo.store, "Results store (SQLite) written by 'route'")->type_name("FILE");
+    ev->add_option("--baselines", eo.baselines, "Baseline library whose history.sqlite to use")->type_name("DIR");
+
     CompareOptions co;
     auto* cp = app.add_subcommand(
         "compare",
@@ -390,10 +420,28 @@ int main(int argc, char** argv) {
         "each judged against the same baseline; for each key indicator the change (Hodges-Lehmann shift\n"
         "with its 95 % interval), a Mann-Whitney U test on the 1 s segments and Cliff's delta; the verdict\n"
         "is improved, unchanged (no significant change) or worse. Warns when the operating points before\n"
-        "and after differ enough to explain the change.");
-    cp->add_option("--baseline", co.baseline, "Baseline of the machine and point")->required()->type_name("FILE");
-    cp->add_option("--before", co.before, "Recordings before the change")->required()->type_name("REC...");
-    cp->add_option("--after", co.after, "Recordings after the change")->required()->type_name("REC...");
+        "and after differ enough to explain the change. The sides are recordings you name, or the visits\n"
+        "the results store holds either side of a maintenance event ('cavitas event').\n"
+        "\n"
+        "  cavitas compare --baseline lib/OW-P101/DE-H.json --before 2026-11-02.wav --after 2026-11-09.wav\n"
+        "  cavitas compare --around-event 2026-11-04 --machine OW-P101 --point DE-H --baselines lib");
+    cp->add_option("--baseline", co.baseline,
+                   "Baseline of the machine and point (with --around-event: default, the one the visits were judged "
+                   "against)")
+        ->type_name("FILE");
+    cp->add_option("--before", co.before, "Recordings before the change")->type_name("REC...");
+    cp->add_option("--after", co.after, "Recordings after the change")->type_name("REC...");
+    cp->add_option("--around-event", co.around_event,
+                   "Instead of --before and --after: the visits either side of a maintenance event in the results "
+                   "store (its number from 'cavitas event MACHINE --list', or its date with --machine): the point's "
+                   "last --visits before it and its first --visits at or after it")
+        ->type_name("ID|DATE");
+    cp->add_option("--store", co.store, "Results store (SQLite) for --around-event")->type_name("FILE");
+    cp->add_option("--baselines", co.baselines, "Baseline library whose history.sqlite --around-event reads")
+        ->type_name("DIR");
+    cp->add_option("--point", co.point,
+                   "Measurement point for --around-event (default: the event's, or the machine's only point)");
+    cp->add_option("--visits", co.visits, "Visits a side with --around-event (default 1)")->type_name("N")->check(CLI::Range(1, 100));
     cp->add_option("--machine", co.machine, "Machine tag; refused when the baseline names another");
     cp->add_option("--rpm", co.rpm, "Shaft speed of all the recordings, rpm (default: each one's sidecar, else estimated)")
         ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
@@ -459,6 +507,7 @@ int main(int argc, char** argv) {
         }
         if (*rv) run_analyst_review(arv, std::cout);
         if (*tr) run_trend(to, std::cout);
+        if (*ev) run_event(eo, std::cout, std::cerr);
         if (*cp) run_compare(co, std::cout, std::cerr);
         if (*rp) run_report(rpo, std::cout);
         return static_cast<int>(ExitCode::ok);

@@ -7,11 +7,12 @@
 #  1. learns each machine point's baseline from its known-good recordings
 #     (samples/baselines.csv, with the channels and calibration its columns give) into a
 #     baseline library BUILD_DIR/demo/baselines/MACHINE/POINT.json;
-#  2. analyses the route (samples/route.csv: three dated visits of OW-P101, a repair and
-#     a visit after it, its triaxial point NDE-T before and after the repair, and the
-#     other pumps) on all cores, with the history in
-#     BUILD_DIR/demo/baselines/history.sqlite;
-#  3. shows the trend of OW-P101 and compares it before and after its repair;
+#  2. analyses the route (samples/route.csv: three dated visits of OW-P101, a visit after
+#     its repair, its triaxial point NDE-T before and after the repair, the other pumps,
+#     and an event row recording the repair of 2026-11-04) on all cores, with the history
+#     in BUILD_DIR/demo/baselines/history.sqlite;
+#  3. lists OW-P101's events, shows its trend judged from the repair on (the visits
+#     before it are listed, not judged) and compares the visits either side of it;
 #  4. writes work-order reports (HTML and PDF) to BUILD_DIR/demo/reports/;
 #  5. works out the NPSH of OW-P101 on the day of its developed finding.
 # Each recording's operating point is in NAME.op.toml beside it (read by cavitas itself).
@@ -90,10 +91,11 @@ echo "== 2. the route ($samples/route.csv)"
 "$cavitas" route "$samples/route.csv" --baselines "$lib" --out "$out/route"
 echo
 
-echo "== 3. OW-P101 over time, and before/after its repair of 2026-11-04"
+echo "== 3. OW-P101 over time, split at its repair of 2026-11-04, and the visits either side of it"
+"$cavitas" event OW-P101 --list --baselines "$lib"
 "$cavitas" trend OW-P101 DE-H --baselines "$lib" --json "$out/trend-OW-P101.json"
-"$cavitas" compare --baseline "$lib/OW-P101/DE-H.json" --before "$samples/OW-P101_2026-11-02.wav" \
-  --after "$samples/OW-P101_2026-11-09.wav" --json "$out/compare-OW-P101.json"
+"$cavitas" compare --around-event 2026-11-04 --machine OW-P101 --point DE-H --baselines "$lib" \
+  --json "$out/compare-OW-P101.json"
 echo
 
 echo "== 4. work-order reports (HTML and PDF) of the route, of the repair and of OW-P102's finding"

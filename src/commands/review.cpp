@@ -4,6 +4,7 @@
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
+#include <limits>
 #include <ostream>
 
 #include <nlohmann/json.hpp>
@@ -47,15 +48,48 @@ std::string grade_of(const Measurement& m) {
     return f["confidence_grade"].get<std::string>();
 }
 
+// A maintenance event as trend and compare write it.
+ordered_json event_json(const Event& e) {
+    ordered_json j;
+    j["id"] = e.id;
+    j["datetime"] = e.happened_at;
+    j["what"] = e.what;
+    j["point"] = e.point;  // empty: every point of the machine
+    j["source"] = e.source;
+    return j;
+}
+
+std::string event_line(const Event& e) {
+    std::string when = e.happened_at.substr(0, 16);
+    if (when.size() == 16 && when.compare(10, 6, "T00:00") == 0) when.resize(10);
+    return pad(when, 17) + "--- event #" + std::to_string(e.id) + ": " + e.what +
+           (e.point.empty() ? " (every point of the machine)" : "") + " ---";
+}
+
+// The usable visits at or after the event and those before it (all of them after, without an event).
+std::pair<std::size_t, std::size_t> usable_visits(const std::vector<models::TrendPoint>& tp, const Event* since) {
+    std::size_t after = 0, before = 0;
+    for (const auto& x : tp)
+        if (x.usable) (!since || x.days >= since->days ? after : before) += 1;
+    return {after, before};
+}
+
+// "judged on the 2 visits since 2026-11-04 'impeller replaced' (the 3 before it left out): " (empty without an event).
+std::string since_words(const std::vector<models::TrendPoint>& tp, const Event* since) {
+    if (!since) return "";
+    const auto [after, before] = usable_visits(tp, since);
+    return "judged on the " + std::to_string(after) + " visit" + (after == 1 ? "" : "s") + " since " + since->label() +
+           (before ? " (the " + std::to_string(before) + " before it left out)" : std::string()) + ": ";
+}
+
+}  // namespace
+
 std::string store_path_of(const std::optional<std::string>& store, const std::optional<std::string>& baselines,
                           const char* command) {
     if (store) return *store;
     if (baselines) return (fs::path(*baselines) / "history.sqlite").string();
     throw UsageError(std::string(command) + ": give --store FILE or --baselines DIR (whose history.sqlite 'route' writes)");
 }
-
-
-}  // namespace
 
 void run_trend(const TrendOptions& o, std::ostream& out) {
     const std::string path = store_path_of(o.store, o.baselines, "trend");
@@ -76,7 +110,9 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
     models::TrendConfig cfg;
     cfg.window = o.window;
     ordered_json doc;
-    doc["schema"] = "cavitas.trend/1";
+    // 2: each point's trend is judged from its last maintenance event on
+    // (trend.points counts those visits only); + events, trend.since_event.
+    doc["schema"] = "cavitas.trend/2";
     doc["store"] = path;
     doc["machine"] = o.machine;
     doc["points"] = json::array();
@@ -91,7 +127,14 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
             << lpad("HF kurtosis", 13) << lpad("impulses", 11) << lpad("NPSHa/NPSH3", 13) << "\n";
         std::vector<models::TrendPoint> tp;
         ordered_json list = json::array();
+        const std::vector<Event> events = store.events(o.machine, point);
+        std::size_t next_event = 0;
+        auto print_events_until = [&](double days) {
+            for (; next_event < events.size() && events[next_event].days <= days; ++next_event)
+                out << "  " << event_line(events[next_event]) << "\n";
+        };
         for (const auto& m : ms) {
+            print_events_until(m.days);
             const std::string hf = m.hf_rise_db ? signed_fixed(*m.hf_rise_db, 1) + " dB" : "-";
             // A bar of the HF rise, one mark a dB, for reading the run of visits at a glance.
             const int marks = m.hf_rise_db ? static_cast<int>(std::clamp(std::lround(*m.hf_rise_db), 0L, 30L)) : 0;
@@ -119,9 +162,16 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
                              m.npsha_m ? fixed(*m.npsha_m, 2) : "", m.margin_ratio ? fixed(*m.margin_ratio, 2) : "",
                              m.agreement, m.file, m.sha256});
         }
-        const models::TrendJudgement j = models::judge_hf_trend(tp, cfg);
-        out << "  trend: " << j.text << "\n\n";
+        print_events_until(std::numeric_limits<double>::infinity());
+        const Event* since = last_event(events, point);
+        models::TrendConfig point_cfg = cfg;
+        if (since) point_cfg.since_days = since->days;
+        const models::TrendJudgement j = models::judge_hf_trend(tp, point_cfg);
+        const std::string trend_text = since_words(tp, since) + j.text;
+        out << "  trend: " << trend_text << "\n\n";
         ordered_json t;
+        t["since_event"] = since ? event_json(*since) : ordered_json(nullptr);
+        t["visits_before_event"] = usable_visits(tp, since).second;
         t["rising"] = j.rising;
         t["points"] = j.points;
         t["slope_db_per_30d"] = opt(j.slope_db_per_30d);
@@ -130,10 +180,12 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
         t["days_to_alert"] = opt(j.days_to_alert);
         t["alert_db"] = cfg.alert_db;
         t["method"] = "Theil-Sen slope, one-sided Mann-Kendall test over the last " + std::to_string(cfg.window) +
-                      " usable visits, alpha " + fixed(cfg.alpha, 2);
-        t["text"] = j.text;
+                      " usable visits at or after the point's last maintenance event, alpha " + fixed(cfg.alpha, 2);
+        t["text"] = trend_text;
         ordered_json p;
         p["point"] = point;
+        p["events"] = json::array();
+        for (const auto& e : events) p["events"].push_back(event_json(e));
         p["measurements"] = list;
         p["trend"] = t;
         doc["points"].push_back(p);
@@ -144,11 +196,141 @@ void run_trend(const TrendOptions& o, std::ostream& out) {
     files.commit();
 }
 
-void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err*/) {
-    if (o.before.empty() || o.after.empty()) throw UsageError("compare: give at least one --before and one --after recording");
+namespace {
+
+// The recordings compare --around-event picked from the store, and why.
+struct PickedSides {
+    Event event;
+    std::string store;
+    std::string point;
+    std::vector<Measurement> before, after;  ///< in the order of CompareOptions::before / after
+};
+
+bool all_digits(const std::string& s) {
+    return !s.empty() && s.size() <= 18 && s.find_first_not_of("0123456789") == std::string::npos;
+}
+
+std::string event_list_text(const std::vector<Event>& events) {
+    std::string t;
+    for (const auto& e : events) t += (t.empty() ? "" : ", ") + ("#" + std::to_string(e.id) + " " + e.label());
+    return t.empty() ? "none" : t;
+}
+
+// --around-event ID|DATE: the event it names in the store (DATE: of --machine, on that day or at that time).
+Event resolve_event(const HistoryStore& store, const CompareOptions& o, const std::string& path) {
+    const std::string& text = *o.around_event;
+    if (all_digits(text)) {
+        const auto e = store.event(std::stoll(text));
+        if (!e)
+            throw InputError(path + ": no event #" + text + " in the results store (list them with 'cavitas event " +
+                             (o.machine.empty() ? std::string("MACHINE") : o.machine) + " --list')");
+        if (!o.machine.empty() && e->machine != o.machine)
+            throw UsageError("--around-event " + text + " is an event of " + e->machine + ", not of --machine " + o.machine);
+        return *e;
+    }
+    const auto when = parse_iso8601(text);
+    if (!when) throw UsageError("--around-event '" + text + "': neither an event number nor an ISO 8601 date or date-time");
+    if (o.machine.empty()) throw UsageError("--around-event " + text + ": a date needs --machine (or give the event's number)");
+    const bool day_only = text.size() <= 10;
+    std::vector<Event> found;
+    const auto events = store.events(o.machine, o.point);
+    for (const auto& e : events)
+        if (day_only ? e.happened_at.compare(0, 10, when->text, 0, 10) == 0 : e.happened_at == when->text) found.push_back(e);
+    if (found.empty())
+        throw InputError(path + ": no event of " + o.machine + (o.point.empty() ? "" : " " + o.point) + " at " + text +
+                         " (its events: " + event_list_text(events) + ")");
+    if (found.size() > 1)
+        throw UsageError("--around-event " + text + ": " + std::to_string(found.size()) + " events then (" +
+                         event_list_text(found) + "); name one by its number");
+    return found.front();
+}
+
+// The point a comparison around `e` is made at: --point, else the event's, else the machine's only one.
+std::string point_around(const HistoryStore& store, const CompareOptions& o, const Event& e) {
+    if (!o.point.empty()) {
+        if (!e.applies_to(o.point))
+            throw UsageError("--around-event: event #" + std::to_string(e.id) + " concerns point " + e.point +
+                             ", not --point " + o.point);
+        return o.point;
+    }
+    if (!e.point.empty()) return e.point;
+    const auto points = store.points(e.machine);
+    if (points.size() == 1) return points.front();
+    std::string list;
+    for (const auto& p : points) list += (list.empty() ? "" : ", ") + p;
+    throw UsageError("--around-event: event #" + std::to_string(e.id) + " concerns every point of " + e.machine +
+                     "; name one with --point (" + (list.empty() ? std::string("it has none stored") : list) + ")");
+}
+
+// Where the route read a stored visit's recording (the finding's input path, else the manifest's cell).
+std::string recording_of(const Measurement& m) {
+    const auto f = json::parse(m.finding_json, nullptr, false);
+    if (!f.is_discarded() && f.is_object() && f.contains("input") && f["input"].is_object() &&
+        f["input"].contains("path") && f["input"]["path"].is_string())
+        return f["input"]["path"].get<std::string>();
+    return m.file;
+}
+
+// The options with their sides (and baseline) taken from the store around the event.
+CompareOptions sides_around_event(CompareOptions o, PickedSides& picked) {
+    if (!o.before.empty() || !o.after.empty())
+        throw UsageError("compare: --around-event picks the recordings from the results store; give no --before or --after");
+    if (o.visits < 1) throw UsageError("--visits " + std::to_string(o.visits) + ": take at least 1 visit a side");
+    picked.store = store_path_of(o.store, o.baselines, "compare --around-event");
+    std::error_code ec;
+    if (!fs::is_regular_file(picked.store, ec))
+        throw InputError(picked.store + ": no results store here yet (it is created by 'cavitas route')");
+    const HistoryStore store(picked.store);
+    picked.event = resolve_event(store, o, picked.store);
+    const Event& e = picked.event;
+    picked.point = point_around(store, o, e);
+    for (const auto& m : store.history(e.machine, picked.point)) {
+        if (m.channel != o.channel) continue;
+        (m.days < e.days ? picked.before : picked.after).push_back(m);
+    }
+    if (picked.before.size() > o.visits) picked.before.erase(picked.before.begin(), picked.before.end() - static_cast<std::ptrdiff_t>(o.visits));
+    if (picked.after.size() > o.visits) picked.after.resize(o.visits);
+    for (const auto* side : {&picked.before, &picked.after})
+        if (side->empty())
+            throw InputError(picked.store + ": no visit of " + e.machine + " " + picked.point + " channel " +
+                             std::to_string(o.channel) + (side == &picked.before ? " before" : " at or after") +
+                             " event #" + std::to_string(e.id) + " " + e.label());
+    std::string baseline;
+    for (const auto* side : {&picked.before, &picked.after})
+        for (const auto& m : *side) {
+            (side == &picked.before ? o.before : o.after).push_back(recording_of(m));
+            if (baseline.empty()) baseline = m.baseline;
+            else if (o.baseline.empty() && m.baseline != baseline)
+                throw UsageError("compare --around-event: the visits were judged against different baselines (" +
+                                 baseline + ", " + m.baseline + "); name one with --baseline");
+        }
+    if (o.baseline.empty()) o.baseline = baseline;
+    if (o.machine.empty()) o.machine = e.machine;
+    return o;
+}
+
+// The recordings must be those the route judged: a file changed since is refused.
+void check_picked(const std::vector<AnalyzeResult>& results, const std::vector<Measurement>& stored,
+                  const std::string& store) {
+    for (std::size_t i = 0; i < results.size() && i < stored.size(); ++i)
+        if (results[i].recording.sha256 != stored[i].sha256)
+            throw InputError(results[i].recording.info.path + ": not the recording the results store " + store +
+                             " holds for the visit of " + stored[i].measured_at + " (its SHA-256 differs)");
+}
+
+}  // namespace
+
+void run_compare(const CompareOptions& given, std::ostream& out, std::ostream& /*err*/) {
+    std::optional<PickedSides> picked;
+    if (given.around_event) picked.emplace();
+    const CompareOptions o = picked ? sides_around_event(given, *picked) : given;
+    if (o.before.empty() || o.after.empty())
+        throw UsageError("compare: give at least one --before and one --after recording, or --around-event with the store");
+    if (o.baseline.empty()) throw UsageError("compare: give --baseline FILE (the machine point's baseline)");
     if (o.json_output) {
         OutputGuard guard;
         guard.input(o.baseline, "baseline");
+        if (picked) guard.input_store(picked->store);
         for (const auto* side : {&o.before, &o.after})
             for (const auto& f : *side) {
                 guard.input(f, "recording");
@@ -186,6 +368,10 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
         return s;
     };
     Side before = analyse_side(o.before), after = analyse_side(o.after);
+    if (picked) {
+        check_picked(before.results, picked->before, picked->store);
+        check_picked(after.results, picked->after, picked->store);
+    }
     for (const auto& r : before.results)
         for (const auto& a : after.results)
             if (r.recording.sha256 == a.recording.sha256)
@@ -213,15 +399,27 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
     const char* words = ba.change == models::Change::improved ? "IMPROVED"
                         : ba.change == models::Change::worse  ? "WORSE"
                                                               : "UNCHANGED (no significant change)";
+    if (picked)
+        out << "compare around event #" << picked->event.id << " of " << picked->event.machine << ": "
+            << picked->event.label() << " (" << picked->store << "): the last " << picked->before.size() << " visit"
+            << (picked->before.size() == 1 ? "" : "s") << " of " << picked->point << " before it and the first "
+            << picked->after.size() << " after it\n";
     out << "compare against " << o.baseline << "\n";
+    auto visit_of = [&](bool is_before, std::size_t i) {
+        if (!picked) return std::string();
+        const auto& list = is_before ? picked->before : picked->after;
+        return i < list.size() ? "  visit of " + list[i].measured_at.substr(0, 16) : std::string();
+    };
     for (const auto* side : {&before, &after})
-        for (const auto& r : side->results)
-            out << "  " << (side == &before ? "before" : "after ") << "  " << r.recording.info.path << "  "
-                << models::to_string(r.finding.verdict)
+        for (std::size_t i = 0; i < side->results.size(); ++i) {
+            const auto& r = side->results[i];
+            out << "  " << (side == &before ? "before" : "after ") << visit_of(side == &before, i) << "  "
+                << r.recording.info.path << "  " << models::to_string(r.finding.verdict)
                 << (r.finding.verdict == models::Verdict::indeterminate
                         ? std::string()
                         : std::string(" (") + models::to_string(r.finding.grade) + " confidence)")
                 << "\n";
+        }
     out << "  change   " << words << "\n  evidence:\n";
     for (const auto& e : ba.evidence) out << "    - " << e << "\n";
     out << "  indicators (after - before: Hodges-Lehmann shift [95 % interval], Mann-Whitney p, Cliff's delta):\n";
@@ -256,6 +454,16 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
         j["cavitas_version"] = kVersion;
         j["created_utc"] = utc_now();
         j["change"] = models::to_string(ba.change);
+        if (picked) {
+            ordered_json e = event_json(picked->event);
+            e["machine"] = picked->event.machine;
+            e["compared_point"] = picked->point;
+            e["store"] = picked->store;
+            e["visits_per_side"] = o.visits;
+            j["event"] = e;
+        } else {
+            j["event"] = nullptr;
+        }
         j["evidence"] = ba.evidence;
         j["warnings"] = ba.warnings;
         j["cautions"] = ba.after_severity >= 1 ? json(models::cavitation_cautions()) : json::array();
@@ -286,9 +494,14 @@ void run_compare(const CompareOptions& o, std::ostream& out, std::ostream& /*err
         j["indicators"] = inds;
         for (const auto* side : {&before, &after}) {
             ordered_json list = json::array();
-            for (const auto& r : side->results) {
+            for (std::size_t i = 0; i < side->results.size(); ++i) {
+                const auto& r = side->results[i];
                 ordered_json e;
                 e["path"] = r.recording.info.path;
+                if (picked) {
+                    const auto& visits = side == &before ? picked->before : picked->after;
+                    if (i < visits.size()) e["datetime"] = visits[i].measured_at;
+                }
                 e["sha256"] = r.recording.sha256;
                 e["verdict"] = models::to_string(r.finding.verdict);
                 e["confidence"] = r.finding.confidence;

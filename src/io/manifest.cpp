@@ -31,7 +31,7 @@ namespace {
 
 const std::vector<std::string> kRequired = {"file", "machine", "point", "channel", "datetime", "rpm", "vanes"};
 const std::vector<std::string> kSensor = {"full_scale", "sensitivity", "gain",    "unit",
-                                          "mount",      "sensor_max_hz", "variable", "sample_rate_hz"};
+                                          "mount",      "sensor_max_hz", "variable", "sample_rate_hz", "event"};
 
 // Linear in the cell's length (a cell of a million blanks took 23 s when each was erased from the front).
 std::string trim(const std::string& s) {
@@ -63,6 +63,14 @@ std::optional<double> number(const std::string& s, double lo, double hi) {
     const double v = std::strtod(b, &e);
     if (e == b || *e != '\0' || !std::isfinite(v) || v < lo || v > hi) return std::nullopt;
     return v;
+}
+
+// Why an event's words cannot be recorded, or nullopt.
+std::optional<std::string> unusable_event_text(const std::string& what) {
+    for (unsigned char c : what)
+        if (c < 0x20 || c == 0x7f) return "holds a control character";
+    if (what.size() > 500) return "is longer than 500 bytes";
+    return std::nullopt;
 }
 
 }  // namespace
@@ -122,10 +130,17 @@ Manifest parse_manifest(const std::string& text, const std::string& path) {
         row.machine = cell("machine");
         row.point = cell("point");
         row.datetime = cell("datetime");
-        if (row.file.empty()) fail("the file cell is empty");
-        else row.path = (fs::path(row.file).is_absolute() ? fs::path(row.file) : fs::path(m.dir) / row.file).string();
+        row.event = cell("event");
+        const bool event_only = row.file.empty() && !row.event.empty();
+        if (row.file.empty()) {
+            if (!event_only) fail("the file cell is empty");
+        } else {
+            row.path = (fs::path(row.file).is_absolute() ? fs::path(row.file) : fs::path(m.dir) / row.file).string();
+        }
         if (auto why = unusable_as_file_name(row.machine)) fail("machine '" + row.machine + "' " + *why);
-        if (auto why = unusable_as_file_name(row.point)) fail("point '" + row.point + "' " + *why);
+        if (!(event_only && row.point.empty()))
+            if (auto why = unusable_as_file_name(row.point)) fail("point '" + row.point + "' " + *why);
+        if (auto why = unusable_event_text(row.event)) fail("event '" + row.event + "' " + *why);
         if (const std::string c = cell("channel"); !c.empty()) {
             try {
                 row.channels = parse_channels(c);
@@ -165,6 +180,9 @@ Manifest parse_manifest(const std::string& text, const std::string& path) {
             }
         }
         for (const auto& e : m.extra_columns) row.extra.emplace_back(e, cell(e));
+        if (!row.event.empty() && row.error.empty())
+            m.events.push_back({row.line, row.machine, row.point, row.when, row.event});
+        if (event_only && row.error.empty()) continue;  // recorded, not analysed
         m.rows.push_back(std::move(row));
     }
     return m;

@@ -7,7 +7,10 @@
 // operating_point_io.hpp), the sensor columns full_scale (50g), sensitivity
 // (100mV/g; one per channel of a row naming several: 100.2mV/g;98.7mV/g;101.5mV/g), gain (10 or 20dB), unit (of a file's values when it states none),
 // mount, sensor_max_hz, and the reading hints variable (a MATLAB file's) and
-// sample_rate_hz (of a file that states none). Any other column is kept and passed through to the outputs.
+// sample_rate_hz (of a file that states none), and event: a repair or change
+// ("impeller replaced") recorded for the row's machine and point at the row's
+// datetime; a row with an event and an empty file cell is an event only (its
+// point may be empty: every point of the machine). Any other column is kept and passed through to the outputs.
 // The channel cell may name several channels (0,1,2) or all.
 // Empty cells: channel 0, rpm estimated near the baseline's, vanes from the
 // baseline, operating-point fields not stated.
@@ -50,7 +53,17 @@ struct ManifestRow {
     double sensor_max_hz = 0.0;
     OperatingPointText operating;                              ///< operating-point columns (non-empty cells)
     std::vector<std::pair<std::string, std::string>> extra;    ///< unknown columns, in header order
+    std::string event;      ///< the event cell (empty: none)
     std::string error;      ///< non-empty: what is wrong with this row (it is not analysed)
+};
+
+/// A maintenance event a manifest row records (the `event` column).
+struct ManifestEvent {
+    std::size_t line = 0;
+    std::string machine;
+    std::string point;      ///< empty: every point of the machine
+    Timestamp when;
+    std::string what;
 };
 
 struct Manifest {
@@ -58,7 +71,10 @@ struct Manifest {
     std::string dir;
     std::string sha256;                    ///< of the file's bytes
     std::vector<std::string> extra_columns;  ///< unknown columns, in header order
+    /// The rows to analyse (and those that fail); an event-only row without
+    /// a problem is not among them.
     std::vector<ManifestRow> rows;
+    std::vector<ManifestEvent> events;     ///< of every row without a problem, in manifest order
 };
 
 /// Reads and checks the manifest. File-level problems (missing, unreadable,

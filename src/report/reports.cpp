@@ -444,12 +444,17 @@ struct TrendPoint {
     std::string verdict;
 };
 
-Figure trend_figure(const std::string& machine, const std::string& point, const std::vector<TrendPoint>& pts) {
+// The point's history, its connecting line broken at each maintenance event
+// (drawn as a vertical line with its date and words): a repair starts a new run.
+Figure trend_figure(const std::string& machine, const std::string& point, const std::vector<TrendPoint>& pts,
+                    const std::vector<Event>& events = {}) {
     Figure f;
     f.caption = "HF band level over the baseline at each visit of " + machine + " " + point +
-                "; the marks show the verdict, the dashed line the +3 dB alert.";
+                "; the marks show the verdict, the dashed line the +3 dB alert" +
+                (events.empty() ? "." : "; a vertical line marks each maintenance event (listed below), where the "
+                                        "line between visits is broken.");
     f.aspect = 0.42;
-    f.draw = [pts, machine, point](cairo_t* cr, double w, double h) {
+    f.draw = [pts, machine, point, events](cairo_t* cr, double w, double h) {
         plot::Chart c;
         c.title = "History of " + machine + " " + point;
         plot::Series s;
@@ -465,13 +470,25 @@ Figure trend_figure(const std::string& machine, const std::string& point, const 
             d0 = std::min(d0, p.days);
             d1 = std::max(d1, p.days);
         }
-        plot::Series line;
-        line.x = s.x;
-        line.y = s.y;
-        line.colour = plot::palette::baseline;
-        line.width = 0.8;
-        c.series.push_back(line);
+        for (const auto& e : events) {
+            d0 = std::min(d0, e.days);
+            d1 = std::max(d1, e.days);
+        }
+        // One line a run of visits between events.
+        std::size_t next = 0;
+        for (std::size_t k = 0; k <= events.size(); ++k) {
+            plot::Series line;
+            line.colour = plot::palette::baseline;
+            line.width = 0.8;
+            for (; next < pts.size() && (k == events.size() || pts[next].days < events[k].days); ++next) {
+                line.x.push_back(pts[next].days);
+                line.y.push_back(pts[next].hf);
+            }
+            c.series.push_back(line);
+        }
         c.series.push_back(s);
+        for (const auto& e : events) c.markers.push_back({e.days, e.label().substr(0, 10), plot::palette::ink, true});
+        if (!events.empty()) c.series.push_back({{}, {}, "maintenance event", plot::palette::ink, 1.0, false, false, {}});
         const double pad = std::max(3.0, 0.06 * (d1 - d0));
         c.x.lo = d0 - pad;
         c.x.hi = d1 + pad;
@@ -484,6 +501,30 @@ Figure trend_figure(const std::string& machine, const std::string& point, const 
         plot::draw_chart(cr, w, h, c);
     };
     return f;
+}
+
+// The maintenance events of a machine point a route report shows: the store's
+// and those route.json lists (its manifest's), once each, oldest first.
+std::vector<Event> point_events(const HistoryStore* store, const std::vector<Event>& route_events,
+                                const std::string& machine, const std::string& point) {
+    std::vector<Event> out = store ? store->events(machine, point) : std::vector<Event>{};
+    for (const auto& e : route_events) {
+        if (e.machine != machine || !e.applies_to(point)) continue;
+        const bool known = std::any_of(out.begin(), out.end(), [&](const Event& x) {
+            return x.happened_at == e.happened_at && x.what == e.what && x.point == e.point;
+        });
+        if (!known) out.push_back(e);
+    }
+    std::stable_sort(out.begin(), out.end(), [](const Event& a, const Event& b) { return a.days < b.days; });
+    return out;
+}
+
+std::vector<std::string> event_items(const std::vector<Event>& events) {
+    std::vector<std::string> items;
+    for (const auto& e : events)
+        items.push_back("Event " + e.label() + (e.point.empty() ? " (every point of the machine)" : " (this point)") +
+                        ": the trend is judged on the visits from it on.");
+    return items;
 }
 
 doc::Table indicator_table(const json& finding) {
@@ -930,6 +971,10 @@ Document compare_document(const json& c, const ReportOptions& o) {
                  {"Compared", str(c, "created_utc") + " by cavitas " + str(c, "cavitas_version")},
                  {"Method", str(field(c, "method"), "test")},
                  {"Report", utc_now() + " by cavitas " + std::string(kVersion)}};
+    if (c.contains("event") && c["event"].is_object())
+        pv.fields.push_back({"Around the event", str(field(c, "event"), "datetime").substr(0, 10) + " '" +
+                                                     str(field(c, "event"), "what") + "' (the visits either side, from " +
+                                                     str(field(c, "event"), "store") + ")"});
     for (const char* side : {"before", "after"})
         if (c.contains(side) && c[side].is_array())
             for (const auto& r : c[side]) pv.fields.push_back({std::string(side) + " SHA-256", str(r, "sha256")});
@@ -975,6 +1020,7 @@ std::string since_words(const SummaryRow& r) {
     if (r.previous_datetime.empty()) return "-";
     std::string since = r.previous_datetime.substr(0, 10) + " " + r.previous_verdict;
     if (r.hf_rise_change_db) since += ", " + signed_fixed(*r.hf_rise_change_db, 1) + " dB";
+    if (!r.event_since_previous.empty()) since += "; then event " + r.event_since_previous.substr(0, 10);
     return since;
 }
 
@@ -1133,6 +1179,8 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
     std::error_code ec;
     if (!store_path.empty() && fs::is_regular_file(store_path, ec)) store = std::make_unique<HistoryStore>(store_path);
     bool history_heading = false;
+    const std::vector<Event> route_events =
+        events_from_json(run.contains("events") ? run["events"] : json(), folder + "/route.json");
     for (const auto& [key, list] : by_point) {
         std::map<std::string, TrendPoint> pts;  // by sha256 + channel: the store and this route overlap
         if (store)
@@ -1148,7 +1196,9 @@ Document route_document(const std::string& folder, const ReportOptions& o) {
             d.heading("History of the points visited more than once");
             history_heading = true;
         }
-        d.blocks.push_back(doc::figures_block({trend_figure(key.first, key.second, v)}));
+        const std::vector<Event> events = point_events(store.get(), route_events, key.first, key.second);
+        d.blocks.push_back(doc::figures_block({trend_figure(key.first, key.second, v, events)}));
+        if (!events.empty()) d.bullets(event_items(events));
     }
     // The evidence for each point that needs attention now.
     for (const auto* r : latest) {

@@ -143,6 +143,7 @@ json SummaryRow::to_json() const {
     j["previous_datetime"] = previous_datetime;
     j["previous_verdict"] = previous_verdict;
     put_opt(j, "hf_rise_change_db", hf_rise_change_db);
+    j["event_since_previous"] = event_since_previous;
     ordered_json x = ordered_json::object();
     for (const auto& [k, v] : extra) x[k] = v;
     j["extra"] = x;
@@ -213,6 +214,7 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
         r.previous_datetime = get_str(j, "previous_datetime");
         r.previous_verdict = get_str(j, "previous_verdict");
         r.hf_rise_change_db = get_opt(j, "hf_rise_change_db");
+        r.event_since_previous = get_str(j, "event_since_previous");
         if (j.contains("extra")) {
             if (!j["extra"].is_object()) throw std::invalid_argument("'extra' is not an object");
             for (const auto& [k, v] : j["extra"].items()) {
@@ -249,7 +251,8 @@ std::vector<std::string> summary_columns(const std::vector<std::string>& extra_c
                                   "channel",     "datetime",     "verdict",       "confidence",
                                   "hf_rise_db",  "hf_kurtosis",  "impulse_rate_per_s", "lf_rise_db",
                                   "bpf_modulation", "npsha_m",   "margin_ratio",  "agreement",
-                                  "previous_datetime", "previous_verdict", "hf_rise_change_db", "other_findings",
+                                  "previous_datetime", "previous_verdict", "hf_rise_change_db", "event_since_previous",
+                                  "other_findings",
                                   "reason",      "sha256",       "finding",       "note",
                                   "priority",    "recheck_days", "actions"};
     c.insert(c.end(), extra_columns.begin(), extra_columns.end());
@@ -276,6 +279,7 @@ std::vector<std::string> summary_cells(const SummaryRow& r) {
                                   r.previous_datetime,
                                   r.previous_verdict,
                                   opt_cell(r.hf_rise_change_db, 2),
+                                  r.event_since_previous,
                                   r.other_findings,
                                   r.reason,
                                   r.sha256,
@@ -471,6 +475,7 @@ std::string state_words(const SummaryRow& r) {
         if (r.hf_rise_change_db)
             s += ", HF " + (*r.hf_rise_change_db >= 0 ? std::string("+") : std::string()) + fixed(*r.hf_rise_change_db, 1) +
                  " dB";
+        if (!r.event_since_previous.empty()) s += "; then " + r.event_since_previous;
     }
     if (r.verdict == "indeterminate" && !r.reason.empty()) s += "; " + r.reason;
     if (!r.other_findings.empty()) s += "; also: " + r.other_findings;
@@ -553,10 +558,12 @@ void write_summary_files(const std::string& out_dir, const std::vector<SummaryRo
 }
 
 std::size_t import_rows(HistoryStore& store, const std::vector<SummaryRow>& rows, const std::string& out_dir,
-                        std::size_t& updated) {
+                        std::size_t& updated, const std::vector<Event>& events, std::size_t& events_added) {
     std::size_t added = 0;
     updated = 0;
+    events_added = 0;
     store.begin();
+    for (const auto& e : events) events_added += store.add_event(e);
     for (const auto& r : rows) {
         if (r.failed() || r.sha256.empty()) continue;
         std::string finding;
@@ -639,7 +646,7 @@ Measurement to_measurement(const SummaryRow& r, const std::string& finding_json)
     return m;
 }
 
-void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* store) {
+void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* store, const std::vector<Event>& events) {
     struct Visit {
         double days;
         std::string datetime, verdict, sha256;
@@ -647,18 +654,25 @@ void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* sto
         std::optional<double> hf;
     };
     std::map<std::pair<std::string, std::string>, std::vector<Visit>> visits;
+    std::map<std::string, std::vector<Event>> events_of;  // by machine: the route's and the store's
     for (const auto& r : rows)
         if (!r.failed()) visits[{r.machine, r.point}].push_back({r.days, r.datetime, r.verdict, r.sha256, r.channel, r.hf_rise_db});
+    for (const auto& e : events) events_of[e.machine].push_back(e);
     if (store) {
         for (auto& [key, list] : visits) {
             for (const auto& m : store->history(key.first, key.second))
                 list.push_back({m.days, m.measured_at, m.verdict, m.sha256, m.channel, m.hf_rise_db});
         }
+        std::set<std::string> machines;
+        for (const auto& [key, list] : visits) machines.insert(key.first);
+        for (const auto& machine : machines)
+            for (auto& e : store->events(machine)) events_of[machine].push_back(std::move(e));
     }
     for (auto& r : rows) {
         r.previous_datetime.clear();
         r.previous_verdict.clear();
         r.hf_rise_change_db.reset();
+        r.event_since_previous.clear();
         if (r.failed()) continue;
         const Visit* best = nullptr;
         for (const auto& v : visits[{r.machine, r.point}]) {
@@ -670,11 +684,71 @@ void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* sto
         if (!best) continue;
         r.previous_datetime = best->datetime;
         r.previous_verdict = best->verdict;
-        if (best->hf && r.hf_rise_db) r.hf_rise_change_db = *r.hf_rise_db - *best->hf;
+        // A visit at an event's time counts as after it (as trend judges).
+        const Event* cut = last_event(events_of[r.machine], r.point, r.days);
+        if (cut && cut->days > best->days) r.event_since_previous = cut->label();
+        else if (best->hf && r.hf_rise_db) r.hf_rise_change_db = *r.hf_rise_db - *best->hf;
     }
 }
 
+std::vector<Event> manifest_events(const Manifest& manifest) {
+    std::vector<Event> out;
+    for (const auto& m : manifest.events)
+        out.push_back({0, m.machine, m.point, m.when.text, m.when.days, m.what,
+                       "manifest " + manifest.path + ":" + std::to_string(m.line)});
+    return out;
+}
+
+json events_to_json(const std::vector<Event>& events) {
+    json list = json::array();
+    for (const auto& e : events) {
+        ordered_json j;
+        j["machine"] = e.machine;
+        j["point"] = e.point;
+        j["datetime"] = e.happened_at;
+        j["days"] = e.days;
+        j["what"] = e.what;
+        j["source"] = e.source;
+        list.push_back(json(j));
+    }
+    return list;
+}
+
+std::vector<Event> events_from_json(const json& list, const std::string& where) {
+    std::vector<Event> out;
+    if (list.is_null()) return out;
+    try {
+        if (!list.is_array()) throw std::invalid_argument("'events' is not a list");
+        for (const auto& j : list) {
+            Event e;
+            e.machine = get_str(j, "machine");
+            e.point = get_str(j, "point");
+            e.happened_at = get_str(j, "datetime");
+            const auto days = get_opt(j, "days");
+            if (!days || !std::isfinite(*days)) throw std::invalid_argument("an event's 'days' is missing");
+            e.days = *days;
+            e.what = get_str(j, "what");
+            e.source = get_str(j, "source");
+            if (e.machine.empty() || e.happened_at.empty() || e.what.empty())
+                throw std::invalid_argument("an event lacks its machine, datetime or what");
+            out.push_back(std::move(e));
+        }
+    } catch (const std::exception& e) {
+        throw InputError(where + ": field 'events': " + e.what());
+    }
+    return out;
+}
+
 namespace {
+
+// The route's maintenance events, a line each, and how many were new to the store.
+void print_events(std::ostream& out, const std::vector<Event>& events, std::optional<std::size_t> added) {
+    if (events.empty()) return;
+    out << "events: " << events.size() << " in the manifest"
+        << (added ? " (" + std::to_string(*added) + " new in the store)" : std::string()) << "\n";
+    for (const auto& e : events)
+        out << "  " << e.machine << (e.point.empty() ? " (every point)" : " " + e.point) << "  " << e.label() << "\n";
+}
 
 // The severity zone file of a route: --zones, else BASELINES/severity_zones.toml
 // when there is one; read once here so that a bad file stops the route before
@@ -779,7 +853,8 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     if (write_error) std::rethrow_exception(write_error);
     const double elapsed = std::chrono::duration<double>(clock::now() - started).count();
 
-    link_previous_visits(rows, store.get());
+    const std::vector<Event> events = manifest_events(manifest);  // every shard lists them all
+    link_previous_visits(rows, store.get(), events);
     double audio_s = 0.0;
     std::size_t analysed = 0;
     for (const auto& r : rows)
@@ -806,12 +881,13 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     run["elapsed_s"] = elapsed;
     run["audio_s"] = audio_s;
     run["provenance"] = run_provenance(who);
+    run["events"] = events_to_json(events);
     // One unit: the reviews carried over, the summaries beside the findings, the store in
     // one transaction, then the folder swapped in. A failure on the way leaves the old outputs whole.
     const ReviewCarry carry = carry_reviews(o.out_dir, staged.path(), o.discard_reviews);
     write_summary_files(staged.path(), rows, manifest.extra_columns, run);
-    std::size_t added = 0, updated = 0;
-    if (store) added = import_rows(*store, rows, staged.path(), updated);
+    std::size_t added = 0, updated = 0, events_added = 0;
+    if (store) added = import_rows(*store, rows, staged.path(), updated, events, events_added);
     staged.commit();
 
     out << "route " << manifest.path << (shard ? " (shard " + *o.shard + ")" : std::string()) << ": " << rows.size()
@@ -824,6 +900,7 @@ int run_route(const RouteOptions& o, std::ostream& out, std::ostream& err) {
     print_review_carry(out, carry, o.out_dir);
     if (store) out << "history: " << store_path << " (" << added << " new, " << updated << " already there and updated)\n";
     else if (shard) out << "history: not written by a shard; 'cavitas merge' writes it once all shards are done\n";
+    print_events(out, events, store ? std::optional<std::size_t>(events_added) : std::nullopt);
     return analysed == rows.size() ? 0 : 1;
 }
 
@@ -836,6 +913,7 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     std::set<std::size_t> shards_seen;
     std::vector<std::pair<SummaryRow, std::string>> rows;  // row, its shard folder
     std::string baselines;
+    std::vector<Event> events;  // each shard lists all of the manifest's
     double audio_s = 0.0;
     for (const auto& dir : o.shard_dirs) {
         const std::string run_path = (fs::path(dir) / "route.json").string();
@@ -860,6 +938,7 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
             shard_count = n;
             extra_columns = run_field(run, "extra_columns", std::vector<std::string>{}, run_path);
             baselines = run_field(run, "baselines", std::string(), run_path);
+            events = events_from_json(run.contains("events") ? run["events"] : json(), run_path);
         } else if (sha != manifest_sha) {
             throw InputError(run_path + ": this shard analysed another manifest (or another version of it) than " +
                              o.shard_dirs.front());
@@ -929,7 +1008,7 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
                                   read_text_file((fs::path(dir) / r.finding).string(), "finding file"));
         merged.push_back(std::move(r));
     }
-    link_previous_visits(merged, store.get());
+    link_previous_visits(merged, store.get(), events);
     std::size_t analysed = 0;
     for (const auto& r : merged) analysed += !r.failed();
     ordered_json run;
@@ -949,16 +1028,18 @@ int run_merge(const MergeOptions& o, std::ostream& out, std::ostream& /*err*/) {
     run["finished_utc"] = utc_now();
     run["audio_s"] = audio_s;
     run["provenance"] = run_provenance(who);
+    run["events"] = events_to_json(events);
     const ReviewCarry carry = carry_reviews(o.out_dir, staged.path(), o.discard_reviews);
     write_summary_files(staged.path(), merged, extra_columns, run);
-    std::size_t added = 0, updated = 0;
-    if (store) added = import_rows(*store, merged, staged.path(), updated);
+    std::size_t added = 0, updated = 0, events_added = 0;
+    if (store) added = import_rows(*store, merged, staged.path(), updated, events, events_added);
     staged.commit();
     out << "merged " << shard_count << " shard(s) of " << manifest_path << ": " << merged.size() << " recording(s), "
         << analysed << " analysed, " << merged.size() - analysed << " failed\n";
     print_attention(out, merged);
     print_review_carry(out, carry, o.out_dir);
     if (store) out << "history: " << *o.store << " (" << added << " new, " << updated << " already there and updated)\n";
+    print_events(out, events, store ? std::optional<std::size_t>(events_added) : std::nullopt);
     return analysed == merged.size() ? 0 : 1;
 }
 

@@ -61,6 +61,9 @@ struct SummaryRow {
     std::string finding;           ///< the finding JSON, relative to the output folder
     std::string previous_datetime, previous_verdict;
     std::optional<double> hf_rise_change_db;  ///< since the previous visit of the point
+    /// The point's maintenance event between the previous visit and this one
+    /// (Event::label); the HF change is not given across it (empty: none).
+    std::string event_since_previous;
     std::vector<std::pair<std::string, std::string>> extra;  ///< passed-through manifest columns
 
     bool failed() const { return verdict == "error"; }
@@ -114,8 +117,17 @@ std::pair<std::size_t, std::size_t> parse_shard(const std::string& text);
 
 /// Fill the previous-visit fields of each analysed row from the other rows and
 /// the store's history (the latest earlier measurement of the same machine and
-/// point, not the same recording).
-void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* store);
+/// point, not the same recording). A maintenance event of the point between
+/// the two (from `events` or the store) splits them: the row names it and
+/// gives no HF change across it.
+void link_previous_visits(std::vector<SummaryRow>& rows, const HistoryStore* store,
+                          const std::vector<Event>& events = {});
+
+/// The events a manifest records, as the store keeps them (source "manifest FILE:LINE").
+std::vector<Event> manifest_events(const Manifest& manifest);
+/// route.json's "events" and back (InputError naming `where` on a malformed list).
+nlohmann::json events_to_json(const std::vector<Event>& events);
+std::vector<Event> events_from_json(const nlohmann::json& list, const std::string& where);
 
 /// Rows that could be recorded in the store.
 Measurement to_measurement(const SummaryRow& row, const std::string& finding_json);

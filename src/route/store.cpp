@@ -28,6 +28,14 @@ const char* const kMigrations[] = {
     "ALTER TABLE measurements ADD COLUMN npsha_m REAL;"
     "ALTER TABLE measurements ADD COLUMN margin_ratio REAL;"
     "ALTER TABLE measurements ADD COLUMN agreement TEXT NOT NULL DEFAULT '';",
+    // 3: maintenance events (point '' = every point of the machine); the same
+    // event recorded twice is one row.
+    "CREATE TABLE events ("
+    "  id INTEGER PRIMARY KEY, machine TEXT NOT NULL, point TEXT NOT NULL, happened_at TEXT NOT NULL,"
+    "  days REAL NOT NULL, what TEXT NOT NULL, source TEXT NOT NULL DEFAULT '',"
+    "  recorded_utc TEXT NOT NULL DEFAULT (strftime('%Y-%m-%dT%H:%M:%SZ','now')),"
+    "  UNIQUE (machine, point, happened_at, what));"
+    "CREATE INDEX events_by_machine ON events (machine, days);",
 };
 static_assert(sizeof(kMigrations) / sizeof(kMigrations[0]) == HistoryStore::kSchemaVersion);
 
@@ -51,7 +59,35 @@ std::string column_text(sqlite3_stmt* s, int i) {
     return t ? reinterpret_cast<const char*>(t) : "";
 }
 
+constexpr const char* kEventColumns = "SELECT id, machine, point, happened_at, days, what, source FROM events";
+
+Event event_of(sqlite3_stmt* s) {
+    Event e;
+    e.id = sqlite3_column_int64(s, 0);
+    e.machine = column_text(s, 1);
+    e.point = column_text(s, 2);
+    e.happened_at = column_text(s, 3);
+    e.days = sqlite3_column_double(s, 4);
+    e.what = column_text(s, 5);
+    e.source = column_text(s, 6);
+    return e;
+}
+
 }  // namespace
+
+std::string Event::label() const {
+    std::string when = happened_at.substr(0, 16);
+    if (when.size() > 10) when[10] = ' ';
+    if (when.size() == 16 && when.compare(10, 6, " 00:00") == 0) when.resize(10);
+    return when + " '" + what + "'";
+}
+
+const Event* last_event(const std::vector<Event>& events, const std::string& point, std::optional<double> days) {
+    const Event* last = nullptr;
+    for (const auto& e : events)
+        if (e.applies_to(point) && (!days || e.days <= *days) && (!last || e.days >= last->days)) last = &e;
+    return last;
+}
 
 HistoryStore::HistoryStore(const std::string& path) : path_(path) {
     std::error_code ec;
@@ -257,6 +293,63 @@ std::size_t HistoryStore::count() const {
     Statement st;
     sqlite3_prepare_v2(db_, "SELECT count(*) FROM measurements", -1, &st.s, nullptr);
     return sqlite3_step(st.s) == SQLITE_ROW ? static_cast<std::size_t>(sqlite3_column_int64(st.s, 0)) : 0;
+}
+
+bool HistoryStore::add_event(const Event& e, std::int64_t* id) {
+    Statement st;
+    const char* sql =
+        "INSERT INTO events (machine, point, happened_at, days, what, source) VALUES (?1, ?2, ?3, ?4, ?5, ?6)"
+        " ON CONFLICT (machine, point, happened_at, what) DO NOTHING";
+    if (sqlite3_prepare_v2(db_, sql, -1, &st.s, nullptr) != SQLITE_OK)
+        throw InputError(path_ + ": results store: " + sqlite3_errmsg(db_));
+    sqlite3_bind_text(st.s, 1, e.machine.c_str(), -1, SQLITE_TRANSIENT);
+    sqlite3_bind_text(st.s, 2, e.point.c_str(), -1, SQLITE_TRANSIENT);
+    sqlite3_bind_text(st.s, 3, e.happened_at.c_str(), -1, SQLITE_TRANSIENT);
+    sqlite3_bind_double(st.s, 4, e.days);
+    sqlite3_bind_text(st.s, 5, e.what.c_str(), -1, SQLITE_TRANSIENT);
+    sqlite3_bind_text(st.s, 6, e.source.c_str(), -1, SQLITE_TRANSIENT);
+    if (sqlite3_step(st.s) != SQLITE_DONE) {
+        const int code = sqlite3_errcode(db_) & 0xff;
+        if (code == SQLITE_BUSY || code == SQLITE_LOCKED) throw InputError(locked_message());
+        throw InputError(path_ + ": results store: " + sqlite3_errmsg(db_));
+    }
+    const bool added = sqlite3_changes(db_) > 0;
+    if (id) {
+        Statement q;
+        sqlite3_prepare_v2(db_, "SELECT id FROM events WHERE machine = ?1 AND point = ?2 AND happened_at = ?3 AND what = ?4",
+                           -1, &q.s, nullptr);
+        sqlite3_bind_text(q.s, 1, e.machine.c_str(), -1, SQLITE_TRANSIENT);
+        sqlite3_bind_text(q.s, 2, e.point.c_str(), -1, SQLITE_TRANSIENT);
+        sqlite3_bind_text(q.s, 3, e.happened_at.c_str(), -1, SQLITE_TRANSIENT);
+        sqlite3_bind_text(q.s, 4, e.what.c_str(), -1, SQLITE_TRANSIENT);
+        *id = sqlite3_step(q.s) == SQLITE_ROW ? sqlite3_column_int64(q.s, 0) : 0;
+    }
+    return added;
+}
+
+std::vector<Event> HistoryStore::events(const std::string& machine, const std::string& point) const {
+    Statement st;
+    const std::string sql = std::string(kEventColumns) +
+                            " WHERE machine = ?1 AND (?2 = '' OR point = '' OR point = ?2) ORDER BY days, id";
+    if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK)
+        throw InputError(path_ + ": results store: " + sqlite3_errmsg(db_));
+    sqlite3_bind_text(st.s, 1, machine.c_str(), -1, SQLITE_TRANSIENT);
+    sqlite3_bind_text(st.s, 2, point.c_str(), -1, SQLITE_TRANSIENT);
+    std::vector<Event> out;
+    int rc;
+    while ((rc = sqlite3_step(st.s)) == SQLITE_ROW) out.push_back(event_of(st.s));
+    if (rc != SQLITE_DONE) throw InputError(path_ + ": results store: " + sqlite3_errmsg(db_));
+    return out;
+}
+
+std::optional<Event> HistoryStore::event(std::int64_t id) const {
+    Statement st;
+    const std::string sql = std::string(kEventColumns) + " WHERE id = ?1";
+    if (sqlite3_prepare_v2(db_, sql.c_str(), -1, &st.s, nullptr) != SQLITE_OK)
+        throw InputError(path_ + ": results store: " + sqlite3_errmsg(db_));
+    sqlite3_bind_int64(st.s, 1, id);
+    if (sqlite3_step(st.s) != SQLITE_ROW) return std::nullopt;
+    return event_of(st.s);
 }
 
 }  // namespace cavitas::app

@@ -4,9 +4,12 @@
 // use; its schema is versioned (PRAGMA user_version) and migrated forward in
 // a transaction when an older file is opened. A recording is identified by
 // the SHA-256 of its file and its channel: importing it again updates its row
-// instead of adding one.
+// instead of adding one. Beside the recordings, the maintenance events of a
+// machine (a repair, a changed part): a point's trend is judged from its last
+// event on, and a comparison can be made around one.
 #pragma once
 
+#include <cstdint>
 #include <optional>
 #include <string>
 #include <vector>
@@ -38,11 +41,32 @@ struct Measurement {
     std::string finding_json;
 };
 
+/// A repair or change of a machine (or of one point of it), as the store keeps it.
+struct Event {
+    std::int64_t id = 0;       ///< the store's number for it (0 before it is stored)
+    std::string machine;
+    std::string point;         ///< empty: every point of the machine
+    std::string happened_at;   ///< normalised ISO 8601 (see datetime.hpp)
+    double days = 0.0;         ///< days since 1970-01-01
+    std::string what;          ///< "impeller replaced", as the person wrote it
+    std::string source;        ///< where it was recorded: "cavitas event", "manifest FILE:LINE"
+
+    /// Whether the event concerns `point` (its own, or one of the whole machine).
+    bool applies_to(const std::string& point_name) const { return point.empty() || point == point_name; }
+    /// "2026-11-04 'impeller replaced'" (the time too when it is not midnight).
+    std::string label() const;
+};
+
+/// The latest of `events` that applies to `point` and happened at or before
+/// `days` (every event when `days` is nullopt); nullptr when none does.
+const Event* last_event(const std::vector<Event>& events, const std::string& point,
+                        std::optional<double> days = std::nullopt);
+
 class HistoryStore {
 public:
     /// The schema this cavitas writes. 1: measurements; 2: + npsha_m,
-    /// margin_ratio, agreement (the operating point).
-    static constexpr int kSchemaVersion = 2;
+    /// margin_ratio, agreement (the operating point); 3: + events.
+    static constexpr int kSchemaVersion = 3;
 
     /// Opens (creating when absent) and migrates. Throws InputError naming the
     /// file: not an SQLite database, a schema newer than this cavitas, locked.
@@ -68,6 +92,15 @@ public:
     /// Points stored for a machine.
     std::vector<std::string> points(const std::string& machine) const;
     std::size_t count() const;
+
+    /// Record a maintenance event. The same machine, point, time and words
+    /// again add no row: returns false then (and `id` of the row there).
+    bool add_event(const Event& e, std::int64_t* id = nullptr);
+    /// The events of a machine, oldest first: all of them when `point` is
+    /// empty, else those of that point and those of the whole machine.
+    std::vector<Event> events(const std::string& machine, const std::string& point = "") const;
+    /// The event numbered `id`, of any machine.
+    std::optional<Event> event(std::int64_t id) const;
 
 private:
     void exec(const std::string& sql) const;

@@ -36,6 +36,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
                 bug("a row without machine, point or file was accepted", std::to_string(r.line));
             if (r.error.empty() && r.when.text.size() < 19) bug("an accepted row has no normalised time", r.datetime);
         }
+        for (const auto& e : m.events)
+            if (e.machine.empty() || e.what.empty() || e.when.text.size() < 19)
+                bug("an event without machine, words or time was accepted", std::to_string(e.line));
     } catch (const cavitas::app::InputError&) {
     }
     const nlohmann::json j = nlohmann::json::parse(text, nullptr, false);

@@ -116,7 +116,7 @@ def outputs(cavitas, samples, schemas, work):
     with open(os.path.join(site, "route.csv"), encoding="utf-8") as f:
         text = f.read()
     with open(manifest, "w", encoding="utf-8") as f:
-        f.write(text + "OW-P101_gone.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,9,,,,\n")
+        f.write(text + "OW-P101_gone.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,9,,,,,\n")
     route = os.path.join(work, "route")
     r = run([cavitas, "route", manifest, "--baselines", lib, "--out", route, "--analyst", "R. Okafor"])
     check("route exits 1 (one row fails, the others are analysed)", r.returncode == 1, r.stderr)
@@ -126,6 +126,11 @@ def outputs(cavitas, samples, schemas, work):
              "--before", os.path.join(site, "OW-P101_2026-11-02.wav"),
              "--after", os.path.join(site, "OW-P101_2026-11-09.wav"), "--json", compare])
     check("compare", r.returncode == 0, r.stderr)
+    # The same comparison picked from the store around OW-P101's repair (the event row of samples/route.csv).
+    compare_event = os.path.join(work, "compare-event.json")
+    r = run([cavitas, "compare", "--around-event", "2026-11-04", "--machine", "OW-P101", "--point", "DE-H",
+             "--baselines", lib, "--json", compare_event])
+    check("compare --around-event", r.returncode == 0, r.stderr)
 
     findings = {}
     for verdict, rec in (("normal", "OW-P101_2026-09-07.wav"), ("incipient", "OW-P101_2026-10-05.wav"),
@@ -192,6 +197,15 @@ def outputs(cavitas, samples, schemas, work):
           and len(point_doc.get("channels", [])) == 3, str(point_doc.get("point")))
     with open(compare, encoding="utf-8") as f:
         validate(cv, json.load(f), "compare.json")
+    with open(compare_event, encoding="utf-8") as f:
+        around = json.load(f)
+    validate(cv, around, "compare.json of --around-event")
+    check("compare --around-event took the visits of 11-02 and 11-09 (samples/route.csv)",
+          [os.path.basename(x["path"]) for x in around["before"] + around["after"]]
+          == ["OW-P101_2026-11-02.wav", "OW-P101_2026-11-09.wav"], str(around.get("before")))
+    check("route.json lists the manifest's event (samples/route.csv, its last row)",
+          [(e["machine"], e["point"], e["datetime"]) for e in run_doc.get("events", [])]
+          == [("OW-P101", "", "2026-11-04T00:00:00")], str(run_doc.get("events")))
     # The most impulsive segment's waveform (plots.waveform): both traces, of one
     # length, inside the recording (the analyzer's excerpt, models/analyzer.hpp).
     for verdict, path in findings.items():
@@ -287,6 +301,10 @@ def outputs(cavitas, samples, schemas, work):
         check(f"{name}.pdf text says the verdict", expected_words[kind] in text, expected_words[kind])
         check(f"{name}.pdf text carries the cautions", "lock out and tag out" in text)
         check(f"{name}.pdf text names the work order", "WO-2611-0042" in text)
+        if kind == "route":
+            # OW-P101's repair (samples/route.csv's event row) under its history charts, with its date and words.
+            check("route.pdf lists the repair event under the history chart",
+                  "Event 2026-11-04 'strainer cleaned, sump level control reset' (every point of the machine)" in text)
         if kind in ("normal", "incipient", "developed"):
             # A finding calibrated in g (--full-scale 50g): velocity in mm/s RMS and absolute
             # levels re the ISO 1683:2015 reference (methods notes A7) are shown with their references.

@@ -25,6 +25,7 @@
 #include <vector>
 
 #include "models/operating_point.hpp"
+#include "src/io/manifest.hpp"
 #include "src/io/operating_point_io.hpp"
 #include "src/io/sources.hpp"
 #include "tools/synth/synth.hpp"
@@ -1024,4 +1025,29 @@ TEST_CASE("synth: the demo's triaxial point - three axes a recording, developed 
         CHECK(r->more_axes[1].gain_db == -6.0);
     }
     CHECK(formats == std::set<synth::FileFormat>{synth::FileFormat::uff58b, synth::FileFormat::mat, synth::FileFormat::csv});
+}
+
+TEST_CASE("synth: the demo's repair closes route.csv as an event row that cavitas reads as one", "[tools]") {
+    const auto dir = scratch_dir() / "demo-event";
+    auto plan = synth::demo_plan();
+    plan.resize(1);  // OW-P101_baseline_1 (a baseline: route.csv then holds only the event row), shortened
+    plan[0].spec.duration_s = 0.5;
+    synth::write_set(dir, plan, nullptr, std::cerr, {}, synth::SetColumns::demo, synth::demo_events());
+    std::ifstream in(dir / "route.csv");
+    std::vector<std::string> lines;
+    for (std::string line; std::getline(in, line);) lines.push_back(line);
+    REQUIRE(lines.size() == 2);
+    CHECK(lines[0].ends_with(",sample_rate_hz,event"));
+    // The repair the sidecar of 2026-11-09 tells of (demo_plan's notes), for every point of OW-P101.
+    CHECK(lines[1] == ",OW-P101,,,2026-11-04,,,,event,,,,,,,,,,\"strainer cleaned, sump level control reset\"");
+    const auto m = cavitas::app::read_manifest((dir / "route.csv").string());
+    CHECK(m.rows.empty());  // nothing to analyse, nothing failed
+    REQUIRE(m.events.size() == 1);
+    CHECK(m.events[0].machine == "OW-P101");
+    CHECK(m.events[0].point.empty());
+    CHECK(m.events[0].what == "strainer cleaned, sump level control reset");
+    // Only the demo columns have an event column to put it in.
+    CHECK_THROWS_AS(synth::write_set(dir, plan, nullptr, std::cerr, {}, synth::SetColumns::standard, synth::demo_events()),
+                    std::invalid_argument);
+    std::filesystem::remove_all(dir);
 }

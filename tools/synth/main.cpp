@@ -72,8 +72,9 @@ int main(int argc, char** argv) {
         "point in NAME.op.toml; then OW-P101's triaxial point NDE-T (12 800 Hz, 4 s, three axes): 2 baselines as "
         "UFF 58b in volts (100 mV/g), the developed visit of 11-02 as a MAT-file (N x 3 volts, acc and fs) and the "
         "visit of 11-09 as a CSV waveform in m/s^2; the NPSH3 curves TAG.npsh3.csv; route manifests manifest.csv "
-        "(all), baselines.csv and route.csv (with the columns sensitivity, unit, variable, sample_rate_hz, and the "
-        "channel list \"0,1,2\" of the triaxial rows); and truth.csv (a row per axis, FILE#CHANNEL).");
+        "(all), baselines.csv and route.csv (with the columns sensitivity, unit, variable, sample_rate_hz and event, "
+        "the channel list \"0,1,2\" of the triaxial rows, and at its end an event row: OW-P101's repair of "
+        "2026-11-04); and truth.csv (a row per axis, FILE#CHANNEL).");
     demo->add_option("OUTDIR", demo_dir, "Folder to write into (created if missing)")->required();
     demo->add_option("--seed", demo_seed, "Master seed of the set")->capture_default_str();
 
@@ -171,7 +172,7 @@ int main(int argc, char** argv) {
         if (*demo) {
             const auto plan = synth::demo_plan(demo_seed);
             const auto summary = synth::write_set(demo_dir, plan, nullptr, std::cerr, synth::demo_files(),
-                                                     synth::SetColumns::demo);
+                                                     synth::SetColumns::demo, synth::demo_events());
             print_summary("demo", demo_dir, summary);
         } else if (*eval) {
             const auto plan = synth::eval_plan(per_kind, eval_seed);

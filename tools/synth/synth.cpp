@@ -1166,6 +1166,11 @@ std::vector<PlannedRecording> demo_plan(std::uint64_t seed) {
     return plan;
 }
 
+std::vector<SetEvent> demo_events() {
+    // The work the sidecar of the visit of 11-09 tells of, done on 11-04 for the whole pump.
+    return {{"OW-P101", "", "2026-11-04", "strainer cleaned, sump level control reset"}};
+}
+
 std::vector<SetFile> demo_files() {
     // Invented maker's test curves (3 % head drop), rising with flow as NPSH3 does.
     return {
@@ -1626,9 +1631,10 @@ std::vector<PlannedRecording> field_plan(std::uint64_t seed) {
 
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
-                     const std::vector<SetFile>& files, SetColumns columns) {
+                     const std::vector<SetFile>& files, SetColumns columns, const std::vector<SetEvent>& events) {
     const bool field = columns == SetColumns::field;
     const bool demo = columns == SetColumns::demo;
+    if (!events.empty() && !demo) throw std::invalid_argument("event rows need the demo columns (their event column)");
     std::error_code ec;
     std::filesystem::create_directories(folder, ec);
     if (ec || !std::filesystem::is_directory(folder))
@@ -1640,7 +1646,7 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
     const std::string header = std::string("file,machine,point,channel,datetime,rpm,vanes,full_scale,role,label,kind,"
                                            "fs_hz,duration_s,seed") +
                                (field  ? ",group,rpm_given,expect,hazard\n"
-                                : demo ? ",sensitivity,unit,variable,sample_rate_hz\n"
+                                : demo ? ",sensitivity,unit,variable,sample_rate_hz,event\n"
                                        : "\n");
     std::ostringstream manifest, baselines, route, truth;
     manifest << header;
@@ -1711,7 +1717,7 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
             const bool mat = r.format == FileFormat::mat;
             row << ',' << (r.sensitivity_v_per_g > 0.0 ? fmt_number(r.sensitivity_v_per_g * 1000.0, 3) + "mV/g" : "")
                 << ',' << (mat ? (r.unit == "m/s^2" ? std::string("m/s2") : r.unit) : std::string()) << ','
-                << (mat ? r.variable : std::string()) << ',';
+                << (mat ? r.variable : std::string()) << ",,";
         }
         row << '\n';
         manifest << row.str();
@@ -1753,6 +1759,12 @@ SetSummary write_set(const std::filesystem::path& folder, const std::vector<Plan
         if (!r.sidecar_toml.empty())
             write_text_atomically(folder / (path.stem().string() + ".op.toml"), r.sidecar_toml);
         if (progress) progress(i + 1, plan.size());
+    }
+    // Event rows: no file, the machine (and point), the time and what was done (quoted: it may hold commas).
+    for (const auto& e : events) {
+        std::string what = "\"";
+        for (char c : e.what) what += c == '"' ? std::string("\"\"") : std::string(1, c);
+        route << ',' << e.machine << ',' << e.point << ",," << e.datetime << ",,,,event,,,,,,,,,," << what << "\"\n";
     }
     for (const auto& f : files) write_text_atomically(folder / f.name, f.text);
     write_text_atomically(folder / "manifest.csv", manifest.str());

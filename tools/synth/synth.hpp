@@ -345,6 +345,15 @@ struct SetFile {
 /// load on its developed day), and demo_files() adds each pump's NPSH3 curve.
 std::vector<PlannedRecording> demo_plan(std::uint64_t seed = 20240611);
 std::vector<SetFile> demo_files();
+
+/// A maintenance event of a set's route: an event row of route.csv (an empty
+/// file cell, the demo columns' `event` cell; an empty point is every point).
+struct SetEvent {
+    std::string machine, point, datetime, what;
+};
+/// The demo's: OW-P101's repair of 2026-11-04, between the developed visit of
+/// 11-02 and the healthy one of 11-09 (as their sidecar notes tell it).
+std::vector<SetEvent> demo_events();
 /// The evaluation set: per machine 3 baselines and `per_kind` tests of every kind,
 /// 10 s each, severities stratified over 0..1, tests in shuffled order under blind
 /// names (OW-P101_test_017.wav), encodings cycling pcm16/pcm24/float/flac16.
@@ -399,7 +408,7 @@ struct SetSummary {
 /// Which columns the manifests and truth.csv of a set have.
 enum class SetColumns {
     standard,  ///< the demo and evaluation sets'
-    demo,      ///< the standard ones, then sensitivity,unit,variable,sample_rate_hz (the demo set's)
+    demo,      ///< the standard ones, then sensitivity,unit,variable,sample_rate_hz,event (the demo set's)
     field,     ///< and the field set's: manifests + group,rpm_given,expect,hazard;
                ///< truth.csv + the inner-race, speed-scaling, re-mount, step and sidecar NPSHa values
 };
@@ -411,9 +420,11 @@ enum class SetColumns {
 /// SetColumns::field also group,rpm_given,expect,hazard) - and truth.csv
 /// (the fault parameters).
 /// `progress(done, total)` is called after each file; clipping warnings go to `warn`.
-/// Sidecars of the plan and `files` are written too.
+/// Sidecars of the plan and `files` are written too; `events` become event rows
+/// at the end of route.csv (SetColumns::demo only: its columns have `event`).
 SetSummary write_set(const std::filesystem::path& folder, const std::vector<PlannedRecording>& plan,
                      const std::function<void(std::size_t, std::size_t)>& progress, std::ostream& warn,
-                     const std::vector<SetFile>& files = {}, SetColumns columns = SetColumns::standard);
+                     const std::vector<SetFile>& files = {}, SetColumns columns = SetColumns::standard,
+                     const std::vector<SetEvent>& events = {});
 
 }  // namespace cavitas::synth

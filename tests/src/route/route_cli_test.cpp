@@ -7,6 +7,8 @@
 
 #include <csignal>
 
+#include <sqlite3.h>
+
 #include <algorithm>
 #include <filesystem>
 #include <fstream>
@@ -19,6 +21,7 @@
 #include "tests/support/axes.hpp"
 #include "tests/support/cli.hpp"
 
+#include "src/io/datetime.hpp"
 #include "src/io/errors.hpp"
 #include "src/route/route.hpp"
 #include "src/route/store.hpp"
@@ -80,16 +83,16 @@ const Site& site() {
     return s;
 }
 
-// The demo route plus rows that must fail on their own: a bad date, a missing
-// recording, a text file named .wav, a machine without a baseline.
+// The demo route (its DE-H rows and its event row, lines 2 .. 9) plus rows that must fail
+// on their own: a bad date, a missing recording, a text file named .wav, a machine without a baseline.
 fs::path mixed_manifest() {
     const Site& s = site();
     std::ofstream(s.dir / "notes.wav") << "this is not a recording\n";
     std::string text = slurp(s.dir / "route-deh.csv");
-    text += "OW-P101_2026-09-07.wav,OW-P101,DE-H,0,2026-09-31T08:00,1485,7,50g,test,normal,healthy,25600,8,1,,,,\n";
-    text += "OW-P101_lost.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,2,,,,\n";
-    text += "notes.wav,OW-P102,DE-H,0,2026-11-16T09:00,2960,5,50g,test,normal,healthy,51200,8,3,,,,\n";
-    text += "OW-P103_2026-09-07.wav,OW-P104,DE-H,0,2026-11-16T10:00,985,6,50g,test,normal,healthy,12800,8,4,,,,\n";
+    text += "OW-P101_2026-09-07.wav,OW-P101,DE-H,0,2026-09-31T08:00,1485,7,50g,test,normal,healthy,25600,8,1,,,,,\n";
+    text += "OW-P101_lost.wav,OW-P101,DE-H,0,2026-11-16T08:00,1485,7,50g,test,normal,healthy,25600,8,2,,,,,\n";
+    text += "notes.wav,OW-P102,DE-H,0,2026-11-16T09:00,2960,5,50g,test,normal,healthy,51200,8,3,,,,,\n";
+    text += "OW-P103_2026-09-07.wav,OW-P104,DE-H,0,2026-11-16T10:00,985,6,50g,test,normal,healthy,12800,8,4,,,,,\n";
     const fs::path m = s.dir / "mixed.csv";
     std::ofstream(m) << text;
     return m;
@@ -146,10 +149,10 @@ TEST_CASE("route: every row accounted for, failures isolated, the same results o
     CHECK(verdict_of["OW-P102_2026-10-05.wav@7"] == "developed");
     CHECK(verdict_of["OW-P103_2026-09-07.wav@8"] == "normal");
     // Each failure names its problem.
-    CHECK(rows[7]["reason"].get<std::string>().find(":9: datetime '2026-09-31T08:00'") != std::string::npos);
+    CHECK(rows[7]["reason"].get<std::string>().find(":10: datetime '2026-09-31T08:00'") != std::string::npos);
     CHECK(rows[8]["reason"].get<std::string>().find("OW-P101_lost.wav: no such file") != std::string::npos);
     CHECK(rows[9]["reason"].get<std::string>().find("notes.wav") != std::string::npos);
-    CHECK(rows[10]["line"] == 12);
+    CHECK(rows[10]["line"] == 13);
     const std::string summary_csv = slurp(out1 / "summary.csv");
     CHECK(std::count(summary_csv.begin(), summary_csv.end(), '\n') == 12);  // header + 11
     CHECK(summary_csv.find("no baseline for machine OW-P104") != std::string::npos);
@@ -163,7 +166,7 @@ TEST_CASE("route: every row accounted for, failures isolated, the same results o
     CHECK(rows[3]["previous_verdict"] == "developed");
     // Worst first on the screen: the developed OW-P102 before the repaired OW-P101.
     CHECK(r1.out.find("1. OW-P102") != std::string::npos);
-    CHECK(r1.out.find("line 9") != std::string::npos);
+    CHECK(r1.out.find("line 10") != std::string::npos);
 
     const Run r2 = run("route " + q(manifest) + " --baselines " + q(s.lib) + " --no-store --jobs 2 --out " + q(out2));
     CHECK(r2.status == 1);
@@ -190,6 +193,8 @@ TEST_CASE("route: shards merge into the same summary as one run", "[route]") {
     CHECK(m.status == 1);
     CHECK(slurp(merged / "summary.csv") == slurp(whole / "summary.csv"));
     CHECK(slurp(merged / "summary.jsonl") == slurp(whole / "summary.jsonl"));
+    // The manifest's event row (samples/route.csv's last) is listed once, whichever shard read it.
+    CHECK(json::parse(slurp(merged / "route.json"))["events"].size() == 1);
     // A shard missing, or one given twice, is refused.
     const Run missing = run("merge --out " + q(workdir() / "out-m2") + " " + q(a));
     CHECK(missing.status == 1);
@@ -583,7 +588,7 @@ TEST_CASE("route: the library's severity_zones.toml gives every finding its zone
     fs::copy_file(s.lib / "OW-P101" / "DE-H.json", lib / "OW-P101" / "DE-H.json", fs::copy_options::overwrite_existing);
     const std::string route = slurp(s.dir / "route.csv");
     std::string text = route.substr(0, route.find('\n') + 1);
-    text += "OW-P101_2026-11-02.wav,OW-P101,DE-H,0,2026-11-02T08:40,1485,7,50g,test,developed,cavitation,25600,8,1,,,,\n";
+    text += "OW-P101_2026-11-02.wav,OW-P101,DE-H,0,2026-11-02T08:40,1485,7,50g,test,developed,cavitation,25600,8,1,,,,,\n";
     const fs::path manifest = s.dir / "zones-route.csv";
     std::ofstream(manifest) << text;
     // Made-up boundaries (this test only) that put the recording's ~3.9 mm/s in zone C, then in zone B.
@@ -723,4 +728,242 @@ TEST_CASE("route: a point near boiling is looked at before one with a large marg
     const std::string first_row = page.substr(body, row_end - body);
     CHECK(first_row.find("DE-H") != std::string::npos);
     CHECK(first_row.find("DE-V") == std::string::npos);
+}
+
+// --- maintenance events -------------------------------------------------------------------
+namespace {
+
+// A visit of a synthetic point written straight into a store (no recording behind it).
+void add_visit(cavitas::app::HistoryStore& h, const std::string& machine, const std::string& date, double hf_db, int n) {
+    const auto when = cavitas::app::parse_iso8601(date + "T09:00");
+    REQUIRE(when);
+    cavitas::app::Measurement m;
+    m.sha256 = std::string(62, '0') + (n < 10 ? "0" : "") + std::to_string(n);
+    m.machine = machine;
+    m.point = "DE-H";
+    m.days = when->days;
+    m.measured_at = when->text;
+    m.file = "visit.wav";
+    m.baseline = "b.json";
+    m.verdict = hf_db < 3.0 ? "normal" : "incipient";
+    m.confidence = 0.9;
+    m.hf_rise_db = hf_db;
+    m.finding_json = "{}";
+    h.upsert(m);
+}
+
+}  // namespace
+
+TEST_CASE("event: recorded once, listed, and every mistake named by its option, file or value", "[route][event]") {
+    const fs::path store = workdir() / "events.sqlite";
+    fs::remove(store);
+    {
+        cavitas::app::HistoryStore h(store.string());
+        add_visit(h, "OW-P101", "2026-11-02", 18.6, 1);
+    }
+    const std::string st = " --store " + q(store);
+    Run r = run("event --help");
+    CHECK(r.status == 0);
+    CHECK(r.out.find("cavitas event OW-P101 --date 2026-11-04") != std::string::npos);  // an example
+    r = run("event OW-P101 --date 2026-11-04 --what 'impeller replaced'" + st);
+    INFO(r.out << r.err);
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("recorded event #1 of OW-P101 (every point): 2026-11-04 'impeller replaced'") != std::string::npos);
+    r = run("event OW-P101 --date 2026-11-04T00:00 --what ' impeller replaced '" + st);  // the same event, spelt otherwise
+    CHECK(r.status == 0);
+    CHECK(r.out.find("already recorded as event #1") != std::string::npos);
+    CHECK(run("event OW-P101 DE-H --date 2026-11-09T08:00 --what 'sensor re-mounted'" + st).status == 0);
+    {
+        cavitas::app::HistoryStore h(store.string());
+        CHECK(h.events("OW-P101").size() == 2);  // two events, not three
+    }
+    r = run("event OW-P101 --list" + st);
+    CHECK(r.status == 0);
+    CHECK(r.out.find("#1  2026-11-04 'impeller replaced'  every point  (cavitas event)") != std::string::npos);
+    CHECK(r.out.find("#2  2026-11-09 08:00 'sensor re-mounted'  point DE-H") != std::string::npos);
+    // A machine the store has never seen is recorded with a note to check the tag.
+    r = run("event OW-P10l --date 2026-11-04 --what 'impeller replaced'" + st);
+    CHECK(r.status == 0);
+    CHECK(r.err.find("holds no measurements of OW-P10l") != std::string::npos);
+
+    // Usage errors (exit 2) name the option and the value.
+    r = run("event OW-P101 --date 2026-11-31 --what x" + st);
+    CHECK(r.status == 2);
+    CHECK(r.err.find("--date '2026-11-31': not an ISO 8601 date") != std::string::npos);
+    r = run("event OW-P101 --what x" + st);
+    CHECK(r.status == 2);
+    CHECK(r.err.find("give --date and --what") != std::string::npos);
+    r = run("event OW-P101 --date 2026-11-04 --what '  '" + st);
+    CHECK(r.status == 2);
+    CHECK(r.err.find("--what is empty") != std::string::npos);
+    r = run("event OW-P101 --date 2026-11-04 --what \"$(printf 'two\\nlines')\"" + st);
+    CHECK(r.status == 2);
+    CHECK(r.err.find("--what holds a control character") != std::string::npos);
+    r = run("event OW-P101 --list --date 2026-11-04" + st);
+    CHECK(r.status == 2);
+    CHECK(r.err.find("--list takes no --date") != std::string::npos);
+    r = run("event ../OW-P101 --list" + st);
+    CHECK(r.status == 2);
+    CHECK(r.err.find("MACHINE '../OW-P101' cannot hold '/'") != std::string::npos);
+    r = run("event OW-P101 --date 2026-11-04 --what x");
+    CHECK(r.status == 2);
+    CHECK(r.err.find("give --store FILE or --baselines DIR") != std::string::npos);
+    // Input errors (exit 1) name the file.
+    const fs::path missing = workdir() / "no-such-store.sqlite";
+    r = run("event OW-P101 --date 2026-11-04 --what x --store " + q(missing));
+    CHECK(r.status == 1);
+    CHECK(r.err.find(missing.string() + ": no results store here yet") != std::string::npos);
+    CHECK_FALSE(fs::exists(missing));  // not created by a mistyped name
+    const fs::path future = workdir() / "future-events.sqlite";
+    fs::remove(future);
+    {
+        sqlite3* raw = nullptr;
+        REQUIRE(sqlite3_open(future.string().c_str(), &raw) == SQLITE_OK);
+        sqlite3_exec(raw, "CREATE TABLE measurements (x); PRAGMA user_version = 4;", nullptr, nullptr, nullptr);
+        sqlite3_close(raw);
+    }
+    r = run("event OW-P101 --date 2026-11-04 --what x --store " + q(future));
+    CHECK(r.status == 1);
+    CHECK(r.err.find(future.string() + ": results store schema 4 is newer") != std::string::npos);
+}
+
+TEST_CASE("trend: a point worsening, repaired, then healthy is judged on the visits since the repair", "[route][event]") {
+    // The test's own history: four visits creeping up 0.5 dB each (0.0 .. 1.5 dB over the
+    // baseline), the impeller replaced on 2026-04-10, then five healthy visits at a steady
+    // 1.9 .. 2.2 dB (the new impeller a little louder than the old baseline, still under
+    // the +3 dB alert). --window 9 takes all nine visits, so the event is the only difference.
+    const fs::path store = workdir() / "repaired.sqlite";
+    fs::remove(store);
+    {
+        cavitas::app::HistoryStore h(store.string());
+        const char* before[] = {"2026-01-05", "2026-02-02", "2026-03-02", "2026-03-30"};
+        const double before_db[] = {0.0, 0.5, 1.0, 1.5};
+        const char* after[] = {"2026-04-27", "2026-05-25", "2026-06-22", "2026-07-20", "2026-08-17"};
+        const double after_db[] = {2.0, 2.2, 1.9, 2.1, 2.0};
+        for (int i = 0; i < 4; ++i) add_visit(h, "OW-P301", before[i], before_db[i], i);
+        for (int i = 0; i < 5; ++i) add_visit(h, "OW-P301", after[i], after_db[i], 10 + i);
+    }
+    const fs::path tj = workdir() / "repaired.json";
+    const std::string args = "trend OW-P301 --window 9 --store " + q(store) + " --json " + q(tj);
+    // Without the event the slope runs through the repair: the step reads as a rise
+    // (Mann-Kendall S = 25 of 36 pairs, counted by hand from the values above).
+    Run t = run(args);
+    REQUIRE(t.status == 0);
+    json tr = json::parse(slurp(tj))["points"][0]["trend"];
+    CHECK(tr["rising"] == true);
+    CHECK(tr["points"] == 9);
+    CHECK(tr["since_event"].is_null());
+
+    REQUIRE(run("event OW-P301 --date 2026-04-10 --what 'impeller replaced' --store " + q(store)).status == 0);
+    t = run(args);
+    INFO(t.out << t.err);
+    REQUIRE(t.status == 0);
+    const json doc = json::parse(slurp(tj));
+    CHECK(doc["schema"] == "cavitas.trend/2");
+    const json& p = doc["points"][0];
+    tr = p["trend"];
+    CHECK(tr["points"] == 5);                // the five visits written after the event
+    CHECK(tr["visits_before_event"] == 4);   // the four written before it
+    CHECK(tr["rising"] == false);            // S = -1 over the five (by hand): no rise
+    CHECK(tr["since_event"]["what"] == "impeller replaced");
+    CHECK(p["measurements"].size() == 9);    // the history is still listed whole
+    REQUIRE(p["events"].size() == 1);
+    CHECK(p["events"][0]["datetime"] == "2026-04-10T00:00:00");
+    CHECK(t.out.find("trend: judged on the 5 visits since 2026-04-10 'impeller replaced' (the 4 before it left out): "
+                     "no significant rise") != std::string::npos);
+    CHECK(t.out.find("--- event #1: impeller replaced (every point of the machine) ---") != std::string::npos);
+    // The event listed between the visits it falls between.
+    CHECK(t.out.find("2026-03-30") < t.out.find("--- event #1"));
+    CHECK(t.out.find("--- event #1") < t.out.find("2026-04-27"));
+}
+
+TEST_CASE("route: the manifest's event row is recorded, not analysed and not failed, and splits the change since the previous visit",
+          "[route][event]") {
+    const Site& s = site();
+    // samples/route.csv ends with OW-P101's repair of 2026-11-04 (its event column, no file); route-deh.csv keeps it, at line 9.
+    const fs::path store = workdir() / "event-route.sqlite", out = workdir() / "out-event";
+    fs::remove(store);
+    const Run r = run("route " + q(s.dir / "route-deh.csv") + " --baselines " + q(s.lib) + " --store " + q(store) +
+                      " --out " + q(out));
+    INFO(r.out << r.err);
+    CHECK(r.status == 0);  // nothing failed
+    const auto rows = jsonl(out / "summary.jsonl");
+    REQUIRE(rows.size() == 7);  // the 7 recordings, no row for the event
+    for (const auto& row : rows) CHECK(row["line"] != 9);
+    CHECK(r.out.find("events: 1 in the manifest (1 new in the store)") != std::string::npos);
+    const json run_json = json::parse(slurp(out / "route.json"));
+    REQUIRE(run_json["events"].size() == 1);
+    CHECK(run_json["events"][0]["machine"] == "OW-P101");
+    CHECK(run_json["events"][0]["point"] == "");
+    CHECK(run_json["events"][0]["datetime"] == "2026-11-04T00:00:00");
+    CHECK(run_json["events"][0]["what"] == "strainer cleaned, sump level control reset");
+    {
+        cavitas::app::HistoryStore h(store.string());
+        REQUIRE(h.events("OW-P101").size() == 1);
+        CHECK(h.events("OW-P101")[0].source.find("route-deh.csv:9") != std::string::npos);
+    }
+    // The visit of 11-09 (line 5) comes after the repair: its previous visit is named, no HF change across it.
+    CHECK(rows[3]["line"] == 5);
+    CHECK(rows[3]["previous_verdict"] == "developed");
+    CHECK(rows[3]["hf_rise_change_db"].is_null());
+    CHECK(rows[3]["event_since_previous"] == "2026-11-04 'strainer cleaned, sump level control reset'");
+    CHECK(rows[2]["hf_rise_change_db"].get<double>() > 9.0);  // 10-05 to 11-02: no event between
+    CHECK(rows[2]["event_since_previous"] == "");
+    // Run again: the event is not added twice.
+    const Run again = run("route " + q(s.dir / "route-deh.csv") + " --baselines " + q(s.lib) + " --store " + q(store) +
+                          " --out " + q(out));
+    CHECK(again.out.find("events: 1 in the manifest (0 new in the store)") != std::string::npos);
+}
+
+TEST_CASE("compare --around-event picks the last visit before the event and the first after it", "[route][event]") {
+    const Site& s = site();
+    const fs::path store = workdir() / "around.sqlite", j = workdir() / "around.json";
+    fs::remove(store);
+    REQUIRE(run("route " + q(s.dir / "route-deh.csv") + " --baselines " + q(s.lib) + " --store " + q(store) + " --out " +
+                q(workdir() / "out-around"))
+                .status == 0);
+    // samples/route.csv: OW-P101 DE-H was visited on 09-07, 10-05 and 11-02 before the repair of
+    // 11-04, and on 11-09 after it. The store holds no other point of OW-P101, so none need be named.
+    Run r = run("compare --around-event 2026-11-04 --machine OW-P101 --store " + q(store) + " --json " + q(j));
+    INFO(r.out << r.err);
+    REQUIRE(r.status == 0);
+    json c = json::parse(slurp(j));
+    REQUIRE(c["before"].size() == 1);
+    REQUIRE(c["after"].size() == 1);
+    CHECK(c["before"][0]["path"] == (s.dir / "OW-P101_2026-11-02.wav").string());
+    CHECK(c["before"][0]["datetime"] == "2026-11-02T09:05:00");
+    CHECK(c["after"][0]["path"] == (s.dir / "OW-P101_2026-11-09.wav").string());
+    CHECK(c["event"]["what"] == "strainer cleaned, sump level control reset");
+    CHECK(c["event"]["compared_point"] == "DE-H");
+    CHECK(c["baseline"]["path"] == (s.lib / "OW-P101" / "DE-H.json").string());  // the one the route judged them against
+    CHECK(c["change"] == "improved");  // developed before, normal after (the demo's labels)
+    CHECK(r.out.find("compare around event #1 of OW-P101: 2026-11-04 'strainer cleaned, sump level control reset'") !=
+          std::string::npos);
+    CHECK(r.out.find("before  visit of 2026-11-02T09:05  " + (s.dir / "OW-P101_2026-11-02.wav").string()) !=
+          std::string::npos);
+
+    // Two visits a side: 10-05 and 11-02 before; after it there is only 11-09. By the event's number.
+    r = run("compare --around-event 1 --visits 2 --point DE-H --store " + q(store) + " --json " + q(j));
+    REQUIRE(r.status == 0);
+    c = json::parse(slurp(j));
+    REQUIRE(c["before"].size() == 2);
+    CHECK(c["before"][0]["path"] == (s.dir / "OW-P101_2026-10-05.wav").string());
+    CHECK(c["before"][1]["path"] == (s.dir / "OW-P101_2026-11-02.wav").string());
+    REQUIRE(c["after"].size() == 1);
+    CHECK(c["after"][0]["path"] == (s.dir / "OW-P101_2026-11-09.wav").string());
+
+    // Mistakes: no event that day (its events named), a number that is none, sides given twice.
+    r = run("compare --around-event 2026-11-05 --machine OW-P101 --store " + q(store));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("no event of OW-P101 at 2026-11-05 (its events: #1 2026-11-04") != std::string::npos);
+    r = run("compare --around-event 7 --store " + q(store));
+    CHECK(r.status == 1);
+    CHECK(r.err.find(store.string() + ": no event #7") != std::string::npos);
+    r = run("compare --around-event 2026-11-04 --store " + q(store));
+    CHECK(r.status == 2);
+    CHECK(r.err.find("a date needs --machine") != std::string::npos);
+    r = run("compare --around-event 1 --store " + q(store) + " --before " + q(s.dir / "OW-P101_2026-09-07.wav"));
+    CHECK(r.status == 2);
+    CHECK(r.err.find("give no --before or --after") != std::string::npos);
+    CHECK(run("compare --around-event 1").status == 2);  // no store named
 }

@@ -182,7 +182,7 @@ TEST_CASE("The results store: created on first use, no duplicates, migrated, for
     }
     {
         HistoryStore s(v1.string());
-        CHECK(s.schema_version() == 2);
+        CHECK(s.schema_version() == HistoryStore::kSchemaVersion);  // through every step
         const auto h = s.history("OW-P101");
         REQUIRE(h.size() == 1);
         CHECK(h[0].sha256 == "old");
@@ -215,4 +215,125 @@ TEST_CASE("The results store: created on first use, no duplicates, migrated, for
     CHECK_THROWS_WITH(HistoryStore(write("text.sqlite", "not a database at all, just some words\n").string()),
                       Contains("text.sqlite"));
     CHECK_THROWS_WITH(HistoryStore((scratch_dir() / "no-such-folder" / "h.sqlite").string()), Contains("does not exist"));
+}
+
+TEST_CASE("The results store: a schema-2 file gains the events table with its rows kept, the same event is one row", "[src][route]") {
+    // A version-2 file as the release before events wrote it: migrations 1 and 2 of store.cpp, one visit.
+    const fs::path v2 = scratch_dir() / "v2.sqlite";
+    fs::remove(v2);
+    {
+        sqlite3* raw = nullptr;
+        REQUIRE(sqlite3_open(v2.string().c_str(), &raw) == SQLITE_OK);
+        const char* sql =
+            "CREATE TABLE measurements (sha256 TEXT NOT NULL, channel INTEGER NOT NULL, machine TEXT NOT NULL,"
+            " point TEXT NOT NULL, measured_at TEXT NOT NULL, days REAL NOT NULL, file TEXT NOT NULL,"
+            " baseline TEXT NOT NULL, verdict TEXT NOT NULL, confidence REAL NOT NULL, hf_rise_db REAL,"
+            " hf_kurtosis REAL, impulse_rate_per_s REAL, lf_rise_db REAL, finding_json TEXT NOT NULL,"
+            " imported_utc TEXT NOT NULL DEFAULT 'x', PRIMARY KEY (sha256, channel));"
+            "CREATE INDEX measurements_by_point ON measurements (machine, point, measured_at);"
+            "ALTER TABLE measurements ADD COLUMN npsha_m REAL;"
+            "ALTER TABLE measurements ADD COLUMN margin_ratio REAL;"
+            "ALTER TABLE measurements ADD COLUMN agreement TEXT NOT NULL DEFAULT '';"
+            "INSERT INTO measurements (sha256, channel, machine, point, measured_at, days, file, baseline, verdict,"
+            " confidence, hf_rise_db, finding_json, npsha_m, margin_ratio, agreement) VALUES ('v2row', 0, 'OW-P101',"
+            " 'DE-H', '2026-11-02T09:05:00', 20759.378, 'd.wav', 'b.json', 'developed', 0.9, 18.6, '{}', 3.5, 1.07,"
+            " 'consistent');"
+            "PRAGMA user_version = 2;";
+        REQUIRE(sqlite3_exec(raw, sql, nullptr, nullptr, nullptr) == SQLITE_OK);
+        sqlite3_close(raw);
+    }
+    {
+        HistoryStore s(v2.string());
+        CHECK(s.schema_version() == 3);
+        const auto h = s.history("OW-P101", "DE-H");
+        REQUIRE(h.size() == 1);  // the row as written above, every column kept
+        CHECK(h[0].sha256 == "v2row");
+        CHECK(h[0].verdict == "developed");
+        CHECK(*h[0].margin_ratio == 1.07);
+        CHECK(h[0].agreement == "consistent");
+        CHECK(s.events("OW-P101").empty());
+        // 2026-11-04 is day 20761 since 1970-01-01 (days_from_civil, H. Hinnant's algorithm; also `date -d`).
+        const auto when = parse_iso8601("2026-11-04");
+        REQUIRE(when);
+        CHECK_THAT(when->days, WithinAbs(20761.0, 1e-9));
+        Event e{0, "OW-P101", "", when->text, when->days, "impeller replaced", "test"};
+        std::int64_t id = 0, again_id = 0;
+        CHECK(s.add_event(e, &id));
+        CHECK(id == 1);  // the first row of a new table
+        CHECK_FALSE(s.add_event(e, &again_id));  // the same event: no second row
+        CHECK(again_id == id);
+        Event other = e;
+        other.point = "NDE-T";
+        other.what = "sensor re-mounted";
+        CHECK(s.add_event(other));
+        CHECK(s.events("OW-P101").size() == 2);
+        CHECK(s.events("OW-P101", "DE-H").size() == 1);  // the machine's event, not NDE-T's
+        CHECK(s.events("OW-P101", "NDE-T").size() == 2);
+        CHECK(s.event(id)->what == "impeller replaced");
+        CHECK_FALSE(s.event(99));
+        CHECK(e.label() == "2026-11-04 'impeller replaced'");
+    }
+    {
+        sqlite3* raw = nullptr;
+        REQUIRE(sqlite3_open(v2.string().c_str(), &raw) == SQLITE_OK);
+        sqlite3_stmt* st = nullptr;
+        sqlite3_prepare_v2(raw, "PRAGMA user_version", -1, &st, nullptr);
+        REQUIRE(sqlite3_step(st) == SQLITE_ROW);
+        CHECK(sqlite3_column_int(st, 0) == 3);  // written back in the migration's transaction
+        sqlite3_finalize(st);
+        sqlite3_close(raw);
+    }
+    // A file of the next schema is refused, naming it.
+    const fs::path v4 = scratch_dir() / "v4.sqlite";
+    fs::remove(v4);
+    {
+        sqlite3* raw = nullptr;
+        REQUIRE(sqlite3_open(v4.string().c_str(), &raw) == SQLITE_OK);
+        sqlite3_exec(raw, "CREATE TABLE measurements (x); PRAGMA user_version = 4;", nullptr, nullptr, nullptr);
+        sqlite3_close(raw);
+    }
+    CHECK_THROWS_WITH(HistoryStore(v4.string()), Contains("v4.sqlite") && Contains("schema 4 is newer"));
+}
+
+TEST_CASE("The last event of a point: its own or the machine's, at or before a time", "[src][route]") {
+    const std::vector<Event> events = {{1, "M", "", "2026-03-01T00:00:00", 100.0, "pump overhauled", ""},
+                                       {2, "M", "NDE", "2026-04-01T00:00:00", 131.0, "bearing changed", ""},
+                                       {3, "M", "", "2026-05-01T14:30:00", 161.6, "impeller replaced", ""}};
+    CHECK(last_event(events, "DE")->id == 3);
+    CHECK(last_event(events, "DE", 140.0)->id == 1);   // NDE's event is not DE's
+    CHECK(last_event(events, "NDE", 140.0)->id == 2);
+    CHECK(last_event(events, "DE", 100.0)->id == 1);   // at the event's time counts as after it
+    CHECK(last_event(events, "DE", 99.0) == nullptr);
+    CHECK(events[2].label() == "2026-05-01 14:30 'impeller replaced'");
+}
+
+TEST_CASE("A route manifest's event column: an event-only row is recorded, not analysed", "[src][route]") {
+    const auto p = write("ev.csv",
+                         "file,machine,point,channel,datetime,rpm,vanes,event\n"
+                         "a.wav,OW-P101,DE-H,0,2026-11-02T09:05,1485,7,\n"
+                         ",OW-P101,,,2026-11-04,,,\"impeller replaced, strainer cleaned\"\n"
+                         "b.wav,OW-P101,DE-H,0,2026-11-09T10:15,1485,7,sensor re-mounted\n"
+                         ",OW-P101,DE-H,,2026-11-31,,,seal replaced\n"
+                         ",OW-P102,,,2026-11-05,,,\n");
+    const Manifest m = read_manifest(p.string());
+    CHECK(m.extra_columns.empty());  // event is a column cavitas reads, not one passed through
+    // Rows 2 and 4 are recordings; 5 an event whose date does not exist; 6 neither a file nor an event.
+    REQUIRE(m.rows.size() == 4);
+    CHECK(m.rows[0].line == 2);
+    CHECK(m.rows[1].line == 4);
+    CHECK(m.rows[1].index == 1);  // the event-only row takes no share of a route's shards
+    CHECK(m.rows[1].event == "sensor re-mounted");
+    CHECK(m.rows[2].line == 5);
+    CHECK_THAT(m.rows[2].error, Contains("datetime '2026-11-31'"));
+    CHECK(m.rows[3].line == 6);
+    CHECK_THAT(m.rows[3].error, Contains("the file cell is empty"));
+    REQUIRE(m.events.size() == 2);
+    CHECK(m.events[0].line == 3);
+    CHECK(m.events[0].machine == "OW-P101");
+    CHECK(m.events[0].point.empty());  // every point of the machine
+    CHECK(m.events[0].when.text == "2026-11-04T00:00:00");
+    CHECK(m.events[0].what == "impeller replaced, strainer cleaned");
+    CHECK(m.events[1].line == 4);
+    CHECK(m.events[1].point == "DE-H");  // a recording's row: its point, at its time
+    CHECK(m.events[1].when.text == "2026-11-09T10:15:00");
 }
