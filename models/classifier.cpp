@@ -384,16 +384,18 @@ void say_signs(const RecordingAnalysis& a, const Signs& s, const Attribution& at
                                  "range",
                                  band.c_str(), s.hf.change, s.hf.z, s.hf.baseline_sigma));
     if (s.impulsive_kurt)
-        f.evidence.push_back(fmt("HF band kurtosis %.1f vs baseline %.1f (z = %.1f): impulsive", s.kurt.value,
+        f.evidence.push_back(fmt("HF band kurtosis %.1f vs baseline %.1f (Gaussian = 3; z = %.1f): impulsive", s.kurt.value,
                                  s.kurt.baseline_median, s.kurt.z));
     if (s.impulsive_rate)
         f.evidence.push_back(fmt("HF impulse rate %.0f /s vs baseline %.0f /s", s.rate.value, s.rate.baseline_median));
     if (s.modulated) f.evidence.push_back(s.modulation_text);
     if (s.impulsive() && a.kurtogram_band.bandwidth_hz > 0.0) {
         const Comparison& k = in.comparisons[kSegmentIndicatorCount + static_cast<std::size_t>(RecordingIndicator::kurtogram_max)];
-        f.evidence.push_back(fmt("most impulsive band (fast kurtogram) %s-%s kHz, kurtosis %.1f vs baseline %.1f",
-                                 khz(a.kurtogram_band.low_hz()).c_str(), khz(a.kurtogram_band.high_hz()).c_str(), k.value,
-                                 k.baseline_median));
+        const double shown = info(RecordingIndicator::kurtogram_max).shown_offset;  // to Gaussian = 3
+        f.evidence.push_back(fmt("most impulsive band (fast kurtogram) %s-%s kHz, kurtosis %.1f vs baseline %.1f "
+                                 "(Gaussian = 3)",
+                                 khz(a.kurtogram_band.low_hz()).c_str(), khz(a.kurtogram_band.high_hz()).c_str(),
+                                 k.value + shown, k.baseline_median + shown));
     }
     if (at.lf_support)
         f.evidence.push_back(fmt("LF band %.0f-%.0f Hz %+.1f dB re baseline beside the HF rise: flow unsteadiness of attached cavities "

@@ -154,9 +154,12 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
     }
     for (std::size_t i = 1; i < out.indicators.size(); ++i) {
         const auto& ic = out.indicators[i];
-        if (ic.significant)
-            out.evidence.push_back(fmt("%s %.3g -> %.3g (shift %+.3g, p = %.2g, Cliff's delta %+.2f)", ic.label.c_str(),
-                                       ic.before_median, ic.after_median, ic.shift, ic.p_value, ic.cliffs_delta));
+        const IndicatorInfo* inf = indicator_of_key(ic.key);
+        if (ic.significant && inf)
+            out.evidence.push_back(ic.label + " " + shown_value(*inf, ic.before_median, unit) + " -> " +
+                                   shown_value(*inf, ic.after_median, unit) + " (shift " +
+                                   shown_value(*inf, ic.shift, unit, true) +
+                                   fmt(", p = %.2g, Cliff's delta %+.2f)", ic.p_value, ic.cliffs_delta));
     }
     return out;
 }

@@ -7,6 +7,7 @@
 
 #include <array>
 #include <cstddef>
+#include <string>
 #include <string_view>
 #include <vector>
 
@@ -44,14 +45,35 @@ constexpr std::size_t kRecordingIndicatorCount = static_cast<std::size_t>(Record
 
 /// How an indicator's unit is written: "signal" means the recording's own unit
 /// (g, m/s2, Pa or FS), filled in at output time.
+///
+/// One kurtosis convention wherever a person reads a value: Gaussian = 3 (the
+/// plain fourth standardised moment). Spectral kurtosis and the kurtogram are
+/// excess kurtosis by their definition (Gaussian = 0, Antoni 2006); they are
+/// shown with `shown_offset` 3 added and the convention said in the label.
+/// JSON values stay as computed, under their keys.
 struct IndicatorInfo {
     std::string_view name;
-    std::string_view unit;   ///< suffix used in JSON keys ("db", "per_s", "ratio", or "signal")
-    std::string_view label;  ///< words for a person
+    std::string_view unit;        ///< suffix used in JSON keys ("db", "per_s", "ratio", or "signal")
+    std::string_view label;       ///< plain words for a person, with the convention where it matters
+    std::string_view shown_unit;  ///< the unit a person reads after a value ("dB", "/s", "" or "signal")
+    double shown_offset = 0.0;    ///< added to a value shown to a person (3: excess kurtosis to Gaussian = 3)
 };
 
 const IndicatorInfo& info(SegmentIndicator i);
 const IndicatorInfo& info(RecordingIndicator i);
+
+/// The indicator whose JSON key this is (name + "_" + unit suffix; the recording's
+/// unit for "signal" ones), or nullptr.
+const IndicatorInfo* indicator_of_key(std::string_view key);
+
+/// The words for a person of a JSON key, with its unit: "HF band level, dB",
+/// "HF band kurtosis (Gaussian = 3)", "overall RMS, g"; the key itself when unknown.
+std::string indicator_heading(std::string_view key);
+
+/// A value as a person reads it: the offset to the one kurtosis convention
+/// applied, `digits` significant digits, the unit after it ("-18.1 dB",
+/// "0.287 g", "3.14"). A change (`is_change`) takes no offset and a sign.
+std::string shown_value(const IndicatorInfo& i, double value, std::string_view signal_unit, bool is_change = false);
 
 /// Per-segment values of every segment indicator.
 struct SegmentSeries {

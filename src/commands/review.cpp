@@ -10,6 +10,7 @@
 #include <nlohmann/json.hpp>
 
 #include "models/compare.hpp"
+#include "models/indicators.hpp"
 #include "models/trend.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/csv.hpp"
@@ -424,7 +425,7 @@ void run_compare(const CompareOptions& given, std::ostream& out, std::ostream& /
     for (const auto& e : ba.evidence) out << "    - " << e << "\n";
     out << "  indicators (after - before: Hodges-Lehmann shift [95 % interval], Mann-Whitney p, Cliff's delta):\n";
     for (const auto& ic : ba.indicators)
-        out << "    " << pad(ic.key, 28) << lpad(signed_fixed(ic.shift, 3), 10) << "  [" << signed_fixed(ic.ci_low, 3)
+        out << "    " << pad(models::indicator_heading(ic.key), 38) << lpad(signed_fixed(ic.shift, 3), 10) << "  [" << signed_fixed(ic.ci_low, 3)
             << ", " << signed_fixed(ic.ci_high, 3) << "]  p = " << lpad(fixed(ic.p_value, 4), 6) << "  delta "
             << signed_fixed(ic.cliffs_delta, 2) << (ic.significant ? "  *" : "") << "\n";
     auto med = [](std::vector<double> v) { return v.empty() ? std::optional<double>() : models::median(v); };

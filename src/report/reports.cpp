@@ -10,6 +10,7 @@
 #include <sstream>
 
 #include "models/classifier.hpp"
+#include "models/indicators.hpp"
 #include "src/analysis/analysis.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/datetime.hpp"
@@ -351,7 +352,8 @@ Figure kurtogram_figure(const json& kg) {
         plot::HeatMap m;
         m.title = "Kurtogram";
         m.y_label = "level (finer bands down)";
-        m.value_label = "kurtosis";
+        m.value_label = "kurtosis (Gaussian = 3)";
+        const double shown = models::info(models::RecordingIndicator::kurtogram_max).shown_offset;
         m.x.label = "frequency, Hz";
         double fmax = 0.0;
         const json rows = kg.contains("rows") && field(kg, "rows").is_array() ? field(kg, "rows") : json::array();
@@ -361,6 +363,7 @@ Figure kurtogram_figure(const json& kg) {
             const auto& row = rows[r];
             plot::HeatRow hr;
             hr.values = nums(row, "mean");
+            for (double& v : hr.values) v += shown;  // spectral kurtosis to the one convention
             const double bw = num(row, "bandwidth_hz");
             hr.x0 = 0.0;
             hr.x1 = bw * static_cast<double>(hr.values.size());
@@ -527,6 +530,12 @@ std::vector<std::string> event_items(const std::vector<Event>& events) {
     return items;
 }
 
+// What a value of an indicator of a comparison is shifted by to be read in the one kurtosis convention.
+double shown_offset(const json& indicator) {
+    const models::IndicatorInfo* inf = models::indicator_of_key(str(indicator, "key"));
+    return inf ? inf->shown_offset : 0.0;
+}
+
 doc::Table indicator_table(const json& finding) {
     doc::Table t;
     t.header = {"indicator", "value", "baseline (median +- spread)", "change", "threshold"};
@@ -543,14 +552,16 @@ doc::Table indicator_table(const json& finding) {
         const json& v = ind[key];
         const bool db = key.size() > 3 && key.compare(key.size() - 3, 3, "_db") == 0;
         const int dec = db ? 1 : 2;
-        t.rows.push_back({key, fixed(num(v, "value"), dec),
-                          fixed(num(v, "baseline_median"), dec) + " +- " + fixed(num(v, "baseline_sigma"), dec),
+        const models::IndicatorInfo* inf = models::indicator_of_key(key);
+        const double shown = inf ? inf->shown_offset : 0.0;
+        t.rows.push_back({models::indicator_heading(key), fixed(num(v, "value") + shown, dec),
+                          fixed(num(v, "baseline_median") + shown, dec) + " +- " + fixed(num(v, "baseline_sigma"), dec),
                           signed_or_plain(num(v, "change"), db), threshold_of(key)});
     }
     for (const auto& [key, v] : ind.items()) {
         if (std::find(order.begin(), order.end(), key) != order.end() || !v.is_object() || !v.contains("value")) continue;
         if (key.rfind("overall_rms", 0) != 0 && key.rfind("overall_peak", 0) != 0) continue;
-        t.rows.push_back({key, fixed(num(v, "value"), 3),
+        t.rows.push_back({models::indicator_heading(key), fixed(num(v, "value"), 3),
                           fixed(num(v, "baseline_median"), 3) + " +- " + fixed(num(v, "baseline_sigma"), 3),
                           signed_fixed(num(v, "change"), 3), "-"});
     }
@@ -866,7 +877,8 @@ Document compare_document(const json& c, const ReportOptions& o) {
     ind.numeric = {false, true, true, true, true, true};
     if (field(c, "indicators").is_array())
         for (const auto& i : field(c, "indicators"))
-            ind.rows.push_back({str(i, "key"), fixed(num(i, "before_median"), 3), fixed(num(i, "after_median"), 3),
+            ind.rows.push_back({models::indicator_heading(str(i, "key")), fixed(num(i, "before_median") + shown_offset(i), 3),
+                                fixed(num(i, "after_median") + shown_offset(i), 3),
                                 signed_fixed(num(i, "shift"), 3) + " [" + signed_fixed(num(i, "ci_low"), 3) + ", " +
                                     signed_fixed(num(i, "ci_high"), 3) + "]",
                                 fixed(num(i, "p_value"), 4), signed_fixed(num(i, "cliffs_delta"), 2)});
