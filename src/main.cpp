@@ -12,6 +12,7 @@
 #include "src/commands/analyst_review.hpp"
 #include "src/commands/commands.hpp"
 #include "src/commands/event.hpp"
+#include "src/commands/export.hpp"
 #include "src/commands/process_tuning.hpp"
 #include "src/io/analyst.hpp"
 #include "src/io/errors.hpp"
@@ -164,6 +165,36 @@ const char* kReviewHelp =
     "                 --reason \"suction valve half shut during the recording; re-measure at duty\"\n"
     "\n"
     "Exit status: 0 recorded, 1 the finding or its reviews file cannot be used, 2 a usage error.";
+
+const char* kExportHelp =
+    "Work requests for a maintenance system from a route's output folder: the route's current state,\n"
+    "one request per action of each machine point's (and channel's) latest visit. Earlier visits'\n"
+    "actions are superseded by the latest visit's and are not exported; a point whose latest visit\n"
+    "asks for nothing gives no request; a latest row that could not be analysed (verdict error) gives\n"
+    "one request to put it right and analyse it again (priority soon). Requests come in the route's\n"
+    "order of attention (as 'route' prints it and 'report' shows it: worst point first), each point's\n"
+    "actions soonest first. The format is told by the extension: OUT.csv is CSV (RFC 4180, UTF-8, a\n"
+    "header row; a cell a spreadsheet would run as a formula gets a leading '), OUT.json is\n"
+    "cavitas.work-requests/1 (src/schemas/work-requests.schema.json). The route folder is only read;\n"
+    "OUT may lie beside its files, never over one. Exporting the same route again gives the same ids.\n"
+    "\n"
+    "  cavitas export route-2026-11 --work-requests requests-2026-11.csv\n"
+    "\n"
+    "Columns, in this order (the JSON keys alike):\n"
+    "  request_id                 WR-<first 16 hex digits of finding_sha256>-<action number from 1>\n"
+    "  asset, point, channel      machine tag, measurement point, channel (from 0)\n"
+    "  recorded                   when the visit was recorded (ISO 8601, as the route has it)\n"
+    "  priority, priority_rank    urgent 1 (within a day), soon 2 (a week), planned 3, watch 4\n"
+    "  recheck_by, recheck_days   re-measure by this date: the recorded date + recheck_days\n"
+    "  description                the step to take, whole, on one line\n"
+    "  topic, concern             cavitation, suction_margin, other_finding (concern: which),\n"
+    "                             cannot_judge, baseline or analysis_failed\n"
+    "  verdict, confidence_grade  the visit's verdict and its grade\n"
+    "  operator_note              the operator's note of the visit, on one line\n"
+    "  finding, finding_sha256    the finding (relative to the route folder), the SHA-256 of its bytes\n"
+    "  basis                      where the priority and the interval come from\n"
+    "\n"
+    "Exit status: 0 written, 1 the folder is not a route or a finding cannot be read, 2 a usage error.";
 
 const char* kNpshHelp =
     "NPSH available at the impeller-eye datum from a suction-gauge reading, its margin over the\n"
@@ -371,6 +402,13 @@ int main(int argc, char** argv) {
     rv->add_option("--reason", arv.reason, "Why: what you saw or know that the recording does not say")->type_name("TEXT");
     add_analyst_flag(rv, arv.analyst, "the review");
 
+    ExportOptions xo;
+    auto* ex = app.add_subcommand("export", kExportHelp);
+    ex->add_option("route", xo.route_dir, "A route's output folder (route --out DIR)")->required()->type_name("ROUTE_DIR");
+    ex->add_option("--work-requests", xo.work_requests, "Work requests to write: OUT.csv or OUT.json (atomically)")
+        ->required()
+        ->type_name("OUT");
+
     TrendOptions to;
     auto* tr = app.add_subcommand(
         "trend",
@@ -506,6 +544,7 @@ int main(int argc, char** argv) {
             return run_merge(mo, std::cout, std::cerr);
         }
         if (*rv) run_analyst_review(arv, std::cout);
+        if (*ex) run_export(xo, std::cout);
         if (*tr) run_trend(to, std::cout);
         if (*ev) run_event(eo, std::cout, std::cerr);
         if (*cp) run_compare(co, std::cout, std::cerr);

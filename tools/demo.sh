@@ -15,6 +15,7 @@
 #     before it are listed, not judged) and compares the visits either side of it;
 #  4. writes work-order reports (HTML and PDF) to BUILD_DIR/demo/reports/;
 #  5. works out the NPSH of OW-P101 on the day of its developed finding.
+#  6. exports the route's work requests for a maintenance system (CSV and JSON).
 # Each recording's operating point is in NAME.op.toml beside it (read by cavitas itself).
 # Starts from an empty BUILD_DIR/demo/ every time, so the output is the same on every run.
 set -euo pipefail
@@ -113,5 +114,10 @@ echo
 echo "== 5. NPSH of OW-P101 on the day of its developed finding (from the recording's sidecar)"
 "$cavitas" npsh --operating-point "$samples/OW-P101_2026-11-02.op.toml" --json "$out/npsh-OW-P101_2026-11-02.json"
 echo
-echo "demo outputs in $out/ (baselines, route summary and findings, trend, comparison, reports, NPSH)"
+
+echo "== 6. work requests for a maintenance system: each point's latest actions, worst point first"
+"$cavitas" export "$out/route" --work-requests "$out/work-requests.csv"
+"$cavitas" export "$out/route" --work-requests "$out/work-requests.json"
+echo
+echo "demo outputs in $out/ (baselines, route summary and findings, trend, comparison, reports, NPSH, work requests)"
 echo "open $out/reports/route.html in a browser to see which pump to look at first, and why"

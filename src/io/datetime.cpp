@@ -120,4 +120,19 @@ std::optional<Timestamp> parse_iso8601(const std::string& raw) {
     return t;
 }
 
+std::optional<std::string> date_after_days(const std::string& text, int days) {
+    const auto t = parse_iso8601(text);
+    if (!t) return std::nullopt;
+    int y = 0, m = 0, d = 0;
+    digits(t->text, 0, 4, y);
+    digits(t->text, 5, 2, m);
+    digits(t->text, 8, 2, d);
+    long yy;
+    unsigned mm, dd;
+    civil_from_days(days_from_civil(y, static_cast<unsigned>(m), static_cast<unsigned>(d)) + days, yy, mm, dd);
+    char b[32];
+    std::snprintf(b, sizeof b, "%04ld-%02u-%02u", yy, mm, dd);
+    return std::string(b);
+}
+
 }  // namespace cavitas::app

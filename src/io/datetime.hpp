@@ -24,4 +24,9 @@ struct Timestamp {
 /// text is not such a date or names an impossible one (2026-02-30, 25:00).
 std::optional<Timestamp> parse_iso8601(const std::string& text);
 
+/// The calendar date ("YYYY-MM-DD") `days` days after the date of an ISO 8601
+/// text as parse_iso8601 reads it (the date as normalised: UTC when the text
+/// gave a zone); nullopt when the text is not such a date.
+std::optional<std::string> date_after_days(const std::string& text, int days);
+
 }  // namespace cavitas::app

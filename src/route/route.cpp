@@ -199,12 +199,7 @@ SummaryRow SummaryRow::from_json(const json& j, const std::string& where) {
         r.agreement = get_str(j, "agreement");
         r.other_findings = get_str(j, "other_findings");
         r.note = get_str(j, "note");
-        if (j.contains("actions")) {
-            if (!j["actions"].is_array()) throw std::invalid_argument("'actions' is not an array");
-            for (const auto& a : j["actions"]) r.actions.push_back(action_from_json(a));
-            std::stable_sort(r.actions.begin(), r.actions.end(),
-                             [](const RowAction& a, const RowAction& b) { return a.priority_rank < b.priority_rank; });
-        }
+        if (j.contains("actions")) r.actions = actions_from_json(j["actions"], where);
         r.duration_s = get_opt(j, "duration_s");
         r.sha256 = get_str(j, "sha256");
         r.baseline = get_str(j, "baseline");
@@ -245,6 +240,19 @@ std::string joined_actions(const SummaryRow& r) {
 }
 
 }  // namespace
+
+std::vector<RowAction> actions_from_json(const json& actions, const std::string& where) {
+    std::vector<RowAction> out;
+    try {
+        if (!actions.is_array()) throw std::invalid_argument("'actions' is not an array");
+        for (const auto& a : actions) out.push_back(action_from_json(a));
+    } catch (const std::invalid_argument& e) {
+        throw InputError(where + ": " + e.what());
+    }
+    std::stable_sort(out.begin(), out.end(),
+                     [](const RowAction& a, const RowAction& b) { return a.priority_rank < b.priority_rank; });
+    return out;
+}
 
 std::vector<std::string> summary_columns(const std::vector<std::string>& extra_columns) {
     std::vector<std::string> c = {"line",        "file",         "machine",       "point",

@@ -78,6 +78,11 @@ struct SummaryRow {
 std::vector<std::string> summary_columns(const std::vector<std::string>& extra_columns);
 std::vector<std::string> summary_cells(const SummaryRow& row);
 
+/// The "actions" array of a finding or a summary row, soonest first (stable
+/// within a priority). Throws InputError naming `where` on an entry that is
+/// not an action as cavitas writes it.
+std::vector<RowAction> actions_from_json(const nlohmann::json& actions, const std::string& where);
+
 struct RouteOptions {
     std::string manifest;
     std::string out_dir;

@@ -77,6 +77,72 @@ def finish():
 
 # ---------------------------------------------------------------------------------------------
 
+def export_checks(cavitas, site, lib, route, work, validate, validator):
+    """cavitas export of ROUTE: the requests counted from its summary rows, the schema, the CSV read by
+    Python's csv module (RFC 4180), SHA-256 by hashlib, dates by datetime, and a hostile note."""
+    import csv
+    import datetime
+    with open(os.path.join(route, "summary.jsonl"), encoding="utf-8") as f:
+        rows = [json.loads(line) for line in f if line.strip()]
+    latest = {}  # each machine point and channel's latest visit, an analysed row over a failed one
+    for row in rows:
+        key = (row["machine"], row["point"], row["channel"])
+        if key not in latest or (row["verdict"] != "error", row["datetime"]) > \
+                (latest[key]["verdict"] != "error", latest[key]["datetime"]):
+            latest[key] = row
+    want = sorted((r["finding"], a["step"]) for r in latest.values() for a in r["actions"])
+    want_failed = sum(r["verdict"] == "error" for r in latest.values())  # one request each
+    out_csv, out_json = os.path.join(work, "work-requests.csv"), os.path.join(work, "work-requests.json")
+    for out in (out_csv, out_json):
+        r = run([cavitas, "export", route, "--work-requests", out])
+        check(f"export --work-requests {os.path.basename(out)}", r.returncode == 0, r.stderr)
+    with open(out_json, encoding="utf-8") as f:
+        doc = json.load(f)
+    validate(validator, doc, "work-requests.json")
+    with open(out_csv, encoding="utf-8", newline="") as f:
+        table = list(csv.DictReader(f))
+    requests = doc.get("requests", [])
+    analysed = [q for q in requests if q["verdict"] != "error"]
+    check("every action of every point's latest visit is one request (JSON)",
+          sorted((q["finding"], q["description"]) for q in analysed) == want, f"{len(analysed)} vs {len(want)}")
+    check("... and each latest row that failed one", len(requests) - len(analysed) == want_failed)
+    check("... and one CSV row, in the JSON's order", [t["request_id"] for t in table] == [q["request_id"] for q in requests])
+    check("request ids are unique", len({q["request_id"] for q in requests}) == len(requests))
+    for q in analysed:
+        with open(os.path.join(route, q["finding"]), "rb") as f:
+            sha = hashlib.sha256(f.read()).hexdigest()
+        check(f"{q['request_id']}: finding_sha256 is hashlib's and the id is made of it",
+              q["finding_sha256"] == sha and q["request_id"].startswith("WR-" + sha[:16] + "-"))
+        due = datetime.date.fromisoformat(q["recorded"][:10]) + datetime.timedelta(days=q["recheck_days"])
+        check(f"{q['request_id']}: recheck_by is the recorded date + recheck_days", q["recheck_by"] == due.isoformat())
+    spoiled = json.loads(json.dumps(doc))
+    if spoiled["requests"]:
+        spoiled["requests"][0]["description"] = "two\nlines"
+        spoiled["requests"][0]["priority_rank"] = 4 if spoiled["requests"][0]["priority"] != "watch" else 1
+    check("schema refuses a request on two lines with a rank not its priority's",
+          len(list(validator.iter_errors(spoiled))) >= 2)
+    # A note with quotes, a comma, a line break and a leading "=" (a formula to a spreadsheet).
+    note = '=1+2 "quoted", then\nsecond line'
+    manifest = os.path.join(site, "route-hostile-note.csv")
+    with open(manifest, "w", encoding="utf-8", newline="") as f:
+        w = csv.writer(f, lineterminator="\n")
+        w.writerow(["file", "machine", "point", "channel", "datetime", "rpm", "vanes", "full_scale", "note"])
+        w.writerow(["OW-P103_2026-09-07.wav", "OW-P103", "DE-H", "0", "2026-09-07T10:20:00", "985", "6", "50g", note])
+    hostile = os.path.join(work, "route-hostile-note")
+    r = run([cavitas, "route", manifest, "--baselines", lib, "--out", hostile, "--no-store"])
+    check("route with a hostile note", r.returncode == 0, r.stderr)
+    hostile_csv = os.path.join(work, "work-requests-hostile.csv")
+    r = run([cavitas, "export", hostile, "--work-requests", hostile_csv])
+    check("export of the route with a hostile note", r.returncode == 0, r.stderr)
+    with open(hostile_csv, encoding="utf-8", newline="") as f:
+        notes = [t["operator_note"] for t in csv.DictReader(f)]
+    # OWASP CSV injection guidance: a cell starting with = + - @ gets a leading apostrophe.
+    check("the note is one CSV cell on one line, behind an apostrophe (Python csv)",
+          notes and all(n == "'" + note.replace("\n", " ") for n in notes), str(notes))
+
+
+# ---------------------------------------------------------------------------------------------
+
 def outputs(cavitas, samples, schemas, work):
     try:
         import jsonschema
@@ -227,6 +293,8 @@ def outputs(cavitas, samples, schemas, work):
     spoiled["verdict"] = "cavitating"
     del spoiled["input"]["sha256"]
     check("schema refuses a finding with an unknown verdict and no SHA-256", len(list(fv.iter_errors(spoiled))) >= 2)
+
+    export_checks(cavitas, site, lib, route, work, validate, schema("work-requests.schema.json"))
 
     # ---- the audit trail: provenance and reviews ----
     base_file = os.path.join(lib, "OW-P101", "DE-H.json")
