@@ -318,6 +318,12 @@ int main(int argc, char** argv) {
                    "a_b_mm_s, b_c_mm_s, c_d_mm_s, optional band_hz = [10, 1000]): the overall velocity's zone is "
                    "printed as context; it never changes the cavitation verdict")
         ->type_name("FILE");
+    an->add_option("--limits", ao.limits,
+                   "TOML file of this point's own alert limits, for a point always noisier than the defaults suit "
+                   "(reason = \"why\", hf_alert_db = 5, hf_developed_db = 12, lf_alert_db = 6; dB re baseline). "
+                   "Default: BASELINE.limits.toml beside the baseline when there is one (a route reads "
+                   "BASELINES/MACHINE/POINT.limits.toml). The finding says which limits it used")
+        ->type_name("FILE");
     add_operating_point_flags(an, ao.operating, true);
     std::optional<std::string> an_analyst;
     add_analyst_flag(an, an_analyst, "the finding's \"provenance\"");

@@ -260,7 +260,8 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
         throw InputError(o.baseline + ": baseline is for machine '" + r.baseline.machine + "', not '" + o.machine +
                          "'; use that machine's baseline");
-    // The operating point first: a mistyped reading fails before the analysis.
+    // The operating point and the point's limits first: a mistyped file fails before the analysis.
+    r.limits = point_limits(o.limits, o.baseline);
     std::optional<ResolvedOperatingPoint> duty = resolve_operating_point(o.operating, o.recording);
     const std::optional<models::SeverityZones> zones =
         o.zones ? std::optional(read_severity_zones(*o.zones)) : std::nullopt;
@@ -275,7 +276,7 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     ctx.unit = r.recording.info.calibration.unit;
     ctx.channel = o.read.channel;
     ctx.sensor_max_hz = sensor_limit(o.sensor_max_hz, o.mount);
-    r.finding = models::classify(r.recording.analysis, r.baseline, ctx);
+    r.finding = models::classify(r.recording.analysis, r.baseline, ctx, r.limits.applied_to({}));
     r.velocity = velocity_finding(r.recording, zones);
     if (duty) {
         OperatingPointFinding of;

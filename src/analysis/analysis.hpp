@@ -17,6 +17,7 @@
 #include "models/margin_reading.hpp"
 #include "models/operating_point.hpp"
 #include "models/severity.hpp"
+#include "src/io/point_limits.hpp"
 #include "src/io/analyst.hpp"
 #include "src/io/errors.hpp"
 #include "src/io/operating_point_io.hpp"
@@ -95,6 +96,8 @@ struct AnalysisRequest {
     CalibrationText calibration;
     OperatingPointFlags operating;
     std::optional<std::string> zones;  ///< --zones FILE: the analyst's severity zones
+    /// --limits FILE: the point's own alert limits (default: BASELINE.limits.toml beside the baseline, if any).
+    std::optional<std::string> limits;
     /// Who runs the analysis (identify_analyst); unset: the environment's login name.
     std::optional<Analyst> analyst;
 };
@@ -132,6 +135,7 @@ struct AnalyzeResult {
     VelocityFinding velocity;
     std::vector<models::Action> actions;  ///< what to do, soonest first (models/actions.hpp)
     std::string operator_note;            ///< the operator's own words (sidecar or manifest `note`)
+    PointLimits limits;                   ///< the alert limits the verdict used, and their source
     Analyst analyst;              ///< who ran it, on which host (the finding's provenance)
     std::string baseline_sha256;  ///< of the baseline file's bytes as read
 };

@@ -9,6 +9,7 @@
 #include "src/io/atomic_file.hpp"
 #include "src/io/baseline_io.hpp"
 #include "src/io/output_guard.hpp"
+#include "src/io/point_limits.hpp"
 #include "src/output/finding.hpp"
 #include "src/output/plain_text.hpp"
 
@@ -22,6 +23,7 @@ void guard_analyze(const AnalyzeOptions& o) {
     guard.input(o.baseline, "baseline");
     guard_operating_inputs(guard, o.operating, o.recording);
     if (o.zones) guard.input(*o.zones, "zone file");
+    guard.input(o.limits ? *o.limits : limits_path_beside(o.baseline), "point limits file");
     guard.output(*o.json_output);
 }
 

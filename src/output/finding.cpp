@@ -298,6 +298,7 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
         out << "  baseline warnings (from " << baseline_path << "):\n";
         for (const auto& w : f.baseline_warnings) out << "    - " << w.message << "\n";
     }
+    out << "  limits      " << r.limits.words() << "\n";
     write_levels_summary(out, r);
     if (r.operating) write_operating_point(out, *r.operating);
     if (cavitating(f.verdict)) {
@@ -449,6 +450,12 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
           {"rpm", b.rpm}}},
     };
     j["provenance"] = provenance_to_json(r, baseline_path);
+    j["limits"] = {{"hf_alert_db", r.limits.hf_alert_db},
+                   {"hf_developed_db", r.limits.hf_developed_db},
+                   {"lf_alert_db", r.limits.lf_alert_db},
+                   {"source", r.limits.source.empty() ? std::string("cavitas defaults (models/classifier.hpp)")
+                                                      : r.limits.source},
+                   {"reason", r.limits.reason}};
     j["velocity"] = velocity_to_json(r.velocity);
     add_absolute_band_levels(j["bands"], r);
     j["plots"] = plots_to_json(r);

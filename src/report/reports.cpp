@@ -139,8 +139,12 @@ std::vector<std::string> next_steps(const std::string& verdict, const std::strin
     return s;
 }
 
-std::string threshold_of(const std::string& key) {
-    const models::ClassifierConfig c;
+// The finding's own limits where it states them (a point's limits file), else the defaults.
+std::string threshold_of(const std::string& key, const json& limits) {
+    models::ClassifierConfig c;
+    c.hf_alert_db = num(limits, "hf_alert_db", c.hf_alert_db);
+    c.hf_developed_db = num(limits, "hf_developed_db", c.hf_developed_db);
+    c.lf_alert_db = num(limits, "lf_alert_db", c.lf_alert_db);
     if (key == "hf_band_level_db")
         return "alert +" + fixed(c.hf_alert_db, 0) + " dB with z >= " + fixed(c.z_alert, 0) + "; developed +" +
                fixed(c.hf_developed_db, 0) + " dB";
@@ -556,7 +560,7 @@ doc::Table indicator_table(const json& finding) {
         const double shown = inf ? inf->shown_offset : 0.0;
         t.rows.push_back({models::indicator_heading(key), fixed(num(v, "value") + shown, dec),
                           fixed(num(v, "baseline_median") + shown, dec) + " +- " + fixed(num(v, "baseline_sigma"), dec),
-                          signed_or_plain(num(v, "change"), db), threshold_of(key)});
+                          signed_or_plain(num(v, "change"), db), threshold_of(key, field(finding, "limits"))});
     }
     for (const auto& [key, v] : ind.items()) {
         if (std::find(order.begin(), order.end(), key) != order.end() || !v.is_object() || !v.contains("value")) continue;
@@ -667,6 +671,13 @@ void add_finding_sections(Document& d, const json& f, bool full) {
                                                                    : str(field(f, "bands"), "level_reference")) +
                 "; changes of levels are dB re baseline.");
     d.blocks.push_back(tb);
+    if (field(f, "limits").is_object())
+        d.paragraph("Limits used: HF alert " + signed_fixed(num(field(f, "limits"), "hf_alert_db"), 1) + " dB, developed " +
+                    signed_fixed(num(field(f, "limits"), "hf_developed_db"), 1) + " dB, LF alert " +
+                    signed_fixed(num(field(f, "limits"), "lf_alert_db"), 1) + " dB re baseline, from " +
+                    str(field(f, "limits"), "source") +
+                    (str(field(f, "limits"), "reason").empty() ? std::string() : " (" + str(field(f, "limits"), "reason") + ")") +
+                    ".");
     const auto warnings = strs(field(f, "quality"), "warnings");
     if (!warnings.empty()) {
         d.paragraph("What lowered the confidence:");
@@ -1390,6 +1401,18 @@ void check_waveform(const json& plots, const std::string& origin, PointBudget& b
         bad(origin, where + ".unit", "is not a unit of at most 64 characters");
 }
 
+// A finding's limits: numbers of dB within what a limits file allows, text of sane length.
+void check_limits(const json& f, const std::string& origin) {
+    if (!f.contains("limits")) return;
+    const json& l = field(f, "limits");
+    if (!l.is_object()) bad(origin, "limits", "is not an object");
+    for (const char* k : {"hf_alert_db", "hf_developed_db", "lf_alert_db"})
+        checked_number(l, k, origin, std::string("limits.") + k, 0.0, 100.0);
+    for (const char* k : {"source", "reason"})
+        if (l.contains(k) && (!field(l, k).is_string() || field(l, k).get_ref<const std::string&>().size() > 4096))
+            bad(origin, std::string("limits.") + k, "is not text of at most 4096 bytes");
+}
+
 // The actions a report prints: each an object with a priority cavitas writes, a
 // whole number of days and a step in words.
 void check_actions(const json& f, const std::string& origin) {
@@ -1425,6 +1448,7 @@ const json& checked_finding(const json& f, const std::string& origin) {
         bad(origin, "verdict", "is missing or not one of normal, incipient, developed, indeterminate");
     for (const char* k : {"evidence", "other_findings", "cautions"}) check_sentences(f, k, origin);
     check_actions(f, origin);
+    check_limits(f, origin);
     if (f.contains("operator_note") && !field(f, "operator_note").is_string()) bad(origin, "operator_note", "is not text");
     if (!field(field(f, "input"), "path").is_string()) bad(origin, "input.path", "is missing or not text");
     if (!field(f, "quality").is_object()) bad(origin, "quality", "is missing or not an object");

@@ -700,3 +700,46 @@ TEST_CASE("info reads a CSV waveform with a given delimiter and decimal comma, a
     CHECK(r.status == 2);
     CHECK(r.err.find("cannot be told from the delimiter") != std::string::npos);
 }
+
+// A point that is always noisier: its own limits beside its baseline raise the HF levels that count,
+// and the finding says which limits it used and where from. OW-P101's developed visit rises +18.6 dB
+// over its baseline (tools/demo.sh): past the default +9 dB for developed (models/classifier.hpp), under
+// a point limit of +20 dB, so the same impulsive, blade-locked rise reads incipient there.
+TEST_CASE("A point's limits file beside its baseline is used, named in the finding, and a bad one stops the analysis",
+          "[cli][limits]") {
+    const fs::path d = pump_folder("limits");
+    const fs::path b = d / "DE-H.json";
+    REQUIRE(run("baseline --vanes 7 --rpm 1485 --full-scale 50g -o " + q(b) + " " + q(d / "OW-P101_baseline_1.wav") + " " +
+                q(d / "OW-P101_baseline_2.wav"))
+                .status == 0);
+    const fs::path j = d / "f.json";
+    const std::string analyze = "analyze --baseline " + q(b) + " --rpm 1485 --json " + q(j) + " " + q(d / "OW-P101_2026-11-02.wav");
+    Run r = run(analyze);
+    REQUIRE(r.status == 0);
+    auto f = nlohmann::json::parse(slurp(j));
+    CHECK(f["verdict"] == "developed");
+    CHECK(f["limits"]["hf_alert_db"] == 3.0);
+    CHECK(f["limits"]["source"].get<std::string>().find("cavitas defaults") != std::string::npos);
+
+    write_text(d / "DE-H.limits.toml", "reason = \"always noisy: recirculation at the suction bell\"\nhf_alert_db = 7\n"
+                                      "hf_developed_db = 20\n");
+    r = run(analyze);
+    REQUIRE(r.status == 0);
+    f = nlohmann::json::parse(slurp(j));
+    CHECK(f["verdict"] == "incipient");
+    CHECK(f["limits"]["hf_alert_db"] == 7.0);
+    CHECK(f["limits"]["hf_developed_db"] == 20.0);
+    CHECK(f["limits"]["source"] == (d / "DE-H.limits.toml").string());
+    CHECK(f["limits"]["reason"] == "always noisy: recirculation at the suction bell");
+    CHECK(r.out.find("HF alert +7.0 dB") != std::string::npos);
+
+    // --limits names another file; a bad one stops before the analysis, naming file and key.
+    write_text(d / "other.toml", "reason = \"x\"\nhf_alert_db = 50\n");
+    r = run(analyze + " --limits " + q(d / "other.toml"));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("other.toml: hf_alert_db = 50 must lie within 0.5-40 dB") != std::string::npos);
+    // The limits file is an input: never overwritten by an output.
+    r = run("analyze --baseline " + q(b) + " --json " + q(d / "DE-H.limits.toml") + " " + q(d / "OW-P101_2026-11-02.wav"));
+    CHECK(r.status != 0);
+    CHECK(slurp(d / "DE-H.limits.toml").find("always noisy") != std::string::npos);
+}
