@@ -163,6 +163,7 @@ const char* to_string(ActionTopic t) {
         case ActionTopic::suction_margin: return "suction_margin";
         case ActionTopic::other_finding: return "other_finding";
         case ActionTopic::cannot_judge: return "cannot_judge";
+        case ActionTopic::recording_quality: return "recording_quality";
         case ActionTopic::baseline: return "baseline";
     }
     return "";
@@ -192,6 +193,15 @@ std::vector<Action> plan_actions(const Finding& f, const std::optional<MarginCon
         out.push_back(a);
     }
     for (const auto& o : f.other_findings) out.push_back(concern_action(f, o));
+    if (const auto warned = f.quality.warnings(); f.verdict != Verdict::indeterminate && !warned.empty()) {
+        Action a;
+        a.topic = ActionTopic::recording_quality;
+        a.priority = Priority::planned;
+        a.recheck_days = kRouteIntervalDays;
+        a.basis = kOurChoice;
+        a.step = "Check the sensor, its mount and the collector's input range before the next visit: " + warned.front();
+        out.push_back(a);
+    }
     if (!f.baseline_warnings.empty()) {
         Action a;
         a.topic = ActionTopic::baseline;

@@ -4,7 +4,8 @@
 // large margin points away from the suction level, towards recirculation, air
 // or a blockage); every other finding (bearing impacts, flow unsteadiness,
 // recirculation, a duty or speed off the baseline's, mains pickup), a record
-// that cannot be judged and a baseline with warnings get their own.
+// that cannot be judged, a record the quality gate warned about (sensor, mount,
+// input range) and a baseline with warnings get their own.
 //
 // The priorities and intervals are our choice unless marked otherwise: each
 // action says which (`basis`), so that a site can set its own.
@@ -33,6 +34,7 @@ enum class ActionTopic {
     suction_margin,   ///< no cavitation heard, but the NPSH margin is thin
     other_finding,    ///< see `concern`
     cannot_judge,     ///< indeterminate: re-record
+    recording_quality,  ///< judged, but the quality gate warned (sensor, mount, range)
     baseline,         ///< the baseline carries warnings
 };
 const char* to_string(ActionTopic t);

@@ -188,7 +188,7 @@ const char* kExportHelp =
     "  recheck_by, recheck_days   re-measure by this date: the recorded date + recheck_days\n"
     "  description                the step to take, whole, on one line\n"
     "  topic, concern             cavitation, suction_margin, other_finding (concern: which),\n"
-    "                             cannot_judge, baseline or analysis_failed\n"
+    "                             cannot_judge, recording_quality, baseline or analysis_failed\n"
     "  verdict, confidence_grade  the visit's verdict and its grade\n"
     "  operator_note              the operator's note of the visit, on one line\n"
     "  finding, finding_sha256    the finding (relative to the route folder), the SHA-256 of its bytes\n"

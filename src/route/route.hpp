@@ -29,7 +29,7 @@ bool is_finding_path(const std::string& path);
 
 /// One action of a row's finding (models/actions.hpp), as the summary keeps it.
 struct RowAction {
-    std::string topic;       ///< cavitation, suction_margin, other_finding, cannot_judge, baseline
+    std::string topic;       ///< cavitation, suction_margin, other_finding, cannot_judge, recording_quality, baseline
     std::string concern;     ///< the other finding's kind (empty otherwise)
     std::string priority;    ///< urgent, soon, planned, watch
     int priority_rank = 4;   ///< 1 urgent .. 4 watch

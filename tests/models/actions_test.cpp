@@ -123,3 +123,17 @@ TEST_CASE("Every other finding, a record that cannot be judged and a doubtful ba
     CHECK(c[0].topic == ActionTopic::suction_margin);
     CHECK(c[0].priority == Priority::soon);
 }
+
+TEST_CASE("A judged record the quality gate warned about asks for the sensor and mount to be checked", "[models][actions]") {
+    Finding f = finding(Verdict::normal);
+    QualityCheck c;
+    c.name = "dc_offset";
+    c.status = CheckStatus::warn;
+    c.message = "DC offset 3 % of full scale: check the sensor's bias and its cable";
+    f.quality.checks.push_back(c);
+    const auto a = plan_actions(f, std::nullopt);
+    REQUIRE(a.size() == 1);
+    CHECK(a[0].topic == ActionTopic::recording_quality);
+    CHECK(a[0].priority == Priority::planned);
+    CHECK_THAT(a[0].step, Contains("sensor, its mount") && Contains("DC offset 3 %"));
+}
