@@ -1,6 +1,5 @@
 #include "src/io/operating_point_io.hpp"
 
-#include <toml++/toml.h>
 
 #include <algorithm>
 #include <cctype>
@@ -11,6 +10,7 @@
 #include <stdexcept>
 
 #include "src/io/errors.hpp"
+#include "src/io/toml_text.hpp"
 #include "src/io/text_file.hpp"
 #include "src/io/units.hpp"
 
@@ -205,14 +205,7 @@ void refuse_deep_nesting(const std::string& text, const std::string& path) {
 
 OperatingPoint parse_operating_point_toml(const std::string& text, const std::string& path, const std::string& base_dir) {
     refuse_deep_nesting(text, path);
-    toml::table table;
-    try {
-        table = toml::parse(text, path);
-    } catch (const toml::parse_error& e) {
-        std::ostringstream m;
-        m << path << ":" << e.source().begin.line << ": not valid TOML: " << e.description();
-        throw InputError(m.str());
-    }
+    const toml::table table = parse_toml_text(text, path);
     OperatingPointText fields;
     for (auto&& [k, node] : table) {
         const std::string key(k.str());

@@ -1,6 +1,5 @@
 #include "src/io/point_limits.hpp"
 
-#include <toml++/toml.h>
 
 #include <cmath>
 #include <filesystem>
@@ -8,6 +7,7 @@
 #include <sstream>
 
 #include "src/io/errors.hpp"
+#include "src/io/toml_text.hpp"
 #include "src/io/text_file.hpp"
 
 namespace cavitas::app {
@@ -17,12 +17,6 @@ namespace fs = std::filesystem;
 namespace {
 
 constexpr std::size_t kReasonMaxBytes = 300;
-
-std::string number_text(double v) {
-    std::ostringstream s;
-    s << v;
-    return s.str();
-}
 
 [[noreturn]] void refuse(const std::string& path, const std::string& key, const std::string& what) {
     throw InputError(path + ": " + key + " " + what);
@@ -34,7 +28,7 @@ void read_limit(const toml::table& t, const std::string& path, const char* key, 
     const std::optional<double> v = n->value<double>();
     if (!n->is_number() || !v) refuse(path, key, "must be a number of dB re baseline, e.g. " + std::string(key) + " = 5");
     if (!std::isfinite(*v) || *v < kLimitMinDb || *v > kLimitMaxDb)
-        refuse(path, key, "= " + number_text(*v) + " must lie within 0.5-40 dB re baseline");
+        refuse(path, key, "= " + shown_number(*v) + " must lie within 0.5-40 dB re baseline");
     into = *v;
 }
 
@@ -66,14 +60,7 @@ std::string limits_path_beside(const std::string& baseline_path) {
 }
 
 PointLimits parse_point_limits(const std::string& text, const std::string& path) {
-    toml::table t;
-    try {
-        t = toml::parse(text, path);
-    } catch (const toml::parse_error& e) {
-        std::ostringstream m;
-        m << path << ":" << e.source().begin.line << ": not valid TOML: " << e.description();
-        throw InputError(m.str());
-    }
+    const toml::table t = parse_toml_text(text, path);
     static const std::set<std::string> known{"reason", "hf_alert_db", "hf_developed_db", "lf_alert_db"};
     for (auto&& [k, node] : t)
         if (!known.count(std::string(k.str())))
@@ -95,8 +82,8 @@ PointLimits parse_point_limits(const std::string& text, const std::string& path)
     read_limit(t, path, "hf_developed_db", l.hf_developed_db);
     read_limit(t, path, "lf_alert_db", l.lf_alert_db);
     if (!(l.hf_developed_db > l.hf_alert_db))
-        refuse(path, "hf_developed_db", "= " + number_text(l.hf_developed_db) + " must be above hf_alert_db = " +
-                                            number_text(l.hf_alert_db));
+        refuse(path, "hf_developed_db", "= " + shown_number(l.hf_developed_db) + " must be above hf_alert_db = " +
+                                            shown_number(l.hf_alert_db));
     return l;
 }
 

@@ -1,22 +1,16 @@
 #include "src/io/severity_zones.hpp"
 
-#include <toml++/toml.h>
 
 #include <cmath>
 #include <sstream>
 
 #include "src/io/errors.hpp"
+#include "src/io/toml_text.hpp"
 #include "src/io/text_file.hpp"
 
 namespace cavitas::app {
 
 namespace {
-
-std::string number_text(double v) {
-    std::ostringstream s;
-    s << v;
-    return s.str();
-}
 
 [[noreturn]] void refuse(const std::string& path, const std::string& key, const std::string& what) {
     throw InputError(path + ": " + key + " " + what);
@@ -27,21 +21,14 @@ double boundary(const toml::table& t, const std::string& path, const char* key) 
     if (!n) refuse(path, key, "is missing (a zone boundary in mm/s RMS, e.g. " + std::string(key) + " = 4.5)");
     const std::optional<double> v = n->value<double>();
     if (!n->is_number() || !v) refuse(path, key, "must be a number of mm/s RMS, e.g. " + std::string(key) + " = 4.5");
-    if (!std::isfinite(*v) || !(*v > 0.0)) refuse(path, key, "= " + number_text(*v) + " must be a positive finite number of mm/s");
+    if (!std::isfinite(*v) || !(*v > 0.0)) refuse(path, key, "= " + shown_number(*v) + " must be a positive finite number of mm/s");
     return *v;
 }
 
 }  // namespace
 
 models::SeverityZones parse_severity_zones(const std::string& text, const std::string& path) {
-    toml::table t;
-    try {
-        t = toml::parse(text, path);
-    } catch (const toml::parse_error& e) {
-        std::ostringstream m;
-        m << path << ":" << e.source().begin.line << ": not valid TOML: " << e.description();
-        throw InputError(m.str());
-    }
+    const toml::table t = parse_toml_text(text, path);
     for (auto&& [k, node] : t) {
         const std::string key(k.str());
         if (key != "source" && key != "band_hz" && key != "a_b_mm_s" && key != "b_c_mm_s" && key != "c_d_mm_s")
@@ -65,7 +52,7 @@ models::SeverityZones parse_severity_zones(const std::string& text, const std::s
             refuse(path, "band_hz", "must be two numbers of Hz, low and high, e.g. band_hz = [10, 1000]");
         z.band_low_hz = *(*a)[0].value<double>();
         z.band_high_hz = *(*a)[1].value<double>();
-        const std::string shown = "= [" + number_text(z.band_low_hz) + ", " + number_text(z.band_high_hz) + "]";
+        const std::string shown = "= [" + shown_number(z.band_low_hz) + ", " + shown_number(z.band_high_hz) + "]";
         if (!std::isfinite(z.band_low_hz) || !std::isfinite(z.band_high_hz) || z.band_low_hz < kZoneBandMinHz ||
             z.band_high_hz > kZoneBandMaxHz)
             refuse(path, "band_hz", shown + " must lie within 1-10000 Hz");
@@ -75,9 +62,9 @@ models::SeverityZones parse_severity_zones(const std::string& text, const std::s
     z.b_c_mm_s = boundary(t, path, "b_c_mm_s");
     z.c_d_mm_s = boundary(t, path, "c_d_mm_s");
     if (!(z.a_b_mm_s < z.b_c_mm_s))
-        refuse(path, "b_c_mm_s", "= " + number_text(z.b_c_mm_s) + " must be above a_b_mm_s = " + number_text(z.a_b_mm_s));
+        refuse(path, "b_c_mm_s", "= " + shown_number(z.b_c_mm_s) + " must be above a_b_mm_s = " + shown_number(z.a_b_mm_s));
     if (!(z.b_c_mm_s < z.c_d_mm_s))
-        refuse(path, "c_d_mm_s", "= " + number_text(z.c_d_mm_s) + " must be above b_c_mm_s = " + number_text(z.b_c_mm_s));
+        refuse(path, "c_d_mm_s", "= " + shown_number(z.c_d_mm_s) + " must be above b_c_mm_s = " + shown_number(z.b_c_mm_s));
     return z;
 }
 

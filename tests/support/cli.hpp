@@ -2,6 +2,7 @@
 #pragma once
 
 #include <sys/wait.h>
+#include <unistd.h>
 
 #include <cstdlib>
 #include <filesystem>
@@ -36,6 +37,23 @@ inline Run run_binary(const std::string& binary, const std::string& args, const 
     r.out = slurp(o);
     r.err = slurp(e);
     return r;
+}
+
+/// A scratch folder of one test program: TEMP/cavitas-STEM-PID, made on first use.
+inline std::filesystem::path scratch_dir(const std::string& stem) {
+    const std::filesystem::path p =
+        std::filesystem::temp_directory_path() / ("cavitas-" + stem + "-" + std::to_string(::getpid()));
+    std::filesystem::create_directories(p);
+    return p;
+}
+
+/// The first line a shell command prints, or "" when it fails: for checking cavitas against an
+/// implementation independent of it (coreutils sha256sum, GNU date, uname).
+inline std::string shell_first_line(const std::string& command, const std::filesystem::path& scratch) {
+    const auto out = scratch / "shell.txt";
+    if (std::system((command + " > " + q(out)).c_str()) != 0) return "";
+    const std::string text = slurp(out);
+    return text.substr(0, text.find('\n'));
 }
 
 }  // namespace cavitas::test

@@ -23,23 +23,14 @@ using nlohmann::json;
 namespace {
 
 fs::path workdir() {
-    static const fs::path d = [] {
-        fs::path p = fs::temp_directory_path() / ("cavitas-review-test-" + std::to_string(::getpid()));
-        fs::create_directories(p);
-        return p;
-    }();
+    static const fs::path d = cavitas::test::scratch_dir("review-test");
     return d;
 }
 
 Run run(const std::string& args) { return cavitas::test::run_binary(CAVITAS_BIN, args, workdir()); }
 
 // The first line a shell command prints (coreutils, an implementation independent of cavitas).
-std::string shell_line(const std::string& command) {
-    const fs::path out = workdir() / "shell.txt";
-    REQUIRE(std::system((command + " > " + q(out)).c_str()) == 0);
-    std::string text = slurp(out);
-    return text.substr(0, text.find('\n'));
-}
+std::string shell_line(const std::string& command) { return cavitas::test::shell_first_line(command, workdir()); }
 
 std::string sha256sum(const fs::path& p) { return shell_line("sha256sum " + q(p)).substr(0, 64); }
 
