@@ -17,6 +17,15 @@ const char* to_string(MarginAgreement a) {
     return "";
 }
 
+std::string agreement_words(const std::string& code) {
+    if (code == "consistent") return "the NPSH margin agrees with the verdict";
+    if (code == "at_risk") return "at risk: the NPSH margin is thin";
+    if (code == "unexplained_by_margin") return "not explained by the NPSH margin";
+    if (code == "margin_unknown") return "NPSH margin unknown";
+    if (code == "no_verdict") return "no verdict to read the margin against";
+    return code;
+}
+
 MarginReading read_margin(Verdict verdict, const Hydraulics& h, const MarginGuidance& g) {
     MarginReading r;
     if (h.margin) {

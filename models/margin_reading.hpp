@@ -24,6 +24,9 @@ enum class MarginAgreement {
     no_verdict,           ///< indeterminate
 };
 const char* to_string(MarginAgreement a);
+/// The reading in words for a person, from its code (to_string's): "not explained by
+/// the NPSH margin" for unexplained_by_margin; the code itself when unknown.
+std::string agreement_words(const std::string& code);
 
 struct MarginReading {
     MarginAgreement agreement = MarginAgreement::margin_unknown;

@@ -67,7 +67,7 @@ void write_operating_point(std::ostream& out, const OperatingPointFinding& of) {
     if (h.absolute_suction_pa) add("suction " + kpa(*h.absolute_suction_pa) + " absolute");
     if (!duty.empty()) out << "    duty        " << duty << "\n";
     if (!of.reading.summary.empty()) out << "    NPSH        " << of.reading.summary << "\n";
-    out << "    reading     " << models::to_string(of.reading.agreement) << "\n";
+    out << "    reading     " << models::agreement_words(models::to_string(of.reading.agreement)) << "\n";
     for (const auto& n : of.reading.notes) out << "    - " << n << "\n";
     // Differences from the baseline's duty are listed under "lowered confidence" above.
     for (const auto& n : h.notes) out << "    . " << n << "\n";

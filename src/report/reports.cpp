@@ -625,7 +625,7 @@ void add_finding_sections(Document& d, const json& f, bool full) {
                                                                                 std::min<std::size_t>(evidence.size(), 5))));
     }
     if (!op.empty() && !str(op, "summary").empty()) {
-        std::vector<std::string> items{"NPSH: " + str(op, "summary") + " - reading: " + agreement};
+        std::vector<std::string> items{"NPSH: " + str(op, "summary") + " - " + models::agreement_words(agreement)};
         for (const auto& n : strs(op, "reading_notes")) items.push_back(n);
         d.paragraph("The operating point beside the verdict:");
         d.bullets(items);

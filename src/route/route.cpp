@@ -477,7 +477,7 @@ std::string state_words(const SummaryRow& r) {
     if (r.hf_rise_db) s += ", HF " + (*r.hf_rise_db >= 0 ? std::string("+") : std::string()) + fixed(*r.hf_rise_db, 1) + " dB";
     if (r.margin_ratio) s += ", NPSHa/NPSH3 " + fixed(*r.margin_ratio, 2);
     if (!r.agreement.empty() && r.agreement != "consistent" && r.agreement != "margin_unknown")
-        s += " [" + r.agreement + "]";
+        s += " (" + models::agreement_words(r.agreement) + ")";
     if (!r.previous_datetime.empty()) {
         s += "; since " + r.previous_datetime.substr(0, 10) + ": was " + r.previous_verdict;
         if (r.hf_rise_change_db)
@@ -511,7 +511,9 @@ void print_attention(std::ostream& out, const std::vector<SummaryRow>& rows) {
         for (auto it = earlier.rbegin(); it != earlier.rend(); ++it)
             if (!(*it)->failed())
                 out << "       earlier in this route: " << (*it)->datetime.substr(0, 16) << " " << (*it)->verdict
-                    << (!(*it)->agreement.empty() && (*it)->agreement != "consistent" ? " [" + (*it)->agreement + "]" : "")
+                    << (!(*it)->agreement.empty() && (*it)->agreement != "consistent"
+                            ? " (" + models::agreement_words((*it)->agreement) + ")"
+                            : "")
                     << "\n";
     }
     std::vector<const SummaryRow*> failed;
