@@ -55,6 +55,10 @@ const char* kIntro =
     "  cavitas npsh     --suction-pressure 35kPa --temperature 60C --flow 120m3/h --bore 150mm --npsh3 4.2m\n"
     "  cavitas info     export.uff       (what a file holds: channels, rates, lengths, units)\n"
     "  cavitas review   finding.json --override normal --reason \"valve throttled that day\"\n"
+    "  cavitas route    route.csv --baselines lib --out today   (a whole route, worst point first)\n"
+    "  cavitas event    OW-P101 --date 2026-11-04 --what \"impeller replaced\" --baselines lib\n"
+    "  cavitas export   today --work-requests requests.csv   (each point's actions, for a maintenance system)\n"
+    "  cavitas report   today --pdf route.pdf   (work-order report: HTML and PDF)\n"
     "\n"
     "Exit status: 0 a verdict was reached (indeterminate included), 1 unreadable or\n"
     "invalid input, 2 a usage error.";
