@@ -21,11 +21,6 @@ constexpr int kWeekDays = 7;
 constexpr int kTwoWeeksDays = 14;
 constexpr int kRouteIntervalDays = 30;
 
-bool has_concern(const Finding& f, Concern c) {
-    return std::any_of(f.other_findings.begin(), f.other_findings.end(),
-                       [c](const OtherFinding& o) { return o.concern == c; });
-}
-
 // " (NPSHa 3.50 m, 1.07 x NPSH3)": the margin in numbers, as far as it is known.
 std::string ratio_words(const std::optional<MarginContext>& m) {
     if (!m || (!m->npsha_m && !m->margin_ratio)) return "";
@@ -38,7 +33,6 @@ std::string ratio_words(const std::optional<MarginContext>& m) {
 Action cavitation_action(const Finding& f, const std::optional<MarginContext>& m) {
     const bool developed = f.verdict == Verdict::developed;
     const MarginAgreement agreement = m ? m->agreement : MarginAgreement::margin_unknown;
-    const bool low_flow = f.off_duty && has_concern(f, Concern::off_duty);
     Action a;
     a.topic = ActionTopic::cavitation;
     a.basis = kOurChoice;
@@ -54,7 +48,7 @@ Action cavitation_action(const Finding& f, const std::optional<MarginContext>& m
         a.priority = Priority::soon;
         a.recheck_days = kWeekDays;
         a.step = "Look beyond the suction level: the NPSH margin is large" + ratio_words(m) +
-                 (low_flow ? ", and the pump runs far from the baseline's flow, so suction recirculation at part load "
+                 (f.off_duty ? ", and the pump runs far from the baseline's flow, so suction recirculation at part load "
                              "is the first suspect (bring the flow back within the pump's operating range); then"
                            : ";") +
                  " look for air drawn in (a vortex at the intake, a leaking suction joint) or a blockage (strainer, "

@@ -9,6 +9,7 @@
 #include <map>
 #include <sstream>
 #include <utility>
+#include <vector>
 
 #include "src/report/plot.hpp"
 
@@ -46,20 +47,26 @@ std::string whole_word(const std::string& w) {
     return w.find('-') == std::string::npos ? escape(w) : "<span class=\"nb\">" + escape(w) + "</span>";
 }
 
+// The pieces a word may wrap between: a long path after each of its slashes, any other word whole.
+// The HTML (breakable) and the PDF (widest_words) wrap alike.
+std::vector<std::string> wrap_pieces(const std::string& word) {
+    if (word.size() <= kLongToken || word.find('/') == std::string::npos) return {word};
+    std::vector<std::string> pieces;
+    std::size_t from = 0;
+    for (std::size_t at = word.find('/'); at != std::string::npos; at = word.find('/', from)) {
+        pieces.push_back(word.substr(from, at + 1 - from));
+        from = at + 1;
+    }
+    if (from < word.size()) pieces.push_back(word.substr(from));
+    return pieces;
+}
+
 // Escaped text whose words never break inside; a long path wraps after its slashes only.
 std::string breakable(const std::string& s) {
     std::string out, word;
     auto flush = [&] {
-        if (word.size() > kLongToken && word.find('/') != std::string::npos) {
-            std::size_t from = 0;
-            for (std::size_t at = word.find('/'); at != std::string::npos; at = word.find('/', from)) {
-                out += whole_word(word.substr(from, at + 1 - from)) + "<wbr>";
-                from = at + 1;
-            }
-            out += whole_word(word.substr(from));
-        } else {
-            out += whole_word(word);
-        }
+        const std::vector<std::string> pieces = wrap_pieces(word);
+        for (std::size_t i = 0; i < pieces.size(); ++i) out += (i ? "<wbr>" : "") + whole_word(pieces[i]);
         word.clear();
     };
     for (const char c : s) {
@@ -340,16 +347,6 @@ struct Pdf {
         g_object_unref(l);
         return static_cast<double>(lw) / PANGO_SCALE;
     }
-    static std::string widest_piece(const std::string& path) {
-        std::string widest;
-        std::size_t from = 0;
-        while (from < path.size()) {
-            const std::size_t at = std::min(path.find('/', from), path.size() - 1);
-            if (at + 1 - from > widest.size()) widest = path.substr(from, at + 1 - from);
-            from = at + 1;
-        }
-        return widest;
-    }
     // The widest word of each column (header in bold) plus padding: narrower, and a word would break inside.
     std::vector<double> widest_words(const Table& t, double size, double pad) {
         std::vector<double> m(t.header.size(), 0.0);
@@ -357,14 +354,12 @@ struct Pdf {
         auto take = [&](const std::vector<std::string>& cells, bool bold) {
             for (std::size_t c = 0; c < cells.size() && c < m.size(); ++c) {
                 std::istringstream words(cells[c]);
-                for (std::string word; words >> word;) {
-                    // A long path may wrap after its slashes (as in the HTML): its widest piece counts.
-                    if (word.size() > kLongToken && word.find('/') != std::string::npos)
-                        word = widest_piece(word);
-                    auto [it, fresh] = seen.try_emplace({word, bold}, 0.0);
-                    if (fresh) it->second = line_width(word, size, bold);
-                    m[c] = std::max(m[c], it->second + 2 * pad + 0.5);
-                }
+                for (std::string word; words >> word;)
+                    for (const std::string& piece : wrap_pieces(word)) {
+                        auto [it, fresh] = seen.try_emplace({piece, bold}, 0.0);
+                        if (fresh) it->second = line_width(piece, size, bold);
+                        m[c] = std::max(m[c], it->second + 2 * pad + 0.5);
+                    }
             }
         };
         take(t.header, true);

@@ -19,17 +19,10 @@ int severity_rank(const SummaryRow& r) {
     return 5;
 }
 
-namespace {
-
-// ANSI/HI 9.6.1 (Guideline for NPSH Margin): NPSHa of at least 1.1 x NPSH3 for
-// water pumps of low suction energy, the least the guidance allows.
-constexpr double kGuidanceMinimumRatio = 1.1;
-
-}  // namespace
-
 int margin_tier(const SummaryRow& r) {
     const bool boiling = r.npsha_m && *r.npsha_m < models::kNearBoilingNpshM;
-    const bool thin = r.margin_ratio && *r.margin_ratio < kGuidanceMinimumRatio;
+    // The least margin the guidance allows (ANSI/HI 9.6.1: 1.1 x NPSH3), as the margin reading uses it.
+    const bool thin = r.margin_ratio && *r.margin_ratio < models::MarginGuidance{}.min_ratio;
     if (boiling || thin || r.agreement == "at_risk") return 0;
     return r.margin_ratio ? 2 : 1;
 }
