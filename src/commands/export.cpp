@@ -35,7 +35,6 @@ namespace {
 
 // Size caps as the report reads the same files (src/report/reports.cpp).
 constexpr std::size_t kMaxRouteRunBytes = 8u << 20;   // route.json
-constexpr std::size_t kMaxSummaryBytes = 64u << 20;   // summary.jsonl
 constexpr std::size_t kMaxFindingBytes = 8u << 20;    // one finding
 constexpr std::size_t kIdHexDigits = 16;              // 64 bits of the SHA-256: no clash in any real route
 
@@ -57,11 +56,6 @@ struct WorkRequest {
 };
 
 // The summary's rows, and for each its line's text and where it is (for errors and a failed row's id).
-struct Summary {
-    std::vector<SummaryRow> rows;
-    std::vector<std::string> lines, wheres;
-};
-
 Format format_of(const std::string& path) {
     std::string ext = fs::path(path).extension().string();
     std::transform(ext.begin(), ext.end(), ext.begin(), [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
@@ -98,23 +92,6 @@ void check_route_run(const std::string& dir) {
     const auto schema = run.is_object() ? run.find("schema") : run.end();
     if (run.is_discarded() || schema == run.end() || !schema->is_string() || *schema != "cavitas.route/1")
         throw InputError(path + ": field 'schema' is not cavitas.route/1: not a cavitas route run");
-}
-
-Summary read_summary(const std::string& dir) {
-    const std::string path = (fs::path(dir) / "summary.jsonl").string();
-    std::istringstream in(read_text_file(path, "route summary", kMaxSummaryBytes));
-    Summary s;
-    std::string line;
-    for (std::size_t n = 1; std::getline(in, line); ++n) {
-        if (line.empty()) continue;
-        const std::string where = path + ":" + std::to_string(n);
-        const json j = json::parse(line, nullptr, false);
-        if (j.is_discarded()) throw InputError(where + ": not valid JSON");
-        s.rows.push_back(SummaryRow::from_json(j, where));
-        s.lines.push_back(line);
-        s.wheres.push_back(where);
-    }
-    return s;
 }
 
 // One line, whole: every run of control characters (C0, DEL, C1, U+2028 and
@@ -234,7 +211,7 @@ void check_unique(const std::vector<WorkRequest>& requests) {
     }
 }
 
-std::vector<WorkRequest> requests_of(const std::string& dir, const Summary& s, std::size_t& points) {
+std::vector<WorkRequest> requests_of(const std::string& dir, const RouteSummary& s, std::size_t& points) {
     std::vector<WorkRequest> out;
     const std::vector<PointState> states = latest_per_point(s.rows);
     points = states.size();
@@ -302,7 +279,7 @@ void run_export(const ExportOptions& o, std::ostream& out) {
     require_route(o.route_dir);
     guard_files(o);
     check_route_run(o.route_dir);
-    const Summary summary = read_summary(o.route_dir);
+    const RouteSummary summary = read_route_summary(o.route_dir);
     std::size_t points = 0;
     const std::vector<WorkRequest> requests = requests_of(o.route_dir, summary, points);
     write_file_atomically(o.work_requests,

@@ -76,8 +76,6 @@ std::vector<std::string> strs(const json& j, const char* key) {
 // report of hundreds of MB. Checked before a byte is parsed.
 constexpr std::size_t kMaxDocumentBytes = 8u << 20;      // a finding or a comparison
 constexpr std::size_t kMaxRouteRunBytes = 8u << 20;      // route.json (merged_from lists up to 100 000 shards)
-constexpr std::size_t kMaxSummaryBytes = 64u << 20;      // summary.jsonl
-constexpr std::size_t kMaxSummaryLineBytes = 64u << 10;  // one row of it
 constexpr std::size_t kMaxRouteRows = 20000;             // rows of a route report (a year of weekly visits to 400 points)
 
 const json& checked_finding(const json& f, const std::string& origin);
@@ -1132,26 +1130,8 @@ void add_earlier_table(Document& d, const std::vector<PointState>& states) {
 Document route_document(const std::string& folder, const ReportOptions& o) {
     const json run = read_json_file((fs::path(folder) / "route.json").string(), "route run file", kMaxRouteRunBytes);
     if (str(run, "schema") != "cavitas.route/1") throw InputError(folder + "/route.json: not a cavitas route run");
-    std::vector<SummaryRow> rows;
-    {
-        const std::string path = (fs::path(folder) / "summary.jsonl").string();
-        std::istringstream in(read_text_file(path, "route summary", kMaxSummaryBytes));
-        std::string line;
-        std::size_t n = 0;
-        while (std::getline(in, line)) {
-            ++n;
-            if (line.empty()) continue;
-            if (line.size() > kMaxSummaryLineBytes)
-                throw InputError(path + ":" + std::to_string(n) + ": a line of " + std::to_string(line.size()) +
-                                 " bytes (a summary row is at most " + std::to_string(kMaxSummaryLineBytes) + ")");
-            if (rows.size() == kMaxRouteRows)
-                throw InputError(path + ": more than " + std::to_string(kMaxRouteRows) +
-                                 " rows (a route report shows at most that many)");
-            const json j = json::parse(line, nullptr, false);
-            if (j.is_discarded()) throw InputError(path + ":" + std::to_string(n) + ": not valid JSON");
-            rows.push_back(SummaryRow::from_json(j, path + ":" + std::to_string(n)));
-        }
-    }
+    const std::vector<SummaryRow> rows =
+        read_route_summary(folder, kMaxRouteRows, "a route report shows at most that many").rows;
     Document d;
     d.title = "Route report - " + fs::path(str(run, "manifest")).filename().string();
     std::string first, last;

@@ -254,6 +254,28 @@ std::vector<RowAction> actions_from_json(const json& actions, const std::string&
     return out;
 }
 
+RouteSummary read_route_summary(const std::string& dir, std::size_t max_rows, const std::string& why_max) {
+    const std::string path = (fs::path(dir) / "summary.jsonl").string();
+    std::istringstream in(read_text_file(path, "route summary", kMaxSummaryBytes));
+    RouteSummary s;
+    std::string line;
+    for (std::size_t n = 1; std::getline(in, line); ++n) {
+        if (line.empty()) continue;
+        const std::string where = path + ":" + std::to_string(n);
+        if (line.size() > kMaxSummaryLineBytes)
+            throw InputError(where + ": a line of " + std::to_string(line.size()) + " bytes (a summary row is at most " +
+                             std::to_string(kMaxSummaryLineBytes) + ")");
+        if (max_rows > 0 && s.rows.size() == max_rows)
+            throw InputError(path + ": more than " + std::to_string(max_rows) + " rows (" + why_max + ")");
+        const json j = json::parse(line, nullptr, false);
+        if (j.is_discarded()) throw InputError(where + ": not valid JSON");
+        s.rows.push_back(SummaryRow::from_json(j, where));
+        s.lines.push_back(line);
+        s.wheres.push_back(where);
+    }
+    return s;
+}
+
 std::vector<std::string> summary_columns(const std::vector<std::string>& extra_columns) {
     std::vector<std::string> c = {"line",        "file",         "machine",       "point",
                                   "channel",     "datetime",     "verdict",       "confidence",

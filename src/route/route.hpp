@@ -74,6 +74,22 @@ struct SummaryRow {
     static SummaryRow from_json(const nlohmann::json& j, const std::string& where);
 };
 
+/// A route folder's summary.jsonl as a reader of it (report, export) takes it:
+/// the rows, each one's line of text and where it stands (FILE:LINE).
+struct RouteSummary {
+    std::vector<SummaryRow> rows;
+    std::vector<std::string> lines, wheres;
+};
+/// Limits of a summary a reader takes: 64 MiB in all, 64 KiB a row (a row is a
+/// few kB; far above anything route writes, so that an edited file cannot make
+/// a reader hold gigabytes).
+inline constexpr std::size_t kMaxSummaryBytes = 64u << 20;
+inline constexpr std::size_t kMaxSummaryLineBytes = 64u << 10;
+/// Reads DIR/summary.jsonl; InputError naming the file and line (not JSON, not
+/// a row, a line too long, more than max_rows rows when max_rows > 0: `why_max`
+/// says why there is a limit).
+RouteSummary read_route_summary(const std::string& dir, std::size_t max_rows = 0, const std::string& why_max = "");
+
 /// The CSV header and one CSV line of a row (extra columns last, in the manifest's order).
 std::vector<std::string> summary_columns(const std::vector<std::string>& extra_columns);
 std::vector<std::string> summary_cells(const SummaryRow& row);
