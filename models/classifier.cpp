@@ -156,13 +156,14 @@ Comparison compare_recording(Ctx& x, RecordingIndicator i) {
 
 double frac_to_integer(double order) { return std::abs(order - std::round(order)); }
 
+}  // namespace
+
 // Bearing-like: a strong envelope peak at a non-integer order with a harmonic
 // or shaft-rate sidebands, i.e. periodic impacts not locked to the rotor's
 // integer orders (Randall & Antoni 2011: bearing lines sit at BPFO/BPFI/BSF
 // multiples, smeared 1-2 % by slip).
-bool find_bearing_like(const RecordingAnalysis& a, double& order_out, double& hz_out, double& prom_out,
-                       std::string& family) {
-    if (a.rpm <= 0.0 || a.envelope_peaks.empty()) return false;
+std::optional<BearingFamily> bearing_family(const RecordingAnalysis& a) {
+    if (a.rpm <= 0.0 || a.envelope_peaks.empty()) return std::nullopt;
     const double fr = shaft_hz(a.rpm);
     const double bin = 1.0 / a.setup.segment_s;
     // Peaks are placed between bins (analyzer.cpp), so one bin tells a line
@@ -188,16 +189,15 @@ bool find_bearing_like(const RecordingAnalysis& a, double& order_out, double& hz
                             break;
                         }
                 }
-                order_out = fund->order;
-                hz_out = fund->hz;
-                prom_out = fund->prominence_db;
-                family = harmonic || fund != &p ? "with its harmonics" : "with shaft-rate sidebands";
-                return true;
+                return BearingFamily{fund->order, fund->hz, fund->prominence_db,
+                                     harmonic || fund != &p ? "with its harmonics" : "with shaft-rate sidebands"};
             }
         }
     }
-    return false;
+    return std::nullopt;
 }
+
+namespace {
 
 // Prominence (dB over the local floor) of the averaged squared-envelope
 // spectrum at an integer order, measured as the analyzer measures 1x and BPF;
@@ -224,6 +224,24 @@ double shaft_comb_db(const RecordingAnalysis& a) {
 }
 
 }  // namespace
+
+// An inner-race defect crosses the load zone once a revolution, so its
+// impacts are modulated at the shaft rate: envelope lines at k x 1x as well
+// as at BPFI and its f_r sidebands (methods review A4; Randall & Antoni 2011).
+// With a bearing family present, an integer-order line is the bearing's
+// unless it stands 3 dB (twice the power) above that comb (our choice).
+bool explained_by_bearing_family(const RecordingAnalysis& a, const BearingFamily& family, double hz) {
+    // Slip smears bearing lines by 1-2 % (Randall & Antoni 2011), more at harmonics.
+    const double tol = std::max(3.0 / a.setup.segment_s, 0.03 * hz);
+    for (int k = 1; k <= 6; ++k)
+        if (std::abs(k * family.hz - hz) <= tol) return true;
+    const double order = hz / shaft_hz(a.rpm);
+    if (std::abs(order - std::round(order)) < 0.02) {
+        const auto p = order_line_db(a, static_cast<int>(std::lround(order)));
+        return !p || *p < shaft_comb_db(a) + 3.0;
+    }
+    return false;
+}
 
 Finding classify(const RecordingAnalysis& a, const Baseline& b, const std::string& signal_unit,
                  const ClassifierConfig& c) {
@@ -288,27 +306,17 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
     s.sparse = s.kurt.value >= c.sparse_kurtosis;
     s.lf_alert = s.lf.change >= c.lf_alert_db && s.lf.z >= c.z_alert;
     s.mains = a.mains_hz > 0.0;
-    s.bearing = find_bearing_like(a, s.b_order, s.b_hz, s.b_prom, s.b_family);
+    if (const auto family = bearing_family(a)) {
+        s.bearing = true;
+        s.b_order = family->order;
+        s.b_hz = family->hz;
+        s.b_prom = family->prominence_db;
+        s.b_family = family->family;
+    }
 
-    // An inner-race defect crosses the load zone once a revolution, so its
-    // impacts are modulated at the shaft rate: envelope lines at k x 1x as well
-    // as at BPFI and its f_r sidebands (methods review A4; Randall & Antoni 2011).
-    // With a bearing family present, an integer-order line is the bearing's
-    // unless it stands 3 dB (twice the power) above that comb (our choice).
-    const double comb_db = s.bearing ? shaft_comb_db(a) : 0.0;
-    auto explained_by_bearing = [&](double hz) {
-        if (!s.bearing) return false;
-        // Slip smears bearing lines by 1-2 % (Randall & Antoni 2011), more at harmonics.
-        const double tol = std::max(3.0 / a.setup.segment_s, 0.03 * hz);
-        for (int k = 1; k <= 6; ++k)
-            if (std::abs(k * s.b_hz - hz) <= tol) return true;
-        const double order = hz / shaft_hz(a.rpm);
-        if (std::abs(order - std::round(order)) < 0.02) {
-            const auto p = order_line_db(a, static_cast<int>(std::lround(order)));
-            return !p || *p < comb_db + 3.0;
-        }
-        return false;
-    };
+    const std::optional<BearingFamily> family = s.bearing ? std::optional(BearingFamily{s.b_order, s.b_hz, s.b_prom, s.b_family})
+                                                          : std::nullopt;
+    auto explained_by_bearing = [&](double hz) { return family && explained_by_bearing_family(a, *family, hz); };
     // Integer-order modulation: BPF (needs the vane count) or, failing that, 1x.
     if (a.rpm > 0.0) {
         auto check = [&](const Comparison& line, const char* name, double hz) {

@@ -10,6 +10,7 @@
 // change - are reported under other findings and do not make a cavitation verdict.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -146,6 +147,22 @@ Finding classify(const RecordingAnalysis& analysis, const Baseline& baseline, co
 /// Shorthand when only the unit is known: the baseline's channel, no sensor limit.
 Finding classify(const RecordingAnalysis& analysis, const Baseline& baseline, const std::string& signal_unit,
                  const ClassifierConfig& config = {});
+
+/// Periodic impacts not locked to the rotor: the strongest envelope line at a
+/// non-integer order (>= 10 dB over its floor) with a harmonic or shaft-rate
+/// sidebands, reported by its fundamental. A rolling-element bearing's lines
+/// sit at such orders, smeared 1-2 % by slip (Randall & Antoni 2011).
+struct BearingFamily {
+    double order = 0.0;          ///< of the fundamental, shaft orders
+    double hz = 0.0;
+    double prominence_db = 0.0;  ///< over the envelope spectrum's local floor
+    std::string family;          ///< "with its harmonics" or "with shaft-rate sidebands"
+};
+std::optional<BearingFamily> bearing_family(const RecordingAnalysis& analysis);
+/// Whether the family explains an envelope line at hz: one of its first six
+/// harmonics, or an integer order no more than 3 dB over the comb a load zone
+/// puts at every shaft order (methods review A4).
+bool explained_by_bearing_family(const RecordingAnalysis& analysis, const BearingFamily& family, double hz);
 
 /// The cautions shown with every incipient or developed verdict.
 const std::vector<std::string>& cavitation_cautions();

@@ -88,17 +88,24 @@ void add_csv_flags(CLI::App* cmd, ReadRequest& read) {
 }
 
 // Which channel of a file and how its values become engineering units.
-void add_reading_flags(CLI::App* cmd, std::string& channels, CalibrationText& cal, ReadRequest& read, bool learning) {
+// How a command uses its recordings: learns a baseline, judges against one, or screens one alone.
+enum class ReadingRole { learn, judge, screen };
+
+void add_reading_flags(CLI::App* cmd, std::string& channels, CalibrationText& cal, ReadRequest& read, ReadingRole role) {
+    const std::string what = "A channel is a sound file's channel, a column of a CSV waveform or a MATLAB matrix, a "
+                             "dataset of a UFF file; 'cavitas info FILE' lists them. ";
     cmd->add_option("--channel", channels,
-                    "Channel(s) to read, from 0: one (2), several (0,1,2: a triaxial sensor) or all. A channel is a "
-                    "sound file's channel, a column of a CSV waveform or a MATLAB matrix, a dataset of a UFF file; "
-                    "'cavitas info FILE' lists them. " +
-                        std::string(learning ? "Several channels are learned into one baseline file, each with its own "
-                                               "statistics."
-                                             : "Several channels are each judged against their own statistics in "
-                                               "the baseline; the point's verdict is the worst channel's."));
-    const std::string later = learning ? " Analyses against the baseline use its calibration unless told otherwise."
-                                       : " Default: the baseline's, for files whose values come in the unit its did.";
+                    role == ReadingRole::screen
+                        ? "Channel to read, from 0 (one). " + what
+                        : "Channel(s) to read, from 0: one (2), several (0,1,2: a triaxial sensor) or all. " + what +
+                              std::string(role == ReadingRole::learn
+                                              ? "Several channels are learned into one baseline file, each with its "
+                                                "own statistics."
+                                              : "Several channels are each judged against their own statistics in "
+                                                "the baseline; the point's verdict is the worst channel's."));
+    const std::string later = role == ReadingRole::learn ? " Analyses against the baseline use its calibration unless told otherwise."
+                              : role == ReadingRole::judge ? " Default: the baseline's, for files whose values come in the unit its did."
+                                                           : "";
     cmd->add_option("--full-scale", cal.full_scale,
                     "What a full-scale sample of a sound file (WAV, FLAC) means: 50g, 500m/s2, 2000Pa (hydrophone), "
                     "or the voltage 10V to combine with --sensitivity. Without any calibration levels stay in "
@@ -280,7 +287,7 @@ int main(int argc, char** argv) {
     base->add_option("--vanes", bo.vanes, "Impeller vanes (runner blades): blade-pass frequency = vanes x rpm / 60")
         ->check(CLI::Range(0, 200));
     std::string base_channels;
-    add_reading_flags(base, base_channels, bo.calibration, bo.read, true);
+    add_reading_flags(base, base_channels, bo.calibration, bo.read, ReadingRole::learn);
     base->add_option("--sensor-max-hz", bo.sensor_max_hz,
                      "Usable top frequency of the sensor as mounted; the HF band stops there")
         ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
@@ -309,7 +316,7 @@ int main(int argc, char** argv) {
         ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
     an->add_option("--vanes", ao.vanes, "Impeller vanes (default: the baseline's)")->check(CLI::Range(0, 200));
     std::string an_channels;
-    add_reading_flags(an, an_channels, ao.calibration, ao.read, false);
+    add_reading_flags(an, an_channels, ao.calibration, ao.read, ReadingRole::judge);
     an->add_option("--json", ao.json_output, "Write the finding as JSON to this file (atomically)");
     an->add_option("--sensor-max-hz", ao.sensor_max_hz,
                    "Usable top frequency of the sensor as mounted for this recording; the verdict is indeterminate "
@@ -331,6 +338,42 @@ int main(int argc, char** argv) {
     add_operating_point_flags(an, ao.operating, true);
     std::optional<std::string> an_analyst;
     add_analyst_flag(an, an_analyst, "the finding's \"provenance\"");
+
+    ScreenOptions so;
+    auto* sc = app.add_subcommand(
+        "screen",
+        "Screen one recording of a machine that has no reference yet (a new installation, a pump that has\n"
+        "cavitated since commissioning). Without a known-good state no change can be measured, so the answer\n"
+        "is never incipient or developed, only: signs of cavitation, no sign of cavitation, or cannot tell,\n"
+        "with a low or moderate grade. Three acoustic signs are read from the recording alone:\n"
+        "  HF dominance           the HF band's power within 3 dB of the band below it (broadband collapse\n"
+        "                         noise; sound pumps read 6-10 dB under it)\n"
+        "  blade-pass modulation  the HF envelope's line at BPF (needs --rpm or a confirmed speed, and --vanes)\n"
+        "  sparse impulses        HF band kurtosis of 10 or more (Gaussian = 3)\n"
+        "Two are needed: many sound machines show one. A bearing-like family at a non-integer order claims the\n"
+        "impulses and the modulation. With the operating point given, NPSHa under NPSH3 or under 1 m (the\n"
+        "liquid near its boiling point) is a sign on its own. Then take a reference: 'baseline' when known\n"
+        "good, 'baseline --suppression' from a run with raised suction head, or 'analyze --reference' with a\n"
+        "sister machine's baseline. --json writes cavitas.screening/1, whose \"screening\" key is exactly one of\n"
+        "signs_of_cavitation, no_sign, cannot_tell. Exit status 0 whatever the answer; 1 input, 2 usage error.");
+    sc->add_option("recording", so.recording, "The recording to screen")->required();
+    sc->add_option("--rpm", so.rpm, "Shaft speed, rpm (default: searched in the spectrum, 300-6000 rpm, and used only "
+                                    "when its lines confirm it)")
+        ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
+    sc->add_option("--vanes", so.vanes, "Impeller vanes (runner blades): blade-pass frequency = vanes x rpm / 60; "
+                                        "without it the HF envelope is read at 1x")
+        ->check(CLI::Range(0, 200));
+    std::string sc_channels;
+    add_reading_flags(sc, sc_channels, so.calibration, so.read, ReadingRole::screen);
+    sc->add_option("--sensor-max-hz", so.sensor_max_hz, "Usable top frequency of the sensor as mounted; the HF band "
+                                                        "stops there")
+        ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
+    sc->add_option("--mount", so.mount, "Sensor mounting: handheld, magnet, adhesive or stud (caps the HF band)")
+        ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
+    sc->add_option("--json", so.json_output, "Write the screening as JSON to this file (atomically)")->type_name("FILE");
+    add_operating_point_flags(sc, so.operating, true);
+    std::optional<std::string> sc_analyst;
+    add_analyst_flag(sc, sc_analyst, "the screening's \"provenance\"");
 
     InfoOptions io;
     auto* inf = app.add_subcommand(
@@ -544,6 +587,13 @@ int main(int argc, char** argv) {
             set_channels(an_channels, ao.read, channels);
             ao.analyst = identify_analyst(an_analyst);
             run_analyze(ao, channels, std::cout, std::cerr);
+        }
+        if (*sc) {
+            std::optional<ChannelSelection> several;
+            set_channels(sc_channels, so.read, several);
+            if (several) throw UsageError("--channel: screen reads one channel; screen each channel on its own");
+            so.analyst = identify_analyst(sc_analyst);
+            run_screen(so, std::cout, std::cerr);
         }
         if (*np) run_npsh(no, std::cout);
         if (*inf) run_info(io, std::cout);

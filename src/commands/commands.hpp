@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "models/screening.hpp"
 #include "src/analysis/analysis.hpp"
 
 namespace cavitas::app {
@@ -53,6 +54,32 @@ struct AnalyzeOptions : AnalysisRequest {
 /// finding with "point" and "channels" (one finding per channel) added.
 void run_analyze(const AnalyzeOptions& options, const std::optional<ChannelSelection>& several, std::ostream& out,
                  std::ostream& err);
+
+/// The screen command: one recording judged on its own, without a reference.
+struct ScreenOptions {
+    std::string recording;
+    ReadRequest read;
+    std::optional<double> rpm;
+    int vanes = 0;
+    CalibrationText calibration;
+    double sensor_max_hz = 0.0;
+    std::string mount;
+    OperatingPointFlags operating;
+    std::optional<std::string> json_output;
+    std::optional<Analyst> analyst;
+};
+inline constexpr const char* kScreeningSchema = "cavitas.screening/1";
+struct ScreenResult {
+    AnalyzedRecording recording;
+    std::optional<ResolvedOperatingPoint> duty;
+    models::Screening screening;
+    Analyst analyst;
+};
+/// The operating point (failing fast), the recording analysed in bands chosen
+/// from its own rate and the sensor limit, then models::screen.
+ScreenResult screen_recording(const ScreenOptions& options, const Progress& progress = {});
+/// screen_recording: a summary to out, the JSON (kScreeningSchema) when asked.
+void run_screen(const ScreenOptions& options, std::ostream& out, std::ostream& err);
 
 struct NpshOptions {
     OperatingPointFlags operating;

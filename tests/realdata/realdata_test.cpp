@@ -270,7 +270,79 @@ std::string write_baseline(const fs::path& dir, const std::vector<fs::path>& fil
     return o.output;
 }
 
+// Screening without a reference (models/screening.hpp) of one lab-pump recording,
+// with its logged speed, 6 vanes (inferred, SOURCE.md) and, when asked, the rig
+// log's suction reading (PT02, bar gauge, inferred to be the inlet) and TT01.
+app::ScreenResult screen_lab(const std::string& file, bool with_suction) {
+    const std::string condition = file.substr(0, file.find('_', file.find('_') + 1));
+    app::ScreenOptions o;
+    o.recording = (pump() / file).string();
+    o.rpm = log_median(condition, "RT01_RPM");
+    o.vanes = kPumpVanes;
+    o.calibration.full_scale = file.find("_mic") != std::string::npos ? "1Pa" : "1m/s2";
+    o.analyst = app::Analyst{"realdata", "test", "local"};
+    if (with_suction) {
+        char suction[64], temperature[64];
+        std::snprintf(suction, sizeof suction, "%.4fbar", log_median(condition, "PT02_bar"));
+        std::snprintf(temperature, sizeof temperature, "%.2fC", log_median(condition, "TT01_C"));
+        o.operating.values["suction_pressure"] = suction;
+        o.operating.values["temperature"] = temperature;
+    }
+    const app::ScreenResult r = app::screen_recording(o);
+    std::cout << "  " << file << (with_suction ? " with suction" : "") << ": "
+              << models::to_string(r.screening.call) << " (" << models::to_string(r.screening.grade) << ", "
+              << r.screening.acoustic_signs << " acoustic sign(s))\n";
+    return r;
+}
+
+const char* const kLabChannels[] = {"ch0_acc", "ch1_acc", "ch2_acc", "ch3_acc", "ch4_mic"};
+
 }  // namespace
+
+TEST_CASE("Lab pump screened without a reference: no open-valve run shows signs of cavitation", "[realdata]") {
+    // The open-valve ("healthy") runs at every speed, every channel, both runs: 30 recordings
+    // that are not known to cavitate (SOURCE.md: not verified free of it; the 1200 rpm ones are
+    // the loudest of the set). A screening may say "cannot tell" of them, never "signs".
+    for (const char* speed : {"700", "1000", "1200"})
+        for (const char* run : {"r1", "r2"})
+            for (const char* ch : kLabChannels) {
+                const std::string f = std::string(speed) + "rpm_healthy_" + run + "_" + ch + ".wav";
+                INFO(f);
+                CHECK(screen_lab(f, false).screening.call != models::ScreeningCall::signs_of_cavitation);
+            }
+}
+
+TEST_CASE("Lab pump screened: the 1200 rpm throttled runs near the boiling point are flagged with the suction reading",
+          "[realdata]") {
+    // PT02 about -0.98 bar(g) at 20 C water (rig log; SOURCE.md infers the inlet gauge): NPSHa about
+    // 0.1 m, the liquid at its boiling point; the camera frame at 75 % flow shows bubbles (SOURCE.md).
+    for (const char* cond : {"cav050", "cav075"})
+        for (const char* run : {"r1", "r2"})
+            for (const char* ch : kLabChannels) {
+                const std::string f = std::string("1200rpm_") + cond + "_" + run + "_" + ch + ".wav";
+                const app::ScreenResult r = screen_lab(f, true);
+                INFO(f);
+                REQUIRE(r.duty);
+                CHECK(r.duty->hydraulics.npsh->npsha_m < models::kNearBoilingNpshM);
+                CHECK(r.screening.call == models::ScreeningCall::signs_of_cavitation);
+                CHECK(r.screening.hydraulic_sign);
+            }
+}
+
+TEST_CASE("Lab pump screened: the 1000 rpm throttled runs show the broadband HF sign", "[realdata]") {
+    // cav025 at 1000 rpm is +10 dB in the 1-2.6 kHz band against the open valve (the verdict tests
+    // above). On its own, channel 0 reads its HF band within 3 dB of the band below (measured +1.3 dB;
+    // the open-valve runs -7.2 and -7.5 dB): one sign, so "cannot tell", never "no sign".
+    for (const char* run : {"r1", "r2"}) {
+        const std::string f = std::string("1000rpm_cav025_") + run + "_ch0_acc.wav";
+        const app::ScreenResult r = screen_lab(f, false);
+        INFO(f);
+        CHECK(r.screening.signs.front().state == models::SignState::present);
+        CHECK(r.screening.call != models::ScreeningCall::no_sign);
+        const app::ScreenResult open = screen_lab(std::string("1000rpm_healthy_") + run + "_ch0_acc.wav", false);
+        CHECK(open.screening.signs.front().state == models::SignState::absent);
+    }
+}
 
 TEST_CASE("Lab pump at 1200 rpm: with the suction reading given, the throttled runs are never normal", "[realdata]") {
     // The 1200 rpm "healthy" record is the loudest of the set (SOURCE.md), so against it the throttled

@@ -77,6 +77,24 @@ def finish():
 
 # ---------------------------------------------------------------------------------------------
 
+def screening_checks(cavitas, site, work, validate, validator):
+    """cavitas screen of demo recordings (no reference): the schema, the "screening" code scripts read,
+    and a spoiled document refused."""
+    expect = {"OW-P101_2026-09-07.wav": "no_sign", "OW-P101_2026-11-02.wav": "signs_of_cavitation"}
+    for rec, code in expect.items():
+        out = os.path.join(work, f"screening-{rec}.json")
+        r = run([cavitas, "screen", "--rpm", "1485", "--vanes", "7", "--full-scale", "50g", "--json", out,
+                 os.path.join(site, rec)])
+        check(f"screen {rec}", r.returncode == 0, r.stderr)
+        with open(out, encoding="utf-8") as f:
+            doc = json.load(f)
+        validate(validator, doc, f"screening of {rec}")
+        check(f"screen {rec} reads {code} (samples/route.csv labels it {'normal' if code == 'no_sign' else 'developed'})",
+              doc.get("screening") == code, str(doc.get("screening")))
+    doc["screening"] = "developed"
+    check("schema refuses a screening that claims a severity", len(list(validator.iter_errors(doc))) >= 1)
+
+
 def export_checks(cavitas, site, lib, route, work, validate, validator):
     """cavitas export of ROUTE: the requests counted from its summary rows, the schema, the CSV read by
     Python's csv module (RFC 4180), SHA-256 by hashlib, dates by datetime, and a hostile note."""
@@ -295,6 +313,7 @@ def outputs(cavitas, samples, schemas, work):
     check("schema refuses a finding with an unknown verdict and no SHA-256", len(list(fv.iter_errors(spoiled))) >= 2)
 
     export_checks(cavitas, site, lib, route, work, validate, schema("work-requests.schema.json"))
+    screening_checks(cavitas, site, work, validate, schema("screening.schema.json"))
 
     # ---- the audit trail: provenance and reviews ----
     base_file = os.path.join(lib, "OW-P101", "DE-H.json")

@@ -743,3 +743,37 @@ TEST_CASE("A point's limits file beside its baseline is used, named in the findi
     CHECK(r.status != 0);
     CHECK(slurp(d / "DE-H.limits.toml").find("always noisy") != std::string::npos);
 }
+
+TEST_CASE("screen: one recording without a reference, its three answers, errors and nothing written on failure",
+          "[cli]") {
+    Run r = run("screen --help");
+    CHECK(r.status == 0);
+    for (const char* code : {"signs_of_cavitation", "no_sign", "cannot_tell", "--suppression", "--reference"})
+        CHECK(r.out.find(code) != std::string::npos);
+    // 1x at 24.75 Hz (1485 rpm) and BPF at 7x over noise: a sound machine.
+    const fs::path wav = make_wav("screen.wav", 11);
+    const fs::path out = workdir() / "screen.json";
+    r = run("screen --rpm 1485 --vanes 7 --full-scale 50g --json " + q(out) + " " + q(wav));
+    REQUIRE(r.status == 0);
+    const auto j = nlohmann::json::parse(slurp(out));
+    CHECK(j["schema"] == "cavitas.screening/1");
+    const std::set<std::string> codes{"signs_of_cavitation", "no_sign", "cannot_tell"};
+    CHECK(codes.count(j["screening"].get<std::string>()) == 1);
+    CHECK(j["grade"] != "high");
+    CHECK(j["signs"].size() == 4);
+    CHECK(r.out.find("without a reference") != std::string::npos);
+
+    const fs::path never = workdir() / "never-screen.json";
+    r = run("screen --json " + q(never) + " " + q(workdir() / "missing.wav"));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("missing.wav") != std::string::npos);
+    CHECK(std::count(r.err.begin(), r.err.end(), '\n') == 1);
+    CHECK(run("screen --channel 0,1 " + q(wav)).status == 2);
+    r = run("screen --suction-pressure 3furlongs --json " + q(never) + " " + q(wav));
+    CHECK(r.status == 2);
+    CHECK(r.err.find("--suction-pressure") != std::string::npos);
+    CHECK_FALSE(fs::exists(never));
+    // The output is never an input.
+    CHECK(run("screen --json " + q(wav) + " " + q(wav)).status != 0);
+    CHECK(fs::file_size(wav) > 1000);
+}
