@@ -5,6 +5,7 @@
 
 #include <array>
 #include <cstddef>
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -93,6 +94,16 @@ struct SpectrumStats {
     bool empty() const { return center_hz.empty(); }
 };
 
+/// A baseline learned from a suppression run: the same machine with its
+/// suction head raised (tank pressurised, level raised, flow reduced) until
+/// the HF signs of cavitation were gone; `baseline --suppression` checks each
+/// recording's stated margin (NPSHa / NPSH3 at least MarginGuidance::large_ratio).
+struct SuppressionRun {
+    double npsha_low_m = 0.0, npsha_high_m = 0.0;  ///< over its recordings
+    double ratio_low = 0.0;                        ///< the smallest NPSHa / NPSH3
+    double npsh3_m = 0.0;                          ///< at the smallest ratio
+};
+
 struct Baseline {
     static constexpr const char* kSchema = "cavitas.baseline/3";
     /// Read too: without visits, speed model or warnings (judged with the
@@ -116,6 +127,7 @@ struct Baseline {
     SpeedModel speed;
     std::vector<BaselineWarning> warnings;  ///< what check_baseline found (empty when clean)
     OperatingPointSummary operating_point;  ///< the duty it was learned at, as stated (may be empty)
+    std::optional<SuppressionRun> suppression;  ///< learned from a suppression run (stored as "suppression")
     SpectrumStats spectrum;
     std::array<RobustStat, kSegmentIndicatorCount> segment{};      ///< pooled over all segments
     std::array<RobustStat, kRecordingIndicatorCount> recording{};  ///< over recordings

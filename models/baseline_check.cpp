@@ -144,6 +144,31 @@ void check_cavitating(const Baseline& b, const std::vector<std::optional<Hydraul
     }
 }
 
+// A suppression run is only a reference once raising the suction head further
+// changes nothing: the HF level of its lowest-NPSHa recording should not stand
+// above that of its highest by a step (twice the power) or more.
+void check_suppression(const Baseline& b, const std::vector<std::optional<Hydraulics>>& duties,
+                       const BaselineCheckLimits& L, std::vector<BaselineWarning>& out) {
+    if (!b.suppression) return;
+    std::optional<std::size_t> low, high;
+    for (std::size_t k = 0; k < b.sources.size() && k < duties.size(); ++k) {
+        if (!duties[k] || !duties[k]->npsh) continue;
+        const double npsha = duties[k]->npsh->npsha_m;
+        if (!low || npsha < duties[*low]->npsh->npsha_m) low = k;
+        if (!high || npsha > duties[*high]->npsh->npsha_m) high = k;
+    }
+    if (!low || !high || *low == *high) return;
+    const auto level = [&](std::size_t k) { return median(b.sources[k].series[SegmentIndicator::hf_band_level]); };
+    const double fall_db = level(*low) - level(*high);
+    if (fall_db >= L.step_db)
+        out.push_back({"suppression_incomplete", b.sources[*low].file, -1.0,
+                       fmt("%s: its HF level is %.1f dB above that of %s, recorded at a higher suction head (NPSHa %.2f "
+                           "against %.2f m): raising the head still quietened the pump, so cavitation was not yet "
+                           "suppressed at the lower head; raise it further, or learn from the highest only",
+                           b.sources[*low].file.c_str(), fall_db, b.sources[*high].file.c_str(),
+                           duties[*high]->npsh->npsha_m, duties[*low]->npsh->npsha_m)});
+}
+
 void check_amount(const Baseline& b, const BaselineCheckLimits& L, std::vector<BaselineWarning>& out) {
     if (b.sources.size() == 1 && b.sources.front().duration_s < L.short_recording_s)
         out.push_back({"too_little", b.sources.front().file, -1.0,
@@ -195,6 +220,7 @@ std::vector<BaselineWarning> check_baseline(const Baseline& b, const std::vector
     check_steps(b, L, out);
     check_disagreement(b, L, out);
     check_amount(b, L, out);
+    check_suppression(b, duties, L, out);
     return out;
 }
 

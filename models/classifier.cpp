@@ -45,10 +45,22 @@ void assign_grade(Finding& f) {
     const bool baseline = !f.baseline_warnings.empty();
     if (f.hydraulic_only || f.off_duty || f.confidence < 0.6 || (baseline && f.grade_reasons.size() > 1))
         f.grade = ConfidenceGrade::low;
-    else if (f.confidence >= 0.85 && f.grade_reasons.empty())
+    else if (f.confidence >= 0.85 && f.grade_reasons.empty() && f.reference != ReferenceKind::sister)
         f.grade = ConfidenceGrade::high;
     else
         f.grade = ConfidenceGrade::moderate;
+    if (f.reference == ReferenceKind::sister) {
+        const bool vanes = std::any_of(f.reference_mismatches.begin(), f.reference_mismatches.end(),
+                                       [](const ReferenceMismatch& m) { return m.field == "vanes"; });
+        f.grade_reasons.push_back(fmt("judged against a sister machine's baseline, not this machine's own: its levels "
+                                      "stand for this one's within %.1f dB more spread",
+                                      f.reference_floor_db));
+        if (vanes) {
+            f.grade = ConfidenceGrade::low;
+            f.grade_reasons.push_back("the sister's impeller has another vane count: blade-pass lines are at other "
+                                      "orders");
+        }
+    }
     if (f.grade != ConfidenceGrade::high && f.grade_reasons.empty())
         f.grade_reasons.push_back(fmt("the evidence is not clear-cut: findings like this are right about %.0f %% of the "
                                       "time on the labelled evaluation sets",
@@ -109,12 +121,13 @@ struct Ctx {
     const ClassifierConfig& c;
     Finding& f;
     std::string ukey;
+    double level_floor_db = 0.0;  ///< a sister reference's added spread (models/reference.hpp)
 };
 
 Comparison compare_segment(Ctx& x, SegmentIndicator i) {
     const IndicatorInfo& inf = info(i);
     // At the recording's speed, with the spread of visits and re-mounts (Baseline::expected).
-    const RobustStat s = x.b.expected(i, x.a.rpm);
+    RobustStat s = x.b.expected(i, x.a.rpm);
     Comparison cmp;
     cmp.key = std::string(inf.name) + "_" + (inf.unit == "signal" ? x.ukey : std::string(inf.unit));
     cmp.label = std::string(inf.label);
@@ -122,6 +135,8 @@ Comparison compare_segment(Ctx& x, SegmentIndicator i) {
     cmp.value = median(v);
     cmp.p10 = quantile(v, 0.1);
     cmp.p90 = quantile(v, 0.9);
+    if (x.level_floor_db > 0.0 && (i == SegmentIndicator::hf_band_level || i == SegmentIndicator::lf_band_level))
+        s.sigma = std::hypot(s.sigma, x.level_floor_db);
     cmp.baseline_median = s.median;
     cmp.baseline_sigma = s.sigma;
     cmp.change = cmp.value - s.median;
@@ -275,7 +290,9 @@ struct Signs {
 // Every band of the spectrum profile shifted alike (median shift over the
 // bands, and their 10-90 % spread): a gain, sensitivity or mount change
 // moves tones and floors together, which no flow or bearing process does.
-void read_gain(const RecordingAnalysis& a, const Baseline& b, Signs& s) {
+void read_gain(const RecordingAnalysis& a, const Baseline& b, const Finding& f, Signs& s) {
+    // A sister machine's bands may all sit apart from this one's: its transmission differs.
+    if (f.reference == ReferenceKind::sister) return;
     if (b.spectrum.empty() || a.spectrum.center_hz != b.spectrum.center_hz || b.speed.speeds > 1) return;
     const std::vector<double> now = a.spectrum.mean_db();
     std::vector<double> shift;
@@ -347,7 +364,7 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
             check(rec(RI::envelope_1x_prominence), "1x", shaft_hz(a.rpm));
         }
     }
-    read_gain(a, b, s);
+    read_gain(a, b, f, s);
     return s;
 }
 
@@ -466,6 +483,15 @@ void grade(const Signs& s, const Attribution& at, const ClassifierConfig& c, Fin
     } else if (hf && (imp || lines)) {
         f.verdict = Verdict::incipient;
         f.confidence = std::min(0.95, 0.6 + 0.1 * support + std::min(0.1, (s.hf.change - c.hf_alert_db) / 30.0));
+    } else if (imp && lines && f.reference == ReferenceKind::sister) {
+        // A sister's impulsiveness and envelope lines differ with its make and
+        // where its sensor sits: only a level rise over its (wider) spread
+        // measures a change, the other signs can only support one.
+        f.verdict = Verdict::normal;
+        f.confidence = 0.5;
+        f.warnings.push_back("impulsive HF locked to blade passage, but no HF level rise over the sister machine's: "
+                             "against another machine these signs alone are not read as a change; learn this "
+                             "machine's own baseline, or screen it ('cavitas screen')");
     } else if (imp && lines) {
         f.verdict = Verdict::incipient;
         f.confidence = 0.6;
@@ -489,7 +515,9 @@ void grade(const Signs& s, const Attribution& at, const ClassifierConfig& c, Fin
 Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingContext& context,
                  const ClassifierConfig& c) {
     Finding f;
-    Ctx x{a, b, c, f, unit_key(context.unit)};
+    Ctx x{a, b, c, f, unit_key(context.unit), context.reference_floor_db};
+    f.reference = context.reference;
+    f.reference_floor_db = context.reference_floor_db;
     for (std::size_t i = 0; i < kSegmentIndicatorCount; ++i)
         f.comparisons.push_back(compare_segment(x, static_cast<SegmentIndicator>(i)));
     for (std::size_t i = 0; i < kRecordingIndicatorCount; ++i)

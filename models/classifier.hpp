@@ -17,6 +17,7 @@
 #include "models/analyzer.hpp"
 #include "models/baseline.hpp"
 #include "models/quality.hpp"
+#include "models/reference.hpp"
 
 namespace cavitas::models {
 
@@ -138,6 +139,9 @@ struct Finding {
     std::vector<BaselineWarning> baseline_warnings;  ///< repeated from the baseline: they limit the confidence
     bool hydraulic_only = false;             ///< cavitation said by the operating point alone (grade_with_margin)
     bool off_duty = false;                   ///< the duty is far from the baseline's: not valid there (grade low)
+    ReferenceKind reference = ReferenceKind::own;     ///< what it was judged against (models/reference.hpp)
+    std::vector<ReferenceMismatch> reference_mismatches;  ///< a sister's differences from this recording
+    double reference_floor_db = 0.0;         ///< the spread a sister adds to band levels (0: own)
 };
 
 /// context: the recording's unit token ("g", "m/s2", "Pa", "FS"; also used in the

@@ -198,9 +198,12 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
     r.checks.push_back(yes_no("unit", ctx.unit != b.unit,
                               "recording calibrated in " + ctx.unit + " but the baseline is in " + b.unit +
                                   ": use the baseline's --full-scale calibration"));
-    r.checks.push_back(yes_no("channel", ctx.channel != b.channel,
+    const bool sister = ctx.reference == ReferenceKind::sister;
+    // Against a sister machine another channel is one more stated difference (models/reference.hpp).
+    r.checks.push_back(yes_no("channel", ctx.channel != b.channel && !sister,
                               fmt("channel %d analysed, but the baseline was learned on channel %d: another sensor or "
-                                  "axis; analyse channel %d or learn a baseline for this channel",
+                                  "axis; analyse channel %d, learn a baseline for this channel, or accept it as "
+                                  "another point's reference with --reference",
                                   ctx.channel, b.channel, b.channel)));
     r.checks.push_back(yes_no(
         "sensor_range", ctx.sensor_max_hz > 0.0 && b.setup.hf.high_hz > ctx.sensor_max_hz,
@@ -241,7 +244,14 @@ QualityReport assess_quality(const RecordingAnalysis& a, const Baseline& b, cons
         c.value = off;
         c.warn_at = L.speed_warn;
         c.fail_at = (m.fitted ? kCoverFitted : kCoverAssumed) - 1.0;
-        if (outside) {
+        const double ratio = std::max(a.rpm / nearest, nearest / a.rpm);
+        if (outside && sister && ratio <= kSisterSpeedRatio) {
+            c.status = CheckStatus::warn;
+            c.fail_at = kSisterSpeedRatio - 1.0;
+            c.message = fmt("shaft speed %.0f rpm against a sister machine's baseline %s: %s, and the spread of the band "
+                            "levels widened for the uncertain exponent (models/reference.hpp); compare with care",
+                            a.rpm, learned.c_str(), scaling.c_str());
+        } else if (outside) {
             c.status = CheckStatus::fail;
             c.message = fmt("shaft speed %.0f rpm is outside the %.0f-%.0f rpm the baseline covers (%s): levels are not "
                             "comparable; judge it against a baseline that covers this speed, or add a known-good "

@@ -10,6 +10,7 @@
 
 #include "models/analyzer.hpp"
 #include "models/baseline.hpp"
+#include "models/reference.hpp"
 
 namespace cavitas::models {
 
@@ -18,6 +19,11 @@ struct RecordingContext {
     std::string unit = "FS";     ///< calibration unit of the samples
     int channel = 0;             ///< channel read
     double sensor_max_hz = 0.0;  ///< stated usable top of the sensor as mounted now (0 = not stated)
+    /// A sister machine's baseline (models/reference.hpp): another channel is
+    /// accepted (the difference is stated), a speed outside its coverage is
+    /// brought across up to kSisterSpeedRatio, band levels get a wider spread.
+    ReferenceKind reference = ReferenceKind::own;
+    double reference_floor_db = 0.0;
 };
 
 struct QualityLimits {

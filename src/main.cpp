@@ -298,6 +298,13 @@ int main(int argc, char** argv) {
                      "Analysis segment length, s (default 1); later analyses use it too, shorter only for short "
                      "captures")
         ->check(kDecimal)->check(CLI::Range(0.25, 10.0));
+    base->add_flag("--suppression", bo.suppression,
+                   "A suppression run: the recordings were made with the suction head raised (tank pressurised, "
+                   "level raised, flow reduced) until the HF signs of cavitation were gone, for a pump with no "
+                   "known-good state at its duty. Each recording's operating point (suction pressure, temperature, "
+                   "NPSH3) must show NPSHa at least 2 x NPSH3; the baseline records the margins and its findings say "
+                   "they were judged against a suppression reference. With recordings at several heads, a HF level "
+                   "still falling as the head rises is a warning");
     add_operating_point_flags(base, bo.operating, true);
 
     AnalyzeOptions ao;
@@ -307,9 +314,19 @@ int main(int argc, char** argv) {
         "summary; --json writes the full finding (verdict, confidence, evidence, other findings,\n"
         "every indicator beside its baseline, quality and the input's SHA-256) for a work order.");
     an->add_option("recording", ao.recording, "The recording to judge")->required();
-    an->add_option("--baseline", ao.baseline, "Baseline file made by 'cavitas baseline'")->required();
+    an->add_option("--baseline", ao.baseline, "Baseline file made by 'cavitas baseline' for this machine and point "
+                                              "(its own known-good state, or its suppression run)")
+        ->type_name("FILE");
+    std::string an_reference;
+    an->add_option("--reference", an_reference,
+                   "Instead of --baseline: another machine's baseline, a sister of the same model at the same duty, "
+                   "for a machine with no known-good state of its own. Accepted whatever its tag, channel, speed "
+                   "(within 1.5x) or mount; the finding states every difference, reads the band levels with a wider "
+                   "spread (3 dB, more at another speed) and is never graded high")
+        ->type_name("FILE");
     an->add_option("--machine", ao.machine,
-                   "Tag of the machine and point recorded; refused when the baseline names another");
+                   "Tag of the machine and point recorded; refused when the baseline names another (not with "
+                   "--reference)");
     an->add_option("--rpm", ao.rpm,
                    "Shaft speed during this recording, rpm (may differ from the baseline's by a few percent: "
                    "lines are compared in orders); without it the speed is estimated near the baseline's")
@@ -583,6 +600,16 @@ int main(int argc, char** argv) {
             run_baseline(bo, std::cout, std::cerr);
         }
         if (*an) {
+            if (ao.baseline.empty() == an_reference.empty())
+                throw UsageError(ao.baseline.empty()
+                                     ? "analyze needs --baseline (this machine's known-good state or suppression run) "
+                                       "or --reference (a sister machine's baseline); with neither, 'cavitas screen' "
+                                       "judges the recording on its own"
+                                     : "--baseline and --reference: give one");
+            if (!an_reference.empty()) {
+                ao.baseline = an_reference;
+                ao.sister_reference = true;
+            }
             std::optional<ChannelSelection> channels;
             set_channels(an_channels, ao.read, channels);
             ao.analyst = identify_analyst(an_analyst);

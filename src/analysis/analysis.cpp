@@ -257,9 +257,9 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     AnalyzeResult r;
     r.analyst = o.analyst ? *o.analyst : identify_analyst(std::nullopt);
     r.baseline = read_baseline_file(o.baseline, o.read.channel, &r.baseline_sha256);
-    if (!o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
+    if (!o.sister_reference && !o.machine.empty() && !r.baseline.machine.empty() && o.machine != r.baseline.machine)
         throw InputError(o.baseline + ": baseline is for machine '" + r.baseline.machine + "', not '" + o.machine +
-                         "'; use that machine's baseline");
+                         "'; use that machine's baseline, or accept it as a sister machine's reference with --reference");
     // The operating point and the point's limits first: a mistyped file fails before the analysis.
     r.limits = point_limits(o.limits, o.baseline);
     std::optional<ResolvedOperatingPoint> duty = resolve_operating_point(o.operating, o.recording);
@@ -276,7 +276,13 @@ AnalyzeResult analyze(const AnalysisRequest& o, const Progress& progress) {
     ctx.unit = r.recording.info.calibration.unit;
     ctx.channel = o.read.channel;
     ctx.sensor_max_hz = sensor_limit(o.sensor_max_hz, o.mount);
+    const models::RecordingStatement stated{o.machine, o.read.channel, r.recording.analysis.rpm, o.vanes.value_or(0),
+                                            o.mount, ctx.sensor_max_hz};
+    r.reference = models::make_reference(r.baseline, o.sister_reference, stated);
+    ctx.reference = r.reference.kind;
+    ctx.reference_floor_db = r.reference.level_floor_db;
     r.finding = models::classify(r.recording.analysis, r.baseline, ctx, r.limits.applied_to({}));
+    models::state_reference(r.finding, r.reference, r.baseline);
     r.velocity = velocity_finding(r.recording, zones);
     if (duty) {
         OperatingPointFinding of;

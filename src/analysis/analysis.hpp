@@ -16,6 +16,7 @@
 #include "models/classifier.hpp"
 #include "models/margin_reading.hpp"
 #include "models/operating_point.hpp"
+#include "models/reference.hpp"
 #include "models/severity.hpp"
 #include "src/io/point_limits.hpp"
 #include "src/io/analyst.hpp"
@@ -89,6 +90,11 @@ struct AnalysisRequest {
     double sensor_max_hz = 0.0;
     std::string mount;
     std::string baseline;
+    /// `baseline` is another machine's (a sister of the same model and duty),
+    /// accepted explicitly (--reference; a manifest's `reference` column): its
+    /// tag may differ, every difference is stated, the grade is at most
+    /// moderate (models/reference.hpp).
+    bool sister_reference = false;
     std::string recording;
     ReadRequest read;
     std::optional<double> rpm;
@@ -131,6 +137,7 @@ struct AnalyzeResult {
     AnalyzedRecording recording;
     models::Baseline baseline;
     models::Finding finding;
+    models::Reference reference;  ///< what the finding was judged against
     std::optional<OperatingPointFinding> operating;
     VelocityFinding velocity;
     std::vector<models::Action> actions;  ///< what to do, soonest first (models/actions.hpp)

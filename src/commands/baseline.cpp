@@ -22,6 +22,7 @@
 #include "src/io/output_guard.hpp"
 #include "src/io/plan_store.hpp"
 #include "src/output/finding.hpp"
+#include "src/output/format.hpp"
 #include "src/output/plain_text.hpp"
 #include "src/route/store.hpp"
 
@@ -33,6 +34,44 @@
 namespace cavitas::app {
 
 namespace {
+
+// A suppression run's recording must state a margin the pump cannot cavitate
+// at by the NPSH alone (MarginGuidance::large_ratio x NPSH3, the highest ratio
+// of the margin guidance); anything less is refused naming the file.
+void require_suppression_margin(const std::string& path, const std::optional<ResolvedOperatingPoint>& duty) {
+    const double need = models::MarginGuidance{}.large_ratio;
+    if (!duty || !duty->hydraulics.npsh)
+        throw InputError(path + ": a suppression run needs its operating point (suction pressure, temperature and "
+                                "NPSH3: flags, --operating-point or " + sidecar_path_for(path) + ") to show its margin");
+    const auto& h = duty->hydraulics;
+    if (!h.margin)
+        throw InputError(path + ": a suppression run needs the pump's NPSH3 (--npsh3 or --npsh3-curve) to show that "
+                                "NPSHa " + std::to_string(h.npsh->npsha_m).substr(0, 5) + " m is a large margin");
+    if (h.margin->ratio < need) {
+        char b[160];
+        std::snprintf(b, sizeof b, "NPSHa %.2f m is %.2f x NPSH3 %.2f m, under the %.1f x a suppression run needs",
+                      h.margin->npsha_m, h.margin->ratio, h.margin->npsh3_m, need);
+        throw InputError(path + ": cannot serve as a suppression reference: " + b +
+                         "; raise the suction head (pressurise the tank, raise the level, reduce the flow) and record again");
+    }
+}
+
+models::SuppressionRun suppression_run(const std::vector<std::optional<models::Hydraulics>>& duties) {
+    models::SuppressionRun s;
+    bool first = true;
+    for (const auto& d : duties) {
+        if (!d || !d->margin) continue;
+        const auto& m = *d->margin;
+        s.npsha_low_m = first ? m.npsha_m : std::min(s.npsha_low_m, m.npsha_m);
+        s.npsha_high_m = first ? m.npsha_m : std::max(s.npsha_high_m, m.npsha_m);
+        if (first || m.ratio < s.ratio_low) {
+            s.ratio_low = m.ratio;
+            s.npsh3_m = m.npsh3_m;
+        }
+        first = false;
+    }
+    return s;
+}
 
 // One known-good recording analysed for a baseline, with its stated duty.
 struct LearnedSource {
@@ -48,6 +87,7 @@ LearnedSource learn_source(const BaselineOptions& o, std::size_t index, std::opt
     const std::string& path = o.recordings[index];
     LearnedSource l;
     l.duty = resolve_operating_point(o.operating, path);
+    if (o.suppression) require_suppression_margin(path, l.duty);
     models::MachineContext this_machine = machine;
     if (!o.rpms.empty()) this_machine.rpm = o.rpms[index];
     if (!this_machine.rpm && l.duty && l.duty->op.rpm) this_machine.rpm = l.duty->op.rpm;
@@ -120,6 +160,11 @@ void write_baseline_summary(std::ostream& out, const std::string& path, const mo
     out << "baseline written to " << path << "\n"
         << "  " << b.sources.size() << " recording(s), " << b.segments << " segments of " << b.setup.segment_s << " s at "
         << b.setup.fs_hz << " Hz, channel " << b.channel << ", unit " << b.unit << "\n"
+        << (b.suppression ? "  a suppression reference: NPSHa " + fixed(b.suppression->npsha_low_m, 2) + "-" +
+                                  fixed(b.suppression->npsha_high_m, 2) + " m, at least " +
+                                  fixed(b.suppression->ratio_low, 1) + " x NPSH3 " + fixed(b.suppression->npsh3_m, 2) +
+                                  " m\n"
+                            : std::string())
         << "  HF band " << b.setup.hf.low_hz << "-" << b.setup.hf.high_hz << " Hz, LF band " << b.setup.lf.low_hz << "-"
         << b.setup.lf.high_hz << " Hz\n";
     const models::SpeedModel& m = b.speed;
@@ -219,6 +264,11 @@ models::Baseline learn_channel(const BaselineOptions& o, const std::optional<mod
         if (earlier->sources.empty() || earlier->sources.front().series.segments() == 0)
             throw InputError(*o.add_to + ": made by an older cavitas, it keeps no per-recording values to add to; "
                              "relearn it from its recordings");
+        if (earlier->suppression.has_value() != o.suppression)
+            throw UsageError(*o.add_to + (o.suppression ? " was not learned from a suppression run: add these without "
+                                                          "--suppression, or learn a suppression baseline of its own"
+                                                        : " was learned from a suppression run: add to it with "
+                                                          "--suppression"));
         if (o.read.channel != earlier->channel)
             throw UsageError("--channel " + std::to_string(o.read.channel) + " differs from the channel " +
                              std::to_string(earlier->channel) + " of " + *o.add_to);
@@ -262,6 +312,18 @@ models::Baseline learn_channel(const BaselineOptions& o, const std::optional<mod
         b.operating_point = models::summarize(stated);
     }
     for (const auto& a : analyses) b.rpm_estimated = b.rpm_estimated || a.rpm_estimated;
+    if (o.suppression) {
+        b.suppression = suppression_run(duties);
+        if (earlier && earlier->suppression) {  // the visits added to keep their margins
+            const models::SuppressionRun& e = *earlier->suppression;
+            b.suppression->npsha_low_m = std::min(b.suppression->npsha_low_m, e.npsha_low_m);
+            b.suppression->npsha_high_m = std::max(b.suppression->npsha_high_m, e.npsha_high_m);
+            if (e.ratio_low < b.suppression->ratio_low) {
+                b.suppression->ratio_low = e.ratio_low;
+                b.suppression->npsh3_m = e.npsh3_m;
+            }
+        }
+    }
     b.cavitas_version = kVersion;
     b.created_utc = utc_now();
     b.channel = o.read.channel;

@@ -37,6 +37,9 @@ struct BaselineOptions {
     std::string point;
     std::size_t last_visits = 8;
     std::vector<std::string> expected_sha256;  ///< per recording (from the store); empty = not checked
+    /// A suppression run: every recording's stated operating point must show
+    /// NPSHa at least MarginGuidance::large_ratio x NPSH3; the baseline says so.
+    bool suppression = false;
 };
 
 /// Learn and write a baseline; prints a summary to out.

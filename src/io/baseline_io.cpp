@@ -104,7 +104,7 @@ json baseline_to_json(const Baseline& b) {
     }
     const json warnings = warnings_to_json(b.warnings);
     const SpeedModel& m = b.speed;
-    return {
+    json doc = {
         {"schema", b.schema},
         {"cavitas_version", b.cavitas_version},
         {"created_utc", b.created_utc},
@@ -149,6 +149,12 @@ json baseline_to_json(const Baseline& b) {
           {"p10_db", b.spectrum.p10_db},
           {"p90_db", b.spectrum.p90_db}}},
     };
+    if (b.suppression)
+        doc["suppression"] = {{"npsha_low_m", b.suppression->npsha_low_m},
+                              {"npsha_high_m", b.suppression->npsha_high_m},
+                              {"ratio_low", b.suppression->ratio_low},
+                              {"npsh3_m", b.suppression->npsh3_m}};
+    return doc;
 }
 
 namespace {
@@ -335,6 +341,18 @@ Baseline baseline_from_json_unchecked(const json& j, const std::string& origin) 
         b.operating_point.absolute_suction_pa = opt("absolute_suction_pa", 0.0, 1e9);
         b.operating_point.npsha_m = opt("npsha_m", -1e5, 1e5);
         b.operating_point.margin_ratio = opt("margin_ratio", -1e5, 1e5);
+    }
+    // Optional: learned from a suppression run (baseline --suppression).
+    if (j.contains("suppression")) {
+        const json& o = j["suppression"];
+        const std::string wo = origin + " (suppression)";
+        if (!o.is_object()) throw InputError(wo + ": expected an object");
+        SuppressionRun run;
+        run.npsha_low_m = in_range(num(o, "npsha_low_m", wo), 0.0, 1e5, "npsha_low_m", wo);
+        run.npsha_high_m = in_range(num(o, "npsha_high_m", wo), run.npsha_low_m, 1e5, "npsha_high_m", wo);
+        run.ratio_low = in_range(num(o, "ratio_low", wo), 0.0, 1e5, "ratio_low", wo);
+        run.npsh3_m = in_range(num(o, "npsh3_m", wo), 0.0, 1e5, "npsh3_m", wo);
+        b.suppression = run;
     }
     // Optional: the spectrum profile statistics (for reports).
     if (j.contains("spectrum")) {

@@ -31,7 +31,8 @@ namespace {
 
 const std::vector<std::string> kRequired = {"file", "machine", "point", "channel", "datetime", "rpm", "vanes"};
 const std::vector<std::string> kSensor = {"full_scale", "sensitivity", "gain",    "unit",
-                                          "mount",      "sensor_max_hz", "variable", "sample_rate_hz", "event"};
+                                          "mount",      "sensor_max_hz", "variable", "sample_rate_hz", "event",
+                                          "reference"};
 
 // Linear in the cell's length (a cell of a million blanks took 23 s when each was erased from the front).
 std::string trim(const std::string& s) {
@@ -169,6 +170,11 @@ Manifest parse_manifest(const std::string& text, const std::string& path) {
             else fail("sample_rate_hz '" + c + "' is not a rate 1 .. 1e7 Hz");
         }
         row.mount = cell("mount");
+        row.reference = cell("reference");
+        if (!row.reference.empty())
+            row.reference_path = (fs::path(row.reference).is_absolute() ? fs::path(row.reference)
+                                                                        : fs::path(m.dir) / row.reference)
+                                     .string();
         if (const std::string c = cell("sensor_max_hz"); !c.empty()) {
             if (auto v = number(c, 100.0, 1.0e6)) row.sensor_max_hz = *v;
             else fail("sensor_max_hz '" + c + "' is not a frequency 100 .. 1e6 Hz");

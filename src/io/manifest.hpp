@@ -7,7 +7,9 @@
 // operating_point_io.hpp), the sensor columns full_scale (50g), sensitivity
 // (100mV/g; one per channel of a row naming several: 100.2mV/g;98.7mV/g;101.5mV/g), gain (10 or 20dB), unit (of a file's values when it states none),
 // mount, sensor_max_hz, and the reading hints variable (a MATLAB file's) and
-// sample_rate_hz (of a file that states none), and event: a repair or change
+// sample_rate_hz (of a file that states none), reference (a sister machine's
+// baseline file, relative to the manifest, judged against instead of the
+// point's own: a machine with no known-good state yet), and event: a repair or change
 // ("impeller replaced") recorded for the row's machine and point at the row's
 // datetime; a row with an event and an empty file cell is an event only (its
 // point may be empty: every point of the machine). Any other column is kept and passed through to the outputs.
@@ -54,6 +56,10 @@ struct ManifestRow {
     OperatingPointText operating;                              ///< operating-point columns (non-empty cells)
     std::vector<std::pair<std::string, std::string>> extra;    ///< unknown columns, in header order
     std::string event;      ///< the event cell (empty: none)
+    /// The reference cell: a sister machine's baseline to judge this row
+    /// against instead of BASELINES/MACHINE/POINT.json, as `analyze --reference`
+    /// does (empty: the point's own); reference_path is it resolved against the manifest's folder.
+    std::string reference, reference_path;
     std::string error;      ///< non-empty: what is wrong with this row (it is not analysed)
 };
 

@@ -270,7 +270,12 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
     const auto& f = r.finding;
     out << in.path << "  (channel " << in.channel << ", " << fixed(in.fs_hz, 0) << " Hz, " << fixed(a.duration_s, 1)
         << " s, " << a.series.segments() << " segments)\n";
-    out << "  against " << baseline_path << "\n";
+    out << "  against " << baseline_path;
+    if (r.reference.kind == models::ReferenceKind::sister)
+        out << " (a sister machine's baseline" << (r.reference.machine.empty() ? "" : ", " + r.reference.machine) << ")";
+    else if (r.reference.kind == models::ReferenceKind::suppression)
+        out << " (a suppression reference)";
+    out << "\n";
     out << "  verdict     " << verdict_words(f.verdict) << "\n";
     if (f.verdict != models::Verdict::indeterminate) {
         out << "  confidence  " << models::to_string(f.grade) << "\n";
@@ -449,6 +454,18 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
           {"recordings", b.sources.size()},
           {"rpm", b.rpm}}},
     };
+    json mismatches = json::array();
+    for (const auto& m : r.reference.mismatches)
+        mismatches.push_back({{"field", m.field}, {"recording", m.recording}, {"reference", m.reference}});
+    j["reference"] = {{"kind", models::to_string(r.reference.kind)},
+                      {"machine", r.reference.machine},
+                      {"mismatches", mismatches},
+                      {"level_floor_db", r.reference.level_floor_db}};
+    if (b.suppression)
+        j["reference"]["suppression"] = {{"npsha_low_m", b.suppression->npsha_low_m},
+                                         {"npsha_high_m", b.suppression->npsha_high_m},
+                                         {"ratio_low", b.suppression->ratio_low},
+                                         {"npsh3_m", b.suppression->npsh3_m}};
     j["provenance"] = provenance_to_json(r, baseline_path);
     j["limits"] = {{"hf_alert_db", r.limits.hf_alert_db},
                    {"hf_developed_db", r.limits.hf_developed_db},

@@ -423,16 +423,21 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         return row;
     };
     if (!m.error.empty()) return fail(manifest.path + ":" + std::to_string(m.line) + ": " + m.error);
-    const fs::path base = fs::path(baselines) / m.machine / (m.point + ".json");
+    const bool sister = !m.reference_path.empty();
+    const fs::path base = sister ? fs::path(m.reference_path) : fs::path(baselines) / m.machine / (m.point + ".json");
     row.baseline = base.string();
     std::string finding_text;
     try {
         std::error_code ec;
+        if (sister && !fs::exists(base, ec))
+            return fail(manifest.path + ":" + std::to_string(m.line) + ": reference '" + m.reference +
+                        "': no such file");
         if (!fs::exists(base, ec))
             return fail(base.string() + ": no baseline for machine " + m.machine + ", point " + m.point +
                         " (learn one with 'cavitas baseline --machine " + m.machine + " ... -o " + base.string() + "')");
         AnalysisRequest ao;
         ao.baseline = base.string();
+        ao.sister_reference = sister;
         ao.recording = m.path;
         ao.machine = m.machine;
         ao.read.channel = m.channel;
@@ -645,6 +650,7 @@ void guard_route_inputs(const Manifest& manifest, const std::string& baselines, 
         if (r.path.empty()) continue;
         guard.input(r.path, "recording of manifest line " + std::to_string(r.line));
         guard.input(sidecar_path_for(r.path), "sidecar of manifest line " + std::to_string(r.line));
+        if (!r.reference_path.empty()) guard.input(r.reference_path, "reference of manifest line " + std::to_string(r.line));
         for (const auto& [key, value] : r.operating)
             if (key == "npsh3_curve" && !value.empty())
                 guard.input((fs::path(value).is_absolute() ? fs::path(value) : fs::path(manifest.dir) / value).string(),

@@ -344,6 +344,58 @@ TEST_CASE("Lab pump screened: the 1000 rpm throttled runs show the broadband HF 
     }
 }
 
+TEST_CASE("Lab pump: another sensor's or another speed's baseline is accepted only with --reference, and said",
+          "[realdata]") {
+    // Two stand-ins for a sister machine (the set has one pump): the open-valve runs at 1000 rpm seen
+    // by another accelerometer (ch1, mounting position undocumented, SOURCE.md), tagged as another
+    // point; and the same sensor at 700 rpm (714 rpm logged), 42 % slower.
+    const fs::path dir = fs::temp_directory_path() / ("cavitas_realdata_s_" + std::to_string(::getpid()));
+    fs::create_directories(dir);
+    app::BaselineOptions o;
+    o.recordings = {(pump() / "1000rpm_healthy_r1_ch1_acc.wav").string(), (pump() / "1000rpm_healthy_r2_ch1_acc.wav").string()};
+    o.output = (dir / "ch1.json").string();
+    o.machine = "LAB-ch1";
+    o.rpm = 1011;
+    o.vanes = kPumpVanes;
+    o.calibration.full_scale = "1m/s2";
+    std::ostringstream out, err;
+    app::run_baseline(o, out, err);
+    const std::string slow = write_baseline(dir, {pump() / "700rpm_healthy_r1_ch0_acc.wav",
+                                                  pump() / "700rpm_healthy_r2_ch0_acc.wav"}, 714, "1m/s2");
+    for (const char* file : {"1000rpm_healthy_r2_ch0_acc.wav", "1000rpm_cav025_r1_ch0_acc.wav"}) {
+        app::AnalysisRequest a;
+        a.recording = (pump() / file).string();
+        a.machine = "LAB-ch0";
+        a.rpm = std::string(file).find("healthy") != std::string::npos ? 1011 : 1014;
+        a.baseline = o.output;
+        INFO(file);
+        // As a baseline: another tag is refused, another speed cannot be judged.
+        CHECK_THROWS_WITH(app::analyze(a), Catch::Matchers::Contains("--reference"));
+        app::AnalysisRequest b = a;
+        b.machine.clear();
+        b.baseline = slow;
+        CHECK(app::analyze(b).finding.verdict == models::Verdict::indeterminate);
+        for (app::AnalysisRequest r : {a, b}) {
+            r.sister_reference = true;
+            const app::AnalyzeResult res = app::analyze(r);
+            const auto& f = res.finding;
+            std::cout << "  " << file << " against " << fs::path(r.baseline).filename().string()
+                      << " as a sister: " << models::to_string(f.verdict) << ", HF " << f.hf_rise_db << " dB (spread "
+                      << res.reference.level_floor_db << " dB added), grade " << models::to_string(f.grade) << "\n";
+            CHECK(f.verdict != models::Verdict::indeterminate);
+            CHECK(f.reference == models::ReferenceKind::sister);
+            CHECK(f.grade != models::ConfidenceGrade::high);
+            CHECK(f.evidence.front().find("sister machine's baseline") != std::string::npos);
+            const std::string expected = r.baseline == slow ? "speed" : "machine";
+            CHECK(std::any_of(f.reference_mismatches.begin(), f.reference_mismatches.end(),
+                              [&](const models::ReferenceMismatch& m) { return m.field == expected; }));
+            // The open valve is not called cavitation against either stand-in.
+            if (std::string(file).find("healthy") != std::string::npos) CHECK_FALSE(cavitating(f.verdict));
+        }
+    }
+    fs::remove_all(dir);
+}
+
 TEST_CASE("Lab pump at 1200 rpm: with the suction reading given, the throttled runs are never normal", "[realdata]") {
     // The 1200 rpm "healthy" record is the loudest of the set (SOURCE.md), so against it the throttled
     // runs show no acoustic rise; but the rig log puts PT02 (suction, bar gauge; inferred in SOURCE.md)

@@ -777,3 +777,62 @@ TEST_CASE("screen: one recording without a reference, its three answers, errors 
     CHECK(run("screen --json " + q(wav) + " " + q(wav)).status != 0);
     CHECK(fs::file_size(wav) > 1000);
 }
+
+TEST_CASE("analyze --reference: another machine's baseline accepted explicitly, its differences stated", "[cli]") {
+    const fs::path wav = make_wav("sister-good.wav", 21), other = make_wav("sister-now.wav", 22);
+    const fs::path base = workdir() / "sister.json", out = workdir() / "sister-finding.json";
+    REQUIRE(run("baseline --machine P-201 --rpm 1485 --vanes 7 --full-scale 50g -o " + q(base) + " " + q(wav)).status == 0);
+    // The tag differs: refused as a baseline, naming the way out.
+    Run r = run("analyze --baseline " + q(base) + " --machine P-202 --rpm 1485 " + q(other));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("--reference") != std::string::npos);
+    r = run("analyze --reference " + q(base) + " --machine P-202 --rpm 1485 --mount magnet --json " + q(out) + " " +
+            q(other));
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("a sister machine's baseline") != std::string::npos);
+    const auto j = nlohmann::json::parse(slurp(out));
+    CHECK(j["reference"]["kind"] == "sister");
+    CHECK(j["reference"]["machine"] == "P-201");
+    std::set<std::string> fields;
+    for (const auto& m : j["reference"]["mismatches"]) fields.insert(m["field"].get<std::string>());
+    // The magnet caps the HF band at 5 kHz (models/analyzer.hpp): a sensor limit the sister did not state.
+    CHECK(fields == std::set<std::string>{"machine", "mount", "sensor_max_hz"});
+    // 3 dB at one speed (models/reference.hpp), in quadrature with the baseline's own spread.
+    CHECK(j["reference"]["level_floor_db"].get<double>() == Approx(3.0));
+    CHECK(j["indicators"]["hf_band_level_db"]["baseline_sigma"].get<double>() >= 3.0);
+    CHECK(j["confidence_grade"] != "high");
+    // One of the two, never both, never neither.
+    CHECK(run("analyze --baseline " + q(base) + " --reference " + q(base) + " " + q(other)).status == 2);
+    r = run("analyze " + q(other));
+    CHECK(r.status == 2);
+    CHECK(r.err.find("cavitas screen") != std::string::npos);
+}
+
+TEST_CASE("baseline --suppression: learned only at a large stated margin, and the findings say so", "[cli]") {
+    const fs::path wav = make_wav("suppressed.wav", 31);
+    const fs::path base = workdir() / "suppression.json", out = workdir() / "suppression-finding.json";
+    const std::string common = "baseline --suppression --machine P-301 --rpm 1485 --vanes 7 --full-scale 50g -o " + q(base);
+    // No operating point, or no NPSH3: the margin cannot be shown.
+    Run r = run(common + " " + q(wav));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("suppressed.wav") != std::string::npos);
+    r = run(common + " --suction-pressure 200kPa --pressure-ref absolute --temperature 20C " + q(wav));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("NPSH3") != std::string::npos);
+    // NPSHa = (200 kPa - 2.339 kPa) / (998.2 kg/m3 x 9.80665 m/s2) = 20.19 m (water at 20 C, IF97;
+    // computed from the definition): 1.35 x an NPSH3 of 15 m is refused, 10 x one of 2 m accepted.
+    r = run(common + " --suction-pressure 200kPa --pressure-ref absolute --temperature 20C --npsh3 15m " + q(wav));
+    CHECK(r.status == 1);
+    CHECK(r.err.find("under the 2.0 x") != std::string::npos);
+    CHECK_FALSE(fs::exists(base));
+    r = run(common + " --suction-pressure 200kPa --pressure-ref absolute --temperature 20C --npsh3 2m " + q(wav));
+    REQUIRE(r.status == 0);
+    CHECK(r.out.find("a suppression reference") != std::string::npos);
+    const auto b = nlohmann::json::parse(slurp(base));
+    CHECK(b["suppression"]["npsha_low_m"].get<double>() == Approx(20.19).margin(0.02));
+    CHECK(b["suppression"]["ratio_low"].get<double>() == Approx(10.09).margin(0.02));
+    REQUIRE(run("analyze --baseline " + q(base) + " --rpm 1485 --json " + q(out) + " " + q(wav)).status == 0);
+    const auto f = nlohmann::json::parse(slurp(out));
+    CHECK(f["reference"]["kind"] == "suppression");
+    CHECK(f["evidence"][0].get<std::string>().find("judged against a suppression reference") != std::string::npos);
+}

@@ -967,3 +967,36 @@ TEST_CASE("compare --around-event picks the last visit before the event and the 
     CHECK(r.err.find("give no --before or --after") != std::string::npos);
     CHECK(run("compare --around-event 1").status == 2);  // no store named
 }
+
+TEST_CASE("route: a manifest's reference column judges a new machine against a sister's baseline", "[route]") {
+    // OW-P109 has no baseline of its own; its rows name OW-P101's (a sister of the same model and
+    // duty, invented for the test) and are judged against it, with every difference stated.
+    const Site& s = site();
+    const fs::path sister = s.lib / "OW-P101" / "DE-H.json";
+    std::string text = "file,machine,point,channel,datetime,rpm,vanes,full_scale,reference\n";
+    text += "OW-P101_2026-09-07.wav,OW-P109,DE-H,0,2026-11-20T08:00,1485,7,50g," + sister.string() + "\n";
+    text += "OW-P101_2026-11-02.wav,OW-P109,DE-H,0,2026-11-21T08:00,1485,7,50g," + sister.string() + "\n";
+    text += "OW-P101_2026-11-09.wav,OW-P109,DE-H,0,2026-11-22T08:00,1485,7,50g,\n";  // no reference: no baseline
+    text += "OW-P101_2026-11-09.wav,OW-P109,DE-H,0,2026-11-23T08:00,1485,7,50g,lost.json\n";
+    const fs::path manifest = s.dir / "sister.csv";
+    std::ofstream(manifest) << text;
+    const fs::path out = workdir() / "route-sister";
+    const Run r = run("route " + q(manifest) + " --baselines " + q(s.lib) + " --out " + q(out) + " --no-store");
+    CHECK(r.status == 1);  // two rows fail, each with its reason
+    const auto rows = jsonl(out / "summary.jsonl");
+    REQUIRE(rows.size() == 4);
+    CHECK(rows[0]["verdict"] == "normal");
+    CHECK(rows[1]["verdict"] == "developed");  // samples/route.csv labels OW-P101_2026-11-02 developed
+    CHECK(rows[2]["verdict"] == "error");
+    CHECK(rows[2]["reason"].get<std::string>().find("no baseline for machine OW-P109") != std::string::npos);
+    CHECK(rows[3]["verdict"] == "error");
+    CHECK(rows[3]["reason"].get<std::string>().find("reference 'lost.json': no such file") != std::string::npos);
+    for (int k = 0; k < 2; ++k) {
+        const json f = json::parse(slurp(out / rows[k]["finding"].get<std::string>()));
+        CHECK(f["reference"]["kind"] == "sister");
+        CHECK(f["reference"]["machine"] == "OW-P101");
+        CHECK(f["reference"]["mismatches"][0]["field"] == "machine");
+        CHECK(f["reference"]["level_floor_db"].get<double>() >= 3.0);
+        CHECK(f["confidence_grade"] != "high");
+    }
+}
