@@ -206,6 +206,21 @@ std::vector<Action> plan_actions(const Finding& f, const std::optional<MarginCon
                  "); learn it again from known-good visits if it is wrong";
         out.push_back(a);
     }
+    if (f.reference == ReferenceKind::sister && f.verdict != Verdict::indeterminate) {
+        // A sister's baseline sees only large rises: this machine's own sees small ones.
+        Action a;
+        a.topic = ActionTopic::baseline;
+        a.priority = Priority::planned;
+        a.recheck_days = kRouteIntervalDays;
+        a.basis = kOurChoice;
+        a.step = f.verdict == Verdict::normal
+                     ? "Learn this machine's own baseline from this and later normal visits ('cavitas baseline'): "
+                       "judged against a sister machine's, only a large rise shows"
+                     : "Once the cause is removed, learn this machine's own baseline ('cavitas baseline', or a "
+                       "suppression run with 'baseline --suppression'): judged against a sister machine's, only a "
+                       "large rise shows";
+        out.push_back(a);
+    }
     std::stable_sort(out.begin(), out.end(), [](const Action& a, const Action& b) { return a.priority < b.priority; });
     return out;
 }

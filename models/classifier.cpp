@@ -549,7 +549,7 @@ Finding classify(const RecordingAnalysis& a, const Baseline& b, const RecordingC
         confidence_scale *= 0.9;
     }
     const double speed_change = a.rpm > 0.0 && b.rpm > 0.0 ? a.rpm / b.rpm - 1.0 : 0.0;
-    if (std::abs(speed_change) >= 0.01 && b.speed.speeds <= 1)
+    if (std::abs(speed_change) >= 0.01 && b.speed.speeds <= 1 && context.reference != ReferenceKind::sister)
         f.other_findings.push_back({Concern::speed_change,
                                     fmt("shaft speed %.0f rpm is %+.1f %% from the baseline's %.0f rpm: levels brought "
                                         "to this speed (a speed change, not cavitation), envelope lines compared in orders",

@@ -54,6 +54,12 @@ double num(const json& j, const char* key, double fallback = 0.0) {
 std::string str(const json& j, const char* key) {
     return j.is_object() && j.contains(key) && j[key].is_string() ? j[key].get<std::string>() : std::string();
 }
+// What the finding was judged against (its "reference"; findings from before it read as own).
+std::string reference_kind(const json& f) {
+    const json& r = field(f, "reference");
+    return r.is_object() ? str(r, "kind") : "own";
+}
+
 std::vector<double> nums(const json& j, const char* key) {
     std::vector<double> v;
     if (j.is_object() && j.contains(key) && j[key].is_array())
@@ -91,16 +97,20 @@ std::string headline(const std::string& verdict) {
     return "Not analysed";
 }
 
-// grade: the finding's confidence_grade (high / moderate / low; empty = not known).
-std::string plain_detail(const std::string& verdict, const std::string& grade) {
+// grade: the finding's confidence_grade (high / moderate / low; empty = not known);
+// reference: what it was judged against (own, suppression, sister).
+std::string plain_detail(const std::string& verdict, const std::string& grade, const std::string& reference) {
     std::string s;
     if (verdict == "developed")
         s = "Dense vapour-bubble collapse on the impeller or runner: pitting damage is likely if it goes on.";
     else if (verdict == "incipient")
         s = "Bubble collapse has begun. The pump still makes its head; this is the time to act, before damage builds up.";
     else if (verdict == "normal")
-        s = "Nothing in the high-frequency band, its impulsiveness or its modulation stands out from this machine's own "
-            "known-good baseline.";
+        s = "Nothing in the high-frequency band, its impulsiveness or its modulation stands out from " +
+            std::string(reference == "sister"        ? "the sister machine's baseline it was judged against (a wider "
+                                                       "spread: only a large rise would show)."
+                        : reference == "suppression" ? "this machine's suppression run (its suction head raised)."
+                                                     : "this machine's own known-good baseline.");
     else
         s = "The data quality check failed; re-record before judging this machine.";
     if (verdict != "indeterminate" && verdict != "error" && !grade.empty()) s += " Confidence: " + grade + ".";
@@ -610,7 +620,7 @@ void add_finding_sections(Document& d, const json& f, bool full) {
     const std::string verdict = str(f, "verdict");
     const json op = f.contains("operating_point") ? field(f, "operating_point") : json::object();
     const std::string agreement = str(op, "agreement");
-    d.blocks.push_back(verdict_block(verdict, headline(verdict), plain_detail(verdict, str(f, "confidence_grade"))));
+    d.blocks.push_back(verdict_block(verdict, headline(verdict), plain_detail(verdict, str(f, "confidence_grade"), reference_kind(f))));
     const auto evidence = strs(f, "evidence");
     const auto reasons = strs(field(f, "quality"), "reasons");
     if (!reasons.empty()) {
@@ -695,14 +705,30 @@ void add_finding_sections(Document& d, const json& f, bool full) {
 std::vector<Field> finding_provenance(const json& f) {
     const json& in = field(f, "input");
     const json& b = field(f, "baseline");
-    return {{"Recording", str(in, "path")},
-            {"SHA-256", str(in, "sha256")},
-            {"Format", str(in, "format") + ", " + fixed(num(in, "sample_rate_hz"), 0) + " Hz, " +
-                           fixed(num(in, "duration_s"), 1) + " s, channel " + fixed(num(in, "channel"), 0)},
-            {"Baseline", str(b, "path") + " (" + str(b, "machine") + ", " + fixed(num(b, "recordings"), 0) +
-                             " recordings, made " + str(b, "created_utc") + ")"},
-            {"Analysed", str(f, "created_utc") + " by cavitas " + str(f, "cavitas_version")},
-            {"Report", utc_now() + " by cavitas " + std::string(kVersion)}};
+    const std::string kind = reference_kind(f);
+    const std::string label = kind == "sister"        ? "Reference (a sister machine's baseline)"
+                              : kind == "suppression" ? "Baseline (a suppression run)"
+                                                      : "Baseline";
+    std::vector<Field> fields = {
+        {"Recording", str(in, "path")},
+        {"SHA-256", str(in, "sha256")},
+        {"Format", str(in, "format") + ", " + fixed(num(in, "sample_rate_hz"), 0) + " Hz, " +
+                       fixed(num(in, "duration_s"), 1) + " s, channel " + fixed(num(in, "channel"), 0)},
+        {label, str(b, "path") + " (" + str(b, "machine") + ", " + fixed(num(b, "recordings"), 0) +
+                    " recordings, made " + str(b, "created_utc") + ")"}};
+    if (kind == "sister") {
+        std::string differences;
+        for (const auto& m : field(field(f, "reference"), "mismatches"))
+            if (m.is_object())
+                differences += (differences.empty() ? "" : "; ") + str(m, "field") + " " + str(m, "recording") +
+                               " here, " + str(m, "reference") + " there";
+        fields.push_back({"Differences from the reference",
+                          (differences.empty() ? std::string("none stated") : differences) + "; band levels read with " +
+                              fixed(num(field(f, "reference"), "level_floor_db"), 1) + " dB more spread"});
+    }
+    fields.push_back({"Analysed", str(f, "created_utc") + " by cavitas " + str(f, "cavitas_version")});
+    fields.push_back({"Report", utc_now() + " by cavitas " + std::string(kVersion)});
+    return fields;
 }
 
 // ---- the audit trail: who analysed, and the analysts' reviews kept beside a finding ----------
@@ -831,7 +857,8 @@ json read_json_file(const std::string& path, const char* what, std::size_t max_b
 
 Document finding_document(const json& f, const ReportOptions& o) {
     Document d;
-    const std::string machine = str(field(f, "baseline"), "machine");
+    // A sister's tag is not this machine's: the header then names only what --machine says.
+    const std::string machine = reference_kind(f) == "sister" ? std::string() : str(field(f, "baseline"), "machine");
     d.title = "Cavitation finding" + (machine.empty() ? std::string() : " - " + (o.machine.empty() ? machine : o.machine));
     d.header = header_fields(o, machine, "", "");
     add_finding_sections(d, f, true);

@@ -98,3 +98,24 @@ TEST_CASE("Too little: one short recording, or few segments", "[models]") {
     CHECK(has(check_baseline(learned({a})), "too_little"));
     CHECK_FALSE(has(check_baseline(learned({steady(-40, 5)})), "too_little"));
 }
+
+TEST_CASE("A suppression run whose HF level still falls as the suction head rises is warned", "[models]") {
+    // Two recordings of a suppression run: at 12 m and at 20 m of NPSHa (NPSH3 4 m: 3 x and 5 x).
+    Hydraulics lower, higher;
+    lower.npsh = NpshAvailable{12.0, 0.0, 0.0, 12.0};
+    lower.margin = npsh_margin(12.0, 4.0);
+    higher.npsh = NpshAvailable{20.0, 0.0, 0.0, 20.0};
+    higher.margin = npsh_margin(20.0, 4.0);
+    Baseline b = learned({steady(-34), steady(-40)});  // 6 dB quieter at the higher head
+    b.suppression = SuppressionRun{12.0, 20.0, 3.0, 4.0};
+    const auto w = check_baseline(b, {lower, higher});
+    REQUIRE(has(w, "suppression_incomplete"));
+    for (const auto& x : w)
+        if (x.check == "suppression_incomplete") CHECK(x.file == "rec1.wav");
+    // Within the step (3 dB, BaselineCheckLimits::step_db) of each other: the head no longer matters.
+    Baseline quiet = learned({steady(-40), steady(-41)});
+    quiet.suppression = b.suppression;
+    CHECK_FALSE(has(check_baseline(quiet, {lower, higher}), "suppression_incomplete"));
+    // Not a suppression run: no such check.
+    CHECK_FALSE(has(check_baseline(learned({steady(-34), steady(-40)}), {lower, higher}), "suppression_incomplete"));
+}
