@@ -212,7 +212,7 @@ Replicate resample_fit(const std::vector<SweepStep>& steps, const std::vector<St
 }
 
 std::string at_speed(const SpeedScaling& s) {
-    return s.applied ? fmt(" (at %.0f rpm)", s.reference_rpm) : std::string();
+    return s.applied ? fmt(" at %.0f rpm", s.reference_rpm) : std::string();
 }
 
 void read_npsh3(InceptionResult& r) {

@@ -545,12 +545,13 @@ int main(int argc, char** argv) {
     auto* rp = app.add_subcommand(
         "report",
         "A work-order report: a self-contained HTML page (no external fonts, scripts or images; prints to A4\n"
-        "and Letter) and a PDF of the same content, from a finding (analyze --json), a route output folder\n"
-        "or a before/after comparison (compare --json). It leads with the verdict in plain words, what to do\n"
-        "next and the cautions, then the evidence: the spectrum against the baseline, the envelope spectrum\n"
-        "with 1X and BPF marked, the kurtogram, the indicator table, the route's table worst first and each\n"
-        "point's history, and where every number came from.");
-    rp->add_option("input", rpo.input, "finding JSON, route output folder, or compare JSON")->required()->type_name("INPUT");
+        "and Letter) and a PDF of the same content, from a finding (analyze --json), a route output folder,\n"
+        "a before/after comparison (compare --json) or an acoustic NPSH test (inception --json). It leads\n"
+        "with the verdict in plain words, what to do next and the cautions, then the evidence: the spectrum\n"
+        "against the baseline, the envelope spectrum with 1X and BPF marked, the kurtogram, the indicator\n"
+        "table, the route's table worst first and each point's history, a sweep's levels and head against\n"
+        "NPSHa, and where every number came from.");
+    rp->add_option("input", rpo.input, "finding JSON, route output folder, compare JSON or inception JSON")->required()->type_name("INPUT");
     rp->add_option("--html", rpo.html, "HTML report to write")->type_name("FILE");
     rp->add_option("--pdf", rpo.pdf, "PDF report to write")->type_name("FILE");
     rp->add_option("--work-order", rpo.work_order, "Work-order number for the header");

@@ -160,7 +160,9 @@ plot::Axis npsha_axis(const SweepView& v) {
     double lo = v.steps.back().npsha_scaled_m, hi = v.steps.front().npsha_scaled_m;
     for (const auto& s : v.steps) lo = std::min(lo, s.npsha_scaled_m), hi = std::max(hi, s.npsha_scaled_m);
     const double pad = 0.06 * std::max(hi - lo, 0.5);
-    plot::Axis a{std::max(0.0, lo - pad), hi + pad};
+    plot::Axis a;
+    a.lo = std::max(0.0, lo - pad);
+    a.hi = hi + pad;
     a.label = v.scaled ? "NPSHa at " + fixed(v.reference_rpm, 0) + " rpm, m" : "NPSHa, m";
     return a;
 }
@@ -171,6 +173,8 @@ void mark_npsh(plot::Chart& c, const SweepView& v) {
         c.markers.push_back({*v.npshi_m, "NPSHi " + fixed(*v.npshi_m, 2) + " m", plot::palette::verdict("incipient"), true});
     }
     if (v.npsh3_m) c.markers.push_back({*v.npsh3_m, "NPSH3 " + fixed(*v.npsh3_m, 2) + " m", plot::palette::verdict("developed"), true});
+    // Labels are laid left to right (one that would overlap the one before is left out).
+    std::sort(c.markers.begin(), c.markers.end(), [](const plot::Marker& a, const plot::Marker& b) { return a.x < b.x; });
 }
 
 plot::Chart level_chart(const SweepView& v) {
@@ -204,7 +208,8 @@ plot::Chart level_chart(const SweepView& v) {
     if (!fitted.x.empty()) c.series.push_back(fitted);
     if (!past.x.empty()) c.series.push_back(past);
     const double pad = 0.08 * std::max(hi - lo, 1.0);
-    c.y = plot::Axis{lo - pad, hi + pad};
+    c.y.lo = lo - pad;
+    c.y.hi = hi + pad;
     c.y.label = "HF level, " + v.level_unit;
     mark_npsh(c, v);
     return c;
@@ -220,7 +225,8 @@ std::optional<plot::Chart> head_chart(const SweepView& v) {
     c.x = npsha_axis(v);
     const auto [lo, hi] = std::minmax_element(head.y.begin(), head.y.end());
     const double pad = 0.1 * std::max(*hi - *lo, 0.5);
-    c.y = plot::Axis{*lo - pad, *hi + pad};
+    c.y.lo = *lo - pad;
+    c.y.hi = *hi + pad;
     c.y.label = "head, m";
     plot::Series line = head;
     line.name = "";
@@ -272,7 +278,7 @@ doc::Table step_table(const SweepView& v) {
     t.widths = {1.0, 1.2, 0.8, 1.0, 1.1, 0.9, 1.0, 1.1, 0.9, 1.2};
     for (const auto& s : v.steps) {
         t.rows.push_back({fixed(s.npsha_m, 2), fixed(s.npsha_scaled_m, 2), fixed(s.rpm, 0), std::to_string(s.recordings),
-                          fixed(s.level_db, 1), signed_fixed(s.rise_db, 1), fixed(s.kurtosis, 2), fixed(s.lf_db, 1),
+                          fixed(s.level_db, 1), signed_fixed(std::abs(s.rise_db) < 0.05 ? 0.0 : s.rise_db, 1), fixed(s.kurtosis, 2), fixed(s.lf_db, 1),
                           s.head_m ? fixed(*s.head_m, 2) : "-", step_state(s)});
         t.row_verdict.push_back(s.rise_db >= v.threshold_db && s.fitted ? "incipient" : "");
     }
