@@ -13,6 +13,7 @@
 #include "src/commands/commands.hpp"
 #include "src/commands/event.hpp"
 #include "src/commands/export.hpp"
+#include "src/commands/inception.hpp"
 #include "src/commands/process_tuning.hpp"
 #include "src/io/analyst.hpp"
 #include "src/io/errors.hpp"
@@ -59,6 +60,7 @@ const char* kIntro =
     "  cavitas event    OW-P101 --date 2026-11-04 --what \"impeller replaced\" --baselines lib\n"
     "  cavitas export   today --work-requests requests.csv   (each point's actions, for a maintenance system)\n"
     "  cavitas report   today --pdf route.pdf   (work-order report: HTML and PDF)\n"
+    "  cavitas inception sweep.csv --json npsh-test.json --pdf npsh-test.pdf   (acoustic NPSH test)\n"
     "\n"
     "Exit status: 0 a verdict was reached (indeterminate included), 1 unreadable or\n"
     "invalid input, 2 a usage error.";
@@ -229,6 +231,48 @@ const char* kNpshHelp =
     "Units: pressure Pa, hPa, kPa, MPa, bar, mbar, psi (psig/psia, barg/bara say gauge or absolute);\n"
     "length m, cm, mm, ft, in; temperature C, F, K; flow m3/h, m3/s, L/s, L/min, gpm (US);\n"
     "density kg/m3, g/cm3, lb/ft3. A number without a unit is refused.";
+
+const char* kInceptionHelp =
+    "The acoustic NPSH test: where, as the suction pressure of a pump is lowered step by step, its\n"
+    "high-frequency vibration starts to rise over the quiet plateau - cavitation inception, NPSHi -\n"
+    "beside the 3 % head-drop point NPSH3, where cavitation is already well developed.\n"
+    "\n"
+    "  cavitas inception sweep.csv --json npsh-test.json --pdf npsh-test.pdf\n"
+    "  cavitas inception sweep-700rpm.csv --at-rpm 1000     (read a sweep made at 700 rpm at 1000 rpm)\n"
+    "\n"
+    "The sweep: a route manifest (see 'cavitas route --help') of ONE machine, point and channel, one\n"
+    "recording a row: file, machine, point, channel, datetime, rpm (needed), vanes, the operating\n"
+    "point of the row (suction_pressure, temperature, and elevation or barometric for a gauge reading;\n"
+    "gauge_height, flow, bore ...: as 'cavitas npsh --help'), the calibration (full_scale, sensitivity,\n"
+    "unit), and optionally head (the pump's head at the row, 49.5m) for NPSH3. Each row's NPSHa is\n"
+    "computed from its operating point; rows within 0.05 m of NPSHa are one step (several recordings a\n"
+    "step tighten the result). At least 3 steps, every file at one sample rate.\n"
+    "\n"
+    "How NPSHi is found:\n"
+    "  1. Every recording is analysed in the same bands (those of the first row's rate, capped by\n"
+    "     --sensor-max-hz or --mount); the HF band level of each 1 s segment is kept.\n"
+    "  2. Steps at speeds more than 1 % apart (or every step, with --at-rpm) are brought to one speed:\n"
+    "     NPSHa x (n_ref / n)^2 (affinity: NPSHR ~ N^2), levels - 40 log10(n / n_ref) dB (exponent\n"
+    "     assumed); n_ref = --at-rpm, else the speed of the highest-NPSHa step.\n"
+    "  3. The fit runs from the highest NPSHa down to the loudest step; steps below it are 'past the\n"
+    "     peak' (the level may fall again as cavitation develops) and are shown but not fitted.\n"
+    "  4. A two-segment line, level = a + b max(0, k - NPSHa), is fitted by least squares to every\n"
+    "     segment: a the plateau (dB), b the rise (dB/m), k the knee (m).\n"
+    "  5. NPSHi = k when the fitted rise at the lowest fitted step, b (k - NPSHa), reaches 3 dB (the HF\n"
+    "     alert level of the verdict: twice the HF band power) and at least 95 % of 1000 resampled\n"
+    "     sweeps reach it too (recordings within each step and segments within each recording drawn\n"
+    "     with replacement, a fixed seed: the same sweep gives the same result).\n"
+    "  6. The interval is the 2.5-97.5 percentile of the knee over the resampled sweeps. When only one\n"
+    "     step lies below the knee, the data cannot place it between that step and the one above: the\n"
+    "     interval is that bracket, NPSHi its midpoint, and the advice is to test steps inside it.\n"
+    "  NPSH3: the NPSHa where the head first falls 3 % under the median head of the steps above the\n"
+    "  knee, interpolated between the steps either side.\n"
+    "\n"
+    "A sweep drives the pump into cavitation on purpose: run it only as the pump maker's procedure\n"
+    "allows, under ISO 9906 / ANSI/HI 14.6 practice and your site's procedures.\n"
+    "\n"
+    "Exit status: 0 done (found or not), 1 the sweep or a recording cannot be used (the file and line\n"
+    "named), 2 a usage error.";
 
 }  // namespace
 
@@ -561,12 +605,13 @@ int main(int argc, char** argv) {
     auto* rp = app.add_subcommand(
         "report",
         "A work-order report: a self-contained HTML page (no external fonts, scripts or images; prints to A4\n"
-        "and Letter) and a PDF of the same content, from a finding (analyze --json), a route output folder\n"
-        "or a before/after comparison (compare --json). It leads with the verdict in plain words, what to do\n"
-        "next and the cautions, then the evidence: the spectrum against the baseline, the envelope spectrum\n"
-        "with 1X and BPF marked, the kurtogram, the indicator table, the route's table worst first and each\n"
-        "point's history, and where every number came from.");
-    rp->add_option("input", rpo.input, "finding JSON, route output folder, or compare JSON")->required()->type_name("INPUT");
+        "and Letter) and a PDF of the same content, from a finding (analyze --json), a route output folder,\n"
+        "a before/after comparison (compare --json) or an acoustic NPSH test (inception --json). It leads\n"
+        "with the verdict in plain words, what to do next and the cautions, then the evidence: the spectrum\n"
+        "against the baseline, the envelope spectrum with 1X and BPF marked, the kurtogram, the indicator\n"
+        "table, the route's table worst first and each point's history, a sweep's levels and head against\n"
+        "NPSHa, and where every number came from.");
+    rp->add_option("input", rpo.input, "finding JSON, route output folder, compare JSON or inception JSON")->required()->type_name("INPUT");
     rp->add_option("--html", rpo.html, "HTML report to write")->type_name("FILE");
     rp->add_option("--pdf", rpo.pdf, "PDF report to write")->type_name("FILE");
     rp->add_option("--work-order", rpo.work_order, "Work-order number for the header");
@@ -578,6 +623,30 @@ int main(int argc, char** argv) {
     rp->add_option("--paper", rpo.paper, "PDF paper: a4 (default) or letter")->check(CLI::IsMember({"a4", "letter"}));
     rp->add_option("--store", rpo.store, "Results store for the history charts of a route (default: the route's)")
         ->type_name("FILE");
+
+    InceptionOptions ino;
+    auto* inc = app.add_subcommand("inception", kInceptionHelp);
+    inc->add_option("sweep", ino.sweep, "The sweep: a route manifest of one machine, point and channel at falling suction "
+                                        "pressure")
+        ->required()
+        ->type_name("SWEEP.csv");
+    inc->add_option("--json", ino.json_output, "Write the result as JSON (cavitas.inception/1) to this file (atomically)")
+        ->type_name("FILE");
+    inc->add_option("--html", ino.html, "Write the report as a self-contained HTML page")->type_name("FILE");
+    inc->add_option("--pdf", ino.pdf, "Write the report as PDF")->type_name("FILE");
+    inc->add_option("--paper", ino.paper, "PDF paper: a4 (default) or letter")->check(CLI::IsMember({"a4", "letter"}));
+    inc->add_option("--at-rpm", ino.at_rpm,
+                    "Read the sweep at this shaft speed, rpm (default: the highest-NPSHa step's; steps within 1 % of it "
+                    "are not scaled)")
+        ->check(kDecimal)->check(CLI::Range(1.0, 100000.0));
+    inc->add_option("--sensor-max-hz", ino.sensor_max_hz,
+                    "Usable top frequency of the sensor as mounted; the HF band stops there (default: the first row's "
+                    "sensor_max_hz)")
+        ->check(kDecimal)->check(CLI::Range(100.0, 1.0e6));
+    inc->add_option("--mount", ino.mount, "Sensor mounting, caps the HF band: handheld, magnet, adhesive or stud")
+        ->check(CLI::IsMember({"handheld", "magnet", "adhesive", "stud"}));
+    inc->add_option("--replicates", ino.replicates, "Resampled sweeps for the interval (default 1000)")
+        ->check(CLI::Range(100, 100000));
 
     try {
         app.parse(argc, argv);
@@ -636,6 +705,7 @@ int main(int argc, char** argv) {
         if (*ev) run_event(eo, std::cout, std::cerr);
         if (*cp) run_compare(co, std::cout, std::cerr);
         if (*rp) run_report(rpo, std::cout);
+        if (*inc) run_inception(ino, std::cout, std::cerr);
         return static_cast<int>(ExitCode::ok);
     } catch (const UsageError& e) {
         std::cerr << "cavitas: usage: " << one_line(e.what()) << "\n";

@@ -20,6 +20,9 @@ struct ReportOptions {
     std::string work_order, site, analyst, machine, point, date;
     std::string paper = "a4";          ///< a4 or letter (the PDF)
     std::optional<std::string> store;  ///< route: history for the trend charts (default: the route's store)
+    /// The input's JSON given in memory (inception --html): `input` then only
+    /// names it in messages; the caller has checked its files with an OutputGuard.
+    std::string input_text;
 };
 
 /// Loads the report module and runs it; throws UsageError / InputError as the
@@ -27,6 +30,6 @@ struct ReportOptions {
 void run_report(const ReportOptions& options, std::ostream& out);
 
 /// Bumped whenever ReportOptions or the module's entry point changes.
-inline constexpr int kReportModuleAbi = 1;
+inline constexpr int kReportModuleAbi = 2;
 
 }  // namespace cavitas::app

@@ -20,6 +20,7 @@
 #include "src/output/format.hpp"
 #include "src/output/plain_text.hpp"
 #include "src/output/reviews.hpp"
+#include "src/report/inception_report.hpp"
 #include "src/report/plot.hpp"
 #include "src/route/attention.hpp"
 #include "src/route/route.hpp"
@@ -1557,8 +1558,28 @@ Document document_from_text(const std::string& text, const std::string& origin, 
     const std::string schema = str(j, "schema");
     if (schema.rfind("cavitas.finding/", 0) == 0) return finding_document(checked_finding(j, origin), o);
     if (schema.rfind("cavitas.compare/", 0) == 0) return compare_document(checked_comparison(j, origin), o);
-    throw InputError(origin + ": not a finding (analyze --json), a comparison (compare --json) or a route output folder");
+    if (schema.rfind("cavitas.inception/", 0) == 0) return inception_document(j, origin, o);
+    throw InputError(origin + ": not a finding (analyze --json), a comparison (compare --json), a sweep's result "
+                     "(inception --json) or a route output folder");
 }
+
+namespace {
+
+// The HTML and the PDF of a document, both or neither.
+void write_report(const Document& d, const ReportOptions& o, std::ostream& out) {
+    // Both files or neither: a PDF that cannot be written leaves no new HTML behind.
+    StagedFiles files;
+    if (o.html) files.add(*o.html, doc::to_html(d));
+    int pages = 0;
+    if (o.pdf) files.add(*o.pdf, doc::to_pdf(d, o.paper == "letter" ? doc::Paper::letter : doc::Paper::a4, &pages));
+    files.commit();
+    if (o.html) out << "report written to " << *o.html << "\n";
+    if (o.pdf)
+        out << "report written to " << *o.pdf << " (" << pages << " page" << (pages == 1 ? "" : "s") << ", "
+            << (o.paper == "letter" ? "Letter" : "A4") << ")\n";
+}
+
+}  // namespace
 
 // Longest header field (--work-order, --site, ...), bytes: a line of the header.
 constexpr std::size_t kHeaderFieldMaxBytes = 200;
@@ -1577,6 +1598,10 @@ void render_report(const ReportOptions& given, std::ostream& out) {
             throw UsageError(std::string(flag) + ": " + std::to_string(text->size()) + " characters; a report header "
                              "field takes at most " + std::to_string(kHeaderFieldMaxBytes));
         *text = valid_utf8(*text);
+    }
+    if (!o.input_text.empty()) {  // a document made in this run (inception --html): its command guarded the files
+        write_report(document_from_text(o.input_text, o.input, o), o, out);
+        return;
     }
     {
         OutputGuard guard;
@@ -1599,16 +1624,7 @@ void render_report(const ReportOptions& given, std::ostream& out) {
         d = document_from_text(read_text_file(o.input, "report input", kMaxDocumentBytes, &sha), o.input, o);
         add_finding_reviews(d, o.input, sha);
     }
-    // Both files or neither: a PDF that cannot be written leaves no new HTML behind.
-    StagedFiles files;
-    if (o.html) files.add(*o.html, doc::to_html(d));
-    int pages = 0;
-    if (o.pdf) files.add(*o.pdf, doc::to_pdf(d, o.paper == "letter" ? doc::Paper::letter : doc::Paper::a4, &pages));
-    files.commit();
-    if (o.html) out << "report written to " << *o.html << "\n";
-    if (o.pdf)
-        out << "report written to " << *o.pdf << " (" << pages << " page" << (pages == 1 ? "" : "s") << ", "
-            << (o.paper == "letter" ? "Letter" : "A4") << ")\n";
+    write_report(d, o, out);
 }
 
 }  // namespace cavitas::app

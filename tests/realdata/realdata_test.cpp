@@ -23,6 +23,8 @@
 #include "models/compare.hpp"
 #include "src/io/baseline_io.hpp"
 #include "src/commands/commands.hpp"
+#include "src/commands/inception.hpp"
+#include <nlohmann/json.hpp>
 
 namespace fs = std::filesystem;
 using namespace cavitas;
@@ -583,6 +585,80 @@ TEST_CASE("Lab pump: compare calls repeat healthy runs unchanged and the throttl
     CHECK(fixed.change == models::Change::improved);
     CHECK(models::compare_before_after({{&ok.analysis, &ok.finding}}, {{&cav.analysis, &cav.finding}}, "m_s2").change ==
           models::Change::worse);
+}
+
+namespace {
+
+// A sweep manifest of the lab pump's channel 0 at one nominal speed: two runs a condition, NPSHa
+// from the rig log's medians of PT02 (suction, bar gauge: inferred in SOURCE.md) and TT01 (C), the
+// barometric pressure taken as the standard atmosphere (not logged: assumed), rpm the median of
+// RT01, the calibration 1 m/s2 per unit (SOURCE.md: float WAVs in m/s2), 6 vanes (inferred).
+nlohmann::json lab_sweep(int speed, const std::vector<std::string>& conditions, std::optional<double> at_rpm) {
+    const fs::path dir = fs::temp_directory_path() / ("cavitas_realdata_sweep_" + std::to_string(::getpid()));
+    fs::create_directories(dir);
+    const fs::path manifest = dir / ("sweep-" + std::to_string(speed) + ".csv");
+    {
+        std::ofstream out(manifest);
+        out << "file,machine,point,channel,datetime,rpm,vanes,full_scale,suction_pressure,temperature,barometric\n";
+        int minute = 0;
+        for (const auto& cond : conditions) {
+            const std::string log = std::to_string(speed) + "rpm_" + cond;
+            for (int run = 1; run <= 2; ++run) {
+                char row[1024];
+                std::snprintf(row, sizeof row, "%s,lab pump,casing,0,2026-04-10T15:%02d:00,%.1f,%d,1m/s2,%.4fbar,%.2fC,101.325kPa\n",
+                              (pump() / (log + "_r" + std::to_string(run) + "_ch0_acc.wav")).string().c_str(), minute++,
+                              log_median(log, "RT01_RPM"), kPumpVanes, log_median(log, "PT02_bar"),
+                              log_median(log, "TT01_C"));
+                out << row;
+            }
+        }
+    }
+    app::InceptionOptions o;
+    o.sweep = manifest.string();
+    o.json_output = (dir / "result.json").string();
+    o.at_rpm = at_rpm;
+    std::ostringstream out, err;
+    app::run_inception(o, out, err);
+    std::cout << out.str();
+    std::ifstream in(*o.json_output);
+    const auto j = nlohmann::json::parse(in);
+    fs::remove_all(dir);
+    return j;
+}
+
+}  // namespace
+
+TEST_CASE("Lab pump at 1000 rpm: the acoustic NPSH test puts inception between the open and the first throttled step",
+          "[realdata][inception]") {
+    // Labels from file names only (SOURCE.md): healthy = suction valve open, cavNN = throttled. At 1000 rpm
+    // the 1-3.2 kHz energy jumps at cavitation25 and falls again after it (SOURCE.md table), so the fit
+    // runs from the open valve (NPSHa about 9.7 m) to cav025 (about 5.4 m) and cav050 is past the peak.
+    const auto j = lab_sweep(1000, {"healthy", "cav025", "cav050"}, std::nullopt);
+    const auto& steps = j["steps"];
+    REQUIRE(steps.size() == 3);
+    const double open_m = steps[0]["npsha_m"].get<double>(), first_m = steps[1]["npsha_m"].get<double>();
+    std::cout << "  1000 rpm: steps " << open_m << ", " << first_m << ", " << steps[2]["npsha_m"].get<double>()
+              << " m; NPSHi " << j["npshi_m"] << " m, interval " << j["npshi_interval_m"] << ", " << j["located"] << "\n";
+    CHECK(open_m == Approx(9.7).margin(0.3));   // SOURCE.md: PT02 -0.042 bar(g), about 19 C water
+    CHECK(first_m == Approx(5.4).margin(0.3));  // SOURCE.md: PT02 -0.464 bar(g)
+    REQUIRE(j["npshi_m"].is_number());
+    CHECK(j["npshi_m"].get<double>() > first_m);
+    CHECK(j["npshi_m"].get<double>() < open_m);
+    CHECK(j["located"] == "between_steps");
+    CHECK(j["npshi_interval_m"][0].get<double>() >= first_m - 1e-9);
+    CHECK(j["npshi_interval_m"][1].get<double>() <= open_m + 1e-9);
+    CHECK(steps[2]["past_peak"] == true);
+}
+
+TEST_CASE("Lab pump at 700 rpm read at 1000 rpm: no inception within the range tested", "[realdata][inception]") {
+    // At 700 rpm the throttled runs keep NPSHa at or above 6.5 m (PT02 down to -0.353 bar(g), SOURCE.md):
+    // 12 m and more at 1000 rpm (x (1000/714)^2), above the 1000 rpm sweep's knee. The 1-3.2 kHz rms
+    // changes by at most 2 dB across the conditions (SOURCE.md table: 0.33 ... 0.42 m/s2).
+    const auto j = lab_sweep(700, {"healthy", "cav025", "cav050", "cav075", "cav100"}, 1000.0);
+    std::cout << "  700 rpm at 1000 rpm: NPSHi " << j["npshi_m"] << "; " << j.value("npshi_reason", std::string()) << "\n";
+    CHECK(j["speed_scaling"]["applied"] == true);
+    CHECK(j["steps"].back()["npsha_scaled_m"].get<double>() > 12.0);
+    CHECK(j["npshi_m"].is_null());
 }
 
 int main(int argc, char** argv) {

@@ -161,6 +161,50 @@ def export_checks(cavitas, site, lib, route, work, validate, validator):
 
 # ---------------------------------------------------------------------------------------------
 
+def inception_checks(cavitas, work, reports, validate, validator):
+    """cavitas inception on a sweep cavitas-synth writes (inception at 6 m): the JSON against its schema,
+    the report made by the command and by 'report' from the JSON, and a schema that can fail."""
+    synth = os.path.join(os.path.dirname(cavitas), "tools", "synth", "cavitas-synth")
+    if not os.path.exists(synth):
+        check("cavitas-synth is built beside cavitas (for the sweep)", False, synth)
+        return
+    sweep = os.path.join(work, "sweep")
+    r = run([synth, "sweep", sweep, "--npshi", "6", "--seconds", "3"])
+    check("cavitas-synth sweep", r.returncode == 0, r.stderr)
+    out = os.path.join(work, "inception.json")
+    html, pdf = os.path.join(reports, "inception.html"), os.path.join(reports, "inception.pdf")
+    r = run([cavitas, "inception", os.path.join(sweep, "SWEEP.csv"), "--json", out, "--html", html, "--pdf", pdf])
+    if not check("inception with --json, --html and --pdf", r.returncode == 0, r.stderr):
+        return
+    with open(out, encoding="utf-8") as f:
+        doc = json.load(f)
+    validate(validator, doc, "inception.json")
+    check("the sweep's inception is found near 6 m (tools/synth/sweep.hpp)",
+          isinstance(doc.get("npshi_m"), (int, float)) and abs(doc["npshi_m"] - 6.0) <= 0.5, str(doc.get("npshi_m")))
+    spoiled = json.loads(json.dumps(doc))
+    spoiled["npshi_m"] = None
+    spoiled["located"] = "somewhere"
+    check("schema refuses an inception without its reason and with an unknown location",
+          len(list(validator.iter_errors(spoiled))) >= 2)
+    text = words(run(["pdftotext", "-layout", pdf, "-"]).stdout)
+    for what in ("Cavitation inception at NPSHa", "lock out and tag out", "ISO 9906", "NPSH3", "HF band level against NPSHa"):
+        check(f"inception.pdf text shows '{what}'", what in text, what)
+    with open(html, encoding="utf-8") as f:
+        page = f.read()
+    check("inception.html draws its chart inline and refers to nothing outside itself",
+          "<svg" in page and not re.search(r"<script|<link|@import|file:", page, flags=re.I))
+    again = os.path.join(reports, "inception-again.pdf")
+    r = run([cavitas, "report", out, "--pdf", again])
+    check("report reads the inception JSON", r.returncode == 0 and os.path.exists(again), r.stderr)
+    del spoiled["steps"][0]["hf_level_db"]
+    spoiled_path = os.path.join(work, "inception-spoiled.json")
+    with open(spoiled_path, "w", encoding="utf-8") as f:
+        json.dump(spoiled, f)
+    r = run([cavitas, "report", spoiled_path, "--html", os.path.join(reports, "never-inception.html")])
+    check("report refuses an inception JSON without a step's level, naming the field",
+          r.returncode == 1 and "steps[0].hf_level_db" in r.stderr, r.stderr)
+
+
 def outputs(cavitas, samples, schemas, work):
     try:
         import jsonschema
@@ -463,6 +507,7 @@ def outputs(cavitas, samples, schemas, work):
     check("a waveform of 8193 values is refused naming the field",
           r.returncode != 0 and "plots.waveform.raw" in r.stderr and not os.path.exists(os.path.join(reports, "never.html")),
           r.stderr)
+    inception_checks(cavitas, work, reports, validate, schema("inception.schema.json"))
     # Letter paper.
     letter = os.path.join(reports, "finding-developed-letter.pdf")
     r = run([cavitas, "report", findings["developed"], "--pdf", letter, "--paper", "letter"])

@@ -12,6 +12,7 @@
 #include <string>
 #include <vector>
 
+#include "tools/synth/sweep.hpp"
 #include "tools/synth/synth.hpp"
 
 namespace synth = cavitas::synth;
@@ -166,6 +167,35 @@ int main(int argc, char** argv) {
         ->check(CLI::IsMember({"pcm16", "pcm24", "float", "flac16"}));
     one->add_option("-o,--output", out_file, "File to write")->required();
 
+    // sweep
+    std::string sweep_dir, sweep_npshi = "6", sweep_steps;
+    synth::SweepSpec sweep_spec;
+    auto* sweep = app.add_subcommand(
+        "sweep",
+        "Write an acoustic NPSH test of one pump for 'cavitas inception': recordings at falling NPSHa (16-bit PCM, "
+        "full scale 50 g) and SWEEP.csv, a route manifest of them with each row's suction gauge reading (solved "
+        "for the step's NPSHa in water at --temperature, at the station's 62 m), temperature, elevation and the "
+        "pump's head. Below --npshi the pump cavitates: the HF band rises --rise dB for each metre under it "
+        "(sparse collapses, dense ones from 10 dB on); above it every recording is healthy. With --speed-drop the "
+        "speed falls step by step and the truth holds at nominal speed (NPSHa x (n_nominal / n)^2, levels scaling "
+        "with n^2). The head falls 3 % at --npsh3. Same seed, same files.\n\n"
+        "  cavitas-synth sweep demo-sweep --npshi 6\n"
+        "  cavitas-synth sweep quiet-sweep --npshi none");
+    sweep->add_option("OUTDIR", sweep_dir, "Folder to write into (created if missing)")->required();
+    sweep->add_option("--machine", sweep_spec.tag, "Machine tag")->capture_default_str();
+    sweep->add_option("--npshi", sweep_npshi, "NPSHa at nominal speed where cavitation begins, m, or none")
+        ->capture_default_str();
+    sweep->add_option("--steps", sweep_steps, "The steps' NPSHa, m, falling, comma separated (default 12,11,...,3)");
+    sweep->add_option("--rise", sweep_spec.rise_db_per_m, "HF rise below NPSHi, dB per metre")->capture_default_str();
+    sweep->add_option("--recordings", sweep_spec.recordings_per_step, "Recordings a step")->capture_default_str();
+    sweep->add_option("--seconds", sweep_spec.duration_s, "Length of each recording, s")->capture_default_str();
+    sweep->add_option("--speed-drop", sweep_spec.speed_drop,
+                      "Share the speed falls by from the first step to the last (0.15: to 85 %)")->capture_default_str();
+    sweep->add_option("--npsh3", sweep_spec.npsh3_m, "NPSHa at nominal speed where the head has fallen 3 %, m")
+        ->capture_default_str();
+    sweep->add_option("--temperature", sweep_spec.temperature_c, "Water temperature, C")->capture_default_str();
+    sweep->add_option("--seed", sweep_spec.seed, "Seed of the sweep")->capture_default_str();
+
     CLI11_PARSE(app, argc, argv);
 
     try {
@@ -196,6 +226,23 @@ int main(int argc, char** argv) {
                 },
                 std::cerr, {}, synth::SetColumns::field);
             print_summary("field", field_dir, summary);
+        } else if (*sweep) {
+            if (sweep_npshi == "none") sweep_spec.npshi_m.reset();
+            else sweep_spec.npshi_m = std::stod(sweep_npshi);
+            if (!sweep_steps.empty()) {
+                sweep_spec.npsha_m.clear();
+                std::size_t at = 0;
+                while (at <= sweep_steps.size()) {
+                    const std::size_t comma = std::min(sweep_steps.find(',', at), sweep_steps.size());
+                    sweep_spec.npsha_m.push_back(std::stod(sweep_steps.substr(at, comma - at)));
+                    at = comma + 1;
+                }
+            }
+            const auto w = synth::write_sweep(sweep_dir, sweep_spec);
+            std::cerr << "sweep: wrote " << w.recordings << " recordings and " << w.manifest.string() << " ("
+                      << sweep_spec.tag << ", NPSHi " << (sweep_spec.npshi_m ? std::to_string(*sweep_spec.npshi_m) + " m"
+                                                                              : std::string("none"))
+                      << ")\n";
         } else if (*one) {
             synth::CaseSpec spec;
             spec.machine = synth::machine_by_tag(tag);

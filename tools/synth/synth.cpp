@@ -562,7 +562,7 @@ Recording synthesize_recording(const CaseSpec& spec) {
     const double t_end_s = static_cast<double>(n_out) / fs;
 
     const Structure st = make_structure(m);
-    const Band hf = hf_band(fs), lf = lf_band();
+    const Band hf = spec.rise_band.high_hz > 0.0 ? spec.rise_band : hf_band(fs), lf = lf_band();
 
     // Tones: shaft 1x..3x and blade pass 1x, 2x, amplitude +-10 % per recording.
     std::vector<Tone> tones;

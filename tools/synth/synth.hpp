@@ -220,6 +220,10 @@ struct CaseSpec {
     /// on either side. step_db within 0..40, step_at_s within 0..duration_s.
     double step_at_s = 0;
     double step_db = 0;
+    /// The band in which the faults' HF rises (and a level step) are set, when
+    /// not hf_band() (high_hz 0: hf_band()). The sweep sets it to the band
+    /// cavitas analyses, so that a stated rise is the rise cavitas measures.
+    Band rise_band{};
 };
 
 struct Recording {
