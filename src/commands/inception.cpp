@@ -377,9 +377,11 @@ void run_inception(const InceptionOptions& o, std::ostream& out, std::ostream& e
         ro.html = o.html;
         ro.pdf = o.pdf;
         ro.paper = o.paper;
+        ro.input_output = o.json_output;  // the JSON with the reports, all or none
         run_report(ro, out);
+    } else if (o.json_output) {
+        write_file_atomically(*o.json_output, text);
     }
-    if (o.json_output) write_file_atomically(*o.json_output, text);
     write_account(out, j, r);
 }
 

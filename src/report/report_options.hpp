@@ -23,6 +23,9 @@ struct ReportOptions {
     /// The input's JSON given in memory (inception --html): `input` then only
     /// names it in messages; the caller has checked its files with an OutputGuard.
     std::string input_text;
+    /// Where to write input_text itself, staged with the HTML and the PDF (all
+    /// or none: inception --json with --html or --pdf).
+    std::optional<std::string> input_output;
 };
 
 /// Loads the report module and runs it; throws UsageError / InputError as the
@@ -30,6 +33,6 @@ struct ReportOptions {
 void run_report(const ReportOptions& options, std::ostream& out);
 
 /// Bumped whenever ReportOptions or the module's entry point changes.
-inline constexpr int kReportModuleAbi = 2;
+inline constexpr int kReportModuleAbi = 3;
 
 }  // namespace cavitas::app

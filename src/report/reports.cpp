@@ -1572,6 +1572,7 @@ void write_report(const Document& d, const ReportOptions& o, std::ostream& out) 
     if (o.html) files.add(*o.html, doc::to_html(d));
     int pages = 0;
     if (o.pdf) files.add(*o.pdf, doc::to_pdf(d, o.paper == "letter" ? doc::Paper::letter : doc::Paper::a4, &pages));
+    if (o.input_output) files.add(*o.input_output, o.input_text);
     files.commit();
     if (o.html) out << "report written to " << *o.html << "\n";
     if (o.pdf)

@@ -160,5 +160,26 @@ write("long_line.toml", 'flow = "' + "1" * 60000 + ' m3/h"\ntemperature = "14 C"
 write("long_many_keys.toml", "".join('k%d = "%d"\n' % (k, k) for k in range(4000)))
 write("long_multiline_string.toml", 'note = """\n' + "line of a note\n" * 4000 + '"""\nflow = "410 m3/h"\n')
 PY
+# An acoustic NPSH test of a generated sweep (inception --json) and a finding
+# judged against a sister machine's baseline (analyze --reference).
+sweep="$(mktemp -d)"
+"$build/tools/synth/cavitas-synth" sweep "$sweep" --npshi 6 > /dev/null
+"$build/cavitas" inception "$sweep/SWEEP.csv" --json "$sweep/inception.json" > /dev/null 2>&1
+python3 -c 'import json,sys; json.dump(json.load(open(sys.argv[1])), open(sys.argv[2], "w"), separators=(",", ":"))' \
+    "$sweep/inception.json" "$corpus/report/inception.json"
+"$build/cavitas" analyze --reference "$demo/baselines/OW-P101/DE-H.json" --machine OW-P109 --analyst "R. Okafor" \
+    --json "$sweep/sister.json" samples/OW-P101_2026-11-02.wav > /dev/null 2>&1
+python3 - "$sweep/sister.json" "$corpus/report/finding_sister.json" <<'PY'
+import json, sys
+d = json.load(open(sys.argv[1]))
+def cut(o):  # plots' arrays to 400 values: the seed stays under fuzz_report's max_len
+    for k, v in (o.items() if isinstance(o, dict) else []):
+        if isinstance(v, list) and len(v) > 400: o[k] = v[:400]
+        else: cut(v)
+cut(d["plots"])
+d["provenance"]["host"] = "demo-host"
+json.dump(d, open(sys.argv[2], "w"), separators=(",", ":"))
+PY
+rm -rf "$sweep"
 chmod 644 "$corpus"/report/* "$corpus"/merge/* "$corpus"/curve/* "$op"/long_*
 ls -l "$corpus/report" "$corpus/merge" "$corpus/curve" "$op"
