@@ -21,6 +21,8 @@
 #include <utility>
 #include <vector>
 
+#include "models/baseline.hpp"
+
 namespace cavitas::models {
 
 /// One step of a sweep: the recordings made at one NPSHa.
@@ -41,7 +43,7 @@ struct SpeedScaling {
     bool applied = false;
     double reference_rpm = 0.0;
     double npsh_exponent = 2.0;
-    double level_exponent = 2.0;  ///< m
+    double level_exponent = kAssumedSlopeDbPerDecade / 20.0;  ///< m: the baselines' assumed slope (models/baseline.hpp)
     double level_db_per_decade() const { return 20.0 * level_exponent; }
 };
 
@@ -49,7 +51,7 @@ struct SpeedScaling {
 double npsha_at_speed_m(double npsha_m, double rpm, double reference_rpm, double exponent = 2.0);
 /// The shift that brings a level measured at rpm to the reference speed:
 /// -20 m log10(n / n_ref) dB.
-double level_shift_db(double rpm, double reference_rpm, double level_exponent = 2.0);
+double level_shift_db(double rpm, double reference_rpm, double level_exponent = kAssumedSlopeDbPerDecade / 20.0);
 
 struct InceptionConfig {
     /// The rise that counts as inception: the project's HF alert level

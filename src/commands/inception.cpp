@@ -89,21 +89,13 @@ SweepRow read_row(const Manifest& m, const ManifestRow& r) {
     return s;
 }
 
-ReadRequest read_request(const ManifestRow& r) {
-    ReadRequest read;
-    read.channel = r.channel;
-    read.variable = r.variable;
-    read.sample_rate_hz = r.sample_rate_hz;
-    return read;
-}
-
 // The bands of the sweep: those of the first row's rate; every file must have that rate.
 models::AnalysisSetup sweep_setup(const Manifest& m, const std::vector<SweepRow>& rows, const InceptionOptions& o) {
     double fs0 = 0.0;
     for (const auto& s : rows) {
         double fs = 0.0;
         try {
-            fs = open_recording(s.row->path, read_request(*s.row), Calibration{})->info().fs_hz;
+            fs = open_recording(s.row->path, read_request_of(*s.row), Calibration{})->info().fs_hz;
         } catch (const std::exception& e) {
             throw InputError(where(m, *s.row) + ": " + e.what());
         }
@@ -128,7 +120,7 @@ void analyse_rows(const Manifest& m, std::vector<SweepRow>& rows, const models::
         machine.rpm = s.rpm;
         machine.vanes = s.row->vanes.value_or(0);
         try {
-            s.rec = analyze_file(s.row->path, read_request(*s.row), s.row->calibration, std::nullopt, setup, 0.0, machine,
+            s.rec = analyze_file(s.row->path, read_request_of(*s.row), s.row->calibration, std::nullopt, setup, 0.0, machine,
                                  stderr_progress(s.row->path, err));
         } catch (const std::exception& e) {
             throw InputError(where(m, *s.row) + ": " + e.what());

@@ -27,6 +27,14 @@ std::optional<std::string> unusable_as_file_name(const std::string& tag) {
     return std::nullopt;
 }
 
+ReadRequest read_request_of(const ManifestRow& row) {
+    ReadRequest read;
+    read.channel = row.channel;
+    read.variable = row.variable;
+    read.sample_rate_hz = row.sample_rate_hz;
+    return read;
+}
+
 namespace {
 
 const std::vector<std::string> kRequired = {"file", "machine", "point", "channel", "datetime", "rpm", "vanes"};

@@ -63,6 +63,9 @@ struct ManifestRow {
     std::string error;      ///< non-empty: what is wrong with this row (it is not analysed)
 };
 
+/// How a row's file is read: its channel, a MATLAB file's variable, a stated rate.
+ReadRequest read_request_of(const ManifestRow& row);
+
 /// A maintenance event a manifest row records (the `event` column).
 struct ManifestEvent {
     std::size_t line = 0;

@@ -350,6 +350,35 @@ json actions_to_json(const std::vector<models::Action>& actions) {
 
 }  // namespace
 
+json speed_to_json(const models::RecordingAnalysis& a) {
+    const bool speed_known = a.rpm > 0.0;
+    return {
+        {"rpm", a.rpm},
+        {"source", !speed_known ? "unknown" : (a.rpm_estimated ? "estimated" : "given")},
+        {"resolution_rpm", a.rpm_resolution},
+        {"confirmed", a.speed_confirmed},
+        {"confirmation", a.rpm_estimated || !speed_known ? a.speed_how : "given"},
+        {"search_low_rpm", a.speed_search_low_rpm},
+        {"search_high_rpm", a.speed_search_high_rpm},
+        {"shaft_hz", models::shaft_hz(a.rpm)},
+        {"vanes", a.vanes},
+        {"bpf_hz", a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0},
+    };
+}
+
+json input_to_json(const AnalyzedRecording& rec) {
+    const auto& in = rec.info;
+    return {{"path", in.path},
+            {"sample_rate_hz", in.fs_hz},
+            {"duration_s", rec.analysis.duration_s},
+            {"channel", in.channel},
+            {"channels", in.channels},
+            {"format", in.format},
+            {"unit", in.calibration.unit},
+            {"full_scale", in.calibration.full_scale},
+            {"sha256", rec.sha256}};
+}
+
 json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
     const auto& in = r.recording.info;
     const auto& a = r.recording.analysis;
@@ -396,20 +425,8 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"reasons", f.reasons},
         {"warnings", f.warnings},
     };
-    const bool speed_known = a.rpm > 0.0;
-    json speed = {
-        {"rpm", a.rpm},
-        {"source", !speed_known ? "unknown" : (a.rpm_estimated ? "estimated" : "given")},
-        {"resolution_rpm", a.rpm_resolution},
-        {"confirmed", a.speed_confirmed},
-        {"confirmation", a.rpm_estimated || !speed_known ? a.speed_how : "given"},
-        {"search_low_rpm", a.speed_search_low_rpm},
-        {"search_high_rpm", a.speed_search_high_rpm},
-        {"shaft_hz", models::shaft_hz(a.rpm)},
-        {"vanes", a.vanes},
-        {"bpf_hz", a.vanes > 0 ? models::blade_pass_hz(a.rpm, a.vanes) : 0.0},
-        {"baseline_rpm", b.rpm},
-    };
+    json speed = speed_to_json(a);
+    speed["baseline_rpm"] = b.rpm;
     json j = {
         {"schema", kFindingSchema},
         {"cavitas_version", kVersion},
@@ -436,16 +453,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"speed", speed},
         {"envelope_peaks", peaks},
         {"quality", quality},
-        {"input",
-         {{"path", in.path},
-          {"sample_rate_hz", in.fs_hz},
-          {"duration_s", a.duration_s},
-          {"channel", in.channel},
-          {"channels", in.channels},
-          {"format", in.format},
-          {"unit", in.calibration.unit},
-          {"full_scale", in.calibration.full_scale},
-          {"sha256", r.recording.sha256}}},
+        {"input", input_to_json(r.recording)},
         {"baseline",
          {{"path", baseline_path},
           {"schema", b.schema},

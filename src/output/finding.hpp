@@ -23,6 +23,12 @@ void write_summary(std::ostream& out, const AnalyzeResult& r, const std::string&
 /// its bytes as read) and baseline_created_utc. When: the finding's created_utc.
 nlohmann::json provenance_to_json(const AnalyzeResult& r, const std::string& baseline_path);
 nlohmann::json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path);
+/// The "speed" of a finding or screening: rpm, how it was known (given,
+/// estimated, unknown), its confirmation, the search range, shaft and blade-pass Hz.
+nlohmann::json speed_to_json(const models::RecordingAnalysis& a);
+/// The "input" of a finding or screening: path, rate, duration, channel(s),
+/// format, calibrated unit, full scale, SHA-256 of the file's bytes.
+nlohmann::json input_to_json(const AnalyzedRecording& rec);
 /// The data a report draws: the spectrum profile against the baseline's, the
 /// averaged squared-envelope spectrum, the kurtogram's mean map (the finding's "plots").
 nlohmann::json plots_to_json(const AnalyzeResult& r);

@@ -363,10 +363,8 @@ std::vector<ManifestRow> rows_per_channel(const ManifestRow& m) {
     std::vector<int> list = m.channels.channels;
     if (m.channels.all) {
         try {
-            ReadRequest read;
-            read.variable = m.variable;
-            read.sample_rate_hz = m.sample_rate_hz;
-            list = channels_of(m.channels, open_recording(m.path, read, Calibration{})->info().channels, m.path);
+            list = channels_of(m.channels, open_recording(m.path, read_request_of(m), Calibration{})->info().channels,
+                               m.path);
         } catch (const std::exception& e) {
             ManifestRow bad = m;
             bad.error = e.what();
@@ -440,9 +438,7 @@ SummaryRow analyse_row(const ManifestRow& m, const Manifest& manifest, const std
         ao.sister_reference = sister;
         ao.recording = m.path;
         ao.machine = m.machine;
-        ao.read.channel = m.channel;
-        ao.read.variable = m.variable;
-        ao.read.sample_rate_hz = m.sample_rate_hz;
+        ao.read = read_request_of(m);
         ao.rpm = m.rpm;
         ao.vanes = m.vanes;
         ao.calibration = m.calibration;
