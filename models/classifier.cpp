@@ -129,7 +129,7 @@ Comparison compare_segment(Ctx& x, SegmentIndicator i) {
     // At the recording's speed, with the spread of visits and re-mounts (Baseline::expected).
     RobustStat s = x.b.expected(i, x.a.rpm);
     Comparison cmp;
-    cmp.key = std::string(inf.name) + "_" + (inf.unit == "signal" ? x.ukey : std::string(inf.unit));
+    cmp.key = json_key(inf, x.ukey);
     cmp.label = std::string(inf.label);
     const auto& v = x.a.series[i];
     cmp.value = median(v);
@@ -153,7 +153,7 @@ Comparison compare_recording(Ctx& x, RecordingIndicator i) {
     const IndicatorInfo& inf = info(i);
     RobustStat s = x.b[i];
     Comparison cmp;
-    cmp.key = std::string(inf.name) + "_" + std::string(inf.unit);
+    cmp.key = json_key(inf, x.ukey);
     cmp.label = std::string(inf.label);
     cmp.value = cmp.p10 = cmp.p90 = x.a.recording[static_cast<std::size_t>(i)];
     // Shorter segments than the baseline's (a short capture): a coherent line
@@ -170,6 +170,30 @@ Comparison compare_recording(Ctx& x, RecordingIndicator i) {
 }
 
 double frac_to_integer(double order) { return std::abs(order - std::round(order)); }
+
+// Prominence (dB over the local floor) of the averaged squared-envelope
+// spectrum at an integer order, measured as the analyzer measures 1x and BPF;
+// nullopt when the kept spectrum does not reach the line's floor window.
+std::optional<double> order_line_db(const RecordingAnalysis& a, int order) {
+    if (a.rpm <= 0.0 || a.envelope_bin_hz <= 0.0) return std::nullopt;
+    const double hz = order * shaft_hz(a.rpm);
+    const double top_hz = a.envelope_bin_hz * static_cast<double>(a.envelope_spectrum.size());
+    if (hz + envelope_line_floor_hz(a.envelope_bin_hz, hz) >= top_hz) return std::nullopt;
+    return envelope_line(a.envelope_spectrum, a.envelope_bin_hz, hz, a.rpm_estimated).prominence_db;
+}
+
+// The strongest envelope line at the shaft orders 1x .. 2Zx that are not
+// multiples of the vane count Z: the comb a load-zone (inner-race) or
+// looseness modulation puts at every order, against which a blade-pass line
+// must stand out before it can be read as blade-passage modulation.
+double shaft_comb_db(const RecordingAnalysis& a) {
+    double top = 0.0;
+    for (int k = 1; k <= 2 * std::max(a.vanes, 4); ++k) {
+        if (a.vanes > 0 && k % a.vanes == 0) continue;
+        if (const auto p = order_line_db(a, k)) top = std::max(top, *p);
+    }
+    return top;
+}
 
 }  // namespace
 
@@ -205,40 +229,13 @@ std::optional<BearingFamily> bearing_family(const RecordingAnalysis& a) {
                         }
                 }
                 return BearingFamily{fund->order, fund->hz, fund->prominence_db,
-                                     harmonic || fund != &p ? "with its harmonics" : "with shaft-rate sidebands"};
+                                     harmonic || fund != &p ? "with its harmonics" : "with shaft-rate sidebands",
+                                     shaft_comb_db(a)};
             }
         }
     }
     return std::nullopt;
 }
-
-namespace {
-
-// Prominence (dB over the local floor) of the averaged squared-envelope
-// spectrum at an integer order, measured as the analyzer measures 1x and BPF;
-// nullopt when the kept spectrum does not reach the line's floor window.
-std::optional<double> order_line_db(const RecordingAnalysis& a, int order) {
-    if (a.rpm <= 0.0 || a.envelope_bin_hz <= 0.0) return std::nullopt;
-    const double hz = order * shaft_hz(a.rpm);
-    const double top_hz = a.envelope_bin_hz * static_cast<double>(a.envelope_spectrum.size());
-    if (hz + envelope_line_floor_hz(a.envelope_bin_hz, hz) >= top_hz) return std::nullopt;
-    return envelope_line(a.envelope_spectrum, a.envelope_bin_hz, hz, a.rpm_estimated).prominence_db;
-}
-
-// The strongest envelope line at the shaft orders 1x .. 2Zx that are not
-// multiples of the vane count Z: the comb a load-zone (inner-race) or
-// looseness modulation puts at every order, against which a blade-pass line
-// must stand out before it can be read as blade-passage modulation.
-double shaft_comb_db(const RecordingAnalysis& a) {
-    double top = 0.0;
-    for (int k = 1; k <= 2 * std::max(a.vanes, 4); ++k) {
-        if (a.vanes > 0 && k % a.vanes == 0) continue;
-        if (const auto p = order_line_db(a, k)) top = std::max(top, *p);
-    }
-    return top;
-}
-
-}  // namespace
 
 // An inner-race defect crosses the load zone once a revolution, so its
 // impacts are modulated at the shaft rate: envelope lines at k x 1x as well
@@ -253,7 +250,7 @@ bool explained_by_bearing_family(const RecordingAnalysis& a, const BearingFamily
     const double order = hz / shaft_hz(a.rpm);
     if (std::abs(order - std::round(order)) < 0.02) {
         const auto p = order_line_db(a, static_cast<int>(std::lround(order)));
-        return !p || *p < shaft_comb_db(a) + 3.0;
+        return !p || *p < family.comb_db + 3.0;
     }
     return false;
 }
@@ -323,7 +320,8 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
     s.sparse = s.kurt.value >= c.sparse_kurtosis;
     s.lf_alert = s.lf.change >= c.lf_alert_db && s.lf.z >= c.z_alert;
     s.mains = a.mains_hz > 0.0;
-    if (const auto family = bearing_family(a)) {
+    const std::optional<BearingFamily> family = bearing_family(a);
+    if (family) {
         s.bearing = true;
         s.b_order = family->order;
         s.b_hz = family->hz;
@@ -331,8 +329,6 @@ Signs read_signs(const RecordingAnalysis& a, const Baseline& b, const Classifier
         s.b_family = family->family;
     }
 
-    const std::optional<BearingFamily> family = s.bearing ? std::optional(BearingFamily{s.b_order, s.b_hz, s.b_prom, s.b_family})
-                                                          : std::nullopt;
     auto explained_by_bearing = [&](double hz) { return family && explained_by_bearing_family(a, *family, hz); };
     // Integer-order modulation: BPF (needs the vane count) or, failing that, 1x.
     if (a.rpm > 0.0) {

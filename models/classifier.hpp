@@ -161,6 +161,9 @@ struct BearingFamily {
     double hz = 0.0;
     double prominence_db = 0.0;  ///< over the envelope spectrum's local floor
     std::string family;          ///< "with its harmonics" or "with shaft-rate sidebands"
+    /// The strongest envelope line at shaft orders that are not blade pass
+    /// (the comb a load zone puts at every order), dB over its floor.
+    double comb_db = 0.0;
 };
 std::optional<BearingFamily> bearing_family(const RecordingAnalysis& analysis);
 /// Whether the family explains an envelope line at hz: one of its first six

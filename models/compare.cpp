@@ -80,7 +80,7 @@ BeforeAfter compare_before_after(const std::vector<RecordingSide>& before, const
         if (a.empty() || b.empty()) continue;
         const IndicatorInfo& inf = info(k);
         IndicatorChange ic;
-        ic.key = std::string(inf.name) + "_" + (inf.unit == "signal" ? unit : std::string(inf.unit));
+        ic.key = json_key(inf, unit);
         ic.label = std::string(inf.label);
         ic.before_segments = a.size();
         ic.after_segments = b.size();

@@ -33,6 +33,10 @@ constexpr std::array<IndicatorInfo, kRecordingIndicatorCount> kRecording{{
 const IndicatorInfo& info(SegmentIndicator i) { return kSegment[static_cast<std::size_t>(i)]; }
 const IndicatorInfo& info(RecordingIndicator i) { return kRecording[static_cast<std::size_t>(i)]; }
 
+std::string json_key(const IndicatorInfo& i, std::string_view signal_unit_key) {
+    return std::string(i.name) + "_" + std::string(i.unit == "signal" ? signal_unit_key : i.unit);
+}
+
 const IndicatorInfo* indicator_of_key(std::string_view key) {
     auto matches = [key](const IndicatorInfo& i) {
         if (key.size() <= i.name.size() + 1 || key.substr(0, i.name.size()) != i.name || key[i.name.size()] != '_')

@@ -62,6 +62,10 @@ struct IndicatorInfo {
 const IndicatorInfo& info(SegmentIndicator i);
 const IndicatorInfo& info(RecordingIndicator i);
 
+/// An indicator's JSON key: its name and unit suffix, the recording's unit key
+/// (unit_key: "g", "m_s2", "pa", "fs") for "signal" ones: hf_band_level_db, overall_rms_g.
+std::string json_key(const IndicatorInfo& i, std::string_view signal_unit_key);
+
 /// The indicator whose JSON key this is (name + "_" + unit suffix; the recording's
 /// unit for "signal" ones), or nullptr.
 const IndicatorInfo* indicator_of_key(std::string_view key);

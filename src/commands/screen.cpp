@@ -56,15 +56,11 @@ json signs_to_json(const std::vector<models::ScreeningSign>& signs) {
 json indicators_to_json(const models::RecordingAnalysis& a, const std::string& unit) {
     json j = json::object();
     const std::string ukey = models::unit_key(unit);
-    for (std::size_t i = 0; i < models::kSegmentIndicatorCount; ++i) {
-        const auto& inf = models::info(static_cast<models::SegmentIndicator>(i));
-        j[std::string(inf.name) + "_" + (inf.unit == "signal" ? ukey : std::string(inf.unit))] =
+    for (std::size_t i = 0; i < models::kSegmentIndicatorCount; ++i)
+        j[models::json_key(models::info(static_cast<models::SegmentIndicator>(i)), ukey)] =
             models::median(a.series.values[i]);
-    }
-    for (std::size_t i = 0; i < models::kRecordingIndicatorCount; ++i) {
-        const auto& inf = models::info(static_cast<models::RecordingIndicator>(i));
-        j[std::string(inf.name) + "_" + std::string(inf.unit)] = a.recording[i];
-    }
+    for (std::size_t i = 0; i < models::kRecordingIndicatorCount; ++i)
+        j[models::json_key(models::info(static_cast<models::RecordingIndicator>(i)), ukey)] = a.recording[i];
     return j;
 }
 
@@ -95,13 +91,7 @@ json screening_to_json(const ScreenResult& r) {
         {"cautions", s.call == models::ScreeningCall::signs_of_cavitation ? json(models::cavitation_cautions())
                                                                            : json::array()},
         {"indicators", indicators_to_json(a, in.calibration.unit)},
-        {"bands",
-         {{"hf_low_hz", a.setup.hf.low_hz},
-          {"hf_high_hz", a.setup.hf.high_hz},
-          {"lf_low_hz", a.setup.lf.low_hz},
-          {"lf_high_hz", a.setup.lf.high_hz},
-          {"segment_s", a.setup.segment_s},
-          {"level_reference", "dB re 1 " + in.calibration.unit + " squared"}}},
+        {"bands", bands_to_json(r.recording)},
         {"speed", speed_to_json(a)},
         {"quality",
          {{"usable", s.quality.usable()}, {"checks", checks}, {"warnings", s.warnings}}},

@@ -366,6 +366,16 @@ json speed_to_json(const models::RecordingAnalysis& a) {
     };
 }
 
+json bands_to_json(const AnalyzedRecording& rec) {
+    const auto& s = rec.analysis.setup;
+    return {{"hf_low_hz", s.hf.low_hz},
+            {"hf_high_hz", s.hf.high_hz},
+            {"lf_low_hz", s.lf.low_hz},
+            {"lf_high_hz", s.lf.high_hz},
+            {"segment_s", s.segment_s},
+            {"level_reference", "dB re 1 " + rec.info.calibration.unit + " squared"}};
+}
+
 json input_to_json(const AnalyzedRecording& rec) {
     const auto& in = rec.info;
     return {{"path", in.path},
@@ -443,13 +453,7 @@ json finding_to_json(const AnalyzeResult& r, const std::string& baseline_path) {
         {"baseline_warnings", warnings_to_json(f.baseline_warnings)},
         {"cautions", cavitating(f.verdict) ? json(models::cavitation_cautions()) : json::array()},
         {"indicators", indicators},
-        {"bands",
-         {{"hf_low_hz", a.setup.hf.low_hz},
-          {"hf_high_hz", a.setup.hf.high_hz},
-          {"lf_low_hz", a.setup.lf.low_hz},
-          {"lf_high_hz", a.setup.lf.high_hz},
-          {"segment_s", a.setup.segment_s},
-          {"level_reference", "dB re 1 " + in.calibration.unit + " squared"}}},
+        {"bands", bands_to_json(r.recording)},
         {"speed", speed},
         {"envelope_peaks", peaks},
         {"quality", quality},

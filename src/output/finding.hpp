@@ -26,6 +26,9 @@ nlohmann::json finding_to_json(const AnalyzeResult& r, const std::string& baseli
 /// The "speed" of a finding or screening: rpm, how it was known (given,
 /// estimated, unknown), its confirmation, the search range, shaft and blade-pass Hz.
 nlohmann::json speed_to_json(const models::RecordingAnalysis& a);
+/// The "bands" of a finding or screening: HF and LF edges (Hz), segment (s),
+/// the levels' reference (dB re 1 unit squared).
+nlohmann::json bands_to_json(const AnalyzedRecording& rec);
 /// The "input" of a finding or screening: path, rate, duration, channel(s),
 /// format, calibrated unit, full scale, SHA-256 of the file's bytes.
 nlohmann::json input_to_json(const AnalyzedRecording& rec);
